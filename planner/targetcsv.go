@@ -1,0 +1,385 @@
+package planner
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"phasecast/ephem"
+)
+
+// PlanCSVHeader is the header of the `plan` command's targets file, in its
+// documented order. ParseTargetsCSV accepts the columns in any order but
+// requires every one of them and no other.
+var PlanCSVHeader = []string{
+	"name", "ra", "dec", "t0_bjd_tdb", "period_days", "phases",
+	"phase_halfwidth", "exposure_s", "overhead_s", "priority",
+}
+
+// CellError is one rejected cell of a table file: the 1-based line of the
+// file, the 1-based column number and the column's header name (both 0 and ""
+// when the whole line is at fault), the value as written, and what is
+// accepted.
+type CellError struct {
+	Line   int
+	Col    int
+	Column string
+	Value  string
+	Reason string
+}
+
+// String reads "line 7, column 3 (dec): "+95:00:00" is not accepted; ...".
+func (c CellError) String() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "line %d", c.Line)
+	switch {
+	case c.Col > 0 && c.Column != "":
+		fmt.Fprintf(&b, ", column %d (%s)", c.Col, c.Column)
+	case c.Col > 0:
+		fmt.Fprintf(&b, ", column %d", c.Col)
+	case c.Column != "":
+		fmt.Fprintf(&b, ", column %s", c.Column)
+	}
+	if c.Value != "" {
+		fmt.Fprintf(&b, ": %q", c.Value)
+	}
+	b.WriteString(": ")
+	b.WriteString(c.Reason)
+	return b.String()
+}
+
+// TableError lists every rejected cell of a file. A file with any rejected
+// cell is rejected whole: nothing of it is used.
+type TableError struct {
+	Cells []CellError
+}
+
+// Error lists the cells one per line, after a count.
+func (e *TableError) Error() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "%d error(s) in the file, nothing was read:", len(e.Cells))
+	for _, c := range e.Cells {
+		b.WriteString("\n  ")
+		b.WriteString(c.String())
+	}
+	return b.String()
+}
+
+// add records a rejected cell.
+func (e *TableError) add(line, col int, column, value, reason string) {
+	e.Cells = append(e.Cells, CellError{Line: line, Col: col, Column: column, Value: value, Reason: reason})
+}
+
+// Limits of the plan CSV's numeric columns.
+const (
+	// MaxPeriodDays is the longest orbital period accepted in a targets file:
+	// one Julian century, far beyond the compact binaries phasecast is for
+	// but a plain sanity bound.
+	MaxPeriodDays = 36525.0
+	// MaxExposureS is the longest single exposure accepted, s (one day).
+	MaxExposureS = 86400.0
+)
+
+// ParseTargetsCSV reads the `plan` command's targets file: a header line
+// naming the columns of PlanCSVHeader (any order, each exactly once, no
+// others), then one target per line. Blank lines and lines starting with '#'
+// are skipped.
+//
+//   - name: non-empty text.
+//   - ra, dec: ICRS, decimal degrees or sexagesimal (RA in hours, Dec in
+//     degrees), as ephem.ParseRA and ephem.ParseDec accept.
+//   - t0_bjd_tdb: the reference epoch as a full Julian date on the BJD_TDB
+//     scale (e.g. 2460123.4567891); digits beyond float64 precision are kept
+//     by splitting the value into two parts (ephem.JD2). Years
+//     ephem.MinYear..ephem.MaxYear. MJD or reduced dates are rejected.
+//   - period_days: 0 < P ≤ MaxPeriodDays.
+//   - phases: goal centres separated by ';' (e.g. "0.25;0.75"), each
+//     0 ≤ φ < 1, no repeats, in the convention of T0.
+//   - phase_halfwidth: half-width of every goal window, 0 < w < 0.5.
+//   - exposure_s: one exposure, 0 < t ≤ MaxExposureS seconds.
+//   - overhead_s: readout after each exposure, 0 ≤ t ≤ MaxExposureS seconds.
+//   - priority: integer 1 (highest) to 5.
+//
+// The file has no convention column: T0 is recorded as the companion's
+// inferior conjunction (ephem.ConvInferiorConjunction), and the phases are
+// taken as given. On any bad cell the error is a *TableError listing EVERY
+// bad cell by line and column, and no target is returned.
+func ParseTargetsCSV(r io.Reader) ([]Target, error) {
+	cr := csv.NewReader(r)
+	cr.Comment = '#'
+	cr.FieldsPerRecord = -1
+	cr.TrimLeadingSpace = true
+	header, err := cr.Read()
+	if errors.Is(err, io.EOF) {
+		return nil, &TableError{Cells: []CellError{{Line: 1, Reason: "the file is empty; expected the header " + strings.Join(PlanCSVHeader, ",")}}}
+	}
+	if err != nil {
+		return nil, csvReadError(err)
+	}
+	headerLine, _ := cr.FieldPos(0)
+	te := &TableError{}
+	col := columnIndex(header, PlanCSVHeader, headerLine, te)
+	if len(te.Cells) > 0 {
+		return nil, te
+	}
+	var targets []Target
+	names := map[string]int{}
+	for {
+		rec, err := cr.Read()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				// Bad quoting: note it and read on, to report every bad line.
+				te.add(pe.Line, pe.Column, "", "", "malformed CSV: "+pe.Err.Error())
+				continue
+			}
+			return nil, fmt.Errorf("read targets CSV: %w", err)
+		}
+		line, _ := cr.FieldPos(0)
+		if len(rec) != len(header) {
+			te.add(line, 0, "", "", fmt.Sprintf("has %d fields; the header has %d", len(rec), len(header)))
+			continue
+		}
+		t, ok := parsePlanRow(rec, col, line, te)
+		if !ok {
+			continue
+		}
+		if first, dup := names[t.Name]; dup {
+			te.add(line, col["name"]+1, "name", t.Name, fmt.Sprintf("duplicate: the same name is on line %d", first))
+			continue
+		}
+		names[t.Name] = line
+		targets = append(targets, t)
+	}
+	if len(te.Cells) > 0 {
+		return nil, te
+	}
+	if len(targets) == 0 {
+		return nil, &TableError{Cells: []CellError{{Line: headerLine + 1, Reason: "the file has a header but no targets"}}}
+	}
+	return targets, nil
+}
+
+// csvReadError reports a malformed CSV (bad quoting) as a one-cell
+// TableError naming the line.
+func csvReadError(err error) error {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		return &TableError{Cells: []CellError{{Line: pe.Line, Col: pe.Column, Reason: "malformed CSV: " + pe.Err.Error()}}}
+	}
+	return fmt.Errorf("read targets CSV: %w", err)
+}
+
+// columnIndex maps each required column name to its index in header,
+// recording missing, repeated and unknown columns in te.
+func columnIndex(header, required []string, line int, te *TableError) map[string]int {
+	want := map[string]bool{}
+	for _, n := range required {
+		want[n] = true
+	}
+	col := map[string]int{}
+	for i, h := range header {
+		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
+		switch {
+		case !want[h]:
+			te.add(line, i+1, h, h, "unknown column; the header must be "+strings.Join(required, ","))
+		case hasKey(col, h):
+			te.add(line, i+1, h, h, fmt.Sprintf("column repeated (first at column %d)", col[h]+1))
+		default:
+			col[h] = i
+		}
+	}
+	for _, n := range required {
+		if !hasKey(col, n) {
+			te.add(line, 0, n, "", "missing column "+n+"; the header must be "+strings.Join(required, ","))
+		}
+	}
+	return col
+}
+
+func hasKey(m map[string]int, k string) bool { _, ok := m[k]; return ok }
+
+// parsePlanRow converts one record; every bad cell is added to te.
+func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (Target, bool) {
+	n0 := len(te.Cells)
+	get := func(name string) string { return strings.TrimSpace(rec[col[name]]) }
+	bad := func(name, value, reason string) { te.add(line, col[name]+1, name, value, reason) }
+	var t Target
+	t.Ephem.Convention = ephem.ConvInferiorConjunction
+
+	name := get("name")
+	if name == "" {
+		bad("name", name, "a target name is required")
+	}
+	t.Name = name
+
+	{
+		v := get("ra")
+		ra, err := ephem.ParseRA(v)
+		if err != nil {
+			bad("ra", v, inputReason(err))
+		}
+		t.RADeg = ra
+	}
+	{
+		v := get("dec")
+		dec, err := ephem.ParseDec(v)
+		if err != nil {
+			bad("dec", v, inputReason(err))
+		}
+		t.DecDeg = dec
+	}
+	{
+		v := get("t0_bjd_tdb")
+		jd, err := ParseJulianDate(v)
+		if err != nil {
+			bad("t0_bjd_tdb", v, err.Error())
+		}
+		t.Ephem.T0 = jd
+	}
+	{
+		v := get("period_days")
+		p, ok := parseFinite(v)
+		if !ok || p <= 0 || p > MaxPeriodDays {
+			bad("period_days", v, fmt.Sprintf("a period in days, 0 < P ≤ %g", MaxPeriodDays))
+		}
+		t.Ephem.PeriodDays = p
+	}
+	hw := 0.0
+	{
+		v := get("phase_halfwidth")
+		w, ok := parseFinite(v)
+		if !ok || w <= 0 || w >= 0.5 {
+			bad("phase_halfwidth", v, "a phase half-width, 0 < w < 0.5")
+		}
+		hw = w
+	}
+	exp := 0.0
+	{
+		v := get("exposure_s")
+		e, ok := parseFinite(v)
+		if !ok || e <= 0 || e > MaxExposureS {
+			bad("exposure_s", v, fmt.Sprintf("one exposure in seconds, 0 < t ≤ %g", MaxExposureS))
+		}
+		exp = e
+	}
+	ovh := 0.0
+	{
+		v := get("overhead_s")
+		o, ok := parseFinite(v)
+		if !ok || o < 0 || o > MaxExposureS {
+			bad("overhead_s", v, fmt.Sprintf("readout overhead per exposure in seconds, 0 ≤ t ≤ %g", MaxExposureS))
+		}
+		ovh = o
+	}
+	{
+		v := get("priority")
+		p, err := strconv.Atoi(v)
+		if err != nil || p < 1 || p > 5 {
+			bad("priority", v, "an integer 1 (highest) to 5")
+		}
+		t.Priority = p
+	}
+	{
+		v := get("phases")
+		centres, reason := ParsePhaseList(v)
+		if reason != "" {
+			bad("phases", v, reason)
+		}
+		for _, c := range centres {
+			t.Goals = append(t.Goals, Goal{Center: c, HalfWidth: hw, ExposureS: exp, OverheadS: ovh})
+		}
+	}
+	return t, len(te.Cells) == n0
+}
+
+// ParsePhaseList parses goal centres separated by ';' ("0.25;0.75"), each
+// 0 ≤ φ < 1, at least one, no repeats. reason is "" on success, else what is
+// accepted.
+func ParsePhaseList(s string) (centres []float64, reason string) {
+	const accepted = "phases separated by ';' (e.g. 0.25;0.75), each 0 ≤ phase < 1, no repeats"
+	if strings.TrimSpace(s) == "" {
+		return nil, "at least one phase is required: " + accepted
+	}
+	seen := map[float64]bool{}
+	for _, part := range strings.Split(s, ";") {
+		c, ok := parseFinite(strings.TrimSpace(part))
+		if !ok || c < 0 || c >= 1 || seen[c] {
+			return nil, accepted
+		}
+		seen[c] = true
+		centres = append(centres, c)
+	}
+	return centres, ""
+}
+
+// parseFinite parses a decimal number, rejecting NaN, infinities and
+// hexadecimal forms.
+func parseFinite(s string) (float64, bool) {
+	if s == "" || strings.ContainsAny(s, "xXpP_") {
+		return 0, false
+	}
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, false
+	}
+	return v, true
+}
+
+// inputReason returns what an *ephem.InputError says is accepted, or the
+// error's text.
+func inputReason(err error) string {
+	var ie *ephem.InputError
+	if errors.As(err, &ie) {
+		return "accepted: " + ie.Accepted
+	}
+	return err.Error()
+}
+
+// ParseJulianDate parses a full Julian date written in decimal
+// ("2460123.4567891234") into two parts without losing the digits a single
+// float64 would drop: the integer and fractional digits are converted
+// separately. The result is normalised as ephem.JD2 expects (Day a
+// half-integer, 0 ≤ Frac < 1). Accepted: years ephem.MinYear..ephem.MaxYear
+// (JD 2378496.5 to 2524593.5); MJD and reduced dates are rejected, not
+// guessed. The time scale is the caller's to name.
+func ParseJulianDate(s string) (ephem.JD2, error) {
+	lo := ephem.JDFromCalendar(ephem.MinYear, 1, 1)
+	hi := ephem.JDFromCalendar(ephem.MaxYear+1, 1, 1)
+	accepted := fmt.Errorf("a full Julian date in decimal, %.1f to %.1f (years %d to %d), e.g. 2460123.45678; MJD and reduced dates are not accepted here",
+		lo, hi, ephem.MinYear, ephem.MaxYear)
+	s = strings.TrimSpace(s)
+	intPart, fracPart, _ := strings.Cut(s, ".")
+	if intPart == "" || strings.TrimLeft(intPart, "0123456789") != "" ||
+		strings.TrimLeft(fracPart, "0123456789") != "" || len(intPart) > 9 {
+		return ephem.JD2{}, accepted
+	}
+	whole, err := strconv.ParseInt(intPart, 10, 64)
+	if err != nil {
+		return ephem.JD2{}, accepted
+	}
+	frac := 0.0
+	if fracPart != "" {
+		frac, err = strconv.ParseFloat("0."+fracPart, 64)
+		if err != nil {
+			return ephem.JD2{}, accepted
+		}
+	}
+	var j ephem.JD2
+	if frac >= 0.5 {
+		j = ephem.JD2{Day: float64(whole) + 0.5, Frac: frac - 0.5}
+	} else {
+		j = ephem.JD2{Day: float64(whole) - 0.5, Frac: frac + 0.5}
+	}
+	if j.Float() < lo || j.Float() >= hi {
+		return ephem.JD2{}, accepted
+	}
+	return j, nil
+}
