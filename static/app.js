@@ -1,0 +1,86 @@
+// phasecast progressive enhancement. Every page works without this file.
+// - Night-vision toggle: switches the theme at once and remembers it in a
+//   cookie (the server reads the same cookie, so there is no flash).
+// - data-refresh="URL" data-every="60": reload that element's content from
+//   URL every N seconds (Tonight page); pauses while the tab is hidden.
+// - data-countdown="RFC3339": ticks a countdown each second.
+// - data-progress="URL": polls a JSON progress endpoint and updates a
+//   <progress> element, then follows data-done when finished.
+(function () {
+  "use strict";
+
+  function setTheme(night) {
+    document.documentElement.classList.toggle("nightmode", night);
+    document.cookie = "theme=" + (night ? "night" : "day") + "; Path=/; Max-Age=31536000; SameSite=Lax";
+  }
+
+  document.addEventListener("submit", function (ev) {
+    var f = ev.target;
+    if (f && f.matches && f.matches("form[data-theme-toggle]")) {
+      ev.preventDefault();
+      setTheme(!document.documentElement.classList.contains("nightmode"));
+    }
+  });
+
+  function pad(n) { return (n < 10 ? "0" : "") + n; }
+
+  function tickCountdowns() {
+    var now = Date.now();
+    document.querySelectorAll("[data-countdown]").forEach(function (el) {
+      var t = Date.parse(el.getAttribute("data-countdown"));
+      if (isNaN(t)) { return; }
+      var s = Math.round((t - now) / 1000);
+      var sign = s < 0 ? "−" : "";
+      s = Math.abs(s);
+      var h = Math.floor(s / 3600), m = Math.floor((s % 3600) / 60), sec = s % 60;
+      el.textContent = sign + h + ":" + pad(m) + ":" + pad(sec);
+    });
+  }
+
+  function refresh(el) {
+    var url = el.getAttribute("data-refresh");
+    if (document.hidden) { return; }
+    fetch(url, { credentials: "same-origin", headers: { "Accept": "text/html" } })
+      .then(function (r) { return r.ok ? r.text() : Promise.reject(r.status); })
+      .then(function (html) {
+        var doc = new DOMParser().parseFromString(html, "text/html");
+        var fresh = doc.querySelector("[data-refresh]") || doc.body;
+        el.innerHTML = fresh.innerHTML;
+        tickCountdowns();
+      })
+      .catch(function () { /* keep the old content; the next tick retries */ });
+  }
+
+  function pollProgress(el) {
+    var url = el.getAttribute("data-progress");
+    var bar = el.querySelector("progress");
+    var label = el.querySelector("[data-progress-label]");
+    function step() {
+      fetch(url, { credentials: "same-origin", headers: { "Accept": "application/json" } })
+        .then(function (r) { return r.json(); })
+        .then(function (p) {
+          if (bar) { bar.max = 1; bar.value = p.fraction || 0; }
+          if (label) { label.textContent = p.message || ""; }
+          if (p.done) {
+            window.location.assign(p.next || el.getAttribute("data-done") || window.location.href);
+          } else {
+            window.setTimeout(step, 500);
+          }
+        })
+        .catch(function () { window.setTimeout(step, 2000); });
+    }
+    step();
+  }
+
+  document.addEventListener("DOMContentLoaded", function () {
+    document.querySelectorAll("[data-refresh]").forEach(function (el) {
+      var every = parseInt(el.getAttribute("data-every") || "60", 10) * 1000;
+      window.setInterval(function () { refresh(el); }, every);
+    });
+    if (document.querySelector("[data-countdown]")) {
+      tickCountdowns();
+      window.setInterval(tickCountdowns, 1000);
+    }
+    document.querySelectorAll("[data-progress]").forEach(pollProgress);
+  });
+})();

@@ -1,0 +1,56 @@
+package web
+
+import (
+	"context"
+	"errors"
+	"net/http"
+)
+
+// Error codes shared with the store; statusFor maps them to HTTP statuses.
+const (
+	codeInvalid   = "EINVALID"
+	codeNotFound  = "ENOTFOUND"
+	codeConflict  = "ECONFLICT"
+	codeForbidden = "EFORBIDDEN"
+	codeInternal  = "EINTERNAL"
+)
+
+// errMalformed marks a request that could not be parsed at all (bad form
+// encoding, bad JSON): 400, where a parsed but unacceptable value is 422.
+var errMalformed = errors.New("malformed request")
+
+// statusFor is the one place that maps an error to an HTTP status and the
+// short, safe message a user may see. Details stay in the log.
+//
+//	EINVALID   → 422 (400 when the request could not be parsed)
+//	ENOTFOUND  → 404
+//	ECONFLICT  → 409
+//	EFORBIDDEN → 403
+//	EINTERNAL and anything unknown → 500
+func statusFor(err error) (status int, message string) {
+	if errors.Is(err, errMalformed) {
+		return http.StatusBadRequest, "The request could not be read."
+	}
+	if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+		return http.StatusServiceUnavailable, "The computation was stopped before it finished."
+	}
+	code, msg := errorCode(err)
+	switch code {
+	case codeInvalid:
+		return http.StatusUnprocessableEntity, orDefault(msg, "Some values are not accepted.")
+	case codeNotFound:
+		return http.StatusNotFound, orDefault(msg, "Not found.")
+	case codeConflict:
+		return http.StatusConflict, orDefault(msg, "Someone else changed this in the meantime.")
+	case codeForbidden:
+		return http.StatusForbidden, "You are not allowed to do that."
+	}
+	return http.StatusInternalServerError, "Something went wrong on our side; it has been logged."
+}
+
+func orDefault(s, d string) string {
+	if s == "" {
+		return d
+	}
+	return s
+}

@@ -1,0 +1,71 @@
+// Package web is phasecast's HTTP interface: server-rendered pages (templ),
+// SVG charts, exports (CSV, JSON, iCalendar) and the JSON API under /api/v1.
+//
+// Handlers parse a request into a struct, validate it, call the store or the
+// planner, and render a typed view model. There is no SQL and no astronomy
+// here: the store decides who may do what (its single policy function), the
+// planner computes the sky.
+package web
+
+import (
+	"context"
+	"errors"
+	"log/slog"
+	"net/http"
+	"time"
+)
+
+// Config is what the server needs from its caller.
+type Config struct {
+	Logger *slog.Logger
+	// Now is the clock; nil means time.Now. Tests pass a fixed instant.
+	Now func() time.Time
+	// BaseURL is the externally visible address ("http://127.0.0.1:8080"),
+	// used to build sign-in, invitation and share links.
+	BaseURL string
+	// Ping reports whether the database is reachable (for /healthz).
+	Ping func(ctx context.Context) error
+}
+
+// Server holds the dependencies of the handlers.
+type Server struct {
+	log     *slog.Logger
+	now     func() time.Time
+	baseURL string
+	ping    func(ctx context.Context) error
+	logins  *limiter
+}
+
+// New returns a Server for cfg.
+func New(cfg Config) (*Server, error) {
+	if cfg.Ping == nil {
+		return nil, errors.New("web: Config.Ping is required")
+	}
+	s := &Server{
+		log:     cfg.Logger,
+		now:     cfg.Now,
+		baseURL: cfg.BaseURL,
+		ping:    cfg.Ping,
+		logins:  newLimiter(10, 30*time.Second),
+	}
+	if s.log == nil {
+		s.log = slog.New(slog.DiscardHandler)
+	}
+	if s.now == nil {
+		s.now = time.Now
+	}
+	return s, nil
+}
+
+// Handler returns the complete HTTP handler: routes wrapped in logging,
+// panic recovery, security headers and cross-origin protection.
+func (s *Server) Handler() http.Handler {
+	mux := http.NewServeMux()
+	s.routes(mux)
+	var h http.Handler = mux
+	h = http.NewCrossOriginProtection().Handler(h)
+	h = secureHeaders(h)
+	h = s.recoverPanics(h)
+	h = s.logRequests(h)
+	return h
+}
