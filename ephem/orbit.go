@@ -366,7 +366,8 @@ func (e Ephemeris) WhenPhaseErrExceeds(tol float64, after JD2) (JD2, bool) {
 // WithConvention returns the same ephemeris with T0 moved to the reference
 // event of convention c (and, for ConvCustom, the phase offset in the
 // inferior-conjunction cycle): the new T0 is the occurrence of that event
-// nearest the old T0 (within half a cycle), the period and Ṗ are those at
+// in the same orbit as the old T0, an orbit counted from half a cycle before
+// an inferior conjunction to half a cycle after (less than a cycle away), the period and Ṗ are those at
 // the new origin, P' = P(1+ṖE₀), Ṗ' = Ṗ/(1+ṖE₀), and the covariance is
 // propagated linearly. Eccentricity and ω are taken as exact.
 func (e Ephemeris) WithConvention(c Convention, phaseOffset float64) (Ephemeris, error) {
@@ -378,8 +379,11 @@ func (e Ephemeris) WithConvention(c Convention, phaseOffset float64) (Ephemeris,
 	if err := n.Validate(); err != nil {
 		return Ephemeris{}, err
 	}
-	// The new T0 is at phase E0 of the old convention.
-	E0 := orbitWrapHalf(orbitRefPhase(n) - orbitRefPhase(e))
+	// The new T0 is at phase E0 of the old convention. Both reference
+	// events are placed in the cycle centred on the inferior conjunction
+	// (−½ ≤ φ_ic < ½), so that moving there and back is the identity.
+	ic := orbitMeanPhase(e.Ecc, e.OmegaDeg, 90)
+	E0 := orbitWrapHalf(orbitRefPhase(n)-ic) - orbitWrapHalf(orbitRefPhase(e)-ic)
 	P, Pd := e.PeriodDays, e.Pdot
 	n.T0 = e.TimeAt(0, E0)
 	n.PeriodDays = P * (1 + Pd*E0)
