@@ -1,0 +1,488 @@
+package chart
+
+import (
+	"bytes"
+	"encoding/xml"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+)
+
+// element is one parsed SVG element with its attributes.
+type element struct {
+	name  string
+	attrs map[string]string
+	text  string
+}
+
+// parseSVG checks that doc is well-formed XML with an <svg> root and
+// returns its elements in document order.
+func parseSVG(tb testing.TB, doc string) []element {
+	tb.Helper()
+	dec := xml.NewDecoder(strings.NewReader(doc))
+	var els []element
+	var stack []int
+	for {
+		tok, err := dec.Token()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			tb.Fatalf("SVG is not well-formed XML: %v\n%s", err, head(doc))
+		}
+		switch t := tok.(type) {
+		case xml.StartElement:
+			e := element{name: t.Name.Local, attrs: map[string]string{}}
+			for _, a := range t.Attr {
+				e.attrs[a.Name.Local] = a.Value
+			}
+			els = append(els, e)
+			stack = append(stack, len(els)-1)
+		case xml.EndElement:
+			stack = stack[:len(stack)-1]
+		case xml.CharData:
+			if len(stack) > 0 {
+				els[stack[len(stack)-1]].text += string(t)
+			}
+		}
+	}
+	if len(els) == 0 || els[0].name != "svg" {
+		tb.Fatalf("root element is not <svg>:\n%s", head(doc))
+	}
+	return els
+}
+
+func head(s string) string {
+	if len(s) > 400 {
+		return s[:400] + "…"
+	}
+	return s
+}
+
+// viewBox returns the width and height of the root's viewBox.
+func viewBox(tb testing.TB, root element) (w, h float64) {
+	tb.Helper()
+	f := strings.Fields(root.attrs["viewBox"])
+	if len(f) != 4 {
+		tb.Fatalf("viewBox = %q", root.attrs["viewBox"])
+	}
+	w, _ = strconv.ParseFloat(f[2], 64)
+	h, _ = strconv.ParseFloat(f[3], 64)
+	return w, h
+}
+
+// checkCoordinates fails when a coordinate attribute is not a number or lies
+// far outside the drawing (a few pixels of slack for strokes and labels).
+func checkCoordinates(tb testing.TB, els []element) {
+	tb.Helper()
+	w, h := viewBox(tb, els[0])
+	xs := []string{"x", "x1", "x2", "cx"}
+	ys := []string{"y", "y1", "y2", "cy"}
+	check := func(e element, name string, lim float64) {
+		v, ok := e.attrs[name]
+		if !ok {
+			return
+		}
+		f, err := strconv.ParseFloat(v, 64)
+		if err != nil || math.IsNaN(f) || f < -20 || f > lim+20 {
+			tb.Errorf("<%s %s=%q>: not a coordinate within 0..%g", e.name, name, v, lim)
+		}
+	}
+	for _, e := range els {
+		if e.name == "pattern" || e.name == "clipPath" {
+			continue
+		}
+		for _, a := range xs {
+			check(e, a, w)
+		}
+		for _, a := range ys {
+			check(e, a, h)
+		}
+		if d, ok := e.attrs["d"]; ok {
+			for _, f := range strings.FieldsFunc(d, func(r rune) bool { return strings.ContainsRune("MLAZ ,", r) }) {
+				v, err := strconv.ParseFloat(f, 64)
+				if err != nil || math.IsNaN(v) || v < -20 || v > math.Max(w, h)+20 {
+					tb.Errorf("<%s d=…%s…>: bad path number", e.name, f)
+					break
+				}
+			}
+		}
+	}
+}
+
+func count(els []element, pred func(element) bool) int {
+	n := 0
+	for _, e := range els {
+		if pred(e) {
+			n++
+		}
+	}
+	return n
+}
+
+func hasClass(e element, c string) bool {
+	for _, f := range strings.Fields(e.attrs["class"]) {
+		if f == c {
+			return true
+		}
+	}
+	return false
+}
+
+func texts(els []element) string {
+	var b strings.Builder
+	for _, e := range els {
+		if e.name == "text" {
+			b.WriteString(e.text)
+			b.WriteByte('\n')
+		}
+	}
+	return b.String()
+}
+
+// sampleNight builds an invented night: n targets whose altitude follows a
+// smooth arch (a test pattern, not a sky computation) and whose phase
+// advances with a period of 1.5 + i/4 hours.
+func sampleNight(n int, step time.Duration) Night {
+	start := time.Date(2026, 3, 14, 18, 0, 0, 0, time.UTC)
+	end := start.Add(12 * time.Hour)
+	zone := time.FixedZone("XST", -3*3600)
+	night := Night{
+		Title: "Night of 2026-03-14", Start: start, End: end, Zone: zone,
+		Bands: []Band{
+			{start, start.Add(30 * time.Minute), "day"},
+			{start.Add(30 * time.Minute), start.Add(60 * time.Minute), "civil"},
+			{start.Add(60 * time.Minute), start.Add(90 * time.Minute), "nautical"},
+			{start.Add(90 * time.Minute), start.Add(2 * time.Hour), "astronomical"},
+			{start.Add(2 * time.Hour), end.Add(-2 * time.Hour), "night"},
+			{end.Add(-2 * time.Hour), end, "nautical"},
+		},
+		MoonLabel:   "Moon 40% lit",
+		Airmass:     []Tick{{90, "1.0"}, {41.8, "1.5"}, {30, "2.0"}, {19.5, "3.0"}},
+		LimitAltDeg: 30, LimitLabel: "airmass 2.0",
+		Now: start.Add(5 * time.Hour),
+	}
+	for t := start; !t.After(end); t = t.Add(10 * time.Minute) {
+		night.Moon = append(night.Moon, AltPoint{t, 50*math.Sin(float64(t.Sub(start))/float64(12*time.Hour)*math.Pi) - 10})
+	}
+	for i := range n {
+		period := time.Duration((1.5 + float64(i)/4) * float64(time.Hour))
+		peak := start.Add(time.Duration(i%12) * time.Hour)
+		tr := Track{Name: fmt.Sprintf("Target %02d", i+1)}
+		for t := start; !t.After(end); t = t.Add(step) {
+			dh := t.Sub(peak).Hours()
+			alt := 75*math.Cos(dh/8*math.Pi) - 5
+			ph := math.Mod(float64(t.Sub(start))/float64(period), 1)
+			tr.Points = append(tr.Points, TrackPoint{t, alt, ph})
+		}
+		for k := 0; k < 6; k++ {
+			c := start.Add(time.Duration(k)*period + period/4)
+			tr.Goals = append(tr.Goals, Span{c.Add(-period / 20), c.Add(period / 20), "0.25"})
+		}
+		night.Tracks = append(night.Tracks, tr)
+		bs := peak.Add(-20 * time.Minute)
+		night.Blocks = append(night.Blocks, Block{Target: tr.Name, Start: bs, End: bs.Add(25 * time.Minute), Label: "φ0.25 ×5", Filler: i%5 == 4})
+	}
+	return night
+}
+
+func TestNightChart(t *testing.T) {
+	night := sampleNight(4, time.Minute)
+	night.Blocks[1].State = "done"
+	night.Blocks[2].State = "lost"
+	els := parseSVG(t, night.SVG())
+	checkCoordinates(t, els)
+	t.Run("Tracks", func(t *testing.T) {
+		if got := count(els, func(e element) bool { return e.name == "path" && hasClass(e, "trk") }); got != 4 {
+			t.Errorf("track paths = %d, want 4", got)
+		}
+	})
+	t.Run("GoalHighlights", func(t *testing.T) {
+		if got := count(els, func(e element) bool { return e.name == "path" && hasClass(e, "goal") }); got == 0 {
+			t.Error("no goal-window highlight along the tracks")
+		}
+		if got := count(els, func(e element) bool { return e.name == "rect" && hasClass(e, "goalwin") }); got == 0 {
+			t.Error("no goal windows in the lanes")
+		}
+	})
+	t.Run("Blocks", func(t *testing.T) {
+		got := map[string]int{}
+		for _, e := range els {
+			if e.name == "g" && hasClass(e, "block") {
+				got[e.attrs["data-state"]]++
+			}
+		}
+		if got["planned"] != 2 || got["done"] != 1 || got["lost"] != 1 {
+			t.Errorf("blocks by state = %v, want planned 2, done 1, lost 1", got)
+		}
+	})
+	t.Run("Bands", func(t *testing.T) {
+		for _, k := range []string{"day", "civil", "nautical", "astronomical", "night"} {
+			if count(els, func(e element) bool { return e.name == "rect" && hasClass(e, "band-"+k) }) == 0 {
+				t.Errorf("no %s band", k)
+			}
+		}
+	})
+	t.Run("Axes", func(t *testing.T) {
+		txt := texts(els)
+		for _, want := range []string{"UTC", "local XST", "altitude", "airmass", "2.0", "Moon 40% lit", "now", "Target 01", "18", "15:00"} {
+			if !strings.Contains(txt, want) {
+				t.Errorf("chart text lacks %q", want)
+			}
+		}
+	})
+	t.Run("PhaseMarks", func(t *testing.T) {
+		// Target 01 has a 1.5 h period: over 12 h it passes phase 0 and 0.5
+		// eight times each, of which the ones above the horizon are drawn.
+		if got := count(els, func(e element) bool { return e.name == "circle" && hasClass(e, "ph0") }); got < 8 {
+			t.Errorf("phase-0 marks = %d, want ≥ 8 over 4 targets", got)
+		}
+		if got := count(els, func(e element) bool { return e.name == "circle" && hasClass(e, "ph5") }); got < 8 {
+			t.Errorf("phase-0.5 marks = %d, want ≥ 8 over 4 targets", got)
+		}
+	})
+}
+
+func TestNightChartEscapesNames(t *testing.T) {
+	night := sampleNight(1, 5*time.Minute)
+	evil := `<script>alert("x")</script>&`
+	night.Tracks[0].Name = evil
+	night.Blocks[0].Target = evil
+	night.Blocks[0].Label = `"><b>`
+	doc := night.SVG()
+	if strings.Contains(doc, "<script") || strings.Contains(doc, "<b>") {
+		t.Fatal("user text written unescaped")
+	}
+	els := parseSVG(t, doc)
+	if !strings.Contains(texts(els), `<script>alert("x")</script>&`[:10]) {
+		t.Error("escaped name not shown as text")
+	}
+}
+
+func TestNightChartDegenerate(t *testing.T) {
+	tests := []struct {
+		name  string
+		night Night
+	}{
+		{"Empty", Night{}},
+		{"EndBeforeStart", Night{Start: time.Date(2026, 1, 2, 0, 0, 0, 0, time.UTC), End: time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)}},
+		{"NaNAltitudes", func() Night {
+			n := sampleNight(2, 10*time.Minute)
+			n.Tracks[0].Points[3].AltDeg = math.NaN()
+			n.Tracks[1].Points[5].Phase = math.Inf(1)
+			n.LimitAltDeg = math.NaN()
+			n.Moon[2].AltDeg = math.NaN()
+			return n
+		}()},
+		{"NoTracks", func() Night { n := sampleNight(0, time.Minute); return n }()},
+		{"InvalidUTF8", func() Night { n := sampleNight(1, 10*time.Minute); n.Tracks[0].Name = "bad\xff\x01name"; return n }()},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			doc := tt.night.SVG()
+			if strings.Contains(doc, "NaN") || strings.Contains(doc, "Inf") {
+				t.Error("NaN or Inf in the output")
+			}
+			els := parseSVG(t, doc)
+			checkCoordinates(t, els)
+		})
+	}
+}
+
+func TestPhaseMarksFromSamples(t *testing.T) {
+	t0 := time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
+	tests := []struct {
+		name   string
+		phases []float64
+		want   []float64
+	}{
+		{"Wrap", []float64{0.8, 0.9, 0.05, 0.2}, []float64{0}},
+		{"Half", []float64{0.3, 0.45, 0.6}, []float64{0.5}},
+		{"Both", []float64{0.4, 0.6, 0.8, 0.95, 0.1}, []float64{0.5, 0}},
+		{"TooCoarse", []float64{0.1, 0.7, 0.2}, nil},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			var tr Track
+			for i, p := range tt.phases {
+				tr.Points = append(tr.Points, TrackPoint{t0.Add(time.Duration(i) * time.Minute), 45, p})
+			}
+			got := phaseMarks(tr)
+			if len(got) != len(tt.want) {
+				t.Fatalf("marks = %v, want phases %v", got, tt.want)
+			}
+			for i := range got {
+				if got[i].Phase != tt.want[i] {
+					t.Errorf("mark %d phase = %g, want %g", i, got[i].Phase, tt.want[i])
+				}
+			}
+		})
+	}
+}
+
+func TestRing(t *testing.T) {
+	r := Ring{
+		Title:    "T1 phase coverage",
+		Goals:    []Arc{{0.2, 0.3, "Q1", true}, {0.95, 0.05, "conj.", false}},
+		Planned:  []float64{0.21, 0.25, 0.29},
+		Observed: []float64{0.22, 0.98, math.NaN()},
+		Bins:     []Bin{{0, 0.1, 2}, {0.2, 0.3, 5}},
+	}
+	els := parseSVG(t, r.SVG())
+	checkCoordinates(t, els)
+	if got := count(els, func(e element) bool { return e.name == "path" && hasClass(e, "goal") }); got != 2 {
+		t.Errorf("goal arcs = %d, want 2", got)
+	}
+	if got := count(els, func(e element) bool { return e.name == "line" && hasClass(e, "planned") }); got != 3 {
+		t.Errorf("planned ticks = %d, want 3", got)
+	}
+	if got := count(els, func(e element) bool { return e.name == "circle" && hasClass(e, "observed") }); got != 2 {
+		t.Errorf("observed dots = %d, want 2 (NaN skipped)", got)
+	}
+	if txt := texts(els); !strings.Contains(txt, "Q1 ✓") || !strings.Contains(txt, "conj.") {
+		t.Errorf("goal labels missing from %q", txt)
+	}
+}
+
+func TestRingPoint(t *testing.T) {
+	tests := []struct {
+		name   string
+		phase  float64
+		wx, wy float64
+	}{
+		{"ZeroAtTop", 0, 100, 0},
+		{"QuarterRight", 0.25, 200, 100},
+		{"HalfBottom", 0.5, 100, 200},
+		{"ThreeQuartersLeft", 0.75, 0, 100},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			x, y := ringPoint(100, 100, tt.phase)
+			if math.Abs(x-tt.wx) > 1e-9 || math.Abs(y-tt.wy) > 1e-9 {
+				t.Errorf("ringPoint(%g) = (%g, %g), want (%g, %g)", tt.phase, x, y, tt.wx, tt.wy)
+			}
+		})
+	}
+}
+
+func TestOC(t *testing.T) {
+	o := OC{
+		Title: "O−C of T1",
+		Points: []OCPoint{
+			{0, 0, 5, "2024-01-01", false}, {1200, 12, 6, "", false}, {2500, 31, 4, "", true}, {3100, math.NaN(), 1, "", false},
+		},
+		Lines: []OCLine{{"refined", []float64{0, 3000}, []float64{-1, 35}}},
+	}
+	els := parseSVG(t, o.SVG())
+	checkCoordinates(t, els)
+	if got := count(els, func(e element) bool { return e.name == "circle" }); got != 3 {
+		t.Errorf("points = %d, want 3 (NaN skipped)", got)
+	}
+	if got := count(els, func(e element) bool { return e.name == "circle" && hasClass(e, "excluded") }); got != 1 {
+		t.Errorf("excluded points = %d, want 1", got)
+	}
+	if got := count(els, func(e element) bool { return e.name == "path" && hasClass(e, "fit") }); got != 1 {
+		t.Errorf("fit lines = %d, want 1", got)
+	}
+	if !strings.Contains(texts(els), "O−C (s)") {
+		t.Error("y axis not in seconds")
+	}
+	big := OC{Points: []OCPoint{{0, 0, 10, "", false}, {10, 1800, 30, "", false}}}
+	if !strings.Contains(texts(parseSVG(t, big.SVG())), "O−C (min)") {
+		t.Error("large residuals not shown in minutes")
+	}
+	if !strings.Contains(OC{}.SVG(), "No timings yet.") {
+		t.Error("empty diagram lacks its message")
+	}
+}
+
+func TestUncertainty(t *testing.T) {
+	t0 := time.Date(2020, 1, 1, 0, 0, 0, 0, time.UTC)
+	u := Uncertainty{Title: "σφ", PeriodDays: 0.1, Now: t0.Add(400 * 24 * time.Hour), Limits: []Limit{{0.05, "half-width 0.05"}}}
+	for d := 0; d <= 1000; d += 50 {
+		u.Points = append(u.Points, UncertaintyPoint{t0.Add(time.Duration(d) * 24 * time.Hour), 0.001 + 0.0001*float64(d)})
+	}
+	els := parseSVG(t, u.SVG())
+	checkCoordinates(t, els)
+	if count(els, func(e element) bool { return e.name == "path" && hasClass(e, "sigma") }) != 1 {
+		t.Error("no σ curve")
+	}
+	txt := texts(els)
+	for _, want := range []string{"half-width 0.05", "today", "σ time (min)", "2020-01-01"} {
+		if !strings.Contains(txt, want) {
+			t.Errorf("chart text lacks %q", want)
+		}
+	}
+}
+
+func TestHorizon(t *testing.T) {
+	h := Horizon{Title: "mask", MinAltDeg: 15, Points: []HorizonPoint{{0, 10}, {90, 25}, {180, 5}, {300, 30}}}
+	els := parseSVG(t, h.SVG())
+	checkCoordinates(t, els)
+	if got := count(els, func(e element) bool { return e.name == "circle" && hasClass(e, "vertex") }); got != 4 {
+		t.Errorf("vertices = %d, want 4", got)
+	}
+	if count(els, func(e element) bool { return e.name == "path" && hasClass(e, "mask") }) != 1 {
+		t.Error("no mask outline")
+	}
+}
+
+func TestMaskAt(t *testing.T) {
+	pts := []HorizonPoint{{30, 10}, {90, 40}, {300, 20}}
+	tests := []struct {
+		name string
+		az   float64
+		want float64
+	}{
+		{"AtVertex", 90, 40},
+		{"Between", 60, 25},
+		{"WrapAfterLast", 330, 20 + (10-20)*(30.0/90)},
+		{"WrapBeforeFirst", 0, 20 + (10-20)*(60.0/90)},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			if got := maskAt(pts, tt.az); math.Abs(got-tt.want) > 1e-9 {
+				t.Errorf("maskAt(%g) = %g, want %g", tt.az, got, tt.want)
+			}
+		})
+	}
+}
+
+func TestNiceTicks(t *testing.T) {
+	tests := []struct {
+		name          string
+		lo, hi        float64
+		wantStep      float64
+		wantLo, wantH float64
+	}{
+		{"Unit", 0, 10, 2, 0, 10},
+		{"Negative", -37, 12, 10, -40, 20},
+		{"Small", 0, 0.013, 0.005, 0, 0.015},
+		{"Flat", 5, 5, 0.5, 4, 6},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			ticks, lo, hi := niceTicks(tt.lo, tt.hi, 5)
+			if step := tickStep(ticks); math.Abs(step-tt.wantStep) > 1e-12 || math.Abs(lo-tt.wantLo) > 1e-12 || math.Abs(hi-tt.wantH) > 1e-12 {
+				t.Errorf("niceTicks(%g, %g) = step %g over [%g, %g], want step %g over [%g, %g]", tt.lo, tt.hi, step, lo, hi, tt.wantStep, tt.wantLo, tt.wantH)
+			}
+		})
+	}
+}
+
+func BenchmarkNightChartSVG(b *testing.B) {
+	night := sampleNight(30, time.Minute)
+	var buf bytes.Buffer
+	b.ReportAllocs()
+	for b.Loop() {
+		buf.Reset()
+		if err := night.WriteSVG(&buf); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(buf.Len())/1024, "KiB/chart")
+}
