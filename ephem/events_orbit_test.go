@@ -209,7 +209,7 @@ func TestConventionRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	from, to := asc.T0.AddDays(-3000), asc.T0.AddDays(3000)
+	from, to := asc.T0.AddDays(-1000), asc.T0.AddDays(1000)
 	worst := 0.0
 	for _, ev := range ephem.Events {
 		if ev == ephem.EventPeriastron {
@@ -221,7 +221,7 @@ func TestConventionRoundTrip(t *testing.T) {
 		if err := errors.Join(err1, err2, err3); err != nil {
 			t.Fatal(err)
 		}
-		if len(a) != len(b) || len(a) != len(c) || len(a) < 100000 {
+		if len(a) != len(b) || len(a) != len(c) || len(a) < 30000 {
 			t.Fatalf("%s: %d, %d and %d occurrences", ev, len(a), len(b), len(c))
 		}
 		for i := range a {
@@ -232,7 +232,7 @@ func TestConventionRoundTrip(t *testing.T) {
 			}
 		}
 	}
-	t.Logf("worst difference %.3g s over ±3000 days", worst)
+	t.Logf("worst difference %.3g s over ±1000 days", worst)
 }
 
 func TestEclipseContacts(t *testing.T) {
