@@ -21,7 +21,11 @@ func hms(hours float64, dec int) string {
 		m -= 60
 		h++
 	}
-	return fmt.Sprintf("%02.0fh%02.0fm%0*.*fs", h, m, dec+3, dec, s)
+	w := dec + 3
+	if dec == 0 {
+		w = 2
+	}
+	return fmt.Sprintf("%02.0fh%02.0fm%0*.*fs", h, m, w, dec, s)
 }
 
 // dms formats degrees as "+49°21′07.45″" with the given decimals of seconds.
@@ -42,7 +46,11 @@ func dms(deg float64, dec int) string {
 		m -= 60
 		d++
 	}
-	return fmt.Sprintf("%s%02.0f°%02.0f′%0*.*f″", sign, d, m, dec+3, dec, s)
+	w := dec + 3
+	if dec == 0 {
+		w = 2
+	}
+	return fmt.Sprintf("%s%02.0f°%02.0f′%0*.*f″", sign, d, m, w, dec, s)
 }
 
 // Meeus, Astronomical Algorithms, Example 7.a.

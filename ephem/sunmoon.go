@@ -53,11 +53,15 @@ func moonGeocentric(jde float64) (unit.RA, unit.Angle, float64) {
 	return a, d, dist
 }
 
-// topocentricBody is a body seen from the site: apparent right ascension and
-// declination, radians, and distance in km.
+// topocentricBody is a body's apparent right ascension and declination,
+// radians, and distance in km (seen from the site, or from the Earth's
+// centre where named so).
 type topocentricBody struct {
 	ra, dec, distKm float64
 }
+
+func (b topocentricBody) raAngle() unit.RA     { return unit.RA(b.ra) }
+func (b topocentricBody) decAngle() unit.Angle { return unit.Angle(b.dec) }
 
 // topocentric moves a geocentric place (α, δ, distance in km) to the site at
 // instant t: Meeus (40.2), (40.3), via meeus parallax.Topocentric. meeus
@@ -104,19 +108,21 @@ func (s Site) moonTopocentric(t time.Time) topocentricBody {
 // ch. 40, via meeus semidiameter.MoonTopocentric (k = 0.272481 lunar radii per
 // Earth equatorial radius).
 func (s Site) MoonSemidiameterDeg(t time.Time) float64 {
-	return s.moonSemidiameter(t, s.moonTopocentricGeo(t))
+	return s.moonSemidiameter(t, s.moonGeocentricBody(t))
 }
 
-// moonTopocentricGeo returns the geocentric place of the Moon at t.
-func (s Site) moonTopocentricGeo(t time.Time) topocentricBody {
+// moonGeocentricBody returns the Moon's geocentric apparent place at t.
+func (s Site) moonGeocentricBody(t time.Time) topocentricBody {
 	a, d, dist := moonGeocentric(JDTT(t).Float())
 	return topocentricBody{ra: a.Rad(), dec: d.Rad(), distKm: dist}
 }
 
+// moonSemidiameter returns the topocentric semidiameter, degrees, of the
+// Moon whose geocentric place at t is geo.
 func (s Site) moonSemidiameter(t time.Time, geo topocentricBody) float64 {
 	rhoSin, rhoCos := s.geocentric()
 	ha := unit.HourAngle(s.lastRad(t) - geo.ra)
-	sinSD := semidiameter.MoonTopocentric(geo.distKm/auKm, unit.Angle(geo.dec), ha, rhoSin, rhoCos)
+	sinSD := semidiameter.MoonTopocentric(geo.distKm/auKm, geo.decAngle(), ha, rhoSin, rhoCos)
 	return math.Asin(sinSD) * radToDeg
 }
 
