@@ -89,7 +89,7 @@ type NightEvents struct {
 	// Sun events, UTC. Dusk events are the last setting crossing of their
 	// level before the Sun's lowest point in the window, dawn events the
 	// first rising crossing after it; see Night.
-	Sunset, CivilDusk, NauticalDusk, AstronomicalDusk *time.Time
+	Sunset, CivilDusk, NauticalDusk, AstronomicalDusk  *time.Time
 	AstronomicalDawn, NauticalDawn, CivilDawn, Sunrise *time.Time
 
 	// Moonrise and Moonset are the first of each in the window, UTC.
@@ -129,7 +129,7 @@ func Night(site Site, year int, month time.Month, day int, loc *time.Location) N
 	sun := sampleCurve(site.SunAltDeg, ev.Start, ev.End, DefaultCrossingStep)
 	low := sun.lowest()
 	for _, lv := range []struct {
-		alt       float64
+		alt        float64
 		dusk, dawn **time.Time
 	}{
 		{SunriseAltDeg, &ev.Sunset, &ev.Sunrise},
