@@ -42,6 +42,9 @@ type Goal struct {
 	// MinNights asks for the goal to be covered on at least this many
 	// different nights over a run (0 or 1: one night is enough).
 	MinNights int
+	// EclipseDurDays is the eclipse's full duration (first to last
+	// contact), days, for the events eclipse_ingress and eclipse_egress.
+	EclipseDurDays float64
 }
 
 // Twilight names the Sun altitude that closes the dark time.

@@ -1,0 +1,517 @@
+package planner
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"time"
+
+	"phasecast/ephem"
+)
+
+// SafetyCaution is the caution every night sheet shows.
+const SafetyCaution = "Caution: never point a telescope or its finder near the Sun; blocks in twilight and the " +
+	"Sun-avoidance angle are planning aids only. Check times with your observatory's own tools and follow its safety rules."
+
+// Options tune the night planner. A zero field takes the default shown.
+type Options struct {
+	// StepS is the sampling step of the constraints and the grid of block
+	// start times, seconds (default 60). Block starts fall on whole
+	// multiples of StepS in UTC, or on the earliest or latest whole second
+	// a goal window allows.
+	StepS float64
+	// SmearFrac: warn when one exposure spans more than this fraction of
+	// its goal window in phase (default 0.25).
+	SmearFrac float64
+	// MaxPhaseErr: goals whose ephemeris' 1σ phase uncertainty on the night
+	// exceeds this (phase units) are not scheduled (default 0.25: the
+	// window's place on the orbit is then unknown). Above the window's
+	// half-width a warning is given.
+	MaxPhaseErr float64
+	// MoonWarnSepDeg: warn when a block is closer than this to the Moon
+	// while the Moon is up (default 30°, common practice).
+	MoonWarnSepDeg float64
+	// Fill fills idle dark time with filler blocks of the most valuable
+	// target observable then (priority first, then the longest fill),
+	// marked Filler; they serve no phase goal.
+	Fill bool
+	// FillMinS is the shortest filler block worth scheduling, seconds
+	// (default 600).
+	FillMinS float64
+	// MaxNodes bounds the branch-and-bound search (default 20000 nodes).
+	// When reached, the best schedule found is returned with
+	// Plan.Optimal false.
+	MaxNodes int
+	// MaxOccurrences bounds the goal windows considered per goal and night
+	// (default 2000; a 1-minute orbit has 1440 a day).
+	MaxOccurrences int
+}
+
+func (o Options) withDefaults() (Options, error) {
+	def := func(v *float64, d float64) {
+		if *v == 0 {
+			*v = d
+		}
+	}
+	def(&o.StepS, 60)
+	def(&o.SmearFrac, 0.25)
+	def(&o.MaxPhaseErr, 0.25)
+	def(&o.MoonWarnSepDeg, 30)
+	def(&o.FillMinS, 600)
+	if o.MaxNodes == 0 {
+		o.MaxNodes = 20000
+	}
+	if o.MaxOccurrences == 0 {
+		o.MaxOccurrences = 2000
+	}
+	bad := func(f string, v float64, acc string) error {
+		return &ephem.InputError{Field: f, Value: fmtNum(v), Accepted: acc}
+	}
+	switch {
+	case !finite(o.StepS) || o.StepS < 1 || o.StepS > 900:
+		return o, bad("step_s", o.StepS, "1..900 seconds")
+	case !finite(o.SmearFrac) || o.SmearFrac < 0 || o.SmearFrac > 1:
+		return o, bad("smear_frac", o.SmearFrac, "0..1")
+	case !finite(o.MaxPhaseErr) || o.MaxPhaseErr < 0 || o.MaxPhaseErr > 1:
+		return o, bad("max_phase_err", o.MaxPhaseErr, "0..1 (phase)")
+	case !finite(o.MoonWarnSepDeg) || o.MoonWarnSepDeg < 0 || o.MoonWarnSepDeg > 180:
+		return o, bad("moon_warn_sep", o.MoonWarnSepDeg, "0..180 degrees")
+	case !finite(o.FillMinS) || o.FillMinS < 0 || o.FillMinS > 86400:
+		return o, bad("fill_min_s", o.FillMinS, "0..86400 seconds")
+	case o.MaxNodes < 1:
+		return o, bad("max_nodes", float64(o.MaxNodes), "≥ 1")
+	case o.MaxOccurrences < 1:
+		return o, bad("max_occurrences", float64(o.MaxOccurrences), "≥ 1")
+	}
+	return o, nil
+}
+
+// NightRequest is one night to plan: a site, the planning window (UTC; see
+// NightWindow), the targets with their goals, the constraints and options.
+type NightRequest struct {
+	Site        ephem.Site
+	From, To    time.Time
+	Targets     []Target
+	Constraints Constraints
+	Options     Options
+}
+
+// Block is a run of consecutive exposures of one target serving one goal
+// occurrence: exposures laid back to back from Start, each ExposureS then
+// OverheadS, so End − Start = N × (ExposureS + OverheadS). Every exposure's
+// mid-time phase lies in the goal window (filler blocks have no goal). The
+// target meets every constraint from Start to End.
+type Block struct {
+	Target      string
+	TargetIndex int  // index in NightRequest.Targets
+	GoalIndex   int  // index in the target's ResolveGoals; −1 for a filler
+	Goal        Goal // the resolved goal (Center set); zero for a filler
+	Filler      bool
+	Priority    int
+	Cycle       int64 // the orbital cycle of the window's centre
+	Start, End  time.Time
+	// AcquireS is the acquisition time charged just before Start (0 when
+	// the previous block is of the same target).
+	AcquireS   float64
+	N          int
+	ExposureS  float64
+	OverheadS  float64
+	PhaseStart float64 // phase at Start, 0..1
+	PhaseMid   float64 // phase at the block's middle
+	PhaseEnd   float64 // phase at End
+	// PhaseFirstMid and PhaseLastMid are the phases at the mid-times of the
+	// first and last exposures.
+	PhaseFirstMid, PhaseLastMid float64
+	// Smear is the phase one exposure spans (ExposureS / P).
+	Smear float64
+	// PhaseErr is the ephemeris' 1σ phase uncertainty on the night.
+	PhaseErr               float64
+	AirmassMin, AirmassMax float64 // over the whole block
+	// MoonSepDeg is the smallest separation from the Moon during the block,
+	// degrees; MoonUp tells whether the Moon was up at any time in it.
+	MoonSepDeg  float64
+	MoonUp      bool
+	MoonIllum   float64 // at the middle, 0..1
+	Parallactic float64 // parallactic angle at the middle, degrees, −180..180
+	HourAngle   float64 // hour angle at the middle, hours
+	SunAltStart float64 // the Sun's altitude at Start, degrees (airless)
+	Value       int64   // the block's share of the objective
+	Warnings    []Warning
+}
+
+// UnscheduledReason says why a goal got no block.
+type UnscheduledReason string
+
+// Reasons a goal gets no block on the night.
+const (
+	UnschedNoDarkTime          UnscheduledReason = "no_dark_time"          // the Sun never goes below the twilight altitude
+	UnschedNeverObservable     UnscheduledReason = "never_observable"      // the target is never observable while dark
+	UnschedWindowInDaylight    UnscheduledReason = "window_in_daylight"    // no window of the goal falls in dark time
+	UnschedWindowNotObservable UnscheduledReason = "window_not_observable" // windows in dark time, target not observable then
+	UnschedNoRoom              UnscheduledReason = "no_room"               // the observable part of every window is too short
+	UnschedEphemerisUncertain  UnscheduledReason = "ephemeris_uncertain"   // phase uncertainty above Options.MaxPhaseErr
+	UnschedLostToPriority      UnscheduledReason = "lost_to_higher_priority"
+	UnschedLostToSchedule      UnscheduledReason = "lost_to_schedule" // conflicts with blocks worth more together
+)
+
+// Unscheduled is a goal with no block on the night, with the reason.
+type Unscheduled struct {
+	Target      string
+	TargetIndex int
+	GoalIndex   int
+	Goal        Goal
+	Reason      UnscheduledReason
+	Detail      string // a sentence for the night sheet
+}
+
+// WarningCode classifies a warning.
+type WarningCode string
+
+// Warnings the planner gives.
+const (
+	WarnSmear           WarningCode = "smear"             // one exposure smears too much of the window
+	WarnPhaseUncertain  WarningCode = "phase_uncertain"   // phase 1σ larger than the window's half-width
+	WarnUnreachable     WarningCode = "unreachable"       // no night-time instant can reach the goal
+	WarnMoonNear        WarningCode = "moon_near"         // close to the Moon while it is up
+	WarnTwilightStart   WarningCode = "twilight_start"    // block starts before astronomical darkness
+	WarnNotOptimal      WarningCode = "not_optimal"       // search stopped at Options.MaxNodes
+	WarnSunAvoidApplied WarningCode = "sun_avoid_caution" // the Sun-avoidance angle excluded time
+)
+
+// Warning is something the observer should know, about a block, a goal or
+// the plan (Target "" for the whole plan; GoalIndex −1 for the whole target).
+type Warning struct {
+	Code      WarningCode
+	Target    string
+	GoalIndex int
+	Message   string
+}
+
+// Plan is a planned night.
+type Plan struct {
+	Site        ephem.Site
+	From, To    time.Time
+	Constraints Constraints // resolved (SunAltMaxDeg set)
+	Options     Options     // with defaults filled in
+	// Dark lists the spans with the Sun's centre below the twilight
+	// altitude.
+	Dark        []Interval
+	Blocks      []Block // in time order
+	Unscheduled []Unscheduled
+	Warnings    []Warning
+	Visibility  []Visibility // per target, in request order
+	// Value is the objective of the scheduled goal blocks (fillers not
+	// counted); GreedyValue the greedy baseline's on the same candidates.
+	Value       int64
+	GreedyValue int64
+	Optimal     bool
+	// Nodes is the number of branch-and-bound nodes explored; Candidates the
+	// number of candidate blocks.
+	Nodes      int
+	Candidates int
+}
+
+// PriorityWeight returns w(p) = 3^(5−p), the weight of priority p (1..5) in
+// the objective: 81, 27, 9, 3, 1.
+func PriorityWeight(p int) int64 {
+	w := int64(1)
+	for range 5 - p {
+		w *= 3
+	}
+	return w
+}
+
+// goalValue is v(goal, n) in millionths: ½ + ½·min(n, N)/N (see the notes in
+// schedule.go), N the exposures wanted or the window's capacity.
+func goalValue(n, wanted int) int64 {
+	return 500000 + int64(math.Round(500000*float64(min(n, wanted))/float64(wanted)))
+}
+
+// targetState is one target's night.
+type targetState struct {
+	idx      int
+	t        Target
+	goals    []Goal
+	star     ephem.Star
+	track    ephem.Track
+	clock    phaseClock
+	hasClock bool
+	vis      []span
+	bad      []badSpan
+	phaseErr float64
+}
+
+// engine holds one night's shared state.
+type engine struct {
+	site       ephem.Site
+	c          Constraints
+	opt        Options
+	mask       *horizonMask
+	altAirmass float64 // refracted altitude of the airmass limit, 0 = none
+	sky        *nightSky
+	from, to   float64
+	dark       []span
+	day        []badSpan
+}
+
+// occMeta describes one goal occurrence.
+type occMeta struct {
+	target, goal int
+	occ          occurrence
+	wanted       int // N, or the window's capacity
+}
+
+// PlanNight plans one night: the observable intervals of every target, the
+// optimal schedule of exposure blocks on the goal windows (objective and
+// method in the notes of schedule.go), blocks' details and warnings, the
+// reason for every goal left out, and optional fillers. Inputs are
+// validated first; the error names the first bad field (*ephem.InputError).
+// The same request always gives the same plan.
+func PlanNight(req NightRequest) (*Plan, error) {
+	en, targets, err := newEngine(req)
+	if err != nil {
+		return nil, err
+	}
+	p := &Plan{Site: req.Site, From: req.From.UTC(), To: req.To.UTC(), Constraints: en.c, Options: en.opt, Dark: toIntervals(en.dark)}
+	if en.c.SunAvoidDeg > 0 {
+		p.Warnings = append(p.Warnings, Warning{Code: WarnSunAvoidApplied, GoalIndex: -1,
+			Message: fmt.Sprintf("targets closer than %s° to the Sun are excluded; %s", fmtNum(en.c.SunAvoidDeg), SafetyCaution)})
+	}
+	for _, ts := range targets {
+		p.Visibility = append(p.Visibility, en.visibility(ts))
+	}
+	occs, pr := en.buildProblem(targets)
+	p.Candidates = len(pr.cands)
+	order := make([]int, len(occs))
+	for k := range order {
+		order[k] = k
+	}
+	sort.SliceStable(order, func(a, b int) bool {
+		oa, ob := occs[order[a]], occs[order[b]]
+		pa, pb := targets[oa.target].t.Priority, targets[ob.target].t.Priority
+		if pa != pb {
+			return pa < pb
+		}
+		return oa.occ.lo < ob.occ.lo
+	})
+	greedy := pr.greedy(order)
+	p.GreedyValue = pr.value(greedy).main
+	sol := pr.solve(greedy, en.opt.MaxNodes)
+	p.Value, p.Optimal, p.Nodes = sol.value.main, sol.optimal, sol.nodes
+	if !sol.optimal {
+		p.Warnings = append(p.Warnings, Warning{Code: WarnNotOptimal, GoalIndex: -1,
+			Message: fmt.Sprintf("the search stopped after %d branches: the schedule is feasible but may fall short of the optimum by up to %d value units", sol.nodes, sol.gap.main)})
+	}
+	var prev *candidate
+	for _, i := range sol.chosen {
+		c := &pr.cands[i]
+		m := occs[c.occ]
+		ts := targets[c.target]
+		acq := 0.0
+		if prev == nil || prev.target != c.target {
+			acq = ts.t.AcquireS
+		}
+		b := en.block(ts, m.goal, c.start, c.n, acq, false)
+		b.Cycle = m.occ.cycle
+		b.Value = c.val.main
+		p.Blocks = append(p.Blocks, b)
+		prev = c
+	}
+	p.Unscheduled, p.Warnings = en.explain(targets, occs, pr, sol.chosen, p.Warnings)
+	if en.opt.Fill {
+		p.Blocks = en.fill(targets, p.Blocks)
+	}
+	for _, b := range p.Blocks {
+		p.Warnings = append(p.Warnings, b.Warnings...)
+	}
+	return p, nil
+}
+
+// newEngine validates the request and computes the dark spans and each
+// target's track and visibility.
+func newEngine(req NightRequest) (*engine, []*targetState, error) {
+	if err := req.Site.Validate(); err != nil {
+		return nil, nil, err
+	}
+	from, to := unixSec(req.From), unixSec(req.To)
+	if !(to > from) || to-from > 48*3600 {
+		return nil, nil, &ephem.InputError{Field: "to", Value: req.To.UTC().Format(time.RFC3339),
+			Accepted: "an instant after from (" + req.From.UTC().Format(time.RFC3339) + "), at most 48 hours later"}
+	}
+	c, err := req.Constraints.Resolved()
+	if err != nil {
+		return nil, nil, err
+	}
+	opt, err := req.Options.withDefaults()
+	if err != nil {
+		return nil, nil, err
+	}
+	names := map[string]int{}
+	for i, t := range req.Targets {
+		if err := validateTarget(i, t); err != nil {
+			return nil, nil, err
+		}
+		if j, dup := names[t.Name]; dup {
+			return nil, nil, &ephem.InputError{Field: fmt.Sprintf("targets[%d].name", i), Value: fmt.Sprintf("%q", t.Name),
+				Accepted: fmt.Sprintf("a name not used by another target (targets[%d] has it)", j)}
+		}
+		names[t.Name] = i
+	}
+	en := &engine{site: req.Site, c: c, opt: opt, mask: newHorizonMask(c.Horizon), from: from, to: to}
+	if c.MaxAirmass > 0 {
+		en.altAirmass = altForAirmass(c.MaxAirmass)
+	}
+	en.sky = newNightSky(req.Site, from, to)
+	en.dark, en.day = scan(from, to, opt.StepS, func(u float64) (float64, reasonBits) {
+		m := c.SunAltMaxDeg - en.sky.sunAlt(u)
+		if m <= 0 {
+			return m, bitDaylight
+		}
+		return m, 0
+	})
+	frame := ephem.NewSkyFrame(req.Site, req.From, req.To)
+	targets := make([]*targetState, len(req.Targets))
+	for i, t := range req.Targets {
+		goals, err := t.ResolveGoals()
+		if err != nil {
+			return nil, nil, err
+		}
+		ts := &targetState{idx: i, t: t, goals: goals, star: t.Star()}
+		ts.track = frame.Track(ts.star)
+		for _, d := range en.dark {
+			ok, bad := scan(d.lo, d.hi, opt.StepS, func(u float64) (float64, reasonBits) { return en.margin(ts, u) })
+			ts.vis = append(ts.vis, ok...)
+			ts.bad = append(ts.bad, bad...)
+		}
+		if len(en.dark) > 0 {
+			lo := math.Max(from, en.dark[0].lo-3600)
+			hi := math.Min(to, en.dark[len(en.dark)-1].hi+3600)
+			ts.clock = newPhaseClock(req.Site, ts.star, t.Ephem, lo, hi)
+			ts.hasClock = true
+			mid := 0.5 * (en.dark[0].lo + en.dark[len(en.dark)-1].hi)
+			ts.phaseErr = t.Ephem.PhaseErr(ts.clock.bjd(mid))
+		}
+		targets[i] = ts
+	}
+	return en, targets, nil
+}
+
+// visibility reports a target's observable intervals and gaps.
+func (en *engine) visibility(ts *targetState) Visibility {
+	v := Visibility{Target: ts.t.Name, Intervals: toIntervals(ts.vis)}
+	all := append(append([]badSpan(nil), en.day...), ts.bad...)
+	sortBad(all)
+	for _, b := range all {
+		v.Gaps = append(v.Gaps, Gap{Interval: b.interval(), Reasons: b.why.reasons()})
+	}
+	return v
+}
+
+// guardS keeps blocks this far inside the observable intervals, seconds, so
+// that the full computation (edges within a second of the fast path) agrees
+// that every constraint holds for the whole block.
+const guardS = 1.0
+
+// buildProblem lists every goal occurrence in dark time and its candidate
+// blocks.
+func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
+	pr := &problem{nTargets: len(targets)}
+	var occs []occMeta
+	for _, ts := range targets {
+		if !ts.hasClock || ts.phaseErr > en.opt.MaxPhaseErr {
+			continue
+		}
+		for gi, g := range ts.goals {
+			lo, hi := en.dark[0].lo, en.dark[len(en.dark)-1].hi
+			for _, oc := range ts.clock.occurrences(g.Center, g.HalfWidth, lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences) {
+				L := g.ExposureS + g.OverheadS
+				wanted := g.NExposures
+				if wanted == 0 {
+					wanted = int(math.Floor((oc.hi-oc.lo)/L)) + 1
+				}
+				k := len(occs)
+				occs = append(occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted})
+				pr.cands = en.appendCandidates(pr.cands, ts, g, oc, k, wanted)
+			}
+		}
+	}
+	pr.nOcc = len(occs)
+	sortCandidates(pr.cands)
+	return occs, pr
+}
+
+// appendCandidates adds the candidate blocks of one occurrence: in every
+// observable interval, starts from the earliest whole second the window and
+// the interval allow, every multiple of StepS, and for each n the latest
+// whole second; every n from 1 to the most that fit (capped at wanted).
+func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc occurrence, occID, wanted int) []candidate {
+	E, L := g.ExposureS, g.ExposureS+g.OverheadS
+	step := en.opt.StepS
+	w := PriorityWeight(ts.t.Priority)
+	for _, v := range ts.vis {
+		if v.hi < oc.lo-L || v.lo > oc.hi+L {
+			continue
+		}
+		vlo, vhi := v.lo+guardS, v.hi-guardS
+		sMin := math.Ceil(math.Max(oc.lo-E/2, vlo))
+		sMax1 := math.Min(oc.hi-E/2, vhi-L)
+		if sMin > sMax1 {
+			continue
+		}
+		floor := en.darkStart(v.lo)
+		nmaxAt := func(s float64) int {
+			n := min(wanted, int(math.Floor((oc.hi-E/2-s)/L))+1, int(math.Floor((vhi-s)/L)))
+			return n
+		}
+		add := func(s float64, n int) {
+			x := en.airmassAt(ts, s+0.5*float64(n)*L)
+			cs = append(cs, candidate{
+				start: s, end: s + float64(n)*L, acq: ts.t.AcquireS, acqFloor: floor,
+				target: ts.idx, occ: occID, n: n,
+				val: score{main: w * goalValue(n, wanted), tie: -int64(math.Round(1000 * float64(n) * (x - 1)))},
+			})
+		}
+		starts := []float64{sMin}
+		for s := math.Floor(sMin/step)*step + step; s <= sMax1; s += step {
+			if s > sMin {
+				starts = append(starts, s)
+			}
+		}
+		for _, s := range starts {
+			for n := 1; n <= nmaxAt(s); n++ {
+				add(s, n)
+			}
+		}
+		for n := 1; n <= wanted; n++ {
+			s := math.Floor(math.Min(oc.hi-float64(n-1)*L-E/2, vhi-float64(n)*L))
+			if s < sMin {
+				break
+			}
+			if s == sMin || math.Mod(s, step) == 0 {
+				continue // already a start above
+			}
+			add(s, n)
+		}
+	}
+	return cs
+}
+
+// darkStart returns the start of the dark span containing u.
+func (en *engine) darkStart(u float64) float64 {
+	for _, d := range en.dark {
+		if d.lo <= u+1e-6 && u <= d.hi+1e-6 {
+			return d.lo
+		}
+	}
+	return u
+}
+
+// airmassAt returns the target's airmass at u on the fast path (40 below
+// the horizon, never used: blocks lie in observable intervals).
+func (en *engine) airmassAt(ts *targetState, u float64) float64 {
+	alt, _ := ts.track.AltAzUnix(u)
+	if x, ok := ephem.Airmass(en.site.RefractedAltDeg(alt)); ok {
+		return x
+	}
+	return 40
+}
