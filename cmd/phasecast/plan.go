@@ -1,0 +1,546 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strings"
+	"time"
+
+	"phasecast/ephem"
+	"phasecast/planner"
+)
+
+// planJSON is the `plan --json` contract: `night` is the object `night
+// --json` prints, `blocks` the exposure blocks in time order, `unscheduled`
+// every goal without a block and why. The other keys are extras.
+type planJSON struct {
+	Night       nightJSON         `json:"night"`
+	Blocks      []planBlockJSON   `json:"blocks"`
+	Unscheduled []unscheduledJSON `json:"unscheduled"`
+	Warnings    []warningJSON     `json:"warnings"`
+	Dark        []intervalJSON    `json:"dark"`
+	Visibility  []visibilityJSON  `json:"visibility"`
+	Constraints constraintsJSON   `json:"constraints"`
+	Objective   objectiveJSON     `json:"objective"`
+	Caution     string            `json:"caution"`
+}
+
+// planBlockJSON is one block. Times are RFC 3339 UTC (fractions of a second
+// only when the exposure setup makes them); end − start = n_exposures ×
+// (exposure_s + overhead_s). Phases are 0..1 at the instants named.
+type planBlockJSON struct {
+	Target         string   `json:"target"`
+	PhaseGoal      *float64 `json:"phase_goal"` // null for a filler
+	Start          planTime `json:"start"`
+	End            planTime `json:"end"`
+	NExposures     int      `json:"n_exposures"`
+	ExposureS      float64  `json:"exposure_s"`
+	OverheadS      float64  `json:"overhead_s"`
+	PhaseStart     float64  `json:"phase_start"`
+	PhaseEnd       float64  `json:"phase_end"`
+	AirmassMax     float64  `json:"airmass_max"`
+	AirmassMin     float64  `json:"airmass_min"`
+	PhaseMid       float64  `json:"phase_mid"`
+	PhaseFirstMid  float64  `json:"phase_first_exposure_mid"`
+	PhaseLastMid   float64  `json:"phase_last_exposure_mid"`
+	PhaseHalfWidth *float64 `json:"phase_halfwidth"`
+	Smear          float64  `json:"smear"`
+	PhaseErr       float64  `json:"phase_err"`
+	Cycle          int64    `json:"cycle"`
+	AcquireS       float64  `json:"acquire_s"`
+	MoonSepDeg     float64  `json:"moon_sep_deg"`
+	MoonUp         bool     `json:"moon_up"`
+	ParallacticDeg float64  `json:"parallactic_deg"`
+	HourAngleHours float64  `json:"hour_angle_hours"`
+	SunAltStartDeg float64  `json:"sun_alt_start_deg"`
+	Priority       int      `json:"priority"`
+	Filler         bool     `json:"filler"`
+	Warnings       []string `json:"warnings"`
+}
+
+type unscheduledJSON struct {
+	Target    string  `json:"target"`
+	PhaseGoal float64 `json:"phase_goal"`
+	Reason    string  `json:"reason"`
+	Code      string  `json:"reason_code"`
+}
+
+type warningJSON struct {
+	Code      string   `json:"code"`
+	Target    string   `json:"target,omitempty"`
+	PhaseGoal *float64 `json:"phase_goal,omitempty"`
+	Message   string   `json:"message"`
+}
+
+type intervalJSON struct {
+	Start planTime `json:"start"`
+	End   planTime `json:"end"`
+}
+
+type gapJSON struct {
+	Start   planTime `json:"start"`
+	End     planTime `json:"end"`
+	Reasons []string `json:"reasons"`
+}
+
+type visibilityJSON struct {
+	Target    string         `json:"target"`
+	Intervals []intervalJSON `json:"intervals"`
+	Gaps      []gapJSON      `json:"gaps"`
+}
+
+type constraintsJSON struct {
+	Twilight      string   `json:"twilight"`
+	SunAltMaxDeg  float64  `json:"sun_alt_max_deg"`
+	MaxAirmass    float64  `json:"max_airmass"`
+	MinAltDeg     float64  `json:"min_alt_deg"`
+	MinMoonSepDeg float64  `json:"min_moon_sep_deg"`
+	MaxMoonIllum  float64  `json:"max_moon_illum"`
+	HAMinHours    *float64 `json:"ha_min_hours"`
+	HAMaxHours    *float64 `json:"ha_max_hours"`
+	ZenithExclDeg float64  `json:"zenith_excl_deg"`
+	SunAvoidDeg   float64  `json:"sun_avoid_deg"`
+	HorizonPoints int      `json:"horizon_points"`
+	AcquireS      float64  `json:"acquire_s"`
+}
+
+type objectiveJSON struct {
+	Value       int64 `json:"value"`
+	GreedyValue int64 `json:"greedy_value"`
+	Optimal     bool  `json:"optimal"`
+	Candidates  int   `json:"candidates"`
+	Nodes       int   `json:"nodes"`
+}
+
+// planTime is an instant in RFC 3339 UTC, with the fraction of a second
+// written only when there is one (to the microsecond).
+type planTime time.Time
+
+func (t planTime) String() string {
+	return time.Time(t).UTC().Format("2006-01-02T15:04:05.999999Z07:00")
+}
+
+func (t planTime) MarshalJSON() ([]byte, error) { return []byte(`"` + t.String() + `"`), nil }
+
+const planSynopsis = `Plan one night: for every target of a CSV list, the observable intervals under the
+constraints, then the exposure blocks that land on its wanted orbital phases,
+scheduled for the highest total value (priorities weigh; not a greedy fill), with
+every goal left out listed with its reason.
+
+Targets file (CSV), header:
+  name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority
+phases are goal centres separated by ';' in the convention of T0 (inferior
+conjunction of the companion); each goal takes as many exposures as fit in its
+window. --twilight takes civil, nautical, astronomical, or a Sun altitude in
+degrees (e.g. -15). The horizon file (--horizon) has one "azimuth altitude" pair
+of degrees per line, azimuth from north through east; the mask is interpolated
+linearly between points, wrapping through north.`
+
+func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fl := newFlags("plan", planSynopsis)
+	sf := addSiteFlags(fl)
+	tz := fl.text("tz", "ZONE", "", "IANA time zone of the site, e.g. America/Santiago or UTC; required")
+	date := fl.text("date", "YYYY-MM-DD", "today in ZONE", "local calendar date of the evening the night begins")
+	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, header above); required")
+	twilight := fl.text("twilight", "NAME|DEG", "nautical", "darkness limit: civil (−6°), nautical (−12°), astronomical (−18°) or a Sun altitude −30..0")
+	maxAirmass := fl.text("max-airmass", "X", "2.0", "highest airmass, 1..40 (0 = none, the horizon only)")
+	minAlt := fl.text("min-alt", "DEG", "0", "lowest altitude, refracted, degrees (0 = the horizon)")
+	minMoonSep := fl.text("min-moon-sep", "DEG", "0", "closest distance to the Moon while it is up, degrees (0 = none)")
+	maxMoonIllum := fl.text("max-moon-illum", "FRAC", "0", "brightest Moon allowed while it is up, illuminated fraction 0..1 (0 = no limit)")
+	haMin := fl.text("ha-min", "HOURS", "", "lowest hour angle, hours −12..12 (equatorial mounts); with --ha-max")
+	haMax := fl.text("ha-max", "HOURS", "", "highest hour angle, hours −12..12; with --ha-min")
+	zenith := fl.text("zenith-excl", "DEG", "0", "no tracking within this distance of the zenith (alt-az mounts), degrees 0..30")
+	sunAvoid := fl.text("sun-avoid", "DEG", "30", "never point closer than this to the Sun, degrees 0..90 (safety)")
+	horizon := fl.text("horizon", "FILE", "", "horizon mask file: lines of \"azimuth altitude\" in degrees")
+	acquire := fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
+	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = as many as fit)")
+	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
+	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
+	asJSON := fl.boolean("json", "print one JSON object")
+	if help, err := fl.parse(args, stdout); help || err != nil {
+		return err
+	}
+	site, err := sf.site()
+	if err != nil {
+		return err
+	}
+	loc, err := zone(tz)
+	if err != nil {
+		return err
+	}
+	y, m, d := time.Now().In(loc).Date()
+	if date.set {
+		if y, m, d, err = ephem.ParseDate(date.value); err != nil {
+			return fromInputError(err, "not a date", map[string]*textValue{"date": date})
+		}
+	}
+	c, err := planConstraints(twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum, haMin, haMax, zenith, sunAvoid, horizon)
+	if err != nil {
+		return err
+	}
+	acq, err := number(acquire, false, 120, 0, 3600, "seconds 0..3600")
+	if err != nil {
+		return err
+	}
+	n, err := number(nExp, false, 0, 0, 10000, "a whole number 0..10000 (0 = as many as fit)")
+	if err == nil && n != math.Trunc(n) {
+		err = fieldError(nExp, "not a whole number", "a whole number 0..10000 (0 = as many as fit)")
+	}
+	if err != nil {
+		return err
+	}
+	stepS, err := number(step, false, 60, 1, 900, "seconds 1..900")
+	if err != nil {
+		return err
+	}
+	list, err := readTargets(targets)
+	if err != nil {
+		return err
+	}
+	for i := range list {
+		list[i].AcquireS = acq
+		for k := range list[i].Goals {
+			list[i].Goals[k].NExposures = int(n)
+		}
+	}
+	from, to := planner.NightWindow(y, m, d, loc)
+	p, err := planner.PlanNight(planner.NightRequest{
+		Site: site, From: from, To: to, Targets: list, Constraints: c,
+		Options: planner.Options{StepS: stepS, Fill: *fill},
+	})
+	if err != nil {
+		return fromInputError(err, "not accepted", nil)
+	}
+	ev := ephem.Night(site, y, m, d, loc)
+	out := planOutput(p, ev, acq)
+	if err := checkPlanFinite(out); err != nil {
+		return err
+	}
+	if *asJSON {
+		return writeJSON(stdout, out)
+	}
+	return printPlan(stdout, p, ev, loc, y, m, d, acq)
+}
+
+// planConstraints parses the constraint flags.
+func planConstraints(twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum, haMin, haMax, zenith, sunAvoid, horizon *textValue) (planner.Constraints, error) {
+	c := planner.DefaultConstraints()
+	tw := strings.TrimSpace(twilight.value)
+	if !twilight.set {
+		tw = "nautical"
+	}
+	if x, ok := parseNumber(tw); ok {
+		if x < -30 || x > 0 {
+			return c, fieldError(twilight, "out of range", "civil, nautical, astronomical, or a Sun altitude −30..0 degrees")
+		}
+		c.Twilight, c.SunAltMaxDeg = planner.TwilightCustom, x
+	} else if t, err := planner.ParseTwilight(tw); err != nil || t == planner.TwilightCustom {
+		return c, fieldError(twilight, "not a twilight", "civil, nautical, astronomical, or a Sun altitude −30..0 degrees")
+	} else {
+		c.Twilight = t
+	}
+	var err error
+	if c.MaxAirmass, err = number(maxAirmass, false, 2.0, 0, 40, "an airmass 1..40, or 0 for none"); err != nil {
+		return c, err
+	}
+	if c.MaxAirmass > 0 && c.MaxAirmass < 1 {
+		return c, fieldError(maxAirmass, "below 1", "an airmass 1..40, or 0 for none")
+	}
+	if c.MinAltDeg, err = number(minAlt, false, 0, -5, 89, "degrees −5..89"); err != nil {
+		return c, err
+	}
+	if c.MinMoonSepDeg, err = number(minMoonSep, false, 0, 0, 179, "degrees 0..179"); err != nil {
+		return c, err
+	}
+	if c.MaxMoonIllum, err = number(maxMoonIllum, false, 0, 0, 1, "an illuminated fraction 0..1 (0 = no limit)"); err != nil {
+		return c, err
+	}
+	if haMin.set != haMax.set {
+		v := haMin
+		if !haMin.set {
+			v = haMax
+		}
+		return c, fieldError(v, "given alone", "--ha-min and --ha-max together, hours −12..12, min < max")
+	}
+	if haMin.set {
+		if c.HAMinHours, err = number(haMin, true, 0, -12, 12, "hours −12..12"); err != nil {
+			return c, err
+		}
+		if c.HAMaxHours, err = number(haMax, true, 0, -12, 12, "hours −12..12"); err != nil {
+			return c, err
+		}
+		if c.HAMinHours >= c.HAMaxHours {
+			return c, fieldError(haMax, "not above --ha-min", "hours −12..12, greater than --ha-min")
+		}
+	}
+	if c.ZenithExclDeg, err = number(zenith, false, 0, 0, 30, "degrees 0..30"); err != nil {
+		return c, err
+	}
+	if c.SunAvoidDeg, err = number(sunAvoid, false, 30, 0, 90, "degrees 0..90"); err != nil {
+		return c, err
+	}
+	if horizon.set {
+		fh, err := os.Open(horizon.value)
+		if err != nil {
+			return c, fmt.Errorf("--horizon %s: %w", shown(horizon.value), err)
+		}
+		defer fh.Close()
+		pts, err := planner.ParseHorizon(fh)
+		if err != nil {
+			return c, usageErrorf("--horizon %s: %s", shown(horizon.value), err)
+		}
+		c.Horizon = pts
+	}
+	return c, nil
+}
+
+// readTargets reads and parses the targets file; a bad file is rejected
+// whole with every bad cell listed.
+func readTargets(v *textValue) ([]planner.Target, error) {
+	if !v.set {
+		return nil, missing(v)
+	}
+	fh, err := os.Open(v.value)
+	if err != nil {
+		return nil, fmt.Errorf("--targets %s: %w", shown(v.value), err)
+	}
+	defer fh.Close()
+	list, err := planner.ParseTargetsCSV(fh)
+	if err != nil {
+		var te *planner.TableError
+		if errors.As(err, &te) {
+			return nil, usageErrorf("--targets %s: %s", shown(v.value), te.Error())
+		}
+		return nil, fmt.Errorf("--targets %s: %w", shown(v.value), err)
+	}
+	if len(list) == 0 {
+		return nil, usageErrorf("--targets %s: no targets in the file", shown(v.value))
+	}
+	return list, nil
+}
+
+// nightObject is the `night --json` object for a night's events.
+func nightObject(ev ephem.NightEvents) nightJSON {
+	return nightJSON{
+		Sunset: optSeconds(ev.Sunset), CivilDusk: optSeconds(ev.CivilDusk),
+		NauticalDusk: optSeconds(ev.NauticalDusk), AstronomicalDusk: optSeconds(ev.AstronomicalDusk),
+		AstronomicalDawn: optSeconds(ev.AstronomicalDawn), NauticalDawn: optSeconds(ev.NauticalDawn),
+		CivilDawn: optSeconds(ev.CivilDawn), Sunrise: optSeconds(ev.Sunrise),
+		Moonrise: optSeconds(ev.Moonrise), Moonset: optSeconds(ev.Moonset),
+		MoonIlluminated: ev.MoonIlluminated,
+	}
+}
+
+func planOutput(p *planner.Plan, ev ephem.NightEvents, acq float64) planJSON {
+	out := planJSON{
+		Night:       nightObject(ev),
+		Blocks:      []planBlockJSON{},
+		Unscheduled: []unscheduledJSON{},
+		Warnings:    []warningJSON{},
+		Dark:        []intervalJSON{},
+		Caution:     planner.SafetyCaution,
+		Objective:   objectiveJSON{Value: p.Value, GreedyValue: p.GreedyValue, Optimal: p.Optimal, Candidates: p.Candidates, Nodes: p.Nodes},
+	}
+	c := p.Constraints
+	out.Constraints = constraintsJSON{Twilight: string(c.Twilight), SunAltMaxDeg: c.SunAltMaxDeg, MaxAirmass: c.MaxAirmass,
+		MinAltDeg: c.MinAltDeg, MinMoonSepDeg: c.MinMoonSepDeg, MaxMoonIllum: c.MaxMoonIllum, ZenithExclDeg: c.ZenithExclDeg,
+		SunAvoidDeg: c.SunAvoidDeg, HorizonPoints: len(c.Horizon), AcquireS: acq}
+	if c.HAMinHours != 0 || c.HAMaxHours != 0 {
+		lo, hi := c.HAMinHours, c.HAMaxHours
+		out.Constraints.HAMinHours, out.Constraints.HAMaxHours = &lo, &hi
+	}
+	for _, d := range p.Dark {
+		out.Dark = append(out.Dark, intervalJSON{planTime(d.Start), planTime(d.End)})
+	}
+	for _, b := range p.Blocks {
+		bj := planBlockJSON{
+			Target: b.Target, Start: planTime(b.Start), End: planTime(b.End), NExposures: b.N,
+			ExposureS: b.ExposureS, OverheadS: b.OverheadS, PhaseStart: b.PhaseStart, PhaseEnd: b.PhaseEnd,
+			AirmassMax: b.AirmassMax, AirmassMin: b.AirmassMin, PhaseMid: b.PhaseMid,
+			PhaseFirstMid: b.PhaseFirstMid, PhaseLastMid: b.PhaseLastMid, Smear: b.Smear, PhaseErr: b.PhaseErr,
+			Cycle: b.Cycle, AcquireS: b.AcquireS, MoonSepDeg: b.MoonSepDeg, MoonUp: b.MoonUp,
+			ParallacticDeg: b.Parallactic, HourAngleHours: b.HourAngle, SunAltStartDeg: b.SunAltStart,
+			Priority: b.Priority, Filler: b.Filler, Warnings: []string{},
+		}
+		if !b.Filler {
+			c, w := b.Goal.Center, b.Goal.HalfWidth
+			bj.PhaseGoal, bj.PhaseHalfWidth = &c, &w
+		}
+		for _, w := range b.Warnings {
+			bj.Warnings = append(bj.Warnings, w.Message)
+		}
+		out.Blocks = append(out.Blocks, bj)
+	}
+	for _, u := range p.Unscheduled {
+		out.Unscheduled = append(out.Unscheduled, unscheduledJSON{Target: u.Target, PhaseGoal: u.Goal.Center, Reason: u.Detail, Code: string(u.Reason)})
+	}
+	type goalKey struct {
+		target string
+		goal   int
+	}
+	centers := map[goalKey]float64{}
+	for _, b := range p.Blocks {
+		if !b.Filler {
+			centers[goalKey{b.Target, b.GoalIndex}] = b.Goal.Center
+		}
+	}
+	for _, u := range p.Unscheduled {
+		centers[goalKey{u.Target, u.GoalIndex}] = u.Goal.Center
+	}
+	seen := map[string]bool{}
+	for _, w := range p.Warnings {
+		k := string(w.Code) + "\x00" + w.Target + "\x00" + w.Message
+		if seen[k] {
+			continue
+		}
+		seen[k] = true
+		wj := warningJSON{Code: string(w.Code), Target: w.Target, Message: w.Message}
+		if c, ok := centers[goalKey{w.Target, w.GoalIndex}]; ok && w.Target != "" {
+			wj.PhaseGoal = &c
+		}
+		out.Warnings = append(out.Warnings, wj)
+	}
+	for _, v := range p.Visibility {
+		vj := visibilityJSON{Target: v.Target, Intervals: []intervalJSON{}, Gaps: []gapJSON{}}
+		for _, iv := range v.Intervals {
+			vj.Intervals = append(vj.Intervals, intervalJSON{planTime(iv.Start), planTime(iv.End)})
+		}
+		for _, g := range v.Gaps {
+			gj := gapJSON{Start: planTime(g.Start), End: planTime(g.End)}
+			for _, r := range g.Reasons {
+				gj.Reasons = append(gj.Reasons, string(r))
+			}
+			vj.Gaps = append(vj.Gaps, gj)
+		}
+		out.Visibility = append(out.Visibility, vj)
+	}
+	return out
+}
+
+// checkPlanFinite makes sure no NaN reaches the output.
+func checkPlanFinite(out planJSON) error {
+	for _, b := range out.Blocks {
+		if err := checkFinite([]string{"phase", "phase", "airmass", "airmass", "phase", "smear", "phase error", "Moon separation", "parallactic angle", "hour angle", "Sun altitude"},
+			b.PhaseStart, b.PhaseEnd, b.AirmassMax, b.AirmassMin, b.PhaseMid, b.Smear, b.PhaseErr, b.MoonSepDeg, b.ParallacticDeg, b.HourAngleHours, b.SunAltStartDeg); err != nil {
+			return fmt.Errorf("block of %s: %w", b.Target, err)
+		}
+	}
+	return checkFinite([]string{"Moon illumination"}, out.Night.MoonIlluminated)
+}
+
+// printPlan writes the human night sheet.
+func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Location, y int, m time.Month, d int, acq float64) error {
+	evening := time.Date(y, m, d, 12, 0, 0, 0, loc)
+	lt := func(t time.Time) string { return t.In(loc).Format("15:04") }
+	ut := func(t time.Time) string { return t.UTC().Format("15:04") }
+	var b strings.Builder
+	fmt.Fprintf(&b, "Night plan for %s (%s), site %s\n", evening.Format("Monday 2006-01-02"), loc, siteLine(p.Site))
+	c := p.Constraints
+	fmt.Fprintf(&b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
+	if c.MinAltDeg != 0 {
+		fmt.Fprintf(&b, ", altitude ≥ %s°", fmtG(c.MinAltDeg))
+	}
+	if c.MinMoonSepDeg > 0 {
+		fmt.Fprintf(&b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
+	}
+	if c.MaxMoonIllum > 0 {
+		fmt.Fprintf(&b, ", Moon ≤ %s%% lit when up", fmtG(100*c.MaxMoonIllum))
+	}
+	if c.HAMinHours != 0 || c.HAMaxHours != 0 {
+		fmt.Fprintf(&b, ", hour angle %s..%s h", fmtG(c.HAMinHours), fmtG(c.HAMaxHours))
+	}
+	if c.ZenithExclDeg > 0 {
+		fmt.Fprintf(&b, ", zenith exclusion %s°", fmtG(c.ZenithExclDeg))
+	}
+	if len(c.Horizon) > 0 {
+		fmt.Fprintf(&b, ", horizon mask (%d points)", len(c.Horizon))
+	}
+	fmt.Fprintf(&b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
+	if len(p.Dark) == 0 {
+		fmt.Fprintf(&b, "Dark time: none (the Sun stays above %s°)\n", fmtG(c.SunAltMaxDeg))
+	}
+	for _, dk := range p.Dark {
+		fmt.Fprintf(&b, "Dark time: %s–%s local (%s–%s UTC), %.1f h\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End), dk.End.Sub(dk.Start).Hours())
+	}
+	moon := fmt.Sprintf("Moon: %.0f%% illuminated at midnight", 100*ev.MoonIlluminated)
+	if ev.Moonrise != nil {
+		moon += ", rises " + lt(*ev.Moonrise) + " local"
+	}
+	if ev.Moonset != nil {
+		moon += ", sets " + lt(*ev.Moonset) + " local"
+	}
+	b.WriteString(moon + "\n\n")
+	if _, err := io.WriteString(w, b.String()); err != nil {
+		return err
+	}
+	b.Reset()
+	tb := newTable(w)
+	tb.row("start", "", "end", "", "target", "goal", "exposures", "phase start→end", "airmass", "Moon", "par.angle", "notes")
+	tb.row("local", "UTC", "local", "UTC", "", "", "", "", "", "", "", "")
+	for _, bl := range p.Blocks {
+		goal := "filler"
+		if !bl.Filler {
+			goal = fmt.Sprintf("%.3f±%.3f", bl.Goal.Center, bl.Goal.HalfWidth)
+		}
+		notes := []string{}
+		if bl.AcquireS > 0 {
+			notes = append(notes, fmt.Sprintf("acquire from %s", lt(bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))))))
+		}
+		for _, wn := range bl.Warnings {
+			notes = append(notes, string(wn.Code))
+		}
+		tb.row(bl.Start.In(loc).Format("15:04:05"), bl.Start.UTC().Format("15:04:05"), bl.End.In(loc).Format("15:04:05"), bl.End.UTC().Format("15:04:05"),
+			bl.Target, goal, fmt.Sprintf("%d×%ss+%ss", bl.N, fmtG(bl.ExposureS), fmtG(bl.OverheadS)),
+			fmt.Sprintf("%.3f→%.3f", bl.PhaseStart, bl.PhaseEnd),
+			fmt.Sprintf("%.2f–%.2f", bl.AirmassMin, bl.AirmassMax), fmt.Sprintf("%.0f°", bl.MoonSepDeg),
+			fmt.Sprintf("%+.0f°", bl.Parallactic), strings.Join(notes, ", "))
+	}
+	if len(p.Blocks) == 0 {
+		tb.row("(no block can be scheduled)", "", "", "", "", "", "", "", "", "", "", "")
+	}
+	if err := tb.flush(); err != nil {
+		return err
+	}
+	if len(p.Unscheduled) > 0 {
+		b.WriteString("\nNot scheduled:\n")
+		for _, u := range p.Unscheduled {
+			fmt.Fprintf(&b, "  %s, phase %.3f: %s\n", u.Target, u.Goal.Center, u.Detail)
+		}
+	}
+	var notes []string
+	seen := map[string]bool{}
+	for _, wn := range p.Warnings {
+		if wn.Code == planner.WarnUnreachable || wn.Code == planner.WarnSunAvoidApplied {
+			continue
+		}
+		line := wn.Message
+		if wn.Target != "" {
+			line = wn.Target + ": " + line
+		}
+		if !seen[line] {
+			seen[line] = true
+			notes = append(notes, line)
+		}
+	}
+	if len(notes) > 0 {
+		b.WriteString("\nWarnings:\n")
+		for _, n := range notes {
+			b.WriteString("  " + n + "\n")
+		}
+	}
+	state := "optimal"
+	if !p.Optimal {
+		state = "best found, not proven optimal"
+	}
+	fmt.Fprintf(&b, "\nSchedule value %d (%s; greedy first-fit would give %d), %d candidate blocks.\n", p.Value, state, p.GreedyValue, p.Candidates)
+	b.WriteString(planner.SafetyCaution + "\n")
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// fmtG formats a number without trailing zeros.
+func fmtG(x float64) string { return strings.TrimSuffix(strings.TrimRight(f(x, 3), "0"), ".") }
