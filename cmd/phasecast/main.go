@@ -1,0 +1,21 @@
+// Command phasecast plans observations of short-period binaries: where a
+// target, the Sun and the Moon stand, the night's twilights, barycentric time
+// and orbital phase, the next orbital events, and ephemeris refinement from
+// timings. Run it without arguments for the list of commands.
+package main
+
+import (
+	"context"
+	"os"
+	"os/signal"
+	"syscall"
+
+	_ "time/tzdata" // time zones load on machines without zoneinfo
+)
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	code := exitCode(run(ctx, os.Args[1:], os.Stdout, os.Stderr))
+	stop()
+	os.Exit(code)
+}

@@ -1,0 +1,144 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"runtime/debug"
+	"strings"
+	"text/tabwriter"
+)
+
+// commandFunc runs one command with its own arguments (the command name
+// removed). It writes results to stdout; stderr is for logs of long-running
+// commands. It returns an error rather than printing one.
+type commandFunc func(ctx context.Context, args []string, stdout, stderr io.Writer) error
+
+// command is one entry of the dispatch table.
+type command struct {
+	name    string
+	summary string
+	run     commandFunc
+}
+
+// commands is the dispatch table, in the order the overview lists them.
+// A new command is one line here plus its own file.
+func commands() []command {
+	return []command{
+		{"sky", "where a target, the Sun and the Moon stand at an instant", runSky},
+		{"night", "sunset, twilights, sunrise, moonrise and moonset for one night", runNight},
+		{"bjd", "an instant in JD_UTC, JD_TT, JD_TDB, HJD_UTC and BJD_TDB for a target", runBJD},
+		{"phase", "orbital cycle and phase (with its uncertainty) at an instant", runPhase},
+		{"events", "next orbital events or phase windows of a target in a time range", runEvents},
+		{"fit", "refine an ephemeris from measured event times (CSV)", runFit},
+		{"plan", "plan one night: exposure blocks on the wanted orbital phases of a target list", runPlan},
+	}
+}
+
+// run is the whole program: it dispatches args to a command and reports any
+// error on stderr as one line starting "phasecast: ".
+func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	return runWith(ctx, commands(), args, stdout, stderr)
+}
+
+// runWith is run with a given dispatch table. A panic anywhere below is
+// turned into an error as a last resort, never shown as a stack trace.
+func runWith(ctx context.Context, cmds []command, args []string, stdout, stderr io.Writer) (err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			err = &internalError{fmt.Sprintf("internal error: %v; please report this with the command line", r), debug.Stack()}
+		}
+		if err != nil {
+			fmt.Fprintln(stderr, "phasecast: "+oneLine(err.Error()))
+		}
+	}()
+	if len(args) == 0 {
+		return overview(stdout, cmds)
+	}
+	name := args[0]
+	switch name {
+	case "help", "-h", "-help", "--help":
+		return overview(stdout, cmds)
+	}
+	for _, c := range cmds {
+		if c.name == name {
+			return c.run(ctx, args[1:], stdout, stderr)
+		}
+	}
+	return usageErrorf("unknown command %q; accepted: %s (run phasecast without arguments for the overview)", name, commandNames(cmds))
+}
+
+// overview prints the list of commands.
+func overview(w io.Writer, cmds []command) error {
+	var b strings.Builder
+	b.WriteString("phasecast: plan observations of short-period binaries by orbital phase\n\n")
+	b.WriteString("Usage: phasecast COMMAND [flags]    (phasecast COMMAND -h lists a command's flags)\n\nCommands:\n")
+	tw := tabwriter.NewWriter(&b, 0, 0, 3, ' ', 0)
+	for _, c := range cmds {
+		fmt.Fprintf(tw, "  %s\t%s\n", c.name, c.summary)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	b.WriteString("\nSites: --lat DEG (north +), --lon DEG (EAST +), --elev M. Times: RFC 3339, UTC unless an offset is given.\n")
+	b.WriteString("--json prints one JSON object. Computed times: verify them against your observatory's own tools\n")
+	b.WriteString("and rules before observing, and never point a telescope near the Sun.\n")
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+func commandNames(cmds []command) string {
+	var names []string
+	for _, c := range cmds {
+		names = append(names, c.name)
+	}
+	return strings.Join(names, ", ")
+}
+
+// usageError is a bad command line: an unknown command or flag, a missing or
+// malformed value. Exit status 2.
+type usageError struct{ msg string }
+
+func (e *usageError) Error() string { return e.msg }
+
+func usageErrorf(format string, a ...any) error {
+	return &usageError{fmt.Sprintf(format, a...)}
+}
+
+// internalError is a recovered panic. Exit status 3.
+type internalError struct {
+	msg   string
+	stack []byte
+}
+
+func (e *internalError) Error() string { return e.msg }
+
+// Exit statuses.
+const (
+	exitOK       = 0
+	exitFailure  = 1 // the command could not do its job (for example an unreadable file)
+	exitUsage    = 2 // bad command line or input value
+	exitInternal = 3 // a bug: a recovered panic
+)
+
+// exitCode maps the error run returned to the process exit status.
+func exitCode(err error) int {
+	var ue *usageError
+	var ie *internalError
+	switch {
+	case err == nil:
+		return exitOK
+	case errors.As(err, &ue):
+		return exitUsage
+	case errors.As(err, &ie):
+		return exitInternal
+	}
+	return exitFailure
+}
+
+// oneLine folds a message onto one line.
+func oneLine(s string) string {
+	s = strings.TrimSpace(s)
+	return strings.Join(strings.Fields(strings.ReplaceAll(s, "\n", " ")), " ")
+}
