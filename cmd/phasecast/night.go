@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 	"time"
 
@@ -113,6 +114,17 @@ func printNight(w io.Writer, site ephem.Site, loc *time.Location, y int, m time.
 		{"moonrise", ev.Moonrise},
 		{"moonset", ev.Moonset},
 	}
+	// In time order; events that do not happen last.
+	slices.SortStableFunc(rows, func(a, b struct {
+		name string
+		t    *time.Time
+	}) int {
+		switch {
+		case a.t == nil || b.t == nil:
+			return cmpBool(a.t == nil, b.t == nil)
+		}
+		return a.t.Compare(*b.t)
+	})
 	for _, r := range rows {
 		if r.t == nil {
 			tb.row(r.name, "— (does not happen this night)", "—")
@@ -126,4 +138,15 @@ func printNight(w io.Writer, site ephem.Site, loc *time.Location, y int, m time.
 	}
 	_, err := fmt.Fprintf(w, "\nMoon illuminated at local midnight: %s %%\n%s\n", f(ev.MoonIlluminated*100, 1), safetyNote)
 	return err
+}
+
+// cmpBool orders false before true.
+func cmpBool(a, b bool) int {
+	switch {
+	case a == b:
+		return 0
+	case a:
+		return 1
+	}
+	return -1
 }
