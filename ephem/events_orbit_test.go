@@ -274,7 +274,7 @@ func TestEclipseContacts(t *testing.T) {
 }
 
 var (
-	testSite = ephem.Site{LatDeg: -29.25, LonEastDeg: -70.73, ElevM: 2400}
+	testSite = ephem.Site{LatDeg: -23.456, LonEastDeg: -67.891, ElevM: 2345}
 	testStar = ephem.Star{RADeg: 263.417, DecDeg: -13.58}
 )
 
