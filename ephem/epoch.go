@@ -140,8 +140,12 @@ func ParseEpoch(text string, std TimeStandard, form EpochForm) (JD2, error) {
 
 // FormatEpoch writes v in form with the given number of decimals (0..12;
 // 8 decimals of a day are 0.86 ms), from the two parts separately, so no
-// digit is lost to a single float64.
+// digit is lost to a single float64. An unknown form writes the full JD; a
+// non-finite v writes "" (never "NaN").
 func FormatEpoch(v JD2, form EpochForm, decimals int) string {
+	if !finite(v.Day) || !finite(v.Frac) {
+		return ""
+	}
 	decimals = max(0, min(decimals, 12))
 	whole, half, ok := form.offset()
 	if !ok {

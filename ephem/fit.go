@@ -75,6 +75,7 @@ type AmbiguityError struct {
 	Reason string
 }
 
+// Error names the timing (or the whole set) and why its cycle is ambiguous.
 func (e *AmbiguityError) Error() string {
 	if e.Index < 0 {
 		return "timings: cycle count is ambiguous: " + e.Reason
