@@ -42,7 +42,7 @@ import (
 //     meeus kepler.Kepler2). Jupiter alone moves the Sun by 0.005 au (2.5 s);
 //     all four giants by up to 0.01 au (5 s);
 //   - the observatory's geocentric position, Meeus (11.3) (Site.geocentric)
-//     rotated by local mean sidereal time, Meeus (12.4) (meeus sidereal.Mean,
+//     rotated by local mean sidereal time, Meeus ch. 12 (meeus sidereal.Mean,
 //     with UT1 ≈ UTC): at most 21.3 ms (Earth's radius over c).
 //
 // Everything is summed in the mean ecliptic of date, turned to the mean equator
@@ -55,7 +55,9 @@ import (
 // less than 5 µs: neglected.
 //
 // Neglected on purpose: the Shapiro delay (the Sun's gravitational delay,
-// ≤ 0.12 ms at 1° from the Sun's limb, about 20 µs typically); the Einstein
+// (2GM☉/c³)·ln(1 − cos θ) with 2GM☉/c³ = 9.85 µs and θ the target's angle
+// from the Sun, from memory: 0.11 ms at the Sun's limb, under 20 µs more than
+// 30° from the Sun, where targets are observed); the Einstein
 // delay is in TDB − TT (TDBMinusTT); the target's parallax (the direction is
 // taken as the same from the Earth and from the barycentre: plane wave).
 //
@@ -396,7 +398,7 @@ func baryEllipse(el *planetelements.Elements) [3]float64 {
 
 // baryObservatory returns the observatory's geocentric position, au, in the
 // equator of date: Meeus (11.3) for ρ sin φ′, ρ cos φ′ (Earth76 ellipsoid),
-// rotated by the local mean sidereal time (meeus sidereal.Mean, Meeus (12.4),
+// rotated by the local mean sidereal time (meeus sidereal.Mean, Meeus ch. 12,
 // with UT1 ≈ UTC; longitude east-positive).
 func baryObservatory(s Site, u JD2) [3]float64 {
 	rhoSin, rhoCos := s.geocentric()
