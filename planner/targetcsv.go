@@ -93,9 +93,9 @@ const (
 //   - ra, dec: ICRS, decimal degrees or sexagesimal (RA in hours, Dec in
 //     degrees), as ephem.ParseRA and ephem.ParseDec accept.
 //   - t0_bjd_tdb: the reference epoch as a full Julian date on the BJD_TDB
-//     scale (e.g. 2460123.4567891); digits beyond float64 precision are kept
-//     by splitting the value into two parts (ephem.JD2). Years
-//     ephem.MinYear..ephem.MaxYear. MJD or reduced dates are rejected.
+//     scale (e.g. 2460123.4567891), read by ephem.ParseEpoch, which keeps
+//     every digit given (two-part ephem.JD2); 1582-10-15 to 3000-01-01, so
+//     an MJD or a reduced date is rejected, not guessed.
 //   - period_days: 0 < P ≤ MaxPeriodDays.
 //   - phases: goal centres separated by ';' (e.g. "0.25;0.75"), each
 //     0 ≤ φ < 1, no repeats, in the convention of T0.
@@ -109,6 +109,29 @@ const (
 // taken as given. On any bad cell the error is a *TableError listing EVERY
 // bad cell by line and column, and no target is returned.
 func ParseTargetsCSV(r io.Reader) ([]Target, error) {
+	rows, err := ReadTargetsCSV(r)
+	if err != nil {
+		return nil, err
+	}
+	out := make([]Target, len(rows))
+	for i, row := range rows {
+		out[i] = row.Target
+	}
+	return out, nil
+}
+
+// TargetRow is one target read from a targets file, with the line it is on
+// and the epoch exactly as written.
+type TargetRow struct {
+	Line   int
+	Target Target
+	T0Text string
+}
+
+// ReadTargetsCSV is ParseTargetsCSV keeping, for each target, its line and
+// the t0_bjd_tdb text as written (for callers that record what was typed or
+// report later checks by line).
+func ReadTargetsCSV(r io.Reader) ([]TargetRow, error) {
 	cr := csv.NewReader(r)
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1
@@ -126,7 +149,7 @@ func ParseTargetsCSV(r io.Reader) ([]Target, error) {
 	if len(te.Cells) > 0 {
 		return nil, te
 	}
-	var targets []Target
+	var targets []TargetRow
 	names := map[string]int{}
 	for {
 		rec, err := cr.Read()
@@ -156,7 +179,7 @@ func ParseTargetsCSV(r io.Reader) ([]Target, error) {
 			continue
 		}
 		names[t.Name] = line
-		targets = append(targets, t)
+		targets = append(targets, TargetRow{Line: line, Target: t, T0Text: strings.TrimSpace(rec[col["t0_bjd_tdb"]])})
 	}
 	if len(te.Cells) > 0 {
 		return nil, te
@@ -238,9 +261,9 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 	}
 	{
 		v := get("t0_bjd_tdb")
-		jd, err := ParseJulianDate(v)
+		jd, err := ephem.ParseEpoch(v, ephem.StdBJDTDB, ephem.FormJD)
 		if err != nil {
-			bad("t0_bjd_tdb", v, err.Error())
+			bad("t0_bjd_tdb", v, inputReason(err)+" (a full Julian date on BJD_TDB)")
 		}
 		t.Ephem.T0 = jd
 	}
@@ -341,45 +364,4 @@ func inputReason(err error) string {
 		return "accepted: " + ie.Accepted
 	}
 	return err.Error()
-}
-
-// ParseJulianDate parses a full Julian date written in decimal
-// ("2460123.4567891234") into two parts without losing the digits a single
-// float64 would drop: the integer and fractional digits are converted
-// separately. The result is normalised as ephem.JD2 expects (Day a
-// half-integer, 0 ≤ Frac < 1). Accepted: years ephem.MinYear..ephem.MaxYear
-// (JD 2378496.5 to 2524593.5); MJD and reduced dates are rejected, not
-// guessed. The time scale is the caller's to name.
-func ParseJulianDate(s string) (ephem.JD2, error) {
-	lo := ephem.JDFromCalendar(ephem.MinYear, 1, 1)
-	hi := ephem.JDFromCalendar(ephem.MaxYear+1, 1, 1)
-	accepted := fmt.Errorf("a full Julian date in decimal, %.1f to %.1f (years %d to %d), e.g. 2460123.45678; MJD and reduced dates are not accepted here",
-		lo, hi, ephem.MinYear, ephem.MaxYear)
-	s = strings.TrimSpace(s)
-	intPart, fracPart, _ := strings.Cut(s, ".")
-	if intPart == "" || strings.TrimLeft(intPart, "0123456789") != "" ||
-		strings.TrimLeft(fracPart, "0123456789") != "" || len(intPart) > 9 {
-		return ephem.JD2{}, accepted
-	}
-	whole, err := strconv.ParseInt(intPart, 10, 64)
-	if err != nil {
-		return ephem.JD2{}, accepted
-	}
-	frac := 0.0
-	if fracPart != "" {
-		frac, err = strconv.ParseFloat("0."+fracPart, 64)
-		if err != nil {
-			return ephem.JD2{}, accepted
-		}
-	}
-	var j ephem.JD2
-	if frac >= 0.5 {
-		j = ephem.JD2{Day: float64(whole) + 0.5, Frac: frac - 0.5}
-	} else {
-		j = ephem.JD2{Day: float64(whole) - 0.5, Frac: frac + 0.5}
-	}
-	if j.Float() < lo || j.Float() >= hi {
-		return ephem.JD2{}, accepted
-	}
-	return j, nil
 }

@@ -2,7 +2,6 @@ package planner_test
 
 import (
 	"errors"
-	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -100,41 +99,6 @@ func TestParseTargetsCSV_Errors(t *testing.T) {
 				if !strings.Contains(err.Error(), w) {
 					t.Errorf("error lacks %q:\n%v", w, err)
 				}
-			}
-		})
-	}
-}
-
-func TestParseJulianDate(t *testing.T) {
-	tests := []struct {
-		in       string
-		day, fr  float64
-		wantFail bool
-	}{
-		{"2460000.5", 2460000.5, 0, false},
-		{"2460000.25", 2459999.5, 0.75, false},
-		{"2460000", 2459999.5, 0.5, false},
-		{" 2451545.000000000001 ", 2451544.5, 0.500000000001, false},
-		{"60000.5", 0, 0, true},
-		{"-2460000.5", 0, 0, true},
-		{"2460000.5e0", 0, 0, true},
-		{"", 0, 0, true},
-		{"2460000.", 2459999.5, 0.5, false},
-	}
-	for _, tc := range tests {
-		t.Run(fmt.Sprintf("%q", tc.in), func(t *testing.T) {
-			got, err := planner.ParseJulianDate(tc.in)
-			if tc.wantFail {
-				if err == nil {
-					t.Fatalf("got %+v, want an error", got)
-				}
-				return
-			}
-			if err != nil {
-				t.Fatal(err)
-			}
-			if got.Day != tc.day || math.Abs(got.Frac-tc.fr) > 1e-15 {
-				t.Errorf("got %+v, want {%v %v}", got, tc.day, tc.fr)
 			}
 		})
 	}
