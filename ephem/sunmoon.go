@@ -6,6 +6,7 @@ import (
 
 	"github.com/soniakeys/meeus/v3/base"
 	"github.com/soniakeys/meeus/v3/coord"
+	"github.com/soniakeys/meeus/v3/globe"
 	"github.com/soniakeys/meeus/v3/moonillum"
 	"github.com/soniakeys/meeus/v3/moonposition"
 	"github.com/soniakeys/meeus/v3/nutation"
@@ -23,6 +24,11 @@ import (
 
 // auKm is the astronomical unit in km as meeus uses it (meeus base.AU).
 const auKm = base.AU
+
+// earthRadiusKm is the Earth's equatorial radius a of the IAU 1976
+// ellipsoid that the site's ρ sin φ′, ρ cos φ′ refer to (meeus
+// globe.Earth76.Er).
+var earthRadiusKm = globe.Earth76.Er
 
 // SunApparent returns the geocentric apparent right ascension and declination
 // of the Sun at instant t (UTC), degrees, true equator and equinox of date,
@@ -67,18 +73,18 @@ func (b topocentricBody) decAngle() unit.Angle { return unit.Angle(b.dec) }
 // instant t: Meeus (40.2), (40.3), via meeus parallax.Topocentric. meeus
 // computes the hour angle from its jde argument with sidereal.Apparent, so it
 // is given the UT (= UTC) Julian date here; the place itself is for TT.
-// meeus takes the horizontal parallax as 8.794″/Δ, which for the Moon is
-// smaller than arcsin(a/Δ) by about 0.16″ (a negligible shift, well inside
-// the lunar theory's error). The distance is Δ·q, with q from Meeus (40.6),
-// (40.7).
+// meeus takes the horizontal parallax as π = 8.794″/Δ (Δ in AU), which for
+// the Moon is 0.16″ short of the exact sin π = a/Δ; it is therefore given the
+// distance for which its π equals arcsin(a/Δ). The distance from the site is
+// Δ·q, with q from Meeus (40.6), (40.7).
 func (s Site) topocentric(a unit.RA, d unit.Angle, distKm float64, t time.Time) topocentricBody {
 	rhoSin, rhoCos := s.geocentric()
 	g := s.globe()
 	jdUT := JDUTC(t).Float()
-	distAU := distKm / auKm
-	at, dt := parallax.Topocentric(a, d, distAU, rhoSin, rhoCos, g.Lon, jdUT)
+	sinPi := earthRadiusKm / distKm
+	meeusDist := parallax.Horizontal(1).Rad() / math.Asin(sinPi) // AU, so that 8.794″/Δ = arcsin(a/Δ)
+	at, dt := parallax.Topocentric(a, d, meeusDist, rhoSin, rhoCos, g.Lon, jdUT)
 
-	sinPi := parallax.Horizontal(distAU).Sin()
 	ha := s.lastRad(t) - a.Rad()
 	sh, ch := math.Sincos(ha)
 	sd, cd := d.Sincos()
