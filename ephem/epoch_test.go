@@ -183,3 +183,30 @@ func TestConvertEpoch(t *testing.T) {
 		})
 	}
 }
+
+// FuzzParseEpoch: any text either parses to a finite date in range that
+// formats and parses back to itself, or gives an *InputError; never a panic.
+func FuzzParseEpoch(f *testing.F) {
+	for _, s := range []string{"2460123.456789012345", "60122.5", "-1", "", "1e9", "2460123.", ".5", "+-1", "99999999999999999999999999"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		for _, form := range ephem.EpochForms {
+			v, err := ephem.ParseEpoch(s, ephem.StdHJDUTC, form)
+			if err != nil {
+				var ie *ephem.InputError
+				if !errors.As(err, &ie) {
+					t.Fatalf("%q: error %v is not an *InputError", s, err)
+				}
+				continue
+			}
+			if math.IsNaN(v.Frac) || v.Frac < 0 || v.Frac >= 1 || v.Day-math.Floor(v.Day) != 0.5 {
+				t.Fatalf("%q (%s) → %+v: not a normalised JD2", s, form, v)
+			}
+			back, err := ephem.ParseEpoch(ephem.FormatEpoch(v, form, 12), ephem.StdHJDUTC, form)
+			if err != nil || math.Abs(back.SubDays(v)) > 1e-12 {
+				t.Fatalf("%q (%s) → %+v → %q → %+v, %v", s, form, v, ephem.FormatEpoch(v, form, 12), back, err)
+			}
+		}
+	})
+}

@@ -279,3 +279,42 @@ func BenchmarkFit1000(b *testing.B) {
 		}
 	}
 }
+
+// TestFitNeverNaN: random, often silly, timing sets either fail with an
+// error or give finite numbers everywhere.
+func TestFitNeverNaN(t *testing.T) {
+	rng := rand.New(rand.NewPCG(13, 14))
+	truth := testEphem()
+	fails := 0
+	for trial := range 300 {
+		n := 2 + rng.IntN(8)
+		tm := make([]ephem.Timing, n)
+		for i := range tm {
+			c := rng.Int64N(1 + rng.Int64N(100000))
+			tm[i] = ephem.Timing{
+				Value:   truth.TimeAt(c, 0).AddDays(math.Pow(10, -6+5*rng.Float64()) * rng.NormFloat64()),
+				Std:     ephem.StdBJDTDB,
+				ErrDays: math.Pow(10, -7+5*rng.Float64()),
+			}
+		}
+		g := truth
+		g.PeriodErr = math.Pow(10, -12+6*rng.Float64())
+		res, err := ephem.FitEphemeris(tm, g, rng.IntN(2) == 0)
+		if err != nil {
+			fails++
+			continue
+		}
+		vals := []float64{res.Ephem.T0.Day, res.Ephem.T0.Frac, res.Ephem.PeriodDays, res.Ephem.PeriodErr, res.Ephem.T0ErrDays,
+			res.Ephem.Pdot, res.Ephem.PdotErr, res.ChiSq, res.RedChiSq}
+		vals = append(vals, res.Residuals...)
+		for _, row := range res.Cov {
+			vals = append(vals, row[:]...)
+		}
+		for _, v := range vals {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				t.Fatalf("trial %d: non-finite value in %+v", trial, res)
+			}
+		}
+	}
+	t.Logf("%d of 300 random sets refused with an error", fails)
+}
