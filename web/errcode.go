@@ -1,6 +1,13 @@
 package web
 
-import "errors"
+import (
+	"errors"
+	"fmt"
+
+	"phasecast/ephem"
+	"phasecast/planner"
+	"phasecast/store"
+)
 
 // codedError is an error raised by the web layer itself with one of the
 // shared codes (a missing route, a form that does not parse).
@@ -19,11 +26,29 @@ func (e *codedError) Error() string {
 
 func (e *codedError) Unwrap() error { return e.err }
 
-// errorCode extracts the code and the safe message of err.
+func errNotFound(msg string) error  { return &codedError{code: codeNotFound, msg: msg} }
+func errInvalid(msg string) error   { return &codedError{code: codeInvalid, msg: msg} }
+func errForbidden(msg string) error { return &codedError{code: codeForbidden, msg: msg} }
+
+// errorCode extracts the code and the user-safe message of err: the web's
+// own codedError, the store's *store.Error, and the input errors of ephem
+// and planner (which name the field, the value and what is accepted).
 func errorCode(err error) (code, msg string) {
 	var ce *codedError
 	if errors.As(err, &ce) {
 		return ce.code, ce.msg
+	}
+	var se *store.Error
+	if errors.As(err, &se) {
+		return store.ErrorCode(err), store.ErrorMessage(err)
+	}
+	var ie *ephem.InputError
+	if errors.As(err, &ie) {
+		return codeInvalid, ie.Error()
+	}
+	var te *planner.TableError
+	if errors.As(err, &te) {
+		return codeInvalid, fmt.Sprintf("%d cells of the file are not accepted", len(te.Cells))
 	}
 	return codeInternal, ""
 }

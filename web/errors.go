@@ -43,7 +43,7 @@ func statusFor(err error) (status int, message string) {
 	case codeConflict:
 		return http.StatusConflict, orDefault(msg, "Someone else changed this in the meantime.")
 	case codeForbidden:
-		return http.StatusForbidden, "You are not allowed to do that."
+		return http.StatusForbidden, orDefault(msg, "You are not allowed to do that.")
 	}
 	return http.StatusInternalServerError, "Something went wrong on our side; it has been logged."
 }

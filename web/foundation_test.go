@@ -73,11 +73,12 @@ func TestLimiter(t *testing.T) {
 	}
 }
 
+// newBareServer is a harness server whose database check is ping.
 func newBareServer(t *testing.T, ping func(context.Context) error) *Server {
 	t.Helper()
-	s, err := New(Config{Ping: ping})
-	if err != nil {
-		t.Fatal(err)
+	s := newHarness(t).srv
+	if ping != nil {
+		s.ping = ping
 	}
 	return s
 }

@@ -7,6 +7,10 @@ import (
 
 // home sends a signed-in user to Tonight and anyone else to sign-in.
 func (s *Server) home(w http.ResponseWriter, r *http.Request) {
+	if _, ok := s.sessionUser(r); ok {
+		http.Redirect(w, r, "/tonight", http.StatusSeeOther)
+		return
+	}
 	http.Redirect(w, r, "/login", http.StatusSeeOther)
 }
 

@@ -12,7 +12,10 @@ import (
 	"errors"
 	"log/slog"
 	"net/http"
+	"strings"
 	"time"
+
+	"phasecast/store"
 )
 
 // Config is what the server needs from its caller.
@@ -23,8 +26,8 @@ type Config struct {
 	// BaseURL is the externally visible address ("http://127.0.0.1:8080"),
 	// used to build sign-in, invitation and share links.
 	BaseURL string
-	// Ping reports whether the database is reachable (for /healthz).
-	Ping func(ctx context.Context) error
+	// Store is the team database.
+	Store *store.Store
 }
 
 // Server holds the dependencies of the handlers.
@@ -32,20 +35,22 @@ type Server struct {
 	log     *slog.Logger
 	now     func() time.Time
 	baseURL string
+	store   *store.Store
 	ping    func(ctx context.Context) error
 	logins  *limiter
 }
 
 // New returns a Server for cfg.
 func New(cfg Config) (*Server, error) {
-	if cfg.Ping == nil {
-		return nil, errors.New("web: Config.Ping is required")
+	if cfg.Store == nil {
+		return nil, errors.New("web: Config.Store is required")
 	}
 	s := &Server{
 		log:     cfg.Logger,
 		now:     cfg.Now,
 		baseURL: cfg.BaseURL,
-		ping:    cfg.Ping,
+		store:   cfg.Store,
+		ping:    cfg.Store.Ping,
 		logins:  newLimiter(10, 30*time.Second),
 	}
 	if s.log == nil {
@@ -68,4 +73,17 @@ func (s *Server) Handler() http.Handler {
 	h = s.recoverPanics(h)
 	h = s.logRequests(h)
 	return h
+}
+
+// link returns the absolute URL of path on this server: under BaseURL when
+// configured, else on the host the request came to.
+func (s *Server) link(r *http.Request, path string) string {
+	if s.baseURL != "" {
+		return strings.TrimSuffix(s.baseURL, "/") + path
+	}
+	scheme := "http"
+	if r.TLS != nil {
+		scheme = "https"
+	}
+	return scheme + "://" + r.Host + path
 }

@@ -121,7 +121,7 @@ func Account(c Chrome, v AccountView) templ.Component {
 					return templ_7745c5c3_Err
 				}
 			}
-			templ_7745c5c3_Err = Field("New password", "new", "password", "", "At least 10 characters.", v.PassErrs).Render(ctx, templ_7745c5c3_Buffer)
+			templ_7745c5c3_Err = Field("New password", "new_password", "password", "", "At least 10 characters.", v.PassErrs).Render(ctx, templ_7745c5c3_Buffer)
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}

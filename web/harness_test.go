@@ -1,0 +1,165 @@
+package web
+
+import (
+	"context"
+	"io"
+	"log/slog"
+	"net/http"
+	"net/http/cookiejar"
+	"net/http/httptest"
+	"net/url"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"phasecast/store"
+)
+
+// testNow is the fixed clock of the handler tests: an evening in March.
+var testNow = time.Date(2026, 3, 14, 20, 0, 0, 0, time.UTC)
+
+// harness is a server over a real SQLite file with a team (owner, editor,
+// viewer) and an outsider in another team.
+type harness struct {
+	t       *testing.T
+	store   *store.Store
+	srv     *Server
+	ts      *httptest.Server
+	teamID  int64
+	otherID int64
+	users   map[string]store.User // by role name, and "outsider"
+}
+
+const testPassword = "correct horse battery"
+
+func newHarness(t *testing.T) *harness {
+	t.Helper()
+	ctx := context.Background()
+	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "test.db"),
+		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 64, Threads: 1, SaltLen: 16, KeyLen: 32}))
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { st.Close() })
+	h := &harness{t: t, store: st, users: map[string]store.User{}}
+	for _, name := range []string{"owner", "editor", "viewer", "outsider"} {
+		u, err := st.CreateUser(ctx, store.NewUser{Email: name + "@example.org", Name: "Test " + name, Password: testPassword})
+		if err != nil {
+			t.Fatal(err)
+		}
+		h.users[name] = u
+	}
+	owner := h.actor("owner")
+	team, err := st.CreateTeam(ctx, owner, "Test team")
+	if err != nil {
+		t.Fatal(err)
+	}
+	h.teamID = team.ID
+	for _, role := range []store.Role{store.RoleEditor, store.RoleViewer} {
+		_, tok, err := st.CreateInvitation(ctx, owner, team.ID, role, 24*time.Hour, "")
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := st.AcceptInvitation(ctx, h.actor(string(role)), tok); err != nil {
+			t.Fatal(err)
+		}
+	}
+	other, err := st.CreateTeam(ctx, h.actor("outsider"), "Other team")
+	if err != nil {
+		t.Fatal(err)
+	}
+	h.otherID = other.ID
+	logger := slog.New(slog.NewTextHandler(io.Discard, nil))
+	if testing.Verbose() {
+		logger = slog.New(slog.NewTextHandler(testWriter{t}, nil))
+	}
+	h.srv, err = New(Config{Store: st, Logger: logger, Now: func() time.Time { return testNow }})
+	if err != nil {
+		t.Fatal(err)
+	}
+	h.ts = httptest.NewServer(h.srv.Handler())
+	t.Cleanup(h.ts.Close)
+	return h
+}
+
+type testWriter struct{ t *testing.T }
+
+func (w testWriter) Write(p []byte) (int, error) { w.t.Log(strings.TrimSpace(string(p))); return len(p), nil }
+
+// actor returns a fresh store actor of the named test user.
+func (h *harness) actor(name string) store.Actor {
+	h.t.Helper()
+	_, tok, err := h.store.SignIn(context.Background(), name+"@example.org", testPassword)
+	if err != nil {
+		h.t.Fatal(err)
+	}
+	a, err := h.store.SessionActor(context.Background(), tok)
+	if err != nil {
+		h.t.Fatal(err)
+	}
+	return a
+}
+
+// client returns an HTTP client signed in as the named user ("" for a
+// signed-out client). It does not follow redirects.
+func (h *harness) client(name string) *http.Client {
+	h.t.Helper()
+	jar, _ := cookiejar.New(nil)
+	c := &http.Client{Jar: jar, CheckRedirect: func(*http.Request, []*http.Request) error { return http.ErrUseLastResponse }}
+	if name == "" {
+		return c
+	}
+	resp := h.post(c, "/login", url.Values{"email": {name + "@example.org"}, "password": {testPassword}})
+	if resp.StatusCode != http.StatusSeeOther {
+		h.t.Fatalf("sign in as %s: status %d", name, resp.StatusCode)
+	}
+	return c
+}
+
+// get fetches path and returns the response with its body read.
+func (h *harness) get(c *http.Client, path string) (*http.Response, string) {
+	h.t.Helper()
+	resp, err := c.Get(h.ts.URL + path)
+	if err != nil {
+		h.t.Fatal(err)
+	}
+	defer resp.Body.Close()
+	b, err := io.ReadAll(resp.Body)
+	if err != nil {
+		h.t.Fatal(err)
+	}
+	return resp, string(b)
+}
+
+// post submits a form as a same-origin browser would.
+func (h *harness) post(c *http.Client, path string, form url.Values) *http.Response {
+	h.t.Helper()
+	resp, _ := h.postBody(c, path, form)
+	return resp
+}
+
+func (h *harness) postBody(c *http.Client, path string, form url.Values) (*http.Response, string) {
+	h.t.Helper()
+	req, err := http.NewRequest(http.MethodPost, h.ts.URL+path, strings.NewReader(form.Encode()))
+	if err != nil {
+		h.t.Fatal(err)
+	}
+	req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
+	req.Header.Set("Sec-Fetch-Site", "same-origin")
+	resp, err := c.Do(req)
+	if err != nil {
+		h.t.Fatal(err)
+	}
+	defer resp.Body.Close()
+	b, err := io.ReadAll(resp.Body)
+	if err != nil {
+		h.t.Fatal(err)
+	}
+	return resp, string(b)
+}
+
+// hasTestID reports whether body has an element with data-testid=id.
+func hasTestID(body, id string) bool {
+	return strings.Contains(body, `data-testid="`+id+`"`)
+}
