@@ -85,7 +85,10 @@ func newHarness(t *testing.T) *harness {
 
 type testWriter struct{ t *testing.T }
 
-func (w testWriter) Write(p []byte) (int, error) { w.t.Log(strings.TrimSpace(string(p))); return len(p), nil }
+func (w testWriter) Write(p []byte) (int, error) {
+	w.t.Log(strings.TrimSpace(string(p)))
+	return len(p), nil
+}
 
 // actor returns a fresh store actor of the named test user.
 func (h *harness) actor(name string) store.Actor {
