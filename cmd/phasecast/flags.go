@@ -139,8 +139,8 @@ func shown(s string) string {
 	if s == "" || strings.IndexFunc(s, func(r rune) bool { return unicode.IsSpace(r) || !unicode.IsPrint(r) }) >= 0 {
 		return strconv.Quote(s)
 	}
-	if len(s) > 80 {
-		return strconv.Quote(s[:80] + "…")
+	if r := []rune(s); len(r) > 80 {
+		return strconv.Quote(string(r[:80]) + "…")
 	}
 	return s
 }
