@@ -87,7 +87,7 @@ func runEvents(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	event := fl.text("event", "NAMES", "all", "events to list, comma-separated, or all")
 	eclipse := fl.text("eclipse-duration", "S", "", "full eclipse duration (first to last contact), seconds, for eclipse_ingress and eclipse_egress")
 	phaseC := fl.text("phase", "C", "", "list the instants at this phase (0 ≤ C < 1) instead of named events")
-	half := fl.text("halfwidth", "W", "", "with --phase: list the intervals with phase in C ± W (0 < W < 0.5)")
+	half := fl.text("halfwidth", "W", "", "with --phase: list the intervals with phase in C ± W (0 < W ≤ 0.5)")
 	maxRows := fl.text("max", "N", "500", "at most this many rows (1..100000)")
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {

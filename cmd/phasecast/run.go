@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"runtime/debug"
 	"strings"
 	"text/tabwriter"
 )
@@ -47,7 +46,7 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 func runWith(ctx context.Context, cmds []command, args []string, stdout, stderr io.Writer) (err error) {
 	defer func() {
 		if r := recover(); r != nil {
-			err = &internalError{fmt.Sprintf("internal error: %v; please report this with the command line", r), debug.Stack()}
+			err = &internalError{fmt.Sprintf("internal error: %v; please report this with the command line", r)}
 		}
 		if err != nil {
 			fmt.Fprintln(stderr, "phasecast: "+oneLine(err.Error()))
@@ -107,10 +106,7 @@ func usageErrorf(format string, a ...any) error {
 }
 
 // internalError is a recovered panic. Exit status 3.
-type internalError struct {
-	msg   string
-	stack []byte
-}
+type internalError struct{ msg string }
 
 func (e *internalError) Error() string { return e.msg }
 
