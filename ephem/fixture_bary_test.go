@@ -17,29 +17,29 @@ import (
 // ephemeris). It also holds the fixture helpers shared with
 // fixture_sky_test.go.
 
-// fixtureHeader is the provenance block every astropy fixture starts with.
-type fixtureHeader struct {
+// fxHeader is the provenance block every astropy fixture starts with.
+type fxHeader struct {
 	Generator string            `json:"generator"`
 	Generated string            `json:"generated"`
 	Seed      int64             `json:"seed"`
 	Libraries map[string]string `json:"libraries"`
 }
 
-// jdPair is a two-part Julian date as the fixtures store it: [day, frac].
-type jdPair [2]float64
+// fxJD is a two-part Julian date as the fixtures store it: [day, frac].
+type fxJD [2]float64
 
-func (p jdPair) jd2() ephem.JD2 { return ephem.JD2{Day: p[0], Frac: p[1]} }
+func (p fxJD) jd2() ephem.JD2 { return ephem.JD2{Day: p[0], Frac: p[1]} }
 
-// secondsBetween returns a − b in seconds, keeping both parts' precision.
-func secondsBetween(a, b ephem.JD2) float64 { return a.SubDays(b) * 86400 }
+// fxSeconds returns a − b in seconds, keeping both parts' precision.
+func fxSeconds(a, b ephem.JD2) float64 { return a.SubDays(b) * 86400 }
 
-// utcBefore1960 is the start of the TAI−UTC table (1960-01-01T00:00:00 UTC):
+// fxUTC1960 is the start of the TAI−UTC table (1960-01-01T00:00:00 UTC):
 // before it the fixtures give TT as UT + ΔT from an independent ΔT model.
-var utcBefore1960 = time.Date(1960, 1, 1, 0, 0, 0, 0, time.UTC)
+var fxUTC1960 = time.Date(1960, 1, 1, 0, 0, 0, 0, time.UTC)
 
-// loadFixture reads a JSON fixture and checks that it records its generator
+// fxLoad reads a JSON fixture and checks that it records its generator
 // and the reference library's version.
-func loadFixture(tb testing.TB, path string, v any) fixtureHeader {
+func fxLoad(tb testing.TB, path string, v any) fxHeader {
 	tb.Helper()
 	raw, err := os.ReadFile(path)
 	if err != nil {
@@ -49,7 +49,7 @@ func loadFixture(tb testing.TB, path string, v any) fixtureHeader {
 		tb.Fatalf("decode %s: %v", path, err)
 	}
 	var h struct {
-		Header fixtureHeader `json:"header"`
+		Header fxHeader `json:"header"`
 	}
 	if err := json.Unmarshal(raw, &h); err != nil {
 		tb.Fatalf("decode %s header: %v", path, err)
@@ -63,8 +63,8 @@ func loadFixture(tb testing.TB, path string, v any) fixtureHeader {
 	return h.Header
 }
 
-// parseFixtureTime parses an RFC 3339 instant from a fixture.
-func parseFixtureTime(tb testing.TB, s string) time.Time {
+// fxTime parses an RFC 3339 instant from a fixture.
+func fxTime(tb testing.TB, s string) time.Time {
 	tb.Helper()
 	t, err := time.Parse(time.RFC3339Nano, s)
 	if err != nil {
@@ -73,10 +73,10 @@ func parseFixtureTime(tb testing.TB, s string) time.Time {
 	return t
 }
 
-// tolerance is one row of a tolerance table: the quantity compared, its unit,
+// fxTolerance is one row of a fxTolerance table: the quantity compared, its unit,
 // the limit beyond which the test fails, and the accuracy goal that is only
 // reported.
-type tolerance struct {
+type fxTolerance struct {
 	quantity string
 	unit     string
 	limit    float64
@@ -84,9 +84,9 @@ type tolerance struct {
 	why      string
 }
 
-// worstError tracks the largest |error| seen for one tolerance row.
-type worstError struct {
-	tol   tolerance
+// fxWorst tracks the largest |error| seen for one fxTolerance row.
+type fxWorst struct {
+	tol   fxTolerance
 	n     int
 	max   float64
 	where string
@@ -94,7 +94,7 @@ type worstError struct {
 
 // check records err (got − want, in the row's unit) for the named case and
 // fails the test when |err| exceeds the limit or is not a number.
-func (w *worstError) check(t *testing.T, where string, got, want, err float64) {
+func (w *fxWorst) check(t *testing.T, where string, got, want, err float64) {
 	t.Helper()
 	w.n++
 	a := math.Abs(err)
@@ -107,17 +107,17 @@ func (w *worstError) check(t *testing.T, where string, got, want, err float64) {
 	}
 }
 
-// newWorst returns one tracker per tolerance row, in order.
-func newWorst(tols []tolerance) []*worstError {
-	out := make([]*worstError, len(tols))
+// fxNewWorst returns one tracker per fxTolerance row, in order.
+func fxNewWorst(tols []fxTolerance) []*fxWorst {
+	out := make([]*fxWorst, len(tols))
 	for i, tol := range tols {
-		out[i] = &worstError{tol: tol}
+		out[i] = &fxWorst{tol: tol}
 	}
 	return out
 }
 
-// logWorst prints the worst error per quantity against its limit and goal.
-func logWorst(t *testing.T, ws []*worstError) {
+// fxLogWorst prints the worst error per quantity against its limit and goal.
+func fxLogWorst(t *testing.T, ws []*fxWorst) {
 	t.Helper()
 	for _, w := range ws {
 		if w.n == 0 {
@@ -137,11 +137,11 @@ func logWorst(t *testing.T, ws []*worstError) {
 	}
 }
 
-type baryFixture struct {
-	Cases []baryCase `json:"cases"`
+type fxBaryFile struct {
+	Cases []fxBaryCase `json:"cases"`
 }
 
-type baryCase struct {
+type fxBaryCase struct {
 	Name        string   `json:"name"`
 	LatDeg      float64  `json:"lat_deg"`
 	LonEastDeg  float64  `json:"lon_east_deg"`
@@ -152,38 +152,38 @@ type baryCase struct {
 	PMDec       float64  `json:"pmdec_masyr"`
 	UTC         string   `json:"utc"`
 	DeltaTS     *float64 `json:"delta_t_s"`
-	JDUTC       jdPair   `json:"jd_utc"`
-	JDTT        jdPair   `json:"jd_tt"`
-	JDTDB       jdPair   `json:"jd_tdb"`
-	BJDTDB      jdPair   `json:"bjd_tdb"`
-	HJDUTC      jdPair   `json:"hjd_utc"`
+	JDUTC       fxJD     `json:"jd_utc"`
+	JDTT        fxJD     `json:"jd_tt"`
+	JDTDB       fxJD     `json:"jd_tdb"`
+	BJDTDB      fxJD     `json:"bjd_tdb"`
+	HJDUTC      fxJD     `json:"hjd_utc"`
 	BaryDelayS  float64  `json:"bary_delay_s"`
 	HelioDelayS float64  `json:"helio_delay_s"`
 }
 
-// Rows of the barycentric tolerance table, by index.
+// Rows of the barycentric fxTolerance table, by index.
 const (
-	bUTC = iota
-	bTT
-	bTTPre1960
-	bTDBMinusTT
-	bTDB
-	bBJD
-	bBaryDelay
-	bHJD
+	fxbUTC = iota
+	fxbTT
+	fxbTTPre1960
+	fxbTDBMinusTT
+	fxbTDB
+	fxbBJD
+	fxbBaryDelay
+	fxbHJD
 )
 
-// baryTolerances: limits from the orbital-phase issue ("Checks"); goals where
+// fxBaryTolerances: limits from the orbital-phase issue ("Checks"); goals where
 // it names one.
-var baryTolerances = []tolerance{
-	bUTC:        {"JD_UTC", "s", 1e-6, 0, "pure calendar arithmetic"},
-	bTT:         {"TT (1960 on)", "ms", 1, 0, "same published TAI−UTC table"},
-	bTTPre1960:  {"TT − UT = ΔT (before 1960)", "s", 0.5, 0, "Meeus table 10.A vs Espenak & Meeus (2006): two smoothings of the same record"},
-	bTDBMinusTT: {"TDB − TT", "ms", 0.1, 0, "abbreviated series vs ERFA dtdb"},
-	bTDB:        {"TDB (1960 on)", "ms", 0.1, 0, ""},
-	bBJD:        {"BJD_TDB (1960 on)", "s", 1, 0.1, ""},
-	bBaryDelay:  {"BJD_TDB − JD_TDB (all)", "s", 1, 0.1, "convention-free before 1960"},
-	bHJD:        {"HJD_UTC", "s", 1, 0, ""},
+var fxBaryTolerances = []fxTolerance{
+	fxbUTC:        {"JD_UTC", "s", 1e-6, 0, "pure calendar arithmetic"},
+	fxbTT:         {"TT (1960 on)", "ms", 1, 0, "same published TAI−UTC table"},
+	fxbTTPre1960:  {"TT − UT = ΔT (before 1960)", "s", 0.5, 0, "Meeus table 10.A vs Espenak & Meeus (2006): two smoothings of the same record"},
+	fxbTDBMinusTT: {"TDB − TT", "ms", 0.1, 0, "abbreviated series vs ERFA dtdb"},
+	fxbTDB:        {"TDB (1960 on)", "ms", 0.1, 0, ""},
+	fxbBJD:        {"BJD_TDB (1960 on)", "s", 1, 0.1, ""},
+	fxbBaryDelay:  {"BJD_TDB − JD_TDB (all)", "s", 1, 0.1, "convention-free before 1960"},
+	fxbHJD:        {"HJD_UTC", "s", 1, 0, ""},
 }
 
 // TestFixtureBaryAstropy compares JDUTC, JDTT, JDTDB, BJDTDB and HJDUTC with
@@ -193,15 +193,15 @@ var baryTolerances = []tolerance{
 // barycentric check uses the delay BJD_TDB − JD_TDB, which does not depend on
 // the ΔT convention.
 func TestFixtureBaryAstropy(t *testing.T) {
-	var fx baryFixture
-	loadFixture(t, "../testdata/bary_astropy.json", &fx)
+	var fx fxBaryFile
+	fxLoad(t, "../testdata/bary_astropy.json", &fx)
 	if len(fx.Cases) < 200 {
 		t.Fatalf("fixture has %d cases, want at least 200", len(fx.Cases))
 	}
-	worst := newWorst(baryTolerances)
+	worst := fxNewWorst(fxBaryTolerances)
 	for _, c := range fx.Cases {
 		t.Run(c.Name, func(t *testing.T) {
-			at := parseFixtureTime(t, c.UTC)
+			at := fxTime(t, c.UTC)
 			site := ephem.Site{LatDeg: c.LatDeg, LonEastDeg: c.LonEastDeg, ElevM: c.ElevM}
 			st := ephem.Star{RADeg: c.RADeg, DecDeg: c.DecDeg, PMRAmasyr: c.PMRA, PMDecmasyr: c.PMDec}
 
@@ -211,33 +211,33 @@ func TestFixtureBaryAstropy(t *testing.T) {
 			bjd := ephem.BJDTDB(site, st, at)
 			hjd := ephem.HJDUTC(site, st, at)
 
-			e := secondsBetween(utc, c.JDUTC.jd2())
-			worst[bUTC].check(t, c.Name, utc.Float(), c.JDUTC.jd2().Float(), e)
+			e := fxSeconds(utc, c.JDUTC.jd2())
+			worst[fxbUTC].check(t, c.Name, utc.Float(), c.JDUTC.jd2().Float(), e)
 
-			gotTDBTT := secondsBetween(tdb, tt)
-			wantTDBTT := secondsBetween(c.JDTDB.jd2(), c.JDTT.jd2())
-			worst[bTDBMinusTT].check(t, c.Name, gotTDBTT*1e3, wantTDBTT*1e3, (gotTDBTT-wantTDBTT)*1e3)
+			gotTDBTT := fxSeconds(tdb, tt)
+			wantTDBTT := fxSeconds(c.JDTDB.jd2(), c.JDTT.jd2())
+			worst[fxbTDBMinusTT].check(t, c.Name, gotTDBTT*1e3, wantTDBTT*1e3, (gotTDBTT-wantTDBTT)*1e3)
 
-			gotDelay := secondsBetween(bjd, tdb)
-			wantDelay := secondsBetween(c.BJDTDB.jd2(), c.JDTDB.jd2())
-			worst[bBaryDelay].check(t, c.Name, gotDelay, wantDelay, gotDelay-wantDelay)
+			gotDelay := fxSeconds(bjd, tdb)
+			wantDelay := fxSeconds(c.BJDTDB.jd2(), c.JDTDB.jd2())
+			worst[fxbBaryDelay].check(t, c.Name, gotDelay, wantDelay, gotDelay-wantDelay)
 
-			e = secondsBetween(hjd, c.HJDUTC.jd2())
-			worst[bHJD].check(t, c.Name, hjd.Float(), c.HJDUTC.jd2().Float(), e)
+			e = fxSeconds(hjd, c.HJDUTC.jd2())
+			worst[fxbHJD].check(t, c.Name, hjd.Float(), c.HJDUTC.jd2().Float(), e)
 
-			if at.Before(utcBefore1960) {
-				got := secondsBetween(tt, utc)
-				want := secondsBetween(c.JDTT.jd2(), c.JDUTC.jd2())
-				worst[bTTPre1960].check(t, c.Name, got, want, got-want)
+			if at.Before(fxUTC1960) {
+				got := fxSeconds(tt, utc)
+				want := fxSeconds(c.JDTT.jd2(), c.JDUTC.jd2())
+				worst[fxbTTPre1960].check(t, c.Name, got, want, got-want)
 				return
 			}
-			e = secondsBetween(tt, c.JDTT.jd2())
-			worst[bTT].check(t, c.Name, tt.Float(), c.JDTT.jd2().Float(), e*1e3)
-			e = secondsBetween(tdb, c.JDTDB.jd2())
-			worst[bTDB].check(t, c.Name, tdb.Float(), c.JDTDB.jd2().Float(), e*1e3)
-			e = secondsBetween(bjd, c.BJDTDB.jd2())
-			worst[bBJD].check(t, c.Name, bjd.Float(), c.BJDTDB.jd2().Float(), e)
+			e = fxSeconds(tt, c.JDTT.jd2())
+			worst[fxbTT].check(t, c.Name, tt.Float(), c.JDTT.jd2().Float(), e*1e3)
+			e = fxSeconds(tdb, c.JDTDB.jd2())
+			worst[fxbTDB].check(t, c.Name, tdb.Float(), c.JDTDB.jd2().Float(), e*1e3)
+			e = fxSeconds(bjd, c.BJDTDB.jd2())
+			worst[fxbBJD].check(t, c.Name, bjd.Float(), c.BJDTDB.jd2().Float(), e)
 		})
 	}
-	logWorst(t, worst)
+	fxLogWorst(t, worst)
 }

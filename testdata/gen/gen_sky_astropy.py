@@ -54,17 +54,22 @@ MOON_RADIUS_KM = 0.272481 * 6378.14
 # Standard horizontal refraction, 34' (Meeus ch. 15, common practice).
 HORIZON_REFRACTION_DEG = 34.0 / 60.0
 
+# Sunrise/sunset: the Sun's centre at -0 deg 50' (upper limb on the horizon
+# with 34' of refraction; Meeus ch. 15, h0 = -0.8333 deg).
+SUNRISE_ALT_DEG = -50.0 / 60.0
+
 SUN_EVENTS = [  # name, Sun-centre altitude (deg, airless), direction
-    ("sunset", -0.833, -1),
+    ("sunset", SUNRISE_ALT_DEG, -1),
     ("civil_dusk", -6.0, -1),
     ("nautical_dusk", -12.0, -1),
     ("astronomical_dusk", -18.0, -1),
     ("astronomical_dawn", -18.0, +1),
     ("nautical_dawn", -12.0, +1),
     ("civil_dawn", -6.0, +1),
-    ("sunrise", -0.833, +1),
+    ("sunrise", SUNRISE_ALT_DEG, +1),
 ]
 MOON_EVENTS = [("moonrise", +1), ("moonset", -1)]
+GEOCENTRE = EarthLocation.from_geocentric(0.0, 0.0, 0.0, unit=u.m)
 
 
 unix_jd_pair = S.unix_jd_pair
@@ -95,8 +100,10 @@ def moon_illuminated(t):
     i = atan2(R sin psi, Delta - R cos psi) with R the Earth-Sun and Delta the
     Earth-Moon distance (48.3), k = (1 + cos i) / 2 (48.1).
     """
-    sun = get_body("sun", t)
-    moon = get_body("moon", t)
+    # get_body falls back on t.location when no location is given: name the
+    # geocentre explicitly (a topocentric phase angle differs by up to 0.01).
+    sun = get_body("sun", t, GEOCENTRE)
+    moon = get_body("moon", t, GEOCENTRE)
     psi = sun.separation(moon).rad
     R = sun.distance.to_value(u.km)
     D = moon.distance.to_value(u.km)
@@ -273,7 +280,29 @@ def find_events(curves, length_s, step_s=120.0, iterations=36):
         out[br[0]].append((float(roots[k]), float(br[4])))
     for name in out:
         out[name].sort()
-    return out, float(sun.min()), float(sun.max())
+    return out, float(sun.min()), float(sun.max()), float(grid[int(np.argmin(sun))])
+
+
+DUSK_NAMES = {"sunset", "civil_dusk", "nautical_dusk", "astronomical_dusk"}
+DAWN_NAMES = {"astronomical_dawn", "nautical_dawn", "civil_dawn", "sunrise"}
+
+
+def choose(name, crossings, t_low):
+    """The crossing that is the night's event, or None.
+
+    Sun: a dusk event is the LAST setting crossing before the Sun's lowest
+    point in the window (on the 2-minute grid), a dawn event the FIRST rising
+    crossing after it; so a brief afternoon sunrise in polar winter (a zone's
+    noon before the Sun's) is not taken for a dawn. Moon: the first rise and
+    the first set in the window.
+    """
+    if name in DUSK_NAMES:
+        before = [c for c in crossings if c[0] <= t_low]
+        return before[-1] if before else None
+    if name in DAWN_NAMES:
+        after = [c for c in crossings if c[0] >= t_low]
+        return after[0] if after else None
+    return crossings[0] if crossings else None
 
 
 def nights(rng):
@@ -284,13 +313,14 @@ def nights(rng):
         end = local_noon_utc64(d + datetime.timedelta(days=1), zone)
         length = float((end - start).astype(np.int64)) / 1e6
         curves = NightCurves(site, start)
-        crossings, smin, smax = find_events(curves, length)
+        crossings, smin, smax, t_low = find_events(curves, length)
         events, counts, rates, all_cross = {}, {}, {}, {}
         for name in [e[0] for e in SUN_EVENTS] + [e[0] for e in MOON_EVENTS]:
             lst = crossings[name]
             counts[name] = len(lst)
-            if lst:
-                sec, rate = lst[0]
+            pick = choose(name, lst, t_low)
+            if pick is not None:
+                sec, rate = pick
                 t64 = start + np.timedelta64(int(round(sec * 1e6)), "us")
                 events[name] = rfc(t64)
                 rates[name] = round(rate, 6)
@@ -317,6 +347,7 @@ def nights(rng):
             "rate_deg_per_min": rates,
             "sun_alt_min_deg": round(smin, 4),
             "sun_alt_max_deg": round(smax, 4),
+            "sun_low": rfc(start + np.timedelta64(int(round(t_low * 1e6)), "us")),
         })
         print(f"night {i + 1}/{N_NIGHTS} {result[-1]['name']}", file=sys.stderr)
     return result
@@ -354,14 +385,17 @@ def main():
         },
         "nights_fields": {
             "window": "local clock noon of date to local clock noon of date+1 in zone (Python zoneinfo), UTC",
-            "sun events": "Sun centre, airless, topocentric, at -0.833 (sunset/sunrise), -6, -12, -18 deg",
+            "sun events": "Sun centre, airless, topocentric, at -50' = -0.8333 (sunset/sunrise), -6, -12, -18 deg",
             "moon events": "upper limb at the refracted horizon: topocentric airless centre altitude = "
                    "-(s + 34'), s = asin(k a / d), k a = 0.272481 x 6378.14 km (Meeus ch. 55, from memory), "
                    "d topocentric distance",
             "method": "2-minute grid of astropy altitudes, then 36 bisection steps per sign change",
-            "choice": "each event is the FIRST crossing in its direction in the window (descending for "
-                   "sunset/dusk/moonset, ascending for dawn/sunrise/moonrise); null if none. "
-                   "crossings counts them, all_crossings lists them where there is more than one",
+            "choice": "Sun: a dusk event (sunset, civil/nautical/astronomical dusk) is the LAST setting "
+                   "crossing of its level before the Sun's lowest point in the window (2-minute grid), a dawn "
+                   "event the FIRST rising crossing after it, null if none (so a brief afternoon sunrise in "
+                   "polar winter, when the zone's noon comes before the Sun's, is not a dawn). Moon: first rise and first set "
+                   "in the window. crossings counts all crossings in the event's direction, all_crossings lists "
+                   "them where there is more than one; sun_low is the Sun's lowest grid point",
             "rate_deg_per_min": "altitude rate at the crossing from the grid (diagnostic: small = grazing)",
             "moon_illuminated": "at local_midnight (00:00 local of date+1), as for cases",
         },
