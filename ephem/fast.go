@@ -54,7 +54,9 @@ type SkyFrame struct {
 
 // NewSkyFrame prepares the fast path for the site over [from, to]. Results
 // are within 0.1″ of the full computation inside the span; outside it the
-// nearest segment is extrapolated and the error grows (about 0.3″ a day).
+// nearest segment is extrapolated and the error grows roughly with the
+// square of the distance from the span (0.015″ a day past its end in the
+// test suite).
 // When to is not after from, a one-hour span from `from` is used. The site
 // must be valid (Site.Validate).
 func NewSkyFrame(site Site, from, to time.Time) *SkyFrame {

@@ -1,6 +1,7 @@
 package ephem_test
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -97,6 +98,122 @@ func TestTrackMatchesFull(t *testing.T) {
 	if worstQ > tolArcsec {
 		t.Errorf("parallactic angle: worst %.4f″ > %.1f″", worstQ, tolArcsec)
 	}
+}
+
+// maxFastError returns the largest angle, arcseconds, between the fast and
+// the full computation for the stars at the instants from, from+step, … ≤ to.
+func maxFastError(tb testing.TB, frame *ephem.SkyFrame, stars []ephem.Star, from, to time.Time, step time.Duration) float64 {
+	tb.Helper()
+	site := frame.Site()
+	worst := 0.0
+	for _, st := range stars {
+		tr := frame.Track(st)
+		for tm := from; !tm.After(to); tm = tm.Add(step) {
+			alt, az := tr.AltAz(tm)
+			ra, dec := ephem.ApparentPlace(st, tm)
+			full := site.Horizontal(ra, dec, tm)
+			worst = math.Max(worst, skySepArcsec(alt, az, full.AltDeg, full.AzDeg))
+		}
+	}
+	return worst
+}
+
+// TestSkyFrameSpans checks the fast path's accuracy for spans other than a
+// night: a long span cut into segments, an empty span, and (logged only,
+// as documented to degrade) instants outside the span.
+func TestSkyFrameSpans(t *testing.T) {
+	stars := randomStars(t, 15, 99)
+	site := fastSites[2].site
+	from := time.Date(2031, time.November, 2, 18, 0, 0, 0, time.UTC)
+	t.Run("FiveDays", func(t *testing.T) {
+		to := from.Add(5 * 24 * time.Hour)
+		w := maxFastError(t, ephem.NewSkyFrame(site, from, to), stars, from, to, 37*time.Minute)
+		t.Logf("5-day span (4 segments): worst %.4f″", w)
+		if w > 0.1 {
+			t.Errorf("worst %.4f″ > 0.1″", w)
+		}
+	})
+	t.Run("EmptySpan", func(t *testing.T) {
+		frame := ephem.NewSkyFrame(site, from, from)
+		if f, to := frame.Span(); !f.Equal(from) || !to.Equal(from.Add(time.Hour)) {
+			t.Errorf("span %v – %v, want one hour from %v", f, to, from)
+		}
+		w := maxFastError(t, frame, stars, from, from.Add(time.Hour), 5*time.Minute)
+		if w > 0.1 {
+			t.Errorf("worst %.4f″ > 0.1″", w)
+		}
+	})
+	t.Run("Outside", func(t *testing.T) {
+		to := from.Add(12 * time.Hour)
+		frame := ephem.NewSkyFrame(site, from, to)
+		before := maxFastError(t, frame, stars, from.Add(-6*time.Hour), from.Add(-6*time.Hour), time.Hour)
+		after := maxFastError(t, frame, stars, to.Add(24*time.Hour), to.Add(24*time.Hour), time.Hour)
+		t.Logf("extrapolated 6 h before the span: %.4f″; 24 h after: %.4f″", before, after)
+		if after > 0.1 {
+			t.Errorf("24 h after the span the error is %.3f″, more than 0.1″", after)
+		}
+	})
+}
+
+// TestTrackGrid checks that AltAzGrid gives AltAzUnix's results, and the
+// grid's input errors.
+func TestTrackGrid(t *testing.T) {
+	from := time.Date(2027, time.March, 14, 12, 0, 0, 0, time.UTC)
+	frame := ephem.NewSkyFrame(fastSites[3].site, from, from.Add(30*time.Hour))
+	g, err := frame.Grid(from.Add(-30*time.Minute), 90*time.Second, 1300)
+	if err != nil {
+		t.Fatal(err)
+	}
+	alt := make([]float64, g.Len())
+	az := make([]float64, g.Len())
+	altOnly := make([]float64, g.Len())
+	for _, st := range randomStars(t, 10, 3) {
+		tr := frame.Track(st)
+		tr.AltAzGrid(g, alt, az)
+		tr.AltAzGrid(g, altOnly, nil)
+		for i := range alt {
+			u := float64(g.Time(i).UnixNano()) / 1e9
+			wantAlt, wantAz := tr.AltAzUnix(u)
+			if math.Abs(alt[i]-wantAlt) > 1e-9 || math.Abs(math.Remainder(az[i]-wantAz, 360)) > 1e-9 || altOnly[i] != alt[i] {
+				t.Fatalf("instant %d: grid (%v, %v, %v), AltAzUnix (%v, %v)", i, alt[i], az[i], altOnly[i], wantAlt, wantAz)
+			}
+			if a := tr.AltUnix(u); a != wantAlt {
+				t.Fatalf("instant %d: AltUnix %v, AltAzUnix %v", i, a, wantAlt)
+			}
+		}
+	}
+	t.Run("ErrStep", func(t *testing.T) {
+		if _, err := frame.Grid(from, 0, 10); !isInputError(err, "step") {
+			t.Errorf("err = %v, want an *InputError for step", err)
+		}
+	})
+	t.Run("ErrCount", func(t *testing.T) {
+		if _, err := frame.Grid(from, time.Minute, 0); !isInputError(err, "n") {
+			t.Errorf("err = %v, want an *InputError for n", err)
+		}
+	})
+	t.Run("OtherFrame", func(t *testing.T) {
+		other := ephem.NewSkyFrame(fastSites[0].site, from, from.Add(time.Hour))
+		other.Track(ephem.Star{RADeg: 1, DecDeg: 2}).AltAzGrid(g, alt, az)
+		if alt[0] != -90 || az[0] != 0 {
+			t.Errorf("track from another frame gave (%v, %v), want (−90, 0)", alt[0], az[0])
+		}
+	})
+}
+
+// TestTrackZero checks the documented zero Track.
+func TestTrackZero(t *testing.T) {
+	var tr ephem.Track
+	tm := time.Date(2027, time.March, 14, 12, 0, 0, 0, time.UTC)
+	alt, az := tr.AltAz(tm)
+	if alt != -90 || az != 0 || tr.HourAngleHours(tm) != 0 || tr.ParallacticDeg(tm) != 0 {
+		t.Errorf("zero Track: (%v, %v, %v, %v), want (−90, 0, 0, 0)", alt, az, tr.HourAngleHours(tm), tr.ParallacticDeg(tm))
+	}
+}
+
+func isInputError(err error, field string) bool {
+	var ie *ephem.InputError
+	return errors.As(err, &ie) && ie.Field == field
 }
 
 // BenchmarkTrackAltAz measures one fast-path sample (AltAzUnix).
