@@ -904,37 +904,42 @@ func (s *Store) AddEphemeris(ctx context.Context, a Actor, targetID, version int
 		return StoredTarget{}, wrap(op, err)
 	}
 	defer t.tx.Rollback()
-	before, err := authorizedTarget(t, ActCreate, EntEphemeris, targetID)
+	st, err := addEphemeris(t, targetID, version, in)
 	if err != nil {
 		return StoredTarget{}, wrap(op, err)
 	}
+	return st, commit(t, op)
+}
+
+func addEphemeris(t *txn, targetID, version int64, in EphemerisInput) (StoredTarget, error) {
+	before, err := authorizedTarget(t, ActCreate, EntEphemeris, targetID)
+	if err != nil {
+		return StoredTarget{}, err
+	}
 	if before.Version != version {
-		return StoredTarget{}, wrap(op, errStale("target", targetID, version, before.Version, before))
+		return StoredTarget{}, errStale("target", targetID, version, before.Version, before)
 	}
 	in, v := validateEphemerisInput(in, before.Target.Star())
 	if err := v.err(); err != nil {
-		return StoredTarget{}, wrap(op, err)
+		return StoredTarget{}, err
 	}
 	if in.Fit != nil {
 		if err := timingsBelong(t, targetID, in.Fit.TimingIDs); err != nil {
-			return StoredTarget{}, wrap(op, err)
+			return StoredTarget{}, err
 		}
 	}
 	eid, err := insertEphemeris(t, targetID, in)
 	if err != nil {
-		return StoredTarget{}, wrap(op, err)
+		return StoredTarget{}, err
 	}
 	if _, err := t.exec("UPDATE targets SET updated_at = ?, version = version + 1 WHERE id = ?", fmtTime(t.now), targetID); err != nil {
-		return StoredTarget{}, wrap(op, err)
+		return StoredTarget{}, err
 	}
 	after, err := getTarget(t, targetID)
 	if err != nil {
-		return StoredTarget{}, wrap(op, err)
+		return StoredTarget{}, err
 	}
-	if err := t.audit(before.TeamID, EntEphemeris, eid, ActCreate, before.Ephemeris, after.Ephemeris); err != nil {
-		return StoredTarget{}, wrap(op, err)
-	}
-	return after, commit(t, op)
+	return after, t.audit(before.TeamID, EntEphemeris, eid, ActCreate, before.Ephemeris, after.Ephemeris)
 }
 
 // timingsBelong checks that every id is a timing of the target.
