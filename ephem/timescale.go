@@ -52,7 +52,7 @@ type taiUTCStep struct {
 
 // taiUTC is the published TAI−UTC history (the U.S. Naval Observatory's
 // tai-utc.dat; the same numbers as ERFA's eraDat). Entered from memory and
-// checked against astropy/ERFA by the fixture in testdata/timescales.json.
+// checked against astropy/ERFA (TT and TDB) by the fixture in testdata/bary_astropy.json.
 var taiUTC = []taiUTCStep{
 	{36934, 1.4178180, 37300, 0.001296}, // 1960-01-01
 	{37300, 1.4228180, 37300, 0.001296}, // 1961-01-01
