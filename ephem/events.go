@@ -75,10 +75,11 @@ func (s Site) MoonCrossings(from, to time.Time) []Crossing {
 // and set, degrees: airless topocentric altitude of the centre, plus the
 // topocentric semidiameter, plus the horizon refraction.
 func (s Site) moonUpperLimbDeg(t time.Time) float64 {
+	lst := s.lastRad(t)
 	geo := s.moonGeocentricBody(t)
-	topo := s.topocentric(geo.raAngle(), geo.decAngle(), geo.distKm, t)
-	alt := s.Horizontal(topo.ra*radToDeg, topo.dec*radToDeg, t).AltDeg
-	return alt + s.moonSemidiameter(t, geo) + HorizonRefractionDeg
+	topo := s.topocentric(geo.raAngle(), geo.decAngle(), geo.distKm, t, lst)
+	alt := s.horizontalAt(topo.ra*radToDeg, topo.dec*radToDeg, lst).AltDeg
+	return alt + s.moonSemidiameter(geo, lst) + HorizonRefractionDeg
 }
 
 // NightEvents are the Sun and Moon events of one night at a site.

@@ -42,7 +42,11 @@ const diurnalAberrationRad = globe.RotationRate1996_5 * 6378.14 / speedOfLightKm
 // (+180°), and Meeus (14.1) via meeus parallactic.ParallacticAngle. Latitude
 // is geodetic. Polar motion is neglected (≤ 0.5″, from memory).
 func (s Site) Horizontal(raAppDeg, decAppDeg float64, t time.Time) Horizontal {
-	lst := s.lastRad(t)
+	return s.horizontalAt(raAppDeg, decAppDeg, s.lastRad(t))
+}
+
+// horizontalAt is Horizontal at local apparent sidereal time lst (radians).
+func (s Site) horizontalAt(raAppDeg, decAppDeg, lst float64) Horizontal {
 	ha := lst - raAppDeg*degToRad
 	dec := decAppDeg * degToRad
 	sh, ch := math.Sincos(ha)

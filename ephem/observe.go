@@ -1,6 +1,9 @@
 package ephem
 
-import "time"
+import (
+	"math"
+	"time"
+)
 
 // SkyPoint is everything the sky command shows for one target at one instant
 // from one site.
@@ -29,15 +32,18 @@ type SkyPoint struct {
 // MoonIlluminated. The site and the star must be valid (Site.Validate,
 // Star.Validate).
 func Observe(site Site, st Star, t time.Time) SkyPoint {
+	lstHours := site.LASTHours(t)
+	lst := lstHours * math.Pi / 12
 	ra, dec := ApparentPlace(st, t)
-	hz := site.Horizontal(ra, dec, t)
+	hz := site.horizontalAt(ra, dec, lst)
 	refr := site.RefractedAltDeg(hz.AltDeg)
 	x, ok := Airmass(refr)
-	moonRA, moonDec, _ := site.MoonTopocentric(t)
+	moon := site.moonTopocentric(t, lst)
+	moonRA, moonDec := moon.ra*radToDeg, moon.dec*radToDeg
 	return SkyPoint{
 		JDUTC:           JDUTC(t).Float(),
 		JDTT:            JDTT(t).Float(),
-		LSTHours:        site.LASTHours(t),
+		LSTHours:        lstHours,
 		HourAngleHours:  hz.HourAngleHours,
 		AltDeg:          hz.AltDeg,
 		AltRefractedDeg: refr,
@@ -45,8 +51,8 @@ func Observe(site Site, st Star, t time.Time) SkyPoint {
 		Airmass:         x,
 		AirmassOK:       ok,
 		ParallacticDeg:  hz.ParallacticDeg,
-		SunAltDeg:       site.SunAltDeg(t),
-		MoonAltDeg:      site.Horizontal(moonRA, moonDec, t).AltDeg,
+		SunAltDeg:       site.sunAltAt(t, lst),
+		MoonAltDeg:      site.horizontalAt(moonRA, moonDec, lst).AltDeg,
 		MoonIlluminated: MoonIlluminated(t),
 		MoonSepDeg:      SeparationDeg(ra, dec, moonRA, moonDec),
 	}

@@ -77,7 +77,8 @@ func (b topocentricBody) decAngle() unit.Angle { return unit.Angle(b.dec) }
 // the Moon is 0.16″ short of the exact sin π = a/Δ; it is therefore given the
 // distance for which its π equals arcsin(a/Δ). The distance from the site is
 // Δ·q, with q from Meeus (40.6), (40.7).
-func (s Site) topocentric(a unit.RA, d unit.Angle, distKm float64, t time.Time) topocentricBody {
+// lst is the local apparent sidereal time at t, radians (Site.lastRad).
+func (s Site) topocentric(a unit.RA, d unit.Angle, distKm float64, t time.Time, lst float64) topocentricBody {
 	rhoSin, rhoCos := s.geocentric()
 	g := s.globe()
 	jdUT := JDUTC(t).Float()
@@ -85,7 +86,7 @@ func (s Site) topocentric(a unit.RA, d unit.Angle, distKm float64, t time.Time) 
 	meeusDist := parallax.Horizontal(1).Rad() / math.Asin(sinPi) // AU, so that 8.794″/Δ = arcsin(a/Δ)
 	at, dt := parallax.Topocentric(a, d, meeusDist, rhoSin, rhoCos, g.Lon, jdUT)
 
-	ha := s.lastRad(t) - a.Rad()
+	ha := lst - a.Rad()
 	sh, ch := math.Sincos(ha)
 	sd, cd := d.Sincos()
 	A := cd * sh
@@ -100,13 +101,13 @@ func (s Site) topocentric(a unit.RA, d unit.Angle, distKm float64, t time.Time) 
 // corrected for parallax, Meeus ch. 40), and the distance from the site to
 // the Moon's centre, km.
 func (s Site) MoonTopocentric(t time.Time) (raDeg, decDeg, distKm float64) {
-	m := s.moonTopocentric(t)
+	m := s.moonTopocentric(t, s.lastRad(t))
 	return m.ra * radToDeg, m.dec * radToDeg, m.distKm
 }
 
-func (s Site) moonTopocentric(t time.Time) topocentricBody {
-	a, d, dist := moonGeocentric(JDTT(t).Float())
-	return s.topocentric(a, d, dist, t)
+func (s Site) moonTopocentric(t time.Time, lst float64) topocentricBody {
+	geo := s.moonGeocentricBody(t)
+	return s.topocentric(geo.raAngle(), geo.decAngle(), geo.distKm, t, lst)
 }
 
 // MoonSemidiameterDeg returns the Moon's semidiameter seen from the site at
@@ -114,7 +115,7 @@ func (s Site) moonTopocentric(t time.Time) topocentricBody {
 // ch. 40, via meeus semidiameter.MoonTopocentric (k = 0.272481 lunar radii per
 // Earth equatorial radius).
 func (s Site) MoonSemidiameterDeg(t time.Time) float64 {
-	return s.moonSemidiameter(t, s.moonGeocentricBody(t))
+	return s.moonSemidiameter(s.moonGeocentricBody(t), s.lastRad(t))
 }
 
 // moonGeocentricBody returns the Moon's geocentric apparent place at t.
@@ -124,10 +125,11 @@ func (s Site) moonGeocentricBody(t time.Time) topocentricBody {
 }
 
 // moonSemidiameter returns the topocentric semidiameter, degrees, of the
-// Moon whose geocentric place at t is geo.
-func (s Site) moonSemidiameter(t time.Time, geo topocentricBody) float64 {
+// Moon whose geocentric place is geo, at local apparent sidereal time lst
+// (radians).
+func (s Site) moonSemidiameter(geo topocentricBody, lst float64) float64 {
 	rhoSin, rhoCos := s.geocentric()
-	ha := unit.HourAngle(s.lastRad(t) - geo.ra)
+	ha := unit.HourAngle(lst - geo.ra)
 	sinSD := semidiameter.MoonTopocentric(geo.distKm/auKm, geo.decAngle(), ha, rhoSin, rhoCos)
 	return math.Asin(sinSD) * radToDeg
 }
@@ -148,16 +150,22 @@ func MoonIlluminated(t time.Time) float64 {
 // instant t (UTC), degrees, airless (no refraction), topocentric (parallax
 // ≤ 8.8″ applied).
 func (s Site) SunAltDeg(t time.Time) float64 {
+	return s.sunAltAt(t, s.lastRad(t))
+}
+
+// sunAltAt is SunAltDeg at local apparent sidereal time lst (radians).
+func (s Site) sunAltAt(t time.Time, lst float64) float64 {
 	a, d, r := SunApparent(t)
-	sun := s.topocentric(unit.RAFromDeg(a), unit.AngleFromDeg(d), r*auKm, t)
-	return s.Horizontal(sun.ra*radToDeg, sun.dec*radToDeg, t).AltDeg
+	sun := s.topocentric(unit.RAFromDeg(a), unit.AngleFromDeg(d), r*auKm, t, lst)
+	return s.horizontalAt(sun.ra*radToDeg, sun.dec*radToDeg, lst).AltDeg
 }
 
 // MoonAltDeg returns the altitude of the Moon's centre seen from the site at
 // instant t (UTC), degrees, airless, topocentric.
 func (s Site) MoonAltDeg(t time.Time) float64 {
-	m := s.moonTopocentric(t)
-	return s.Horizontal(m.ra*radToDeg, m.dec*radToDeg, t).AltDeg
+	lst := s.lastRad(t)
+	m := s.moonTopocentric(t, lst)
+	return s.horizontalAt(m.ra*radToDeg, m.dec*radToDeg, lst).AltDeg
 }
 
 // SeparationDeg returns the angular separation, degrees, 0..180, of two
