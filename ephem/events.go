@@ -24,8 +24,9 @@ const (
 	NauticalTwilightAltDeg     = -12.0
 	AstronomicalTwilightAltDeg = -18.0
 	// HorizonRefractionDeg is the refraction assumed at the horizon for rise
-	// and set, 34′ (Meeus ch. 15: h0 = −0.5667° for stars and planets).
-	HorizonRefractionDeg = 0.5667
+	// and set, 34′ (Meeus ch. 15: h0 = −0°34′ = −0.5667° for stars and
+	// planets).
+	HorizonRefractionDeg = 34.0 / 60
 )
 
 // DefaultCrossingStep is the grid step FindCrossings uses when given a step
@@ -71,12 +72,12 @@ func (s Site) MoonCrossings(from, to time.Time) []Crossing {
 	return FindCrossings(s.moonUpperLimbDeg, 0, from, to, DefaultCrossingStep)
 }
 
-// moonUpperLimbDeg is the apparent altitude of the Moon's upper limb for rise
-// and set, degrees: airless topocentric altitude of the centre, plus the
-// topocentric semidiameter, plus the horizon refraction.
+// moonUpperLimbDeg is the airless topocentric altitude of the Moon's upper
+// limb plus the horizon refraction, degrees: zero when the limb touches the
+// refracted horizon.
 func (s Site) moonUpperLimbDeg(t time.Time) float64 {
 	lst := s.lastRad(t)
-	geo := s.moonGeocentricBody(t)
+	geo := moonGeocentricPlace(t)
 	topo := s.topocentric(geo.raAngle(), geo.decAngle(), geo.distKm, t, lst)
 	alt := s.horizontalAt(topo.ra*radToDeg, topo.dec*radToDeg, lst).AltDeg
 	return alt + s.moonSemidiameter(geo, lst) + HorizonRefractionDeg

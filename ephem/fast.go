@@ -14,12 +14,12 @@ import (
 // (ApparentPlace, LASTHours) at the span's ends and interpolated linearly:
 //
 //   - each target's apparent place, as a unit vector: precession moves it
-//     at most 0.14″ an hour (50″ a year near the equator), aberration
-//     0.015″ an hour and nutation less; the departure from a straight line
-//     over 36 hours is below 0.02″ (the 13.7-day nutation terms, 0.2″ in
-//     amplitude, dominate: A·ω²·(T/2)²/2 ≈ 0.012″);
+//     by at most 0.006″ an hour (50″ a year), aberration by 0.015″ an hour,
+//     nutation by less; the departure from a straight line over 36 hours is
+//     below 0.02″ (the 13.7-day nutation terms, 0.2″ in amplitude,
+//     dominate: A·ω²·(T/2)²/2 ≈ 0.012″);
 //   - the local apparent sidereal time, linear in time apart from the
-//     equation of the equinoxes, which drifts by at most 0.15″ a day and
+//     equation of the equinoxes, which drifts by up to about 0.15″ a day and
 //     departs from its chord by less than 0.02″ in 36 hours.
 //
 // Spans longer than 36 hours are cut into equal segments of at most
@@ -56,9 +56,8 @@ type SkyFrame struct {
 // are within 0.1″ of the full computation inside the span; outside it the
 // nearest segment is extrapolated and the error grows roughly with the
 // square of the distance from the span (0.015″ a day past its end in the
-// test suite).
-// When to is not after from, a one-hour span from `from` is used. The site
-// must be valid (Site.Validate).
+// test suite). When to is not after from, a one-hour span from `from` is
+// used. The site must be valid (Site.Validate).
 func NewSkyFrame(site Site, from, to time.Time) *SkyFrame {
 	span := to.Sub(from)
 	if span <= 0 {

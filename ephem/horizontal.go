@@ -26,7 +26,7 @@ const speedOfLightKmS = 299792.458
 // rotation (ω = meeus globe.RotationRate1996_5, a = meeus globe.Earth76.Er)
 // over the speed of light. A site at geocentric distance ρ cos φ′ from the
 // axis sees it scaled by ρ cos φ′.
-const diurnalAberrationRad = globe.RotationRate1996_5 * 6378.14 / speedOfLightKmS
+var diurnalAberrationRad = globe.RotationRate1996_5 * globe.Earth76.Er / speedOfLightKmS
 
 // Horizontal returns the airless horizontal coordinates, hour angle and
 // parallactic angle at the site, at instant t (UTC), of a direction given by

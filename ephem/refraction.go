@@ -29,10 +29,11 @@ var bennettFloorDeg = math.Sqrt(7.31) - 4.4
 // Saemundsson's formula, Meeus (16.4), via meeus refraction.Saemundsson,
 // scaled by (P/1010)·(283/(273 + T)) (Meeus p. 107). Consistent with
 // Bennett's formula (16.3) to about 4″ (Meeus); the real atmosphere near the
-// horizon varies by far more. The formula gives −0.12″ within 0.11° of the
-// zenith, where it crosses zero; that is left as the book has it. Below −1.90° airless the value there is held (see
-// refractionFloorDeg). P = 0 gives 0 (no air). Accepted ranges are those of
-// Site.Validate: 0 ≤ P ≤ 1100, −90 ≤ T ≤ 60.
+// horizon varies by far more. Within 0.11° of the zenith the formula turns
+// slightly negative (−0.12″ at the zenith); that is left as the book has it.
+// Below −1.90° airless the value there is held (see refractionFloorDeg).
+// P = 0 gives 0 (no air). Accepted ranges are those of Site.Validate:
+// 0 ≤ P ≤ 1100, −90 ≤ T ≤ 60.
 func RefractionDeg(altAirlessDeg, pressureHPa, tempC float64) float64 {
 	h := math.Max(altAirlessDeg, refractionFloorDeg)
 	return refraction.Saemundsson(unit.AngleFromDeg(h)).Deg() * atmosphereScale(pressureHPa, tempC)

@@ -18,7 +18,7 @@ import (
 
 // The Sun and the Moon, to the accuracy the book's short series give: the
 // Sun to about 0.01° (Meeus ch. 25, "low accuracy"), the Moon to about 10″ in
-// longitude and 4″ in latitude (Meeus ch. 47). Enough for twilight, rise and
+// longitude and 4″ in latitude (Meeus ch. 47, from memory). Enough for twilight, rise and
 // set times to a few seconds and for Moon distances; not for eclipse or
 // occultation work.
 
@@ -59,15 +59,14 @@ func moonGeocentric(jde float64) (unit.RA, unit.Angle, float64) {
 	return a, d, dist
 }
 
-// topocentricBody is a body's apparent right ascension and declination,
-// radians, and distance in km (seen from the site, or from the Earth's
-// centre where named so).
-type topocentricBody struct {
+// bodyPlace is a body's apparent right ascension and declination, radians,
+// and distance in km, seen from the Earth's centre or from a site.
+type bodyPlace struct {
 	ra, dec, distKm float64
 }
 
-func (b topocentricBody) raAngle() unit.RA     { return unit.RA(b.ra) }
-func (b topocentricBody) decAngle() unit.Angle { return unit.Angle(b.dec) }
+func (b bodyPlace) raAngle() unit.RA     { return unit.RA(b.ra) }
+func (b bodyPlace) decAngle() unit.Angle { return unit.Angle(b.dec) }
 
 // topocentric moves a geocentric place (α, δ, distance in km) to the site at
 // instant t: Meeus (40.2), (40.3), via meeus parallax.Topocentric. meeus
@@ -76,9 +75,9 @@ func (b topocentricBody) decAngle() unit.Angle { return unit.Angle(b.dec) }
 // meeus takes the horizontal parallax as π = 8.794″/Δ (Δ in AU), which for
 // the Moon is 0.16″ short of the exact sin π = a/Δ; it is therefore given the
 // distance for which its π equals arcsin(a/Δ). The distance from the site is
-// Δ·q, with q from Meeus (40.6), (40.7).
-// lst is the local apparent sidereal time at t, radians (Site.lastRad).
-func (s Site) topocentric(a unit.RA, d unit.Angle, distKm float64, t time.Time, lst float64) topocentricBody {
+// Δ·q, with q from Meeus (40.6), (40.7). lst is the local apparent sidereal
+// time at t, radians (Site.lastRad).
+func (s Site) topocentric(a unit.RA, d unit.Angle, distKm float64, t time.Time, lst float64) bodyPlace {
 	rhoSin, rhoCos := s.geocentric()
 	g := s.globe()
 	jdUT := JDUTC(t).Float()
@@ -93,7 +92,7 @@ func (s Site) topocentric(a unit.RA, d unit.Angle, distKm float64, t time.Time, 
 	B := cd*ch - rhoCos*sinPi
 	C := sd - rhoSin*sinPi
 	q := math.Sqrt(A*A + B*B + C*C)
-	return topocentricBody{ra: at.Rad(), dec: dt.Rad(), distKm: distKm * q}
+	return bodyPlace{ra: at.Rad(), dec: dt.Rad(), distKm: distKm * q}
 }
 
 // MoonTopocentric returns the Moon's apparent right ascension and declination
@@ -105,8 +104,8 @@ func (s Site) MoonTopocentric(t time.Time) (raDeg, decDeg, distKm float64) {
 	return m.ra * radToDeg, m.dec * radToDeg, m.distKm
 }
 
-func (s Site) moonTopocentric(t time.Time, lst float64) topocentricBody {
-	geo := s.moonGeocentricBody(t)
+func (s Site) moonTopocentric(t time.Time, lst float64) bodyPlace {
+	geo := moonGeocentricPlace(t)
 	return s.topocentric(geo.raAngle(), geo.decAngle(), geo.distKm, t, lst)
 }
 
@@ -115,19 +114,19 @@ func (s Site) moonTopocentric(t time.Time, lst float64) topocentricBody {
 // ch. 40, via meeus semidiameter.MoonTopocentric (k = 0.272481 lunar radii per
 // Earth equatorial radius).
 func (s Site) MoonSemidiameterDeg(t time.Time) float64 {
-	return s.moonSemidiameter(s.moonGeocentricBody(t), s.lastRad(t))
+	return s.moonSemidiameter(moonGeocentricPlace(t), s.lastRad(t))
 }
 
-// moonGeocentricBody returns the Moon's geocentric apparent place at t.
-func (s Site) moonGeocentricBody(t time.Time) topocentricBody {
+// moonGeocentricPlace returns the Moon's geocentric apparent place at t.
+func moonGeocentricPlace(t time.Time) bodyPlace {
 	a, d, dist := moonGeocentric(JDTT(t).Float())
-	return topocentricBody{ra: a.Rad(), dec: d.Rad(), distKm: dist}
+	return bodyPlace{ra: a.Rad(), dec: d.Rad(), distKm: dist}
 }
 
 // moonSemidiameter returns the topocentric semidiameter, degrees, of the
 // Moon whose geocentric place is geo, at local apparent sidereal time lst
 // (radians).
-func (s Site) moonSemidiameter(geo topocentricBody, lst float64) float64 {
+func (s Site) moonSemidiameter(geo bodyPlace, lst float64) float64 {
 	rhoSin, rhoCos := s.geocentric()
 	ha := unit.HourAngle(lst - geo.ra)
 	sinSD := semidiameter.MoonTopocentric(geo.distKm/auKm, geo.decAngle(), ha, rhoSin, rhoCos)
