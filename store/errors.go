@@ -43,7 +43,7 @@ func (e *Error) Error() string {
 		b.WriteString(": ")
 		b.WriteString(e.Message)
 	}
-	if e.Err != nil {
+	if e.Err != nil && e.Err.Error() != e.Message {
 		b.WriteString(": ")
 		b.WriteString(e.Err.Error())
 	}

@@ -757,22 +757,13 @@ func addObservations(t *txn, in []ObservationInput) ([]Observation, error) {
 		ref, err := obsRef(t, x.TargetID, x.RunID, prefix)
 		if err != nil {
 			var e *Error
-			if errors.As(err, &e) && e.Code == ENOTFOUND {
-				v.add(prefix+"target_id", fmt.Sprint(x.TargetID), "a target of your team")
-				continue
-			}
 			if errors.As(err, &e) && e.Code == EINVALID {
 				v.add(prefix+"run_id", fmt.Sprint(x.RunID), strings.TrimPrefix(e.Message, prefix+"run_id: "))
 				continue
 			}
-			return nil, err
+			return nil, err // ENOTFOUND for a missing target, as for an invisible one below
 		}
 		if _, err := t.authorize(ActCreate, EntObservation, ref, "target", x.TargetID); err != nil {
-			var e *Error
-			if errors.As(err, &e) && e.Code == ENOTFOUND { // as for a missing target: reveal nothing
-				v.add(prefix+"target_id", fmt.Sprint(x.TargetID), "a target of your team")
-				continue
-			}
 			return nil, err
 		}
 		refs[i] = ref
