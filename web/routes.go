@@ -1,6 +1,10 @@
 package web
 
-import "net/http"
+import (
+	"net/http"
+
+	"phasecast/store"
+)
 
 // routes registers every route of the application. This is the only place
 // routes are declared. Every state-changing route is a POST (or, under
@@ -35,6 +39,25 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("POST /team/invitations/{id}/revoke", s.inTeam(s.teamInviteRevoke))
 	mux.HandleFunc("POST /team/members/{id}/role", s.inTeam(s.teamMemberRole))
 	mux.HandleFunc("POST /team/members/{id}/remove", s.inTeam(s.teamMemberRemove))
+
+	mux.HandleFunc("GET /tonight", s.inTeam(s.tonightShow))
+
+	// Targets and lists.
+	mux.HandleFunc("GET /targets", s.inTeam(s.targetsList))
+	mux.HandleFunc("GET /targets/new", s.inTeam(s.targetNew))
+	mux.HandleFunc("POST /targets", s.inTeam(s.targetCreate))
+	mux.HandleFunc("GET /targets/{id}", s.inTeam(s.targetShow))
+	mux.HandleFunc("GET /targets/{id}/edit", s.inTeam(s.targetEdit))
+	mux.HandleFunc("POST /targets/{id}", s.inTeam(s.targetUpdate))
+	mux.HandleFunc("POST /targets/{id}/delete", s.inTeam(s.targetDelete))
+	mux.HandleFunc("POST /lists", s.inTeam(s.listCreate))
+	mux.HandleFunc("GET /lists/{id}/import", s.inTeam(s.importForm))
+	mux.HandleFunc("POST /lists/{id}/import/preview", s.inTeam(s.importPreview))
+	mux.HandleFunc("POST /lists/{id}/import", s.inTeam(s.importCommit))
+	mux.HandleFunc("GET /lists/{id}/export.csv", s.inTeam(s.listExport(store.FormatCSV)))
+	mux.HandleFunc("GET /lists/{id}/export.json", s.inTeam(s.listExport(store.FormatJSON)))
+	mux.HandleFunc("POST /lists/{id}/share", s.inTeam(s.shareCreate))
+	mux.HandleFunc("POST /shares/{id}/revoke", s.inTeam(s.shareRevoke))
 
 	mux.HandleFunc("/", s.notFound)
 }

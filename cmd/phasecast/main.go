@@ -1,7 +1,8 @@
 // Command phasecast plans observations of short-period binaries: where a
 // target, the Sun and the Moon stand, the night's twilights, barycentric time
 // and orbital phase, the next orbital events, and ephemeris refinement from
-// timings. Run it without arguments for the list of commands.
+// timings, and serves the web interface. Without arguments it runs `serve`
+// (the web interface on 127.0.0.1:8080); `phasecast help` lists the commands.
 package main
 
 import (

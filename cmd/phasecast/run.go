@@ -25,6 +25,7 @@ type command struct {
 // A new command is one line here plus its own file.
 func commands() []command {
 	return []command{
+		{"serve", "the web interface (the default without a command): " + DefaultAddr + ", database ./" + DefaultDBPath, runServe},
 		{"sky", "where a target, the Sun and the Moon stand at an instant", runSky},
 		{"night", "sunset, twilights, sunrise, moonrise and moonset for one night", runNight},
 		{"bjd", "an instant in JD_UTC, JD_TT, JD_TDB, HJD_UTC and BJD_TDB for a target", runBJD},
@@ -53,7 +54,7 @@ func runWith(ctx context.Context, cmds []command, args []string, stdout, stderr 
 		}
 	}()
 	if len(args) == 0 {
-		return overview(stdout, cmds)
+		args = []string{"serve"} // no command: the web interface with its defaults
 	}
 	name := args[0]
 	switch name {
@@ -72,7 +73,8 @@ func runWith(ctx context.Context, cmds []command, args []string, stdout, stderr 
 func overview(w io.Writer, cmds []command) error {
 	var b strings.Builder
 	b.WriteString("phasecast: plan observations of short-period binaries by orbital phase\n\n")
-	b.WriteString("Usage: phasecast COMMAND [flags]    (phasecast COMMAND -h lists a command's flags)\n\nCommands:\n")
+	b.WriteString("Usage: phasecast COMMAND [flags]    (phasecast COMMAND -h lists a command's flags)\n")
+	b.WriteString("Without a command, phasecast runs serve: the web interface on " + DefaultAddr + ".\n\nCommands:\n")
 	tw := tabwriter.NewWriter(&b, 0, 0, 3, ' ', 0)
 	for _, c := range cmds {
 		fmt.Fprintf(tw, "  %s\t%s\n", c.name, c.summary)

@@ -84,7 +84,7 @@ func hasKeys(tb testing.TB, m map[string]any, keys ...string) {
 }
 
 func TestOverview(t *testing.T) {
-	for _, argv := range [][]string{nil, {"help"}, {"--help"}} {
+	for _, argv := range [][]string{{"help"}, {"--help"}} {
 		stdout, stderr, code := runCmd(t, argv...)
 		if code != 0 || stderr != "" {
 			t.Fatalf("phasecast %v: exit %d, stderr %q", argv, code, stderr)
