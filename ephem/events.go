@@ -113,8 +113,11 @@ type NightEvents struct {
 // the Sun's lowest point in the window and the morning events the first
 // rising crossings after it; so a brief afternoon sunrise in polar winter
 // (possible when the zone's noon comes before the Sun's) is not taken for a
-// dawn. When a level is not crossed on that side (polar day, white nights,
-// polar night) the event is nil. The site must be valid (Site.Validate).
+// dawn. Two setting (or two rising) crossings of one level on the same side
+// of the low point would need a second low point within the day, which the
+// Sun does not make; the rule matters only for such early crossings. When a
+// level is not crossed on its side (polar day, white nights, polar night)
+// the event is nil. The site must be valid (Site.Validate).
 func Night(site Site, year int, month time.Month, day int, loc *time.Location) NightEvents {
 	if loc == nil {
 		loc = time.UTC
