@@ -38,10 +38,10 @@ type Options struct {
 	// FillMinS is the shortest filler block worth scheduling, seconds
 	// (default 600).
 	FillMinS float64
-	// MaxNodes bounds the branch-and-bound search (default 20000 nodes).
-	// When reached, the best schedule found is returned with
-	// Plan.Optimal false.
-	MaxNodes int
+	// MaxStates bounds the optimiser's states alive at once (default
+	// 4096; see sweep.go). When exceeded, the best feasible schedule found
+	// is returned with Plan.Optimal false and a warning.
+	MaxStates int
 	// MaxOccurrences bounds the goal windows considered per goal and night
 	// (default 2000; a 1-minute orbit has 1440 a day).
 	MaxOccurrences int
@@ -58,8 +58,8 @@ func (o Options) withDefaults() (Options, error) {
 	def(&o.MaxPhaseErr, 0.25)
 	def(&o.MoonWarnSepDeg, 30)
 	def(&o.FillMinS, 600)
-	if o.MaxNodes == 0 {
-		o.MaxNodes = 20000
+	if o.MaxStates == 0 {
+		o.MaxStates = 4096
 	}
 	if o.MaxOccurrences == 0 {
 		o.MaxOccurrences = 2000
@@ -78,8 +78,8 @@ func (o Options) withDefaults() (Options, error) {
 		return o, bad("moon_warn_sep", o.MoonWarnSepDeg, "0..180 degrees")
 	case !finite(o.FillMinS) || o.FillMinS < 0 || o.FillMinS > 86400:
 		return o, bad("fill_min_s", o.FillMinS, "0..86400 seconds")
-	case o.MaxNodes < 1:
-		return o, bad("max_nodes", float64(o.MaxNodes), "≥ 1")
+	case o.MaxStates < 1:
+		return o, bad("max_states", float64(o.MaxStates), "≥ 1")
 	case o.MaxOccurrences < 1:
 		return o, bad("max_occurrences", float64(o.MaxOccurrences), "≥ 1")
 	}
@@ -174,7 +174,7 @@ const (
 	WarnUnreachable     WarningCode = "unreachable"       // no night-time instant can reach the goal
 	WarnMoonNear        WarningCode = "moon_near"         // close to the Moon while it is up
 	WarnTwilightStart   WarningCode = "twilight_start"    // block starts before astronomical darkness
-	WarnNotOptimal      WarningCode = "not_optimal"       // search stopped at Options.MaxNodes
+	WarnNotOptimal      WarningCode = "not_optimal"       // search stopped at Options.MaxStates
 	WarnSunAvoidApplied WarningCode = "sun_avoid_caution" // the Sun-avoidance angle excluded time
 )
 
@@ -205,9 +205,10 @@ type Plan struct {
 	Value       int64
 	GreedyValue int64
 	Optimal     bool
-	// Nodes is the number of branch-and-bound nodes explored; Candidates the
-	// number of candidate blocks.
-	Nodes      int
+	// Rounds is the number of DSSR rounds, States the most optimiser
+	// states alive at once, Candidates the number of candidate blocks.
+	Rounds     int
+	States     int
 	Candidates int
 }
 
@@ -239,6 +240,7 @@ type targetState struct {
 	vis      []span
 	bad      []badSpan
 	phaseErr float64
+	amGrid   []float64 // airmass on the StepS grid from the window's start, 0 = not yet computed
 }
 
 // engine holds one night's shared state.
@@ -296,11 +298,11 @@ func PlanNight(req NightRequest) (*Plan, error) {
 	})
 	greedy := pr.greedy(order)
 	p.GreedyValue = pr.value(greedy).main
-	sol := pr.solve(greedy, en.opt.MaxNodes)
-	p.Value, p.Optimal, p.Nodes = sol.value.main, sol.optimal, sol.nodes
+	sol := pr.solve(greedy, en.opt.MaxStates)
+	p.Value, p.Optimal, p.Rounds, p.States = sol.value.main, sol.optimal, sol.nodes, sol.states
 	if !sol.optimal {
 		p.Warnings = append(p.Warnings, Warning{Code: WarnNotOptimal, GoalIndex: -1,
-			Message: fmt.Sprintf("the search stopped after %d branches: the schedule is feasible but may fall short of the optimum by up to %d value units", sol.nodes, sol.gap.main)})
+			Message: fmt.Sprintf("the optimiser reached its state limit (%d) in round %d: the schedule is feasible but may fall short of the optimum by up to %d value units", en.opt.MaxStates, sol.nodes, max(sol.gap.main, 0))})
 	}
 	var prev *candidate
 	for _, i := range sol.chosen {
@@ -376,7 +378,7 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 		if err != nil {
 			return nil, nil, err
 		}
-		ts := &targetState{idx: i, t: t, goals: goals, star: t.Star()}
+		ts := &targetState{idx: i, t: t, goals: goals, star: t.Star(), amGrid: make([]float64, int((to-from)/opt.StepS)+2)}
 		ts.track = frame.Track(ts.star)
 		for _, d := range en.dark {
 			ok, bad := scan(d.lo, d.hi, opt.StepS, func(u float64) (float64, reasonBits) { return en.margin(ts, u) })
@@ -415,7 +417,7 @@ const guardS = 1.0
 // buildProblem lists every goal occurrence in dark time and its candidate
 // blocks.
 func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
-	pr := &problem{nTargets: len(targets)}
+	pr := &problem{nTargets: len(targets), cands: make([]candidate, 0, 4096)}
 	var occs []occMeta
 	for _, ts := range targets {
 		if !ts.hasClock || ts.phaseErr > en.opt.MaxPhaseErr {
@@ -464,7 +466,7 @@ func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc o
 			return n
 		}
 		add := func(s float64, n int) {
-			x := en.airmassAt(ts, s+0.5*float64(n)*L)
+			x := en.airmassTie(ts, s+0.5*float64(n)*L)
 			cs = append(cs, candidate{
 				start: s, end: s + float64(n)*L, acq: ts.t.AcquireS, acqFloor: floor,
 				target: ts.idx, occ: occID, n: n,
@@ -504,6 +506,25 @@ func (en *engine) darkStart(u float64) float64 {
 		}
 	}
 	return u
+}
+
+// airmassTie returns the target's airmass at u for the tie-breaker,
+// interpolated linearly between values on the StepS grid, each computed once
+// per target on the fast path.
+func (en *engine) airmassTie(ts *targetState, u float64) float64 {
+	step := en.opt.StepS
+	x := (u - en.from) / step
+	i := int(math.Floor(x))
+	if i < 0 || i+1 >= len(ts.amGrid) {
+		return en.airmassAt(ts, u)
+	}
+	for _, k := range [2]int{i, i + 1} {
+		if ts.amGrid[k] == 0 {
+			ts.amGrid[k] = en.airmassAt(ts, en.from+float64(k)*step)
+		}
+	}
+	f := x - float64(i)
+	return ts.amGrid[i] + f*(ts.amGrid[i+1]-ts.amGrid[i])
 }
 
 // airmassAt returns the target's airmass at u on the fast path (40 below

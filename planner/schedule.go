@@ -1,8 +1,9 @@
 package planner
 
 import (
-	"container/heap"
+	"cmp"
 	"math"
+	"slices"
 	"sort"
 )
 
@@ -35,19 +36,17 @@ import (
 // block per goal occurrence.
 //
 // Method. Without the last rule the problem is a weighted interval
-// scheduling with a setup time that depends on the previous target; it is
-// solved exactly by dynamic programming over the candidates in order of end
-// time, the state being the last block (its target decides the setup, its
-// occurrence forbids serving that occurrence twice in a row). The DP value is
-// therefore an upper bound, and the DP is exact whenever its schedule serves
-// each occurrence at most once. Otherwise best-first branch and bound: when
-// the DP schedule serves occurrence k with blocks b1 < b2, branch into (A)
-// k's blocks must start before b1 ends and (B) k's blocks must start at or
-// after b1's end. The two branches partition every feasible schedule and each
-// excludes the DP schedule; each branch's DP value bounds it. The search stops
-// when the best feasible schedule found is worth at least every open bound
-// (optimal), or after Options.MaxNodes branches (then the best feasible
-// schedule is returned with Optimal = false and the remaining gap).
+// scheduling with a setup time that depends on the previous target, solved
+// exactly by dynamic programming over time. With it, it is a job-interval
+// selection problem (NP-hard in general). The relaxation's optimum tends to
+// collect the "reached" half of a goal's value several times by returning to
+// the same window around other blocks (A X A), so a branch and bound on it
+// needs exponentially many branches (tried: 20 000 branches did not close a
+// 30-target night). Instead the state of the dynamic programme remembers the
+// occurrences already served while they can still be served again, for a
+// growing set of critical occurrences: decremental state-space relaxation,
+// in sweep.go. The result is optimal; a state limit (Options.MaxNodes) stops
+// pathological cases with the best feasible schedule found (Optimal false).
 
 // score is an objective value: main (priority-weighted goal value) compared
 // first, tie second. Both are integers so that sums are exact and the same
@@ -100,22 +99,37 @@ type problem struct {
 }
 
 func sortCandidates(cs []candidate) {
-	sort.SliceStable(cs, func(i, j int) bool {
-		a, b := &cs[i], &cs[j]
-		if a.end != b.end {
-			return a.end < b.end
+	type key struct {
+		end, start float64
+		i          int32
+	}
+	keys := make([]key, len(cs))
+	for i := range cs {
+		keys[i] = key{cs[i].end, cs[i].start, int32(i)}
+	}
+	slices.SortFunc(keys, func(a, b key) int {
+		switch {
+		case a.end != b.end:
+			return cmp.Compare(a.end, b.end)
+		case a.start != b.start:
+			return cmp.Compare(a.start, b.start)
 		}
-		if a.start != b.start {
-			return a.start < b.start
+		ca, cb := &cs[a.i], &cs[b.i]
+		switch {
+		case ca.target != cb.target:
+			return cmp.Compare(ca.target, cb.target)
+		case ca.occ != cb.occ:
+			return cmp.Compare(ca.occ, cb.occ)
+		case ca.n != cb.n:
+			return cmp.Compare(ca.n, cb.n)
 		}
-		if a.target != b.target {
-			return a.target < b.target
-		}
-		if a.occ != b.occ {
-			return a.occ < b.occ
-		}
-		return a.n < b.n
+		return cmp.Compare(a.i, b.i)
 	})
+	out := make([]candidate, len(cs))
+	for i, k := range keys {
+		out[i] = cs[k.i]
+	}
+	copy(cs, out)
 }
 
 // topEntry is a running best: value, key (target or occurrence) and the
@@ -155,115 +169,6 @@ func (p prefixBest) excluding(key int) topEntry {
 		return p.a
 	}
 	return p.b
-}
-
-type prefixList []prefixBest
-
-// upTo returns the running best over entries ending at or before x.
-func (l prefixList) upTo(x float64) (prefixBest, bool) {
-	i := sort.Search(len(l), func(i int) bool { return l[i].end > x+1e-6 })
-	if i == 0 {
-		return prefixBest{}, false
-	}
-	return l[i-1], true
-}
-
-func (l prefixList) push(end float64, t topEntry) prefixList {
-	var p prefixBest
-	if n := len(l); n > 0 {
-		p = l[n-1]
-	}
-	p.end = end
-	return append(l, p.with(t))
-}
-
-// window restricts the starts of one occurrence's blocks to [lo, hi).
-type window struct{ lo, hi float64 }
-
-// dpScratch holds the DP's working arrays, reused across branch-and-bound
-// nodes.
-type dpScratch struct {
-	val       []score
-	pred      []int
-	perTarget []prefixList
-	global    prefixList
-}
-
-// solveRelaxed solves the problem without the one-block-per-occurrence rule,
-// with occurrence k's starts restricted to allow[k] (nil: no restriction). It
-// returns the best value and the chosen candidates in time order.
-func (pr *problem) solveRelaxed(allow []window, s *dpScratch) (score, []int) {
-	n := len(pr.cands)
-	if cap(s.val) < n {
-		s.val = make([]score, n)
-		s.pred = make([]int, n)
-	}
-	s.val, s.pred = s.val[:n], s.pred[:n]
-	if len(s.perTarget) < pr.nTargets {
-		s.perTarget = make([]prefixList, pr.nTargets)
-	}
-	for i := range s.perTarget {
-		s.perTarget[i] = s.perTarget[i][:0]
-	}
-	s.global = s.global[:0]
-	for i := range pr.cands {
-		c := &pr.cands[i]
-		if allow != nil {
-			w := allow[c.occ]
-			if c.start < w.lo || c.start >= w.hi {
-				continue
-			}
-		}
-		best := topEntry{}
-		if c.acqFits(math.Inf(-1)) {
-			best = topEntry{val: score{}, cand: -1, ok: true}
-		}
-		if p, ok := s.perTarget[c.target].upTo(c.start); ok {
-			if t := p.excluding(c.occ); t.ok && (!best.ok || best.val.less(t.val)) {
-				best = t
-			}
-		}
-		if x := c.start - c.acq; c.acqFits(math.Inf(-1)) {
-			if p, ok := s.global.upTo(x); ok {
-				if t := p.excluding(c.target); t.ok && (!best.ok || best.val.less(t.val)) {
-					best = t
-				}
-			}
-		}
-		if !best.ok {
-			continue
-		}
-		v := best.val.plus(c.val)
-		s.val[i], s.pred[i] = v, best.cand
-		s.perTarget[c.target] = s.perTarget[c.target].push(c.end, topEntry{val: v, key: c.occ, cand: i, ok: true})
-		s.global = s.global.push(c.end, topEntry{val: v, key: c.target, cand: i, ok: true})
-	}
-	if len(s.global) == 0 {
-		return score{}, nil
-	}
-	last := s.global[len(s.global)-1].a
-	var chosen []int
-	for i := last.cand; i >= 0; i = s.pred[i] {
-		chosen = append(chosen, i)
-	}
-	for l, r := 0, len(chosen)-1; l < r; l, r = l+1, r-1 {
-		chosen[l], chosen[r] = chosen[r], chosen[l]
-	}
-	return last.val, chosen
-}
-
-// firstRepeat returns the first pair of chosen candidates (in time order)
-// serving the same occurrence, or ok false.
-func (pr *problem) firstRepeat(chosen []int) (b1, b2 int, ok bool) {
-	seen := make(map[int]int, len(chosen))
-	for _, i := range chosen {
-		occ := pr.cands[i].occ
-		if j, dup := seen[occ]; dup {
-			return j, i, true
-		}
-		seen[occ] = i
-	}
-	return 0, 0, false
 }
 
 // value returns the summed value of a schedule.
@@ -315,101 +220,16 @@ func (pr *problem) repair(chosen []int) []int {
 	return out
 }
 
-// bbNode is one branch: occurrence start restrictions, its DP bound and
-// schedule.
-type bbNode struct {
-	id     int
-	allow  []window
-	bound  score
-	chosen []int
-}
-
-type bbHeap []*bbNode
-
-func (h bbHeap) Len() int { return len(h) }
-func (h bbHeap) Less(i, j int) bool {
-	if h[i].bound != h[j].bound {
-		return h[j].bound.less(h[i].bound)
-	}
-	return h[i].id < h[j].id
-}
-func (h bbHeap) Swap(i, j int) { h[i], h[j] = h[j], h[i] }
-func (h *bbHeap) Push(x any)   { *h = append(*h, x.(*bbNode)) }
-func (h *bbHeap) Pop() any {
-	old := *h
-	n := old[len(old)-1]
-	*h = old[:len(old)-1]
-	return n
-}
-
 // solution is a solved schedule: chosen candidates in time order, its value,
-// whether it is proven optimal, the bound gap otherwise, and the number of
-// branch-and-bound nodes explored.
+// whether it is proven optimal, the bound gap otherwise, the number of DSSR
+// rounds and the largest number of states alive in one sweep.
 type solution struct {
 	chosen  []int
 	value   score
 	optimal bool
 	gap     score
 	nodes   int
-}
-
-// solve maximises the objective exactly by branch and bound over the DP
-// relaxation (see the comment at the top of this file), starting from the
-// incumbent given (for example the greedy schedule; may be nil).
-func (pr *problem) solve(incumbent []int, maxNodes int) solution {
-	var s dpScratch
-	best := solution{chosen: incumbent, value: pr.value(incumbent)}
-	if !pr.feasible(incumbent) {
-		best = solution{}
-	}
-	root := &bbNode{id: 0}
-	root.bound, root.chosen = pr.solveRelaxed(nil, &s)
-	h := &bbHeap{root}
-	nextID := 1
-	for h.Len() > 0 {
-		nd := heap.Pop(h).(*bbNode)
-		best.nodes++
-		if !best.value.less(nd.bound) {
-			best.optimal = true
-			return best
-		}
-		b1, _, dup := pr.firstRepeat(nd.chosen)
-		if !dup {
-			best.chosen, best.value, best.optimal = nd.chosen, nd.bound, true
-			return best
-		}
-		if r := pr.repair(nd.chosen); best.value.less(pr.value(r)) {
-			best.chosen, best.value = r, pr.value(r)
-		}
-		if best.nodes >= maxNodes {
-			best.gap = score{nd.bound.main - best.value.main, nd.bound.tie - best.value.tie}
-			return best
-		}
-		occ := pr.cands[b1].occ
-		p := pr.cands[b1].end
-		base := nd.allow
-		if base == nil {
-			base = make([]window, pr.nOcc)
-			for k := range base {
-				base[k] = window{math.Inf(-1), math.Inf(1)}
-			}
-		}
-		for _, w := range [2]window{
-			{base[occ].lo, math.Min(base[occ].hi, p)}, // (A) start before b1 ends
-			{math.Max(base[occ].lo, p), base[occ].hi}, // (B) start at or after b1's end
-		} {
-			allow := append([]window(nil), base...)
-			allow[occ] = w
-			child := &bbNode{id: nextID, allow: allow}
-			nextID++
-			child.bound, child.chosen = pr.solveRelaxed(allow, &s)
-			if best.value.less(child.bound) {
-				heap.Push(h, child)
-			}
-		}
-	}
-	best.optimal = true
-	return best
+	states  int
 }
 
 // greedy is the baseline the optimiser is tested against: occurrences in

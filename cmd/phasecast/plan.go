@@ -113,7 +113,8 @@ type objectiveJSON struct {
 	GreedyValue int64 `json:"greedy_value"`
 	Optimal     bool  `json:"optimal"`
 	Candidates  int   `json:"candidates"`
-	Nodes       int   `json:"nodes"`
+	Rounds      int   `json:"rounds"`
+	States      int   `json:"states"`
 }
 
 // planTime is an instant in RFC 3339 UTC, with the fraction of a second
@@ -343,7 +344,7 @@ func planOutput(p *planner.Plan, ev ephem.NightEvents, acq float64) planJSON {
 		Warnings:    []warningJSON{},
 		Dark:        []intervalJSON{},
 		Caution:     planner.SafetyCaution,
-		Objective:   objectiveJSON{Value: p.Value, GreedyValue: p.GreedyValue, Optimal: p.Optimal, Candidates: p.Candidates, Nodes: p.Nodes},
+		Objective:   objectiveJSON{Value: p.Value, GreedyValue: p.GreedyValue, Optimal: p.Optimal, Candidates: p.Candidates, Rounds: p.Rounds, States: p.States},
 	}
 	c := p.Constraints
 	out.Constraints = constraintsJSON{Twilight: string(c.Twilight), SunAltMaxDeg: c.SunAltMaxDeg, MaxAirmass: c.MaxAirmass,
