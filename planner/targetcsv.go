@@ -8,6 +8,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"phasecast/ephem"
 )
@@ -71,7 +72,23 @@ func (e *TableError) Error() string {
 
 // add records a rejected cell.
 func (e *TableError) add(line, col int, column, value, reason string) {
-	e.Cells = append(e.Cells, CellError{Line: line, Col: col, Column: column, Value: value, Reason: reason})
+	e.Cells = append(e.Cells, CellError{Line: line, Col: col, Column: ClipValue(column), Value: ClipValue(value), Reason: reason})
+}
+
+// MaxShownValue is the longest value, in characters, that an error shows;
+// longer ones are cut and end in "…", so that a hostile 10 MB cell does not
+// come back in the message.
+const MaxShownValue = 80
+
+// ClipValue returns s cut to MaxShownValue characters (with "…" when cut),
+// with invalid UTF-8 replaced, for showing in an error.
+func ClipValue(s string) string {
+	s = strings.ToValidUTF8(s, "\ufffd")
+	if utf8.RuneCountInString(s) <= MaxShownValue {
+		return s
+	}
+	r := []rune(s)
+	return string(r[:MaxShownValue]) + "…"
 }
 
 // Limits of the plan CSV's numeric columns.

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"strings"
 
+	"phasecast/planner"
+
 	"modernc.org/sqlite"
 	sqlite3 "modernc.org/sqlite/lib"
 )
@@ -108,7 +110,7 @@ func (v *ValidationError) Error() string {
 
 // add records a rejected field.
 func (v *ValidationError) add(field, value, accepted string) {
-	v.Fields = append(v.Fields, FieldError{Field: field, Value: value, Accepted: accepted})
+	v.Fields = append(v.Fields, FieldError{Field: field, Value: planner.ClipValue(value), Accepted: accepted})
 }
 
 // err returns an EINVALID *Error carrying v, or nil when v is empty.

@@ -63,7 +63,7 @@ func importPlan(t *txn, listID int64, pf parsedFile) (ImportResult, []TargetInpu
 	te := &planner.TableError{}
 	add := func(line int, field, value, reason string) {
 		col, n := pf.column(field)
-		te.Cells = append(te.Cells, planner.CellError{Line: line, Col: n, Column: col, Value: value, Reason: reason})
+		te.Cells = append(te.Cells, planner.CellError{Line: line, Col: n, Column: col, Value: planner.ClipValue(value), Reason: reason})
 	}
 	inputs := make([]TargetInput, len(pf.Rows))
 	firstLine := map[string]int{}

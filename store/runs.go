@@ -97,9 +97,7 @@ func validateRun(in RunInput) *ValidationError {
 	validName(v, "name", in.Name)
 	validateNights(v, in.Nights)
 	validateConstraints(v, "constraints.", in.Constraints)
-	if utf8.RuneCountInString(in.Notes) > MaxNotes {
-		v.add("notes", "", fmt.Sprintf("at most %d characters", MaxNotes))
-	}
+	validNotes(v, "notes", in.Notes, MaxNotes)
 	return v
 }
 
@@ -426,10 +424,10 @@ const planCols = "id, run_id, name, engine_version, coalesce(created_by, 0), cre
 func (s *Store) SavePlan(ctx context.Context, a Actor, runID int64, in SavedPlanInput) (SavedPlan, error) {
 	const op = "store.SavePlan"
 	v := &ValidationError{}
-	if utf8.RuneCountInString(in.Name) > MaxNameLen {
-		v.add("name", in.Name, fmt.Sprintf("at most %d characters", MaxNameLen))
+	if utf8.RuneCountInString(in.Name) > MaxNameLen || !validText(in.Name, false) {
+		v.add("name", in.Name, fmt.Sprintf("at most %d characters, no control characters", MaxNameLen))
 	}
-	if n := len(in.EngineVersion); n < 1 || n > 100 {
+	if n := len(in.EngineVersion); n < 1 || n > 100 || !validText(in.EngineVersion, false) {
 		v.add("engine_version", in.EngineVersion, "the planner version that made the plan, 1 to 100 characters")
 	}
 	for _, f := range []struct {
@@ -653,9 +651,7 @@ func validateObservation(v *ValidationError, prefix string, in ObservationInput)
 	if g := in.GoalCenter; g != nil && (!finite(*g) || *g < 0 || *g >= 1) {
 		v.add(prefix+"goal_center", num(*g), "a phase 0 ≤ φ < 1, or none")
 	}
-	if utf8.RuneCountInString(in.Note) > MaxNotes {
-		v.add(prefix+"note", "", fmt.Sprintf("at most %d characters", MaxNotes))
-	}
+	validNotes(v, prefix+"note", in.Note, MaxNotes)
 	return mid
 }
 

@@ -76,8 +76,8 @@ func (s *Store) CreateShareLink(ctx context.Context, a Actor, in ShareInput) (Sh
 	if (in.ListID == 0) == (in.RunID == 0) {
 		v.add("scope", "", "exactly one list or one run")
 	}
-	if utf8.RuneCountInString(in.Label) > MaxNameLen {
-		v.add("label", in.Label, fmt.Sprintf("at most %d characters", MaxNameLen))
+	if utf8.RuneCountInString(in.Label) > MaxNameLen || !validText(in.Label, false) {
+		v.add("label", in.Label, fmt.Sprintf("at most %d characters, no control characters", MaxNameLen))
 	}
 	if in.TTL <= 0 || in.TTL > MaxShareLinkTTL {
 		v.add("ttl", in.TTL.String(), fmt.Sprintf("more than 0 and at most %v", MaxShareLinkTTL))

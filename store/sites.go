@@ -11,7 +11,6 @@ import (
 	"strings"
 	"time"
 	_ "time/tzdata" // zone names validate on machines without zoneinfo
-	"unicode/utf8"
 
 	"phasecast/ephem"
 	"phasecast/planner"
@@ -83,9 +82,7 @@ func validateSite(v *ValidationError, in SiteInput) {
 	c := in.Constraints
 	c.Horizon = nil // the site's own mask applies
 	validateConstraints(v, "", c)
-	if utf8.RuneCountInString(in.Notes) > MaxNotes {
-		v.add("notes", "", fmt.Sprintf("at most %d characters", MaxNotes))
-	}
+	validNotes(v, "notes", in.Notes, MaxNotes)
 }
 
 // validateConstraints checks observing limits with the planner's own rules

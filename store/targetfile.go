@@ -182,7 +182,7 @@ func parseTeamCSV(b []byte) (parsedFile, error) {
 	cr.TrimLeadingSpace = true
 	te := &planner.TableError{}
 	add := func(line, col int, column, value, reason string) {
-		te.Cells = append(te.Cells, planner.CellError{Line: line, Col: col, Column: column, Value: value, Reason: reason})
+		te.Cells = append(te.Cells, planner.CellError{Line: line, Col: col, Column: planner.ClipValue(column), Value: planner.ClipValue(value), Reason: reason})
 	}
 	header, err := cr.Read()
 	if errors.Is(err, io.EOF) {
@@ -274,11 +274,37 @@ func (c *cellReader) get(name string) string {
 	if !ok {
 		return ""
 	}
-	return strings.TrimSpace(c.rec[i])
+	return csvUnquoteFormula(strings.TrimSpace(c.rec[i]))
+}
+
+// formulaStart are the first characters that make a spreadsheet read a
+// cell as a formula.
+const formulaStart = "=+-@\t\r"
+
+// csvSafeCell returns cell so that a spreadsheet reads it as text: a cell
+// starting with = + - @, a tab or a carriage return that is not a plain
+// number gets a leading single quote (OWASP "CSV Injection", common
+// practice). A negative declination stays a number.
+func csvSafeCell(cell string) string {
+	if cell == "" || !strings.ContainsRune(formulaStart, rune(cell[0])) {
+		return cell
+	}
+	if _, ok := parseNumber(cell); ok {
+		return cell
+	}
+	return "'" + cell
+}
+
+// csvUnquoteFormula undoes csvSafeCell when reading a team CSV.
+func csvUnquoteFormula(cell string) string {
+	if len(cell) >= 2 && cell[0] == '\'' && strings.ContainsRune(formulaStart, rune(cell[1])) {
+		return cell[1:]
+	}
+	return cell
 }
 
 func (c *cellReader) bad(name, value, reason string) {
-	c.cells = append(c.cells, planner.CellError{Line: c.line, Col: c.col[name] + 1, Column: name, Value: value, Reason: reason})
+	c.cells = append(c.cells, planner.CellError{Line: c.line, Col: c.col[name] + 1, Column: name, Value: planner.ClipValue(value), Reason: reason})
 }
 
 // float reads an optional number (empty = def).
@@ -401,9 +427,7 @@ func parseTeamRow(rec []string, col map[string]int, line int) (TargetInput, []pl
 			t.Tags = append(t.Tags, strings.TrimSpace(tag))
 		}
 	}
-	if i, ok := col["notes"]; ok {
-		t.Notes = strings.TrimSpace(rec[i])
-	}
+	t.Notes = c.get("notes")
 	return in, c.cells
 }
 
@@ -556,6 +580,9 @@ func writeTeamCSV(w io.Writer, targets []StoredTarget) error {
 			intOrEmpty(base.NExposures), intOrEmpty(base.MinNights), numOrEmpty(base.EclipseDurDays),
 			strconv.Itoa(t.Priority), numOrEmpty(t.AcquireS), strings.Join(t.Tags, ";"), t.Notes,
 		}
+		for i := range rec {
+			rec[i] = csvSafeCell(rec[i])
+		}
 		if err := cw.Write(rec); err != nil {
 			return err
 		}
@@ -650,7 +677,7 @@ func lineAt(b []byte, off int64) int {
 func parseJSONFile(b []byte) (parsedFile, error) {
 	te := &planner.TableError{}
 	add := func(line int, member, value, reason string) {
-		te.Cells = append(te.Cells, planner.CellError{Line: line, Column: member, Value: value, Reason: reason})
+		te.Cells = append(te.Cells, planner.CellError{Line: line, Column: member, Value: planner.ClipValue(value), Reason: reason})
 	}
 	dec := json.NewDecoder(bytes.NewReader(b))
 	var head struct {
@@ -665,6 +692,10 @@ func parseJSONFile(b []byte) (parsedFile, error) {
 			line = lineAt(b, se.Offset)
 		}
 		add(line, "", "", "malformed JSON: "+err.Error())
+		return parsedFile{}, tableErr(te)
+	}
+	if _, err := dec.Token(); !errors.Is(err, io.EOF) {
+		add(lineAt(b, dec.InputOffset()), "", "", "trailing data after the JSON document: a file holds exactly one document")
 		return parsedFile{}, tableErr(te)
 	}
 	if head.Format != JSONFormatTag {
@@ -761,7 +792,7 @@ func targetOffsets(b []byte) []int64 {
 func jsonToInput(jt jsonTarget, line, i int) (TargetInput, []planner.CellError) {
 	var cells []planner.CellError
 	bad := func(member, value, reason string) {
-		cells = append(cells, planner.CellError{Line: line, Column: member, Value: value, Reason: reason})
+		cells = append(cells, planner.CellError{Line: line, Column: member, Value: planner.ClipValue(value), Reason: reason})
 	}
 	var in TargetInput
 	t := &in.Target

@@ -168,9 +168,7 @@ func resolveEpoch(v *ValidationError, field string, e Epoch, st ephem.Star) (Epo
 func validateTargetInput(in TargetInput) (TargetInput, *ValidationError) {
 	v := &ValidationError{}
 	t := &in.Target
-	if n := utf8.RuneCountInString(t.Name); n < 1 || n > MaxNameLen || strings.TrimSpace(t.Name) != t.Name {
-		v.add("name", t.Name, fmt.Sprintf("a name of 1 to %d characters without leading or trailing blanks", MaxNameLen))
-	}
+	validName(v, "name", t.Name)
 	if !finite(t.RADeg) || t.RADeg < 0 || t.RADeg >= 360 {
 		v.add("ra", num(t.RADeg), "right ascension 0 ≤ RA < 360 degrees (ICRS)")
 	}
@@ -193,9 +191,7 @@ func validateTargetInput(in TargetInput) (TargetInput, *ValidationError) {
 		v.add("acquire_s", num(t.AcquireS), fmt.Sprintf("acquisition overhead per visit, 0..%g seconds", MaxAcquireS))
 	}
 	validateTags(v, t.Tags)
-	if utf8.RuneCountInString(t.Notes) > MaxNotes {
-		v.add("notes", "", fmt.Sprintf("at most %d characters", MaxNotes))
-	}
+	validNotes(v, "notes", t.Notes, MaxNotes)
 	if len(v.Fields) == 0 || (finite(t.RADeg) && finite(t.DecDeg)) {
 		if e, bjd, ok := resolveEpoch(v, "t0", in.T0, t.Star()); ok {
 			in.T0 = e
@@ -207,9 +203,7 @@ func validateTargetInput(in TargetInput) (TargetInput, *ValidationError) {
 			}
 		}
 	}
-	if utf8.RuneCountInString(in.EphemNote) > MaxNotes {
-		v.add("ephem_note", "", fmt.Sprintf("at most %d characters", MaxNotes))
-	}
+	validNotes(v, "ephem_note", in.EphemNote, MaxNotes)
 	return in, v
 }
 
@@ -221,7 +215,7 @@ func validateTags(v *ValidationError, tags []string) {
 	seen := map[string]bool{}
 	for _, tag := range tags {
 		if n := utf8.RuneCountInString(tag); n < 1 || n > MaxTagLen || strings.TrimSpace(tag) != tag ||
-			strings.ContainsAny(tag, ";,\n") || seen[tag] {
+			strings.ContainsAny(tag, ";,") || !validText(tag, false) || seen[tag] {
 			v.add("tags", tag, fmt.Sprintf("tags of 1 to %d characters, without ';', ',' or surrounding blanks, each once", MaxTagLen))
 		}
 		seen[tag] = true
@@ -300,9 +294,7 @@ func validateEphemerisInput(in EphemerisInput, st ephem.Star) (EphemerisInput, *
 	default:
 		v.add("source", string(in.Source), "entered, import, fit or demo")
 	}
-	if utf8.RuneCountInString(in.Note) > MaxNotes {
-		v.add("note", "", fmt.Sprintf("at most %d characters", MaxNotes))
-	}
+	validNotes(v, "note", in.Note, MaxNotes)
 	return in, v
 }
 
@@ -354,9 +346,7 @@ func authorizedList(t *txn, action Action, entity Entity, id int64) (TargetList,
 func validateList(in ListInput) error {
 	v := &ValidationError{}
 	validName(v, "name", in.Name)
-	if utf8.RuneCountInString(in.Description) > MaxNotes {
-		v.add("description", "", fmt.Sprintf("at most %d characters", MaxNotes))
-	}
+	validNotes(v, "description", in.Description, MaxNotes)
 	return v.err()
 }
 

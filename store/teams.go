@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"strings"
 	"time"
+	"unicode"
 	"unicode/utf8"
 )
 
@@ -49,8 +50,30 @@ type Invitation struct {
 }
 
 func validName(v *ValidationError, field, name string) {
-	if n := utf8.RuneCountInString(name); n < 1 || n > 200 || strings.TrimSpace(name) != name {
-		v.add(field, name, "a name of 1 to 200 characters without leading or trailing blanks")
+	if n := utf8.RuneCountInString(name); n < 1 || n > 200 || strings.TrimSpace(name) != name || !validText(name, false) {
+		v.add(field, name, "a name of 1 to 200 characters (UTF-8, no control characters) without leading or trailing blanks")
+	}
+}
+
+// validText reports whether s is valid UTF-8 without control characters
+// (NUL included: SQLite's text functions stop at it); multiline text may
+// hold line breaks and tabs.
+func validText(s string, multiline bool) bool {
+	if !utf8.ValidString(s) {
+		return false
+	}
+	for _, r := range s {
+		if unicode.IsControl(r) && !(multiline && (r == '\n' || r == '\r' || r == '\t')) {
+			return false
+		}
+	}
+	return true
+}
+
+// validNotes checks free text of at most max characters.
+func validNotes(v *ValidationError, field, s string, max int) {
+	if utf8.RuneCountInString(s) > max || !validText(s, true) {
+		v.add(field, s, fmt.Sprintf("text of at most %d characters (UTF-8, no control characters other than line breaks and tabs)", max))
 	}
 }
 
@@ -454,9 +477,7 @@ func (s *Store) CreateInvitation(ctx context.Context, a Actor, teamID int64, rol
 	if ttl <= 0 || ttl > MaxInvitationTTL {
 		v.add("ttl", ttl.String(), fmt.Sprintf("more than 0 and at most %v", MaxInvitationTTL))
 	}
-	if utf8.RuneCountInString(note) > 500 {
-		v.add("note", note, "at most 500 characters")
-	}
+	validNotes(v, "note", note, 500)
 	if err := v.err(); err != nil {
 		return Invitation{}, "", wrap(op, err)
 	}

@@ -52,12 +52,10 @@ func validateTiming(v *ValidationError, prefix string, in TimingInput, st ephem.
 	if !finite(in.ErrDays) || in.ErrDays <= 0 || in.ErrDays > MaxTimingErrDays {
 		v.add(prefix+"err_days", num(in.ErrDays), fmt.Sprintf("the 1σ uncertainty in days, 0 < σ ≤ %g", MaxTimingErrDays))
 	}
-	if utf8.RuneCountInString(in.Observer) > MaxNameLen {
-		v.add(prefix+"observer", in.Observer, fmt.Sprintf("at most %d characters", MaxNameLen))
+	if utf8.RuneCountInString(in.Observer) > MaxNameLen || !validText(in.Observer, false) {
+		v.add(prefix+"observer", in.Observer, fmt.Sprintf("at most %d characters, no control characters", MaxNameLen))
 	}
-	if utf8.RuneCountInString(in.Note) > MaxNotes {
-		v.add(prefix+"note", "", fmt.Sprintf("at most %d characters", MaxNotes))
-	}
+	validNotes(v, prefix+"note", in.Note, MaxNotes)
 	sub := &ValidationError{}
 	e, bjd, ok := resolveEpoch(sub, "time", in.T, st)
 	for _, f := range sub.Fields {

@@ -93,9 +93,7 @@ func validateUser(v *ValidationError, email, name string) {
 	if a, err := mail.ParseAddress(email); err != nil || a.Address != email || len(email) > 254 {
 		v.add("email", email, "an email address such as ada@example.org (at most 254 characters)")
 	}
-	if n := utf8.RuneCountInString(strings.TrimSpace(name)); n < 1 || n > 200 || name != strings.TrimSpace(name) {
-		v.add("name", name, "a name of 1 to 200 characters without leading or trailing blanks")
-	}
+	validName(v, "name", name)
 }
 
 func validatePassword(v *ValidationError, field, pw string) {
@@ -570,7 +568,7 @@ func (s *Store) CreateAPIToken(ctx context.Context, a Actor, name string, ttl ti
 		return APIToken{}, "", &Error{Code: EFORBIDDEN, Op: op, Message: "sign in first"}
 	}
 	v := &ValidationError{}
-	if n := utf8.RuneCountInString(name); n < 1 || n > 100 || strings.TrimSpace(name) != name {
+	if n := utf8.RuneCountInString(name); n < 1 || n > 100 || strings.TrimSpace(name) != name || !validText(name, false) {
 		v.add("name", name, "a token name of 1 to 100 characters without leading or trailing blanks")
 	}
 	if ttl < 0 || ttl > MaxAPITokenTTL {
