@@ -177,7 +177,7 @@ func (en *engine) reason(ts *targetState, gi int, g Goal, occs []occMeta, need [
 		inVis = append(inVis, intersectSpans(w, ts.vis)...)
 	}
 	if len(inDark) == 0 {
-		return UnschedWindowInDaylight, "its phase windows tonight " + en.windowList(ts, g) + " all fall outside dark time"
+		return UnschedWindowInDaylight, "its phase windows tonight " + en.windowList(ts, g, false) + " all fall outside dark time"
 	}
 	if len(ts.vis) == 0 {
 		var why reasonBits
@@ -195,7 +195,7 @@ func (en *engine) reason(ts *targetState, gi int, g Goal, occs []occMeta, need [
 				}
 			}
 		}
-		return UnschedWindowNotObservable, "during its windows in dark time " + en.windowList(ts, g) + " the target is " + describeReasons(why.reasons(), c)
+		return UnschedWindowNotObservable, "during its windows in dark time " + en.windowList(ts, g, true) + " the target is " + describeReasons(why.reasons(), c)
 	}
 	if len(need) == 0 {
 		longest := 0.0
@@ -235,17 +235,22 @@ func (en *engine) reason(ts *targetState, gi int, g Goal, occs []occMeta, need [
 	return UnschedLostToSchedule, "its windows conflict with blocks worth more together: " + strings.Join(rivals, ", ")
 }
 
-// windowList formats the goal's windows overlapping the night window as
-// "(HH:MM–HH:MM, …) UTC", at most five.
-func (en *engine) windowList(ts *targetState, g Goal) string {
-	occ := ts.clock.occurrences(g.Center, g.HalfWidth, en.from, en.to, 6)
+// windowList formats the goal's windows overlapping the night window (only
+// their parts in dark time when darkOnly) as "(HH:MM–HH:MM, …) UTC", at most
+// five.
+func (en *engine) windowList(ts *targetState, g Goal, darkOnly bool) string {
 	var parts []string
-	for i, o := range occ {
-		if i == 5 {
-			parts = append(parts, "…")
-			break
+	for _, o := range ts.clock.occurrences(g.Center, g.HalfWidth, en.from, en.to, 50) {
+		ws := []span{{math.Max(o.lo, en.from), math.Min(o.hi, en.to)}}
+		if darkOnly {
+			ws = intersectSpans(ws, en.dark)
 		}
-		parts = append(parts, timeOf(o.lo).Format("15:04")+"–"+timeOf(o.hi).Format("15:04"))
+		for _, w := range ws {
+			if len(parts) == 5 {
+				return "(" + strings.Join(parts, ", ") + ", … UTC)"
+			}
+			parts = append(parts, timeOf(w.lo).Format("15:04")+"–"+timeOf(w.hi).Format("15:04"))
+		}
 	}
 	return "(" + strings.Join(parts, ", ") + " UTC)"
 }

@@ -442,28 +442,31 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 	return occs, pr
 }
 
-// appendCandidates adds the candidate blocks of one occurrence: in every
-// observable interval, starts from the earliest whole second the window and
-// the interval allow, every multiple of StepS, and for each n the latest
-// whole second; every n from 1 to the most that fit (capped at wanted).
+// appendCandidates adds the candidate blocks of one occurrence. Starts are
+// the multiples of StepS in UTC, the earliest whole second the phase window
+// allows (first exposure's mid-time at the window's opening) and, for each n,
+// the latest whole second it allows (last mid-time at the window's close);
+// every n from 1 to the most that fit (capped at wanted) such that the whole
+// block lies in one observable interval, at least guardS inside it. None of
+// the starts depends on the constraints, so relaxing a constraint only adds
+// candidates (and never lowers the optimum).
 func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc occurrence, occID, wanted int) []candidate {
 	E, L := g.ExposureS, g.ExposureS+g.OverheadS
 	step := en.opt.StepS
 	w := PriorityWeight(ts.t.Priority)
+	first := math.Ceil(oc.lo - E/2)  // earliest start of the window
+	last1 := math.Floor(oc.hi - E/2) // latest start of a one-exposure block
 	for _, v := range ts.vis {
-		if v.hi < oc.lo-L || v.lo > oc.hi+L {
-			continue
-		}
 		vlo, vhi := v.lo+guardS, v.hi-guardS
-		sMin := math.Ceil(math.Max(oc.lo-E/2, vlo))
-		sMax1 := math.Min(oc.hi-E/2, vhi-L)
+		sMin := math.Max(first, vlo)
+		sMax1 := math.Min(last1, vhi-L)
 		if sMin > sMax1 {
 			continue
 		}
 		floor := en.darkStart(v.lo)
-		nmaxAt := func(s float64) int {
-			n := min(wanted, int(math.Floor((oc.hi-E/2-s)/L))+1, int(math.Floor((vhi-s)/L)))
-			return n
+		// nmax(s): mid-times in the window and the end in the interval.
+		nmax := func(s float64) int {
+			return min(wanted, int(math.Floor((oc.hi-E/2-s)/L))+1, int(math.Floor((vhi-s)/L)))
 		}
 		add := func(s float64, n int) {
 			x := en.airmassTie(ts, s+0.5*float64(n)*L)
@@ -473,24 +476,24 @@ func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc o
 				val: score{main: w * goalValue(n, wanted), tie: -int64(math.Round(1000 * float64(n) * (x - 1)))},
 			})
 		}
-		starts := []float64{sMin}
-		for s := math.Floor(sMin/step)*step + step; s <= sMax1; s += step {
-			if s > sMin {
-				starts = append(starts, s)
+		onGrid := func(s float64) bool { return math.Mod(s, step) == 0 }
+		if first >= sMin && !onGrid(first) {
+			for n := 1; n <= nmax(first); n++ {
+				add(first, n)
 			}
 		}
-		for _, s := range starts {
-			for n := 1; n <= nmaxAt(s); n++ {
+		for s := math.Ceil(sMin/step) * step; s <= sMax1; s += step {
+			for n := 1; n <= nmax(s); n++ {
 				add(s, n)
 			}
 		}
 		for n := 1; n <= wanted; n++ {
-			s := math.Floor(math.Min(oc.hi-float64(n-1)*L-E/2, vhi-float64(n)*L))
+			s := math.Floor(oc.hi - float64(n-1)*L - E/2)
 			if s < sMin {
 				break
 			}
-			if s == sMin || math.Mod(s, step) == 0 {
-				continue // already a start above
+			if s == first || onGrid(s) || s+float64(n)*L > vhi {
+				continue
 			}
 			add(s, n)
 		}
