@@ -60,9 +60,28 @@ func importPlan(t *txn, listID int64, pf parsedFile) (ImportResult, []TargetInpu
 	for _, st := range existing {
 		byName[st.Target.Name] = st
 	}
-	te := &planner.TableError{}
+	te := &planner.TableError{Cells: append([]planner.CellError(nil), pf.Cells...)}
+	type key struct {
+		line   int
+		column string
+	}
+	seen := map[key]bool{}
+	badCoords := map[int]bool{} // lines whose position could not be read or is out of range
+	for _, c := range pf.Cells {
+		seen[key{c.Line, c.Column}] = true
+		if c.Column == "ra" || c.Column == "dec" {
+			badCoords[c.Line] = true
+		}
+	}
 	add := func(line int, field, value, reason string) {
 		col, n := pf.column(field)
+		if seen[key{line, col}] { // already reported while reading
+			return
+		}
+		seen[key{line, col}] = true
+		if col == "ra" || col == "dec" {
+			badCoords[line] = true
+		}
 		te.Cells = append(te.Cells, planner.CellError{Line: line, Col: n, Column: col, Value: planner.ClipValue(value), Reason: reason})
 	}
 	inputs := make([]TargetInput, len(pf.Rows))
@@ -74,9 +93,9 @@ func importPlan(t *txn, listID int64, pf parsedFile) (ImportResult, []TargetInpu
 		}
 		inputs[i] = in
 		name := in.Target.Name
-		if l, dup := firstLine[name]; dup {
+		if l, dup := firstLine[name]; dup && name != "" {
 			add(row.Line, "name", name, fmt.Sprintf("duplicate: the same name is on line %d", l))
-		} else {
+		} else if !dup {
 			firstLine[name] = row.Line
 		}
 	}
@@ -84,13 +103,17 @@ func importPlan(t *txn, listID int64, pf parsedFile) (ImportResult, []TargetInpu
 		te.Cells = append(te.Cells, planner.CellError{Line: pf.Rows[len(pf.Rows)-1].Line,
 			Reason: fmt.Sprintf("the list would hold more than %d targets", MaxTargets)})
 	}
-	if len(te.Cells) == 0 {
-		for _, d := range nearPairs(pf, inputs, existing) {
-			add(d.line, "ra", "", d.reason)
-		}
+	for _, d := range nearPairs(pf, inputs, existing, badCoords) {
+		add(d.line, "ra", "", d.reason)
 	}
 	if len(te.Cells) > 0 {
-		sort.SliceStable(te.Cells, func(i, j int) bool { return te.Cells[i].Line < te.Cells[j].Line })
+		sort.SliceStable(te.Cells, func(i, j int) bool {
+			a, b := te.Cells[i], te.Cells[j]
+			if a.Line != b.Line {
+				return a.Line < b.Line
+			}
+			return a.Col < b.Col
+		})
 		return res, nil, nil, tableErr(te)
 	}
 	befores := make([]StoredTarget, len(inputs))
@@ -196,7 +219,7 @@ func sepArcsec(ra1, dec1, ra2, dec2 float64) float64 {
 // target already on the list under another name. It sorts by declination
 // and compares only neighbours within the radius in declination, so it is
 // O(n log n) for spread-out lists.
-func nearPairs(pf parsedFile, inputs []TargetInput, existing []StoredTarget) []nearPair {
+func nearPairs(pf parsedFile, inputs []TargetInput, existing []StoredTarget, skip map[int]bool) []nearPair {
 	type pt struct {
 		ra, dec float64
 		line    int // 0 for an existing target
@@ -205,8 +228,10 @@ func nearPairs(pf parsedFile, inputs []TargetInput, existing []StoredTarget) []n
 	renamedAway := map[string]bool{} // existing names the file itself lists
 	var pts []pt
 	for i, in := range inputs {
-		pts = append(pts, pt{in.Target.RADeg, in.Target.DecDeg, pf.Rows[i].Line, in.Target.Name})
 		renamedAway[in.Target.Name] = true
+		if !skip[pf.Rows[i].Line] {
+			pts = append(pts, pt{in.Target.RADeg, in.Target.DecDeg, pf.Rows[i].Line, in.Target.Name})
+		}
 	}
 	for _, st := range existing {
 		if !renamedAway[st.Target.Name] {

@@ -62,6 +62,11 @@ type parsedFile struct {
 	Format      FileFormat
 	Rows        []fileRow
 	Assumptions []string
+	// Cells are the problems found while reading (text that is not a
+	// number, a missing required value, …). Rows holds every row that
+	// could be read at all, with or without such problems, so that the
+	// import can check the rest of each row too and report everything.
+	Cells []planner.CellError
 	// column maps a validation field name (e.g. "period_days",
 	// "goals[1].exposure_s") to the file's column (CSV) or member path
 	// (JSON) and its 1-based CSV column number (0 for JSON).
@@ -235,17 +240,13 @@ func parseTeamCSV(b []byte) (parsedFile, error) {
 		}
 		in, cells := parseTeamRow(rec, col, line)
 		te.Cells = append(te.Cells, cells...)
-		if len(cells) == 0 {
-			pf.Rows = append(pf.Rows, fileRow{Line: line, Input: in})
-		}
+		pf.Rows = append(pf.Rows, fileRow{Line: line, Input: in})
 	}
-	if len(te.Cells) > 0 {
-		return parsedFile{}, tableErr(te)
-	}
-	if len(pf.Rows) == 0 {
+	if len(pf.Rows) == 0 && len(te.Cells) == 0 {
 		add(headerLine+1, 0, "", "", "the file has a header but no targets")
 		return parsedFile{}, tableErr(te)
 	}
+	pf.Cells = te.Cells
 	pf.column = func(field string) (string, int) {
 		c := goalSubfield(field)
 		if strings.HasPrefix(c, "goals") || (strings.HasPrefix(field, "goals") && !hasKey(col, c)) {
@@ -719,17 +720,13 @@ func parseJSONFile(b []byte) (parsedFile, error) {
 		}
 		in, cells := jsonToInput(jt, line, i)
 		te.Cells = append(te.Cells, cells...)
-		if len(cells) == 0 {
-			pf.Rows = append(pf.Rows, fileRow{Line: line, Input: in})
-		}
+		pf.Rows = append(pf.Rows, fileRow{Line: line, Input: in})
 	}
-	if len(te.Cells) > 0 {
-		return parsedFile{}, tableErr(te)
-	}
-	if len(pf.Rows) == 0 {
+	if len(pf.Rows) == 0 && len(te.Cells) == 0 {
 		add(1, "targets", "", "the document has no targets")
 		return parsedFile{}, tableErr(te)
 	}
+	pf.Cells = te.Cells
 	pf.column = func(field string) (string, int) {
 		if _, ok := ephemMember[field]; ok {
 			return "ephemeris." + field, 0

@@ -146,14 +146,14 @@ func resolveEpoch(v *ValidationError, field string, e Epoch, st ephem.Star) (Epo
 	if err != nil {
 		var ie *ephem.InputError
 		if errors.As(err, &ie) {
-			f := field
+			f, val := field, e.Text
 			switch ie.Field {
 			case "standard", "from standard":
-				f = field + "_standard"
+				f, val = field+"_standard", string(e.Standard)
 			case "form":
-				f = field + "_form"
+				f, val = field+"_form", string(e.Form)
 			}
-			v.add(f, strings.Trim(ie.Value, `"`), ie.Accepted)
+			v.add(f, val, ie.Accepted)
 		} else {
 			v.add(field, e.Text, err.Error())
 		}
@@ -192,17 +192,22 @@ func validateTargetInput(in TargetInput) (TargetInput, *ValidationError) {
 	}
 	validateTags(v, t.Tags)
 	validNotes(v, "notes", t.Notes, MaxNotes)
-	if len(v.Fields) == 0 || (finite(t.RADeg) && finite(t.DecDeg)) {
-		if e, bjd, ok := resolveEpoch(v, "t0", in.T0, t.Star()); ok {
-			in.T0 = e
-			t.Ephem.T0 = bjd
-			if err := t.Ephem.Validate(); err != nil {
-				addEphemError(v, err)
-			} else {
-				validateGoals(v, *t)
-			}
+	ephemOK := false
+	if e, bjd, ok := resolveEpoch(v, "t0", in.T0, t.Star()); ok {
+		in.T0 = e
+		t.Ephem.T0 = bjd
+		if err := t.Ephem.Validate(); err != nil {
+			addEphemError(v, err)
+		} else {
+			ephemOK = true
 		}
+	} else if err := (ephem.Ephemeris{T0: ephem.JD2{Day: 2451544.5, Frac: 0.5}, T0ErrDays: t.Ephem.T0ErrDays, PeriodDays: t.Ephem.PeriodDays,
+		PeriodErr: t.Ephem.PeriodErr, CovT0P: t.Ephem.CovT0P, Pdot: t.Ephem.Pdot, PdotErr: t.Ephem.PdotErr, Convention: t.Ephem.Convention,
+		PhaseOffset: t.Ephem.PhaseOffset, Ecc: t.Ephem.Ecc, OmegaDeg: t.Ephem.OmegaDeg, CovT0Pdot: t.Ephem.CovT0Pdot,
+		CovPPdot: t.Ephem.CovPPdot}).Validate(); err != nil {
+		addEphemError(v, err) // the rest of the ephemeris, checked with a stand-in T0
 	}
+	validateGoals(v, *t, ephemOK)
 	validNotes(v, "ephem_note", in.EphemNote, MaxNotes)
 	return in, v
 }
@@ -225,7 +230,7 @@ func validateTags(v *ValidationError, tags []string) {
 // validateGoals checks the goals of t (whose ephemeris is valid) with the
 // planner's limits, resolving named events to catch impossible ones
 // (periastron of a circular orbit, an eclipse contact without a duration).
-func validateGoals(v *ValidationError, t planner.Target) {
+func validateGoals(v *ValidationError, t planner.Target, resolve bool) {
 	if len(t.Goals) > MaxGoals {
 		v.add("goals", strconv.Itoa(len(t.Goals))+" goals", fmt.Sprintf("at most %d goals", MaxGoals))
 		return
@@ -255,10 +260,10 @@ func validateGoals(v *ValidationError, t planner.Target) {
 		if g.MinNights < 0 || g.MinNights > 366 {
 			v.add(f+"min_nights", strconv.Itoa(g.MinNights), "0 to 366 nights")
 		}
-		if !finite(g.EclipseDurDays) || g.EclipseDurDays < 0 || g.EclipseDurDays >= t.Ephem.PeriodDays {
+		if !finite(g.EclipseDurDays) || g.EclipseDurDays < 0 || (t.Ephem.PeriodDays > 0 && g.EclipseDurDays >= t.Ephem.PeriodDays) {
 			v.add(f+"eclipse_duration_days", num(g.EclipseDurDays), "the eclipse's full duration in days, ≥ 0 and shorter than the period")
 		}
-		if len(v.Fields) == n0 && g.Event != "" {
+		if resolve && len(v.Fields) == n0 && g.Event != "" {
 			one := planner.Target{Name: t.Name, Ephem: t.Ephem, Goals: []planner.Goal{g}}
 			if _, err := one.ResolveGoals(); err != nil {
 				var ie *ephem.InputError
