@@ -48,9 +48,10 @@ func newPhaseClock(site ephem.Site, st ephem.Star, e ephem.Ephemeris, from, to f
 		t1 := timeOf(u1)
 		next := ephem.BJDTDB(site, st, t1)
 		end := next
-		before := t1.Add(-time.Nanosecond)
+		// 1 ms before the anchor: a float64 MJD cannot tell 1 ns from 0.
+		before := t1.Add(-time.Millisecond)
 		if ephem.TTMinusUTC(before) != ephem.TTMinusUTC(t1) {
-			end = ephem.BJDTDB(site, st, before).AddSeconds(1e-9)
+			end = ephem.BJDTDB(site, st, before).AddSeconds(1e-3)
 		}
 		c.pieces = append(c.pieces, clockPiece{u0: u0, u1: u1, b0: b, scale: end.SubDays(b) * 86400 / (u1 - u0)})
 		b = next
@@ -58,9 +59,10 @@ func newPhaseClock(site ephem.Site, st ephem.Star, e ephem.Ephemeris, from, to f
 	return c
 }
 
-// bjd returns BJD_TDB at Unix seconds u (extrapolated beyond the span).
+// bjd returns BJD_TDB at Unix seconds u (extrapolated beyond the span). An
+// anchor belongs to the piece that starts there.
 func (c *phaseClock) bjd(u float64) ephem.JD2 {
-	k := sort.Search(len(c.pieces), func(i int) bool { return c.pieces[i].u1 >= u })
+	k := sort.Search(len(c.pieces), func(i int) bool { return c.pieces[i].u1 > u })
 	if k == len(c.pieces) {
 		k--
 	}

@@ -108,25 +108,28 @@ func (e env) moonUp() bool { return e.moonAlt > moonUpAltDeg }
 // nightSky is the Sun and the Moon over [from, to] at a site.
 type nightSky struct {
 	site     ephem.Site
-	sun      series // x, y, z of the Sun's direction; [3] = its topocentric altitude
+	sun      series // x, y, z of the Sun's geocentric direction; [3] = its distance, au
 	moon     series // x, y, z of the Moon's direction; [3] = illuminated fraction
 	from, to float64
 }
 
 // newNightSky samples the Sun and the Moon at nodes covering [from, to]
 // with one spare node at each end (so that interpolation never
-// extrapolates), through ephem's full path: Site.SunAltDeg for the Sun's
-// topocentric altitude, Site.Horizontal of SunApparent for its direction;
-// Site.Horizontal of Site.MoonTopocentric for the Moon; MoonIlluminated.
+// extrapolates), through ephem's full path: Site.Horizontal of SunApparent
+// for the Sun's direction (its parallax is added to the interpolated
+// altitude, see sunAltOf); Site.Horizontal of Site.MoonTopocentric for the
+// Moon; MoonIlluminated. The direction's components are smooth (sinusoids
+// of the hour angle), unlike the altitude near culmination, so they are what
+// is interpolated.
 func newNightSky(site ephem.Site, from, to float64) *nightSky {
 	ns := &nightSky{site: site, from: from, to: to}
 	a, b := from-nodeStepS, to+nodeStepS
 	ns.sun = newSeries(a, b, nodeStepS, func(u float64) [5]float64 {
 		t := timeOf(u)
-		ra, dec, _ := ephem.SunApparent(t)
+		ra, dec, dist := ephem.SunApparent(t)
 		h := site.Horizontal(ra, dec, t)
 		v := horizonVec(h.AltDeg, h.AzDeg)
-		return [5]float64{v[0], v[1], v[2], site.SunAltDeg(t)}
+		return [5]float64{v[0], v[1], v[2], dist}
 	})
 	ns.moon = newSeries(a, b, nodeStepS, func(u float64) [5]float64 {
 		t := timeOf(u)
@@ -144,16 +147,29 @@ func unitOf(x, y, z float64) vec3 {
 }
 
 // sunAlt returns the Sun centre's altitude (airless, topocentric) at u.
-func (ns *nightSky) sunAlt(u float64) float64 { return ns.sun.at(u)[3] }
+func (ns *nightSky) sunAlt(u float64) float64 {
+	s := ns.sun.at(u)
+	return sunAltOf(unitOf(s[0], s[1], s[2]), s[3])
+}
+
+// sunAltOf returns the Sun's topocentric altitude, degrees, from its
+// geocentric direction and distance (au): the parallax in altitude
+// p = π·cos h with the horizontal parallax π = 8.794″/Δ (Meeus ch. 40;
+// the altitude form is common practice), good to far below 0.01″.
+func sunAltOf(geo vec3, distAU float64) float64 {
+	h := math.Asin(geo[2]) * radToDeg
+	return h - 8.794/3600/distAU*math.Cos(h*degToRad)
+}
 
 // at returns the Sun and the Moon at u.
 func (ns *nightSky) at(u float64) env {
 	s := ns.sun.at(u)
 	m := ns.moon.at(u)
 	mv := unitOf(m[0], m[1], m[2])
+	sv := unitOf(s[0], s[1], s[2])
 	return env{
-		sunAlt:  s[3],
-		sun:     unitOf(s[0], s[1], s[2]),
+		sunAlt:  sunAltOf(sv, s[3]),
+		sun:     sv,
 		moonAlt: math.Asin(mv[2]) * radToDeg,
 		moon:    mv,
 		illum:   min(max(m[3], 0), 1),
