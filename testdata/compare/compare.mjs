@@ -264,7 +264,7 @@ console.log(`  phasecast fast path vs its own full precision: ${as(fastFull)} (a
 console.log(`  astronomy-engine with its own ΔT (${aeDeltaT.toFixed(2)} s) vs with phasecast's TT − UTC (${pc.tt_minus_utc_s.toFixed(3)} s): altitudes move by at most ${as(dtShift)}`);
 console.log('\nairmass (Kasten & Young 1989 from each side\'s refracted altitude, same Saemundsson refraction at 1010 hPa, 10 °C):');
 for (const [name, d] of [['AE per sample vs phasecast fast path', dFastPer], ['AE once per night vs phasecast fast path', dFastOnce]]) {
-  console.log(`  ${name.padEnd(46)} max |ΔX| ${d.airmass_abs.toExponential(2)}, max |ΔX|/X ${d.airmass_rel.toExponential(2)} over ${d.airmass_n} samples above the horizon; ${d.horizon_disagree} samples above on one side only`);
+  console.log(`  ${name.padEnd(46)} max |ΔX| ${d.airmass_abs.toExponential(2)}, max |ΔX|/X ${d.airmass_rel.toExponential(2)} over ${d.airmass_n} samples above the horizon; above the horizon on one side only: ${d.horizon_disagree}`);
 }
 
 const rPer = ae[0].best_ms / pcT.fast.best_ms;
