@@ -157,7 +157,10 @@ func Parse(r io.Reader) (Calendar, error) {
 		return Calendar{}, errors.New("ical: the last line does not end in CRLF")
 	}
 	raw := strings.Split(strings.TrimSuffix(text, "\r\n"), "\r\n")
+	// Unfold into a builder per content line: appending to a string would
+	// copy it again for every continuation (quadratic in a long value).
 	var lines []string
+	var cur strings.Builder
 	for i, l := range raw {
 		if strings.ContainsAny(l, "\r\n") {
 			return Calendar{}, fmt.Errorf("ical: physical line %d: a bare CR or LF; lines must end in CRLF", i+1)
@@ -166,14 +169,19 @@ func Parse(r io.Reader) (Calendar, error) {
 			return Calendar{}, fmt.Errorf("ical: physical line %d is %d octets; at most 75 allowed", i+1, len(l))
 		}
 		if strings.HasPrefix(l, " ") || strings.HasPrefix(l, "\t") {
-			if len(lines) == 0 {
+			if i == 0 {
 				return Calendar{}, errors.New("ical: the first line is a continuation")
 			}
-			lines[len(lines)-1] += l[1:]
+			cur.WriteString(l[1:])
 			continue
 		}
-		lines = append(lines, l)
+		if i > 0 {
+			lines = append(lines, cur.String())
+			cur.Reset()
+		}
+		cur.WriteString(l)
 	}
+	lines = append(lines, cur.String())
 	var c Calendar
 	var ev *Event
 	for i, l := range lines {
