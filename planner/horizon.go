@@ -94,6 +94,24 @@ func (m *horizonMask) minAltDeg(azDeg float64) float64 {
 	return h0 + f*(h1-h0)
 }
 
+// HorizonAltDeg returns the lowest usable (refracted) altitude, degrees, of
+// the horizon mask at azimuth azDeg (degrees from north through east, any
+// value): linear interpolation in azimuth between neighbouring points,
+// wrapping through north; a single point is a constant mask. The points are
+// validated first (ValidateHorizon); an empty mask gives 0 (the horizon).
+func HorizonAltDeg(points []HorizonPoint, azDeg float64) (float64, error) {
+	if err := ValidateHorizon(points); err != nil {
+		return 0, err
+	}
+	if !finite(azDeg) {
+		return 0, &ephem.InputError{Field: "az", Value: fmtNum(azDeg), Accepted: "a finite azimuth in degrees"}
+	}
+	if len(points) == 0 {
+		return 0, nil
+	}
+	return newHorizonMask(points).minAltDeg(azDeg), nil
+}
+
 // ParseHorizon reads a horizon mask from text: one point per line, azimuth
 // and altitude in degrees separated by white space or a comma; blank lines
 // and lines starting with '#' are skipped. Every bad line is reported (line
