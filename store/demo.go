@@ -89,7 +89,7 @@ func demoTargets() []demoTarget {
 			ephem: ephem.Ephemeris{T0ErrDays: 0.0001, PeriodDays: 0.2496117, PeriodErr: 3e-7, Convention: inf},
 			goals: []planner.Goal{demoGoal("", 0.5, 0.06, 150, 8)}, priority: 3, tags: []string{"circumpolar", "reflection"},
 			notes: "Never sets from the demo site; reflection effect peaks at phase 0.5."},
-		{name: "PCX J1552-2130", ra: "15:52:47.12", dec: "-21:30:16.8", mag: 12.7, t0: "2459730.2241", std: ephem.StdBJDTDB,
+		{name: "PCX J1448+1830", ra: "14:48:47.12", dec: "+18:30:16.8", mag: 12.7, t0: "2459730.2241", std: ephem.StdBJDTDB,
 			ephem: ephem.Ephemeris{T0ErrDays: 0.002, PeriodDays: 0.873114, PeriodErr: 5e-6, Convention: inf, Ecc: 0.28, OmegaDeg: 142},
 			goals: []planner.Goal{demoGoal("periastron", 0, 0.03, 300, 10), demoGoal("max_recession", 0, 0.04, 300, 10),
 				demoGoal("max_approach", 0, 0.04, 300, 10)},

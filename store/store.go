@@ -126,18 +126,51 @@ type txn struct {
 	ctx   context.Context
 	now   time.Time
 	actor Actor
+	stmts map[string]*sql.Stmt // prepared once per transaction, closed with it
+}
+
+// stmt returns q prepared on the transaction, preparing it on first use:
+// SQLite's parser is a large part of a small statement's cost, and a bulk
+// import runs the same few statements thousands of times.
+func (t *txn) stmt(q string) (*sql.Stmt, error) {
+	if st, ok := t.stmts[q]; ok {
+		return st, nil
+	}
+	st, err := t.tx.PrepareContext(t.ctx, q)
+	if err != nil {
+		return nil, err
+	}
+	if t.stmts == nil {
+		t.stmts = map[string]*sql.Stmt{}
+	}
+	t.stmts[q] = st
+	return st, nil
 }
 
 func (t *txn) exec(q string, args ...any) (sql.Result, error) {
-	return t.tx.ExecContext(t.ctx, q, args...)
+	st, err := t.stmt(q)
+	if err != nil {
+		return nil, err
+	}
+	return st.ExecContext(t.ctx, args...)
 }
 
 func (t *txn) query(q string, args ...any) (*sql.Rows, error) {
-	return t.tx.QueryContext(t.ctx, q, args...)
+	st, err := t.stmt(q)
+	if err != nil {
+		return nil, err
+	}
+	return st.QueryContext(t.ctx, args...)
 }
 
+// queryRow is QueryRow on the cached statement; a preparation error comes
+// back from Scan, as database/sql does.
 func (t *txn) queryRow(q string, args ...any) *sql.Row {
-	return t.tx.QueryRowContext(t.ctx, q, args...)
+	st, err := t.stmt(q)
+	if err != nil {
+		return t.tx.QueryRowContext(t.ctx, q, args...) // reports the same error on Scan
+	}
+	return st.QueryRowContext(t.ctx, args...)
 }
 
 // beginWrite starts a write transaction on the single writer connection
