@@ -41,6 +41,11 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("POST /team/members/{id}/remove", s.inTeam(s.teamMemberRemove))
 
 	mux.HandleFunc("GET /tonight", s.inTeam(s.tonightShow))
+	mux.HandleFunc("GET /night", s.inTeam(s.nightShow))
+	mux.HandleFunc("GET /night/sheet", s.inTeam(s.nightSheet))
+	mux.HandleFunc("GET /night.csv", s.inTeam(s.nightExport("csv")))
+	mux.HandleFunc("GET /night.json", s.inTeam(s.nightExport("json")))
+	mux.HandleFunc("GET /night.ics", s.inTeam(s.nightExport("ics")))
 
 	// Targets and lists.
 	mux.HandleFunc("GET /targets", s.inTeam(s.targetsList))
@@ -58,6 +63,17 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("GET /lists/{id}/export.json", s.inTeam(s.listExport(store.FormatJSON)))
 	mux.HandleFunc("POST /lists/{id}/share", s.inTeam(s.shareCreate))
 	mux.HandleFunc("POST /shares/{id}/revoke", s.inTeam(s.shareRevoke))
+
+	// Sites.
+	mux.HandleFunc("GET /sites", s.inTeam(s.sitesList))
+	mux.HandleFunc("GET /sites/new", s.inTeam(s.siteNew))
+	mux.HandleFunc("POST /sites", s.inTeam(s.siteCreate))
+	mux.HandleFunc("GET /sites/{id}", s.inTeam(s.siteShow))
+	mux.HandleFunc("POST /sites/{id}", s.inTeam(s.siteUpdate))
+	mux.HandleFunc("POST /sites/{id}/delete", s.inTeam(s.siteDelete))
+
+	// Read-only share links (no sign-in).
+	mux.HandleFunc("GET /share/{token}", s.shareShow)
 
 	mux.HandleFunc("/", s.notFound)
 }

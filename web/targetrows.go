@@ -30,7 +30,7 @@ type targetRow struct {
 // (21 ms), invisible at the precision shown.
 func phaseSite(sites []store.SiteRecord) (ephem.Site, string) {
 	if len(sites) == 0 {
-		return ephem.Site{}, "a point on the equator at longitude 0° (the team has no site yet)"
+		return ephem.Site{}, "latitude 0°, longitude 0° (no site chosen)"
 	}
 	return sites[0].Site, sites[0].Name
 }

@@ -459,7 +459,7 @@ func phaseMarks(tr Track) []PhaseMark {
 }
 
 func (n Night) drawPhaseMarks(s *svg, g nightGeom, tr Track, colour, sc string) {
-	lastLabel := math.Inf(-1)
+	lastLabel, lastMark := math.Inf(-1), math.Inf(-1)
 	label := len(n.Tracks) <= 8 // more tracks: marks only, the legend explains them
 	for _, m := range phaseMarks(tr) {
 		alt := altAt(tr.Points, m.T)
@@ -467,6 +467,10 @@ func (n Night) drawPhaseMarks(s *svg, g nightGeom, tr Track, colour, sc string) 
 			continue
 		}
 		x, y := g.x(m.T), g.y(alt)
+		if x-lastMark < 7 {
+			continue // an orbit of minutes: marks this close would merge into a line
+		}
+		lastMark = x
 		if m.Phase < 0.25 || m.Phase >= 0.75 {
 			s.circle(x, y, 3, "class", "ph0 f"+sc[1:], "fill", colour)
 		} else {

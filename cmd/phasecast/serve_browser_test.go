@@ -1,0 +1,196 @@
+package main
+
+import (
+	"context"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/chromedp/cdproto/browser"
+	"github.com/chromedp/chromedp"
+
+	"phasecast/web/ical"
+)
+
+// chromiumPath is Debian's headless-capable browser.
+const chromiumPath = "/usr/bin/chromium"
+
+// e2eTargetsCSV is one invented target in the plan command's CSV format,
+// up in the evening sky of the demo site in any season only by luck: the
+// test checks the import, not that this target gets a block.
+const e2eTargetsCSV = "name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority\n" +
+	"Browser test binary BT-1,07:12:30.0,+21:45:00,2460500.123456,0.0812345,0.25;0.75,0.05,120,10,1\n"
+
+// TestBrowserEndToEnd drives the real server with headless Chromium: sign
+// in with the printed one-time link, import a target CSV through the
+// preview, plan a night and see its chart and blocks, download the
+// iCalendar export, and open a share link signed out. Screenshots go to the
+// test's temporary directory, and to $PHASECAST_SCREENSHOTS when set (the
+// README's images under docs/). Without Chromium it skips, except under
+// CI=true, where it fails.
+func TestBrowserEndToEnd(t *testing.T) {
+	if _, err := exec.LookPath(chromiumPath); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("chromium not found at %s (CI installs it: apt-get install -y chromium)", chromiumPath)
+		}
+		t.Skipf("skipped: chromium not found at %s", chromiumPath)
+	}
+	shots := t.TempDir()
+	app := startServe(t, filepath.Join(t.TempDir(), "phasecast.db"))
+	defer func() {
+		if err := app.stop(); err != nil {
+			t.Errorf("graceful shutdown: %v", err)
+		}
+	}()
+	if app.link == "" {
+		t.Fatalf("no sign-in link printed:\n%s", app.stdout.String())
+	}
+	ctx := newBrowser(t)
+	step := func(name string, actions ...chromedp.Action[chromedp.Void]) {
+		t.Helper()
+		sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
+		defer cancel()
+		if err := chromedp.Do(sctx, actions...); err != nil {
+			saveShot(t, ctx, shots, "failed-"+name+".png")
+			t.Fatalf("%s: %v", name, err)
+		}
+	}
+
+	// Sign in with the printed link: one click on the page it opens.
+	step("sign in", chromedp.Navigate(app.link), chromedp.Click(chromedp.CSS(`[data-testid=link-signin]`)),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid=whoami]`)))
+
+	// Import a CSV through the preview.
+	csvPath := filepath.Join(t.TempDir(), "targets.csv")
+	if err := os.WriteFile(csvPath, []byte(e2eTargetsCSV), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	step("open import", chromedp.Navigate(app.base+"/targets"), chromedp.Click(chromedp.CSS(`[data-testid=import-link]`)),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid=import-form]`)))
+	step("preview import", chromedp.SetUploadFiles(chromedp.CSS(`[data-testid=import-file]`), []string{csvPath}),
+		chromedp.Click(chromedp.CSS(`[data-testid=import-preview-submit]`)), chromedp.WaitVisible(chromedp.CSS(`[data-testid=import-preview]`)))
+	preview := text(t, ctx, `[data-testid=import-preview]`)
+	if !strings.Contains(preview, "BT-1") || !strings.Contains(preview, "add") {
+		t.Errorf("preview does not show the new target as an add:\n%s", preview)
+	}
+	step("confirm import", chromedp.Click(chromedp.CSS(`[data-testid=import-confirm]`)),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid=targets-table]`)))
+	if table := text(t, ctx, `[data-testid=targets-table]`); !strings.Contains(table, "BT-1") {
+		t.Errorf("the imported target is not in the table")
+	}
+	saveShot(t, ctx, shots, "targets.png")
+
+	// Plan a night: the demo's first night, at its site, on its list.
+	step("plan", chromedp.Navigate(app.base+"/night"), chromedp.WaitVisible(chromedp.CSS(`[data-testid=night-chart] svg`)),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid=blocks]`)))
+	rows, err := chromedp.Run(ctx, chromedp.Evaluate[int](`document.querySelectorAll('[data-testid=block-row]').length`))
+	if err != nil || rows == 0 {
+		t.Errorf("block rows on the night page: %d (err %v), want some", rows, err)
+	}
+	saveShot(t, ctx, shots, "night.png")
+
+	// Download the iCalendar export through the browser.
+	dl := t.TempDir()
+	if _, err := chromedp.Call(ctx, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{
+		Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: dl}); err != nil {
+		t.Fatal(err)
+	}
+	step("download ics", chromedp.Click(chromedp.CSS(`[data-testid=export-night-ics]`)))
+	ics := waitForFile(t, dl, ".ics")
+	f, err := os.Open(ics)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cal, err := ical.Parse(f)
+	f.Close()
+	if err != nil {
+		t.Fatalf("the downloaded %s does not parse: %v", filepath.Base(ics), err)
+	}
+	if len(cal.Events) != rows {
+		t.Errorf("iCalendar has %d events, the page %d blocks", len(cal.Events), rows)
+	}
+
+	// Make a share link of the list and open it in a signed-out browser.
+	step("share", chromedp.Navigate(app.base+"/targets"), chromedp.Click(chromedp.CSS(`[data-testid=share-create]`)),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid=new-share]`)))
+	link := strings.TrimSpace(text(t, ctx, `[data-testid=new-share]`))
+	anon := newBrowser(t)
+	sctx, cancel := context.WithTimeout(anon, 30*time.Second)
+	defer cancel()
+	if err := chromedp.Do(sctx, chromedp.Navigate(link), chromedp.WaitVisible(chromedp.CSS(`[data-testid=share-targets]`))); err != nil {
+		t.Fatalf("open the share link signed out: %v", err)
+	}
+	if n, _ := chromedp.Run(sctx, chromedp.Evaluate[int](`document.querySelectorAll('[data-testid=whoami]').length`)); n != 0 {
+		t.Error("the share page shows a signed-in user")
+	}
+	saveShot(t, anon, shots, "share.png")
+	t.Logf("screenshots in %s", shots)
+}
+
+// newBrowser starts a headless Chromium with its own profile (so a second
+// one is signed out) and returns its context.
+func newBrowser(t *testing.T) context.Context {
+	t.Helper()
+	opts := append(chromedp.DefaultExecAllocatorOptions[:],
+		chromedp.ExecPath(chromiumPath), chromedp.NoSandbox, chromedp.DisableGPU,
+		chromedp.Flag("disable-quic", true), chromedp.Flag("disable-component-update", true),
+		chromedp.UserDataDir(t.TempDir()), chromedp.WindowSize(1280, 900))
+	actx, cancelA := chromedp.NewExecAllocator(context.Background(), opts...)
+	ctx, cancel := chromedp.NewContext(actx)
+	t.Cleanup(func() { cancel(); cancelA() })
+	// Start the browser and its tab on ctx itself, so that the steps' own
+	// timeouts (derived contexts) do not close it.
+	if err := chromedp.Do(ctx); err != nil {
+		t.Fatalf("start chromium: %v", err)
+	}
+	return ctx
+}
+
+// text returns the text of the first element matching css.
+func text(t *testing.T, ctx context.Context, css string) string {
+	t.Helper()
+	s, err := chromedp.Run(ctx, chromedp.Text(chromedp.CSS(css)))
+	if err != nil {
+		t.Fatalf("text of %s: %v", css, err)
+	}
+	return s
+}
+
+// saveShot writes a full-page PNG screenshot to dir and, when
+// PHASECAST_SCREENSHOTS is set, to that directory too.
+func saveShot(t *testing.T, ctx context.Context, dir, name string) {
+	t.Helper()
+	png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100))
+	if err != nil {
+		t.Logf("screenshot %s: %v", name, err)
+		return
+	}
+	for _, d := range []string{dir, os.Getenv("PHASECAST_SCREENSHOTS")} {
+		if d == "" {
+			continue
+		}
+		if err := os.WriteFile(filepath.Join(d, name), png, 0o644); err != nil {
+			t.Errorf("save screenshot: %v", err)
+		}
+	}
+}
+
+// waitForFile waits up to 20 s for a finished download with suffix in dir.
+func waitForFile(t *testing.T, dir, suffix string) string {
+	t.Helper()
+	deadline := time.Now().Add(20 * time.Second)
+	for time.Now().Before(deadline) {
+		entries, _ := os.ReadDir(dir)
+		for _, e := range entries {
+			if strings.HasSuffix(e.Name(), suffix) {
+				return filepath.Join(dir, e.Name())
+			}
+		}
+		time.Sleep(100 * time.Millisecond)
+	}
+	t.Fatalf("no %s file downloaded into %s", suffix, dir)
+	return ""
+}

@@ -1,0 +1,243 @@
+package web
+
+import (
+	"context"
+	"fmt"
+	"net/url"
+	"slices"
+	"strconv"
+	"strings"
+	"time"
+
+	"phasecast/ephem"
+	"phasecast/planner"
+	"phasecast/store"
+	"phasecast/web/page"
+)
+
+// nightQuery is a night request as the Night page's GET form sends it:
+// ?site=&date=&list=&t=&t=&twilight=&max_airmass=&min_alt=&min_moon_sep=
+// &max_moon_illum=&sun_avoid=&fill=1. Empty fields take defaults: the
+// team's first site and list, tonight at the site, the site's constraints.
+type nightQuery struct {
+	siteID, listID int64
+	date           string // YYYY-MM-DD; "" = tonight at the site
+	targetIDs      []int64
+	twilight       string
+	maxAirmass     string
+	minAlt         string
+	minMoonSep     string
+	maxMoonIllum   string
+	sunAvoid       string
+	fill           bool
+}
+
+// parseNightQuery reads a night request; ids that do not parse are
+// malformed (the form writes them).
+func parseNightQuery(q url.Values) (nightQuery, error) {
+	n := nightQuery{date: strings.TrimSpace(q.Get("date")), twilight: q.Get("twilight"), maxAirmass: strings.TrimSpace(q.Get("max_airmass")),
+		minAlt: strings.TrimSpace(q.Get("min_alt")), minMoonSep: strings.TrimSpace(q.Get("min_moon_sep")),
+		maxMoonIllum: strings.TrimSpace(q.Get("max_moon_illum")), sunAvoid: strings.TrimSpace(q.Get("sun_avoid")), fill: q.Get("fill") == "1"}
+	var err error
+	if n.siteID, err = optID(q.Get("site")); err != nil {
+		return n, err
+	}
+	if n.listID, err = optID(q.Get("list")); err != nil {
+		return n, err
+	}
+	for _, t := range q["t"] {
+		id, err := optID(t)
+		if err != nil {
+			return n, err
+		}
+		n.targetIDs = append(n.targetIDs, id)
+	}
+	return n, nil
+}
+
+func optID(s string) (int64, error) {
+	if s == "" {
+		return 0, nil
+	}
+	id, err := strconv.ParseInt(s, 10, 64)
+	if err != nil || id <= 0 {
+		return 0, fmt.Errorf("%w: id %q", errMalformed, s)
+	}
+	return id, nil
+}
+
+// encode writes the request back as a query string (with the defaults it
+// resolved to, so that exports plan the same night).
+func (n nightQuery) encode() string {
+	q := url.Values{}
+	q.Set("site", i64s(n.siteID))
+	q.Set("date", n.date)
+	q.Set("list", i64s(n.listID))
+	for _, id := range n.targetIDs {
+		q.Add("t", i64s(id))
+	}
+	for k, v := range map[string]string{"twilight": n.twilight, "max_airmass": n.maxAirmass, "min_alt": n.minAlt,
+		"min_moon_sep": n.minMoonSep, "max_moon_illum": n.maxMoonIllum, "sun_avoid": n.sunAvoid} {
+		if v != "" {
+			q.Set(k, v)
+		}
+	}
+	if n.fill {
+		q.Set("fill", "1")
+	}
+	return q.Encode()
+}
+
+// night is a planned night with what the pages and exports show.
+type night struct {
+	q       nightQuery
+	site    store.SiteRecord
+	sites   []store.SiteRecord
+	lists   []store.TargetList
+	list    store.TargetList
+	all     []store.StoredTarget // the whole list
+	targets []store.StoredTarget // the ones planned
+	loc     *time.Location
+	y       int
+	m       time.Month
+	d       int
+	req     planner.NightRequest
+	plan    *planner.Plan
+	events  ephem.NightEvents
+}
+
+// loadNight resolves the request's site, list and targets for the actor
+// and fills in defaults. It plans nothing yet. errs holds messages for
+// form fields the user must fix.
+func (s *Server) loadNight(ctx context.Context, a store.Actor, teamID int64, q nightQuery) (*night, page.Errs, error) {
+	n := &night{q: q}
+	errs := page.Errs{}
+	var err error
+	if n.sites, err = s.store.ListSites(ctx, a, teamID); err != nil {
+		return nil, nil, err
+	}
+	if n.lists, err = s.store.ListLists(ctx, a, teamID); err != nil {
+		return nil, nil, err
+	}
+	if len(n.sites) == 0 || len(n.lists) == 0 {
+		return n, errs, nil
+	}
+	n.site, n.q.siteID = pick(n.sites, q.siteID, func(r store.SiteRecord) int64 { return r.ID })
+	n.list, n.q.listID = pick(n.lists, q.listID, func(l store.TargetList) int64 { return l.ID })
+	if n.loc, err = time.LoadLocation(n.site.Zone); err != nil {
+		n.loc = time.UTC
+	}
+	if q.date == "" {
+		n.q.date = tonight(s.now(), n.loc)
+	}
+	y, m, d, err := ephem.ParseDate(n.q.date)
+	if err != nil {
+		errs["date"] = fmt.Sprintf("“%s” is not a date; accepted: YYYY-MM-DD", n.q.date)
+	}
+	n.y, n.m, n.d = y, m, d
+	if n.all, err = s.store.ListTargets(ctx, a, n.list.ID); err != nil {
+		return nil, nil, err
+	}
+	n.targets = n.all
+	if len(q.targetIDs) > 0 {
+		n.targets = nil
+		for _, t := range n.all {
+			if slices.Contains(q.targetIDs, t.ID) {
+				n.targets = append(n.targets, t)
+			}
+		}
+	}
+	return n, errs, nil
+}
+
+// pick returns the element with id want, or the first one.
+func pick[T any](xs []T, want int64, id func(T) int64) (T, int64) {
+	for _, x := range xs {
+		if id(x) == want {
+			return x, want
+		}
+	}
+	return xs[0], id(xs[0])
+}
+
+// tonight is the local date of the evening of the night in progress or
+// coming at now: before local noon, the night that began yesterday.
+func tonight(now time.Time, loc *time.Location) string {
+	l := now.In(loc)
+	if l.Hour() < 12 {
+		l = l.AddDate(0, 0, -1)
+	}
+	return l.Format("2006-01-02")
+}
+
+// constraints returns the site's constraints with the request's overrides,
+// and messages for overrides that do not parse.
+func (n *night) constraints(errs page.Errs) planner.Constraints {
+	c := n.site.PlanConstraints()
+	if n.q.twilight != "" {
+		if tw, err := planner.ParseTwilight(n.q.twilight); err != nil {
+			errs["twilight"] = fmt.Sprintf("“%s” is not accepted; accepted: civil, nautical or astronomical", n.q.twilight)
+		} else {
+			c.Twilight = tw
+		}
+	}
+	for _, o := range []struct {
+		field, text string
+		dst         *float64
+	}{{"max_airmass", n.q.maxAirmass, &c.MaxAirmass}, {"min_alt", n.q.minAlt, &c.MinAltDeg}, {"min_moon_sep", n.q.minMoonSep, &c.MinMoonSepDeg},
+		{"max_moon_illum", n.q.maxMoonIllum, &c.MaxMoonIllum}, {"sun_avoid", n.q.sunAvoid, &c.SunAvoidDeg}} {
+		if o.text == "" {
+			continue
+		}
+		v, err := strconv.ParseFloat(o.text, 64)
+		if err != nil {
+			errs[o.field] = fmt.Sprintf("“%s” is not a number", o.text)
+			continue
+		}
+		*o.dst = v
+	}
+	return c
+}
+
+// planIt plans the night. Constraint values the planner refuses become
+// messages on their fields.
+func (n *night) planIt(errs page.Errs) error {
+	c := n.constraints(errs)
+	if len(errs) > 0 {
+		return nil
+	}
+	from, to := planner.NightWindow(n.y, n.m, n.d, n.loc)
+	n.req = planner.NightRequest{Site: n.site.Site, From: from, To: to, Constraints: c, Options: planner.Options{Fill: n.q.fill}}
+	for _, t := range n.targets {
+		n.req.Targets = append(n.req.Targets, t.Target)
+	}
+	plan, err := planner.PlanNight(n.req)
+	if err != nil {
+		if fe, _, ok := formErrs(err); ok {
+			for k, v := range fe {
+				if _, known := constraintField[k]; known {
+					k = constraintField[k]
+				} else {
+					k = ""
+				}
+				errs[k] = v
+			}
+			return nil
+		}
+		return err
+	}
+	n.plan = plan
+	n.events = ephem.Night(n.site.Site, n.y, n.m, n.d, n.loc)
+	return nil
+}
+
+// constraintField maps the planner's constraint field names to the form's.
+var constraintField = map[string]string{
+	"twilight": "twilight", "max_airmass": "max_airmass", "min_alt": "min_alt", "min_moon_sep": "min_moon_sep",
+	"max_moon_illum": "max_moon_illum", "sun_avoid": "sun_avoid",
+}
+
+// title names the night: "Night of 2026-03-14 at Mount Example".
+func (n *night) title() string {
+	return "Night of " + n.q.date + " at " + n.site.Name
+}

@@ -1,0 +1,213 @@
+package web
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+	"time"
+
+	"phasecast/planner"
+	"phasecast/web/chart"
+	"phasecast/web/page"
+)
+
+// chartStep is the sampling step of the night chart's curves.
+const chartStep = 2 * time.Minute
+
+// nightForm fills the request form from the resolved request.
+func (n *night) form(errs page.Errs) page.NightForm {
+	f := page.NightForm{Date: n.q.date, MaxAirmass: n.q.maxAirmass, MinAlt: n.q.minAlt, MinMoonSep: n.q.minMoonSep,
+		MaxMoonIllum: n.q.maxMoonIllum, SunAvoid: n.q.sunAvoid, Fill: n.q.fill, Errs: errs}
+	for _, st := range n.sites {
+		f.Sites = append(f.Sites, page.Option{Value: i64s(st.ID), Label: st.Name, Selected: st.ID == n.site.ID})
+	}
+	for _, l := range n.lists {
+		f.Lists = append(f.Lists, page.Option{Value: i64s(l.ID), Label: l.Name, Selected: l.ID == n.list.ID})
+	}
+	for _, t := range n.all {
+		checked := false
+		for _, id := range n.q.targetIDs {
+			checked = checked || id == t.ID
+		}
+		f.Targets = append(f.Targets, page.TargetChoice{ID: t.ID, Name: t.Target.Name, Checked: checked})
+	}
+	f.Twilight = []page.Option{{Value: "", Label: "site default"}, {Value: "civil", Label: "civil (Sun below −6°)"},
+		{Value: "nautical", Label: "nautical (−12°)"}, {Value: "astronomical", Label: "astronomical (−18°)"}}
+	for i := range f.Twilight {
+		f.Twilight[i].Selected = f.Twilight[i].Value == n.q.twilight
+	}
+	return f
+}
+
+// view builds the Night page's result part from the plan.
+func (n *night) view(now time.Time) (page.NightView, error) {
+	p := n.plan
+	zone, _ := time.Now().In(n.loc).Zone()
+	if len(p.Blocks) > 0 {
+		zone, _ = p.Blocks[0].Start.In(n.loc).Zone()
+	} else if n.events.Sunset != nil {
+		zone, _ = n.events.Sunset.In(n.loc).Zone()
+	}
+	v := page.NightView{HasPlan: true, Title: n.title(), Zone: zone, Query: n.q.encode()}
+	v.Events = n.eventRows()
+	for _, b := range p.Blocks {
+		v.Blocks = append(v.Blocks, n.blockRow(b))
+	}
+	for _, w := range p.Warnings {
+		if w.Code == planner.WarnSunAvoidApplied || w.GoalIndex >= 0 && isBlockWarning(w) {
+			continue
+		}
+		v.Warnings = append(v.Warnings, warningText(w))
+	}
+	for _, u := range p.Unscheduled {
+		v.Unscheduled = append(v.Unscheduled, page.UnschedRow{Target: u.Target, Goal: goalLabel(u.Goal), Reason: u.Detail})
+	}
+	v.Objective = objectiveText(p)
+	c, err := n.chart(now)
+	if err != nil {
+		return v, err
+	}
+	v.Chart = c
+	return v, nil
+}
+
+// isBlockWarning reports warnings already shown under their block.
+func isBlockWarning(w planner.Warning) bool {
+	switch w.Code {
+	case planner.WarnSmear, planner.WarnMoonNear, planner.WarnTwilightStart:
+		return true
+	}
+	return false
+}
+
+func warningText(w planner.Warning) string {
+	if w.Target == "" {
+		return w.Message
+	}
+	return w.Target + ": " + w.Message
+}
+
+// objectiveText states how the schedule was chosen.
+func objectiveText(p *planner.Plan) string {
+	s := fmt.Sprintf("Schedule value %d (greedy first-fit on the same candidates: %d), from %d candidate blocks", p.Value, p.GreedyValue, p.Candidates)
+	if p.Optimal {
+		return s + "; optimal for the planner's objective."
+	}
+	return s + "; the search stopped early, so the schedule may fall short of the optimum."
+}
+
+// eventRows lists the Sun and Moon events that happen.
+func (n *night) eventRows() []page.EventRow {
+	ev := n.events
+	var out []page.EventRow
+	for _, e := range []struct {
+		name string
+		t    *time.Time
+	}{{"Sunset", ev.Sunset}, {"Civil dusk", ev.CivilDusk}, {"Nautical dusk", ev.NauticalDusk}, {"Astro. dusk", ev.AstronomicalDusk},
+		{"Astro. dawn", ev.AstronomicalDawn}, {"Nautical dawn", ev.NauticalDawn}, {"Civil dawn", ev.CivilDawn}, {"Sunrise", ev.Sunrise},
+		{"Moonrise", ev.Moonrise}, {"Moonset", ev.Moonset}} {
+		if e.t == nil {
+			out = append(out, page.EventRow{Name: e.name, Local: "—", UTC: "—"})
+			continue
+		}
+		out = append(out, page.EventRow{Name: e.name, Local: e.t.In(n.loc).Format("15:04"), UTC: e.t.UTC().Format("15:04")})
+	}
+	out = append(out, page.EventRow{Name: "Moon lit", Local: fmt.Sprintf("%.0f%%", ev.MoonIlluminated*100), UTC: ""})
+	return out
+}
+
+// blockRow formats one block with every figure.
+func (n *night) blockRow(b planner.Block) page.BlockRow {
+	r := page.BlockRow{Target: b.Target, Goal: goalLabel(b.Goal), Priority: b.Priority, Filler: b.Filler,
+		Local:     b.Start.In(n.loc).Format("15:04:05") + "–" + b.End.In(n.loc).Format("15:04:05"),
+		UTC:       b.Start.UTC().Format("15:04:05") + "–" + b.End.UTC().Format("15:04:05"),
+		Exposures: fmt.Sprintf("%d × %s s + %s s", b.N, num(b.ExposureS), num(b.OverheadS)),
+		Phases:    fmt.Sprintf("%.3f → %.3f", b.PhaseStart, b.PhaseEnd),
+		MidPhases: fmt.Sprintf("%.3f → %.3f", b.PhaseFirstMid, b.PhaseLastMid),
+		Smear:     fmt.Sprintf("%.4f", b.Smear), PhaseErr: fmtPhaseErr(b.PhaseErr),
+		Airmass:    fmt.Sprintf("%.2f–%.2f", b.AirmassMin, b.AirmassMax),
+		MoonSep:    fmt.Sprintf("%.0f°", b.MoonSepDeg),
+		Parallatic: fmt.Sprintf("%.0f°", b.Parallactic), HourAngle: fmt.Sprintf("%+.2f h", b.HourAngle),
+		SunAlt: fmt.Sprintf("%.1f°", b.SunAltStart), Acquire: num(b.AcquireS) + " s", Cycle: strconv.FormatInt(b.Cycle, 10)}
+	if !b.MoonUp {
+		r.MoonSep += " (down)"
+	}
+	if b.Filler {
+		r.Goal = "filler"
+	}
+	for _, w := range b.Warnings {
+		r.Warnings = append(r.Warnings, w.Message)
+	}
+	return r
+}
+
+// goalLabel names a goal: "φ 0.25 ± 0.05" or "quadrature (max recession) φ 0.25 ± 0.05".
+func goalLabel(g planner.Goal) string {
+	s := fmt.Sprintf("φ %s ± %s", num(g.Center), num(g.HalfWidth))
+	if g.Event != "" {
+		s = strings.ReplaceAll(g.Event, "_", " ") + ", " + s
+	}
+	return s
+}
+
+// num formats a number compactly.
+func num(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
+
+// chart builds the night chart: sampled curves from the planner, blocks
+// from the plan, drawn from an hour before sunset to an hour after sunrise.
+func (n *night) chart(now time.Time) (chart.Night, error) {
+	from, to := n.chartSpan()
+	samples, err := planner.SampleNight(n.site.Site, from, to, n.req.Targets, chartStep)
+	if err != nil {
+		return chart.Night{}, err
+	}
+	c := chart.Night{Title: n.title(), Start: from, End: to, Zone: n.loc, Now: now,
+		MoonLabel: fmt.Sprintf("Moon %.0f%% lit", samples.MoonIllum*100)}
+	for _, b := range samples.Bands {
+		c.Bands = append(c.Bands, chart.Band{Start: b.Start, End: b.End, Kind: b.Kind})
+	}
+	for i, t := range samples.Times {
+		c.Moon = append(c.Moon, chart.AltPoint{T: t, AltDeg: samples.MoonAltDeg[i]})
+	}
+	for _, ts := range samples.Targets {
+		tr := chart.Track{Name: ts.Name, Points: make([]chart.TrackPoint, len(samples.Times))}
+		for i, t := range samples.Times {
+			tr.Points[i] = chart.TrackPoint{T: t, AltDeg: ts.AltDeg[i], Phase: ts.Phase[i]}
+		}
+		for _, w := range ts.Windows {
+			tr.Goals = append(tr.Goals, chart.Span{Start: w.Start, End: w.End, Label: num(w.Center)})
+		}
+		c.Tracks = append(c.Tracks, tr)
+	}
+	for _, b := range n.plan.Blocks {
+		label := fmt.Sprintf("φ%s ×%d", num(b.Goal.Center), b.N)
+		if b.Filler {
+			label = fmt.Sprintf("fill ×%d", b.N)
+		}
+		c.Blocks = append(c.Blocks, chart.Block{Target: b.Target, Start: b.Start, End: b.End, Label: label, Filler: b.Filler})
+	}
+	for _, x := range []float64{1.0, 1.2, 1.5, 2.0, 3.0} {
+		c.Airmass = append(c.Airmass, chart.Tick{AltDeg: planner.AirmassAltDeg(x), Label: strconv.FormatFloat(x, 'f', 1, 64)})
+	}
+	cons := n.plan.Constraints
+	if cons.MaxAirmass > 0 {
+		c.LimitAltDeg, c.LimitLabel = planner.AirmassAltDeg(cons.MaxAirmass), "airmass "+num(cons.MaxAirmass)
+	}
+	if cons.MinAltDeg > c.LimitAltDeg {
+		c.LimitAltDeg, c.LimitLabel = cons.MinAltDeg, "altitude "+num(cons.MinAltDeg)+"°"
+	}
+	return c, nil
+}
+
+// chartSpan is an hour before sunset to an hour after sunrise, within the
+// planning window (the whole window when the Sun does not set or rise).
+func (n *night) chartSpan() (time.Time, time.Time) {
+	from, to := n.req.From, n.req.To
+	if n.events.Sunset != nil && n.events.Sunset.Add(-time.Hour).After(from) {
+		from = n.events.Sunset.Add(-time.Hour).Truncate(30 * time.Minute)
+	}
+	if n.events.Sunrise != nil && n.events.Sunrise.Add(time.Hour).Before(to) {
+		to = n.events.Sunrise.Add(90 * time.Minute).Truncate(30 * time.Minute)
+	}
+	return from, to
+}
