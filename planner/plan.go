@@ -254,6 +254,8 @@ type engine struct {
 	from, to   float64
 	dark       []span
 	day        []badSpan
+	envGrid    []env // Sun and Moon on the StepS grid in dark time (see envAt)
+	envK0      int   // grid index of envGrid[0]
 }
 
 // occMeta describes one goal occurrence.
@@ -371,6 +373,7 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 		}
 		return m, 0
 	})
+	en.fillEnvCache()
 	frame := ephem.NewSkyFrame(req.Site, req.From, req.To)
 	targets := make([]*targetState, len(req.Targets))
 	for i, t := range req.Targets {

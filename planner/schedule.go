@@ -132,23 +132,22 @@ func sortCandidates(cs []candidate) {
 	copy(cs, out)
 }
 
-// topEntry is a running best: value, key (target or occurrence) and the
-// candidate achieving it.
+// topEntry is a running best: value, key (target or occurrence), the label
+// achieving it, and whether it is set.
 type topEntry struct {
 	val  score
-	key  int
-	cand int
+	key  int32
+	cand int32
 	ok   bool
 }
 
-// prefixBest is the best two entries with distinct keys among the candidates
-// ending at or before end.
+// prefixBest is the best two entries with distinct keys.
 type prefixBest struct {
-	end  float64
 	a, b topEntry
 }
 
-func (p prefixBest) with(t topEntry) prefixBest {
+// add merges t in place.
+func (p *prefixBest) add(t topEntry) {
 	switch {
 	case !p.a.ok:
 		p.a = t
@@ -161,10 +160,10 @@ func (p prefixBest) with(t topEntry) prefixBest {
 	case !p.b.ok || p.b.val.less(t.val):
 		p.b = t
 	}
-	return p
 }
 
-func (p prefixBest) excluding(key int) topEntry {
+// excluding returns the best entry whose key is not key (ok false if none).
+func (p *prefixBest) excluding(key int32) topEntry {
 	if p.a.ok && p.a.key != key {
 		return p.a
 	}
@@ -244,12 +243,12 @@ func (pr *problem) greedy(order []int) []int {
 	var placed []int // in time order
 	for _, occ := range order {
 		idx := byOcc[occ]
-		sort.SliceStable(idx, func(a, b int) bool {
-			ca, cb := &pr.cands[idx[a]], &pr.cands[idx[b]]
+		slices.SortStableFunc(idx, func(a, b int) int {
+			ca, cb := &pr.cands[a], &pr.cands[b]
 			if ca.start != cb.start {
-				return ca.start < cb.start
+				return cmp.Compare(ca.start, cb.start)
 			}
-			return ca.n > cb.n
+			return cmp.Compare(cb.n, ca.n)
 		})
 		for _, i := range idx {
 			c := &pr.cands[i]

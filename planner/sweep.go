@@ -246,12 +246,12 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 				}
 				var t topEntry
 				if e.kind == evQueryOther {
-					t = b.all.excluding(c.target)
+					t = b.all.excluding(int32(c.target))
 				} else {
-					t = b.per[c.target].excluding(c.occ)
+					t = b.per[c.target].excluding(int32(c.occ))
 				}
 				if t.ok {
-					addPending(g, b, t.val, int32(t.cand))
+					addPending(g, b, t.val, t.cand)
 				}
 			}
 		case evInsert:
@@ -285,8 +285,8 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 				v := p.val.plus(c.val)
 				id := int32(len(labels))
 				labels = append(labels, label{cand: e.idx, pred: p.pred, val: v})
-				b.all = b.all.with(topEntry{val: v, key: c.target, cand: int(id), ok: true})
-				b.per[c.target] = b.per[c.target].with(topEntry{val: v, key: c.occ, cand: int(id), ok: true})
+				b.all.add(topEntry{val: v, key: int32(c.target), cand: id, ok: true})
+				b.per[c.target].add(topEntry{val: v, key: int32(c.occ), cand: id, ok: true})
 			}
 			if len(buckets) > maxBuckets {
 				return sweepResult{buckets: maxLive}
@@ -304,9 +304,9 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 					continue
 				}
 				to := getBucket(stateWithout(b.state, k))
-				to.all = mergeBest(to.all, b.all)
+				mergeBest(&to.all, &b.all)
 				for t := range to.per {
-					to.per[t] = mergeBest(to.per[t], b.per[t])
+					mergeBest(&to.per[t], &b.per[t])
 				}
 				b.merged = to
 				delete(byKey, stateKey(b.state))
@@ -325,7 +325,7 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 		return res
 	}
 	res.value = best.val
-	for id := int32(best.cand); id >= 0; id = labels[id].pred {
+	for id := best.cand; id >= 0; id = labels[id].pred {
 		res.chosen = append(res.chosen, int(labels[id].cand))
 	}
 	slices.Reverse(res.chosen)
@@ -382,15 +382,14 @@ func subset(a, b []int32) bool {
 	return true
 }
 
-// mergeBest merges two running bests (each its best two distinct keys).
-func mergeBest(a, b prefixBest) prefixBest {
+// mergeBest merges b's two entries into a.
+func mergeBest(a *prefixBest, b *prefixBest) {
 	if b.a.ok {
-		a = a.with(b.a)
+		a.add(b.a)
 	}
 	if b.b.ok {
-		a = a.with(b.b)
+		a.add(b.b)
 	}
-	return a
 }
 
 // solve maximises the objective (see the notes in schedule.go and above):

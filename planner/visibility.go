@@ -211,9 +211,10 @@ func sortBad(bad []badSpan) {
 
 // samplePoints returns a, every multiple of step strictly inside (a, b), and b.
 func samplePoints(a, b, step float64) []float64 {
-	us := []float64{a}
-	for u := math.Floor(a/step)*step + step; u < b; u += step {
-		if u > a {
+	us := make([]float64, 1, int((b-a)/step)+3)
+	us[0] = a
+	for k := math.Floor(a/step) + 1; k*step < b; k++ {
+		if u := k * step; u > a {
 			us = append(us, u)
 		}
 	}
@@ -295,7 +296,36 @@ func (en *engine) sample(ts *targetState, u float64) targetSample {
 // night-time constraints at u (negative: violated) and the set of violated
 // ones. The Sun's altitude is handled by the dark spans, not here.
 func (en *engine) margin(ts *targetState, u float64) (float64, reasonBits) {
-	return en.marginAt(ts, u, en.sky.at(u))
+	return en.marginAt(ts, u, en.envAt(u))
+}
+
+// envAt returns the Sun and the Moon at u: from the grid cache when u is a
+// multiple of StepS inside it (filled once by fillEnvCache, read-only after),
+// else interpolated.
+func (en *engine) envAt(u float64) env {
+	if len(en.envGrid) > 0 {
+		k := math.Round(u / en.opt.StepS)
+		if i := int(k) - en.envK0; k*en.opt.StepS == u && i >= 0 && i < len(en.envGrid) {
+			return en.envGrid[i]
+		}
+	}
+	return en.sky.at(u)
+}
+
+// fillEnvCache computes the Sun and the Moon at every multiple of StepS in
+// the dark spans, which every target's scan samples.
+func (en *engine) fillEnvCache() {
+	if len(en.dark) == 0 {
+		return
+	}
+	step := en.opt.StepS
+	k0 := math.Ceil(en.dark[0].lo / step)
+	k1 := math.Floor(en.dark[len(en.dark)-1].hi / step)
+	en.envK0 = int(k0)
+	en.envGrid = make([]env, 0, int(k1-k0)+1)
+	for k := k0; k <= k1; k++ {
+		en.envGrid = append(en.envGrid, en.sky.at(k*step))
+	}
 }
 
 func (en *engine) marginAt(ts *targetState, u float64, ev env) (float64, reasonBits) {
