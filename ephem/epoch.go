@@ -104,11 +104,11 @@ func ParseEpoch(text string, std TimeStandard, form EpochForm) (JD2, error) {
 	if s == "" || len(s) > 40 || strings.IndexFunc(s, func(r rune) bool {
 		return !(r >= '0' && r <= '9' || r == '.' || r == '-' || r == '+')
 	}) >= 0 {
-		return JD2{}, &InputError{"epoch", strconv.Quote(text), accepted}
+		return JD2{}, &InputError{"epoch", quotedEpoch(text), accepted}
 	}
 	r, ok := new(big.Rat).SetString(s)
 	if !ok {
-		return JD2{}, &InputError{"epoch", strconv.Quote(text), accepted}
+		return JD2{}, &InputError{"epoch", quotedEpoch(text), accepted}
 	}
 	whole, half, _ := form.offset()
 	// Full JD = value + offset; split it as Day (half-integer) + Frac.
@@ -124,7 +124,7 @@ func ParseEpoch(text string, std TimeStandard, form EpochForm) (JD2, error) {
 	}
 	frac := new(big.Rat).Sub(shifted, new(big.Rat).SetInt(fl))
 	if !fl.IsInt64() {
-		return JD2{}, &InputError{"epoch", strconv.Quote(text), "a Julian date between 1582-10-15 (JD 2299160.5) and 3000-01-01 (JD 2816787.5)"}
+		return JD2{}, &InputError{"epoch", quotedEpoch(text), "a Julian date between 1582-10-15 (JD 2299160.5) and 3000-01-01 (JD 2816787.5)"}
 	}
 	f, _ := frac.Float64()
 	out := JD2{Day: float64(fl.Int64()) + 0.5, Frac: f}
@@ -132,10 +132,20 @@ func ParseEpoch(text string, std TimeStandard, form EpochForm) (JD2, error) {
 		out = JD2{Day: out.Day + 1, Frac: 0}
 	}
 	if jd := out.Float(); jd < epochMinJD || jd > epochMaxJD {
-		return JD2{}, &InputError{"epoch", strconv.Quote(text) + " (" + string(form) + ")",
+		return JD2{}, &InputError{"epoch", quotedEpoch(text) + " (" + string(form) + ")",
 			"a Julian date between 1582-10-15 (JD 2299160.5) and 3000-01-01 (JD 2816787.5); check the form (JD, MJD, RJD)"}
 	}
 	return out, nil
+}
+
+// quotedEpoch quotes an epoch text for an error message, cut to 64
+// characters (an epoch has at most 40), so that a hostile 10 MB value does
+// not become a 10 MB message.
+func quotedEpoch(text string) string {
+	if r := []rune(text); len(r) > 64 {
+		text = string(r[:64]) + "…"
+	}
+	return strconv.Quote(text)
 }
 
 // FormatEpoch writes v in form with the given number of decimals (0..12;

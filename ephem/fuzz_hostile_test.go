@@ -10,7 +10,6 @@ package ephem_test
 import (
 	"errors"
 	"math"
-	"os"
 	"strconv"
 	"strings"
 	"testing"
@@ -130,7 +129,6 @@ func TestHostileEpochText(t *testing.T) {
 			}
 			hostileInputError(t, err, "epoch")
 			if n := len(err.Error()); n > 1024 {
-				hostileKnownDefect(t, "ephem.ParseEpoch puts the whole rejected text into InputError.Value (ParseRA, ParseDec, ParseTime shorten it)")
 				t.Fatalf("error message is %d bytes: it echoes the input", n)
 			}
 		})
@@ -165,19 +163,8 @@ func TestHostileParsersEchoBound(t *testing.T) {
 			}
 			t.Logf("field %q, message %d bytes", ie.Field, len(err.Error()))
 			if n := len(err.Error()); n > 1024 {
-				hostileKnownDefect(t, "ephem.ParseEpoch puts the whole rejected text into InputError.Value (ParseRA, ParseDec, ParseTime shorten it)")
 				t.Fatalf("%s: error message is %d bytes: it echoes the input", p.name, n)
 			}
 		})
-	}
-}
-
-// hostileKnownDefect skips a test that documents a reported, still unfixed
-// defect, unless PHASECAST_KNOWN_DEFECTS=1 asks to see it fail. Remove the
-// call when the defect is fixed.
-func hostileKnownDefect(tb testing.TB, what string) {
-	tb.Helper()
-	if os.Getenv("PHASECAST_KNOWN_DEFECTS") == "" {
-		tb.Skipf("known defect, reported (set PHASECAST_KNOWN_DEFECTS=1 to run): %s", what)
 	}
 }
