@@ -284,7 +284,6 @@ func TestHostileTargetsCSVOversize(t *testing.T) {
 			checkTableError(t, tc.in, err)
 			t.Logf("error message: %d bytes", len(err.Error()))
 			if n := len(err.Error()); n > 64<<10 {
-				hostileKnownDefect(t, "planner.CellError.String (ReadTargetsCSV) quotes the whole rejected cell and header name")
 				t.Fatalf("the error message is %d bytes: it echoes the 10 MB cell", n)
 			}
 		})
@@ -334,15 +333,5 @@ func TestHostileHorizonOversize(t *testing.T) {
 			}
 			t.Logf("error (%d bytes): %.200s", len(err.Error()), err)
 		})
-	}
-}
-
-// hostileKnownDefect skips a test that documents a reported, still unfixed
-// defect, unless PHASECAST_KNOWN_DEFECTS=1 asks to see it fail. Remove the
-// call when the defect is fixed.
-func hostileKnownDefect(tb testing.TB, what string) {
-	tb.Helper()
-	if os.Getenv("PHASECAST_KNOWN_DEFECTS") == "" {
-		tb.Skipf("known defect, reported (set PHASECAST_KNOWN_DEFECTS=1 to run): %s", what)
 	}
 }
