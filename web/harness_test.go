@@ -22,7 +22,7 @@ var testNow = time.Date(2026, 3, 14, 20, 0, 0, 0, time.UTC)
 // harness is a server over a real SQLite file with a team (owner, editor,
 // viewer) and an outsider in another team.
 type harness struct {
-	t       *testing.T
+	t       testing.TB
 	store   *store.Store
 	srv     *Server
 	ts      *httptest.Server
@@ -33,7 +33,7 @@ type harness struct {
 
 const testPassword = "correct horse battery"
 
-func newHarness(t *testing.T) *harness {
+func newHarness(t testing.TB) *harness {
 	t.Helper()
 	ctx := context.Background()
 	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "test.db"),
@@ -83,7 +83,7 @@ func newHarness(t *testing.T) *harness {
 	return h
 }
 
-type testWriter struct{ t *testing.T }
+type testWriter struct{ t testing.TB }
 
 func (w testWriter) Write(p []byte) (int, error) {
 	w.t.Log(strings.TrimSpace(string(p)))
@@ -165,4 +165,16 @@ func (h *harness) postBody(c *http.Client, path string, form url.Values) (*http.
 // hasTestID reports whether body has an element with data-testid=id.
 func hasTestID(body, id string) bool {
 	return strings.Contains(body, `data-testid="`+id+`"`)
+}
+
+// signedRequest is a GET request carrying c's cookies, for calling
+// handlers directly.
+func signedRequest(tb testing.TB, h *harness, c *http.Client) *http.Request {
+	tb.Helper()
+	req := httptest.NewRequest(http.MethodGet, "/", nil)
+	u, _ := url.Parse(h.ts.URL)
+	for _, k := range c.Jar.Cookies(u) {
+		req.AddCookie(k)
+	}
+	return req
 }

@@ -1,0 +1,26 @@
+package web
+
+import (
+	"net/http"
+	"net/http/httptest"
+	"testing"
+)
+
+// BenchmarkNightPage30Targets renders the Night page for 30 targets on the
+// server: planning, sampling the chart, drawing it and the template.
+func BenchmarkNightPage30Targets(b *testing.B) {
+	h := newHarness(b)
+	f := h.addFixtures(b, 30)
+	c := h.client("owner")
+	query := "site=" + i64s(f.siteID) + "&list=" + i64s(f.listID) + "&date=2026-03-14"
+	handler := h.srv.inTeam(h.srv.nightShow)
+	for b.Loop() {
+		req := signedRequest(b, h, c)
+		req.URL.Path, req.URL.RawQuery = "/night", query
+		rec := httptest.NewRecorder()
+		handler(rec, req)
+		if rec.Code != http.StatusOK {
+			b.Fatalf("status %d", rec.Code)
+		}
+	}
+}
