@@ -57,10 +57,11 @@ type PasswordParams struct {
 // DefaultPasswordParams are RFC 9106 §4's "second recommended option" for
 // argon2id, the one for machines with little memory: t = 3 passes, p = 4
 // lanes, m = 64 MiB, a 128-bit salt and a 256-bit tag. One hash takes about
-// 0.1–0.3 s on the project's 2-core machine and 64 MiB while it runs, so a
-// small team server can take several sign-ins at once while guessing stays
-// costly; the web layer rate-limits sign-in attempts on top. (The first
-// recommended option, 2 GiB, is too much for such a server.)
+// 0.5 s on the project's shared 2-core machine (BenchmarkPasswordHash) and
+// 64 MiB while it runs: a sign-in is a rare event for a team server, and
+// each guess costs an attacker the same; the web layer rate-limits sign-in
+// attempts on top. (The first recommended option, 2 GiB, is too much for
+// such a server.) Hashing happens outside any database transaction.
 var DefaultPasswordParams = PasswordParams{Time: 3, MemoryKiB: 64 * 1024, Threads: 4, SaltLen: 16, KeyLen: 32}
 
 // Password length limits, in bytes of UTF-8 (common practice: long
