@@ -11,6 +11,7 @@ import (
 	"text/tabwriter"
 	"time"
 	"unicode"
+	"unicode/utf8"
 
 	"phasecast/ephem"
 )
@@ -134,13 +135,21 @@ func missing(v *textValue) error {
 }
 
 // shown returns a value as it should appear in a message: bare when it is
-// plain printable text without blanks, quoted otherwise.
+// short plain printable UTF-8 text without blanks, quoted otherwise, and cut
+// to 80 characters (a value read from a file may be megabytes long, or not
+// UTF-8 at all).
 func shown(s string) string {
-	if s == "" || strings.IndexFunc(s, func(r rune) bool { return unicode.IsSpace(r) || !unicode.IsPrint(r) }) >= 0 {
-		return strconv.Quote(s)
+	cut, n := s, 0
+	for i := range s {
+		if n == 80 {
+			cut = s[:i] + "…"
+			break
+		}
+		n++
 	}
-	if r := []rune(s); len(r) > 80 {
-		return strconv.Quote(string(r[:80]) + "…")
+	if cut != s || s == "" || !utf8.ValidString(s) ||
+		strings.IndexFunc(s, func(r rune) bool { return unicode.IsSpace(r) || !unicode.IsPrint(r) }) >= 0 {
+		return strconv.Quote(cut)
 	}
 	return s
 }
