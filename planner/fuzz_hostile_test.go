@@ -254,6 +254,29 @@ func TestHostileTargetsCSVCells(t *testing.T) {
 	}
 }
 
+// TestHostileTargetsCSVPlannable: a target the file reader accepts has an
+// ephemeris the rest of phasecast accepts too (ephem.Ephemeris.Validate);
+// otherwise the plan would fail later with no line or column to point at.
+func TestHostileTargetsCSVPlannable(t *testing.T) {
+	for _, period := range []string{"1e-300", "1e-6", "9.99e-6", "36525"} {
+		t.Run(period, func(t *testing.T) {
+			in := hostileHeader + "\n" + strings.Replace(hostileRow("X"), "0.1352", period, 1) + "\n"
+			ts, err := planner.ParseTargetsCSV(strings.NewReader(in))
+			if err != nil {
+				te := checkTableError(t, in, err)
+				if te.Cells[0].Column != "period_days" {
+					t.Fatalf("refused, but not on period_days: %v", err)
+				}
+				return
+			}
+			if verr := ts[0].Ephem.Validate(); verr != nil {
+				hostileKnownDefect(t, "planner.ParseTargetsCSV accepts 0 < period_days < ephem.MinPeriodDays (1e-5 d); the plan then fails without a line")
+				t.Fatalf("period %s read, but the ephemeris is invalid: %v", period, verr)
+			}
+		})
+	}
+}
+
 // csvQuote quotes a cell the way a spreadsheet would write it.
 func csvQuote(s string) string {
 	if strings.ContainsAny(s, "\",\r\n") {
@@ -333,5 +356,15 @@ func TestHostileHorizonOversize(t *testing.T) {
 			}
 			t.Logf("error (%d bytes): %.200s", len(err.Error()), err)
 		})
+	}
+}
+
+// hostileKnownDefect skips a test that documents a reported, still unfixed
+// defect, unless PHASECAST_KNOWN_DEFECTS=1 asks to see it fail. Remove the
+// call when the defect is fixed.
+func hostileKnownDefect(tb testing.TB, what string) {
+	tb.Helper()
+	if os.Getenv("PHASECAST_KNOWN_DEFECTS") == "" {
+		tb.Skipf("known defect, reported (set PHASECAST_KNOWN_DEFECTS=1 to run): %s", what)
 	}
 }
