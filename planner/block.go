@@ -128,13 +128,27 @@ func (en *engine) explain(targets []*targetState, occs []occMeta, pr *problem, c
 		m := occs[pr.cands[i].occ]
 		served[key{m.target, m.goal}] = true
 	}
-	// Spans of time each goal's candidates would occupy (with acquisition).
-	need := map[key][]span{}
+	// The time each unserved goal's candidates would occupy (with their
+	// acquisition): one hull per occurrence.
+	hull := map[int]span{}
 	for i := range pr.cands {
 		c := &pr.cands[i]
 		m := occs[c.occ]
-		k := key{m.target, m.goal}
-		need[k] = append(need[k], span{c.start - c.acq, c.end})
+		if served[key{m.target, m.goal}] {
+			continue
+		}
+		h, ok := hull[c.occ]
+		if !ok {
+			h = span{math.Inf(1), math.Inf(-1)}
+		}
+		hull[c.occ] = span{math.Min(h.lo, c.start-c.acq), math.Max(h.hi, c.end)}
+	}
+	need := map[key][]span{}
+	for k := range occs {
+		if h, ok := hull[k]; ok {
+			gk := key{occs[k].target, occs[k].goal}
+			need[gk] = append(need[gk], h)
+		}
 	}
 	var out []Unscheduled
 	for _, ts := range targets {

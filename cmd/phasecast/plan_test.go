@@ -16,10 +16,10 @@ import (
 // 27.85° S) in early December: four binaries around the evening and
 // morning sky.
 const planCSV = `name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority
-Vela-Q1,08:12:40,-41:20:00,2460100.31452,0.1375,0.25;0.75,0.05,300,25,1
-Lyncis-W3,06:58:10.5,-12:05:00,2460210.88120,0.2650,0.0;0.5,0.04,240,20,2
-Carina-K7,10:02:33,-58:44:10,2459980.12345,0.0812,0.25,0.06,120,15,3
-Fornax-T2,03:05:00,-30:00:00,2460002.50000,0.3300,0.1;0.6,0.05,420,30,4
+Aurel-1,08:12:40,-41:20:00,2460100.31452,0.1375,0.25;0.75,0.05,300,25,1
+Brisa-3,06:58:10.5,-12:05:00,2460210.88120,0.2650,0.0;0.5,0.04,240,20,2
+Cobre-7,10:02:33,-58:44:10,2459980.12345,0.0812,0.25,0.06,120,15,3
+Duna-2,03:05:00,-30:00:00,2460002.50000,0.3300,0.1;0.6,0.05,420,30,4
 `
 
 func writeFile(tb testing.TB, name, text string) string {
@@ -131,7 +131,7 @@ func TestPlanHuman(t *testing.T) {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
 	}
 	for _, want := range []string{"Night plan for Tuesday 2026-12-01", "Sun below -18° (astronomical)", "local", "UTC",
-		"Vela-Q1", "Caution: never point a telescope", "Schedule value"} {
+		"Aurel-1", "Caution: never point a telescope", "Schedule value"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("night sheet lacks %q:\n%s", want, out)
 		}
