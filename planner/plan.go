@@ -266,11 +266,28 @@ type occMeta struct {
 }
 
 // PlanNight plans one night: the observable intervals of every target, the
-// optimal schedule of exposure blocks on the goal windows (objective and
-// method in the notes of schedule.go), blocks' details and warnings, the
-// reason for every goal left out, and optional fillers. Inputs are
-// validated first; the error names the first bad field (*ephem.InputError).
-// The same request always gives the same plan.
+// optimal schedule of exposure blocks on the goal windows, blocks' details
+// and warnings, the reason for every goal left out, and optional fillers.
+//
+// The schedule maximises Σ w(priority) × v(goal, n) over its blocks, with
+// w(p) = 3^(5−p) and v = ½ + ½ × (exposures, capped at N wanted)/N, or n/C
+// for "as many as fit" (C the window's capacity): half for reaching a goal
+// window, half for its exposures. Blocks do not overlap, an acquisition
+// overhead precedes every change of target (and the first block) inside dark
+// time, each goal occurrence gets at most one block, and every block meets
+// every constraint from start to end with every exposure's mid-time phase in
+// its window. It is solved exactly (decremental state-space relaxation; see
+// the notes in schedule.go and sweep.go), not greedily: Plan.GreedyValue is
+// what first-fit by priority would reach on the same candidates.
+//
+// A block never starts with the Sun above the chosen twilight altitude (the
+// whole block is in dark time); a block that starts while the Sun is above
+// −18° (allowed by civil or nautical twilight) gets a "twilight_start"
+// warning, since the sky is not yet fully dark.
+//
+// Inputs are validated first; the error names the first bad field
+// (*ephem.InputError). The same request always gives the same plan. Times
+// are UTC; From and To bound the night (NightWindow), at most 48 hours apart.
 func PlanNight(req NightRequest) (*Plan, error) {
 	en, targets, err := newEngine(req)
 	if err != nil {

@@ -243,7 +243,7 @@ func TestPlanBeatsGreedyRealNight(t *testing.T) {
 			Goals: []Goal{{Center: 0.5, HalfWidth: hw, ExposureS: 600, OverheadS: 30, NExposures: 1}}}
 	}
 	req := NightRequest{Site: site, From: from, To: to, Constraints: DefaultConstraints(), Targets: []Target{
-		mk("Long-1", 1, 1.0, 0.05, ra),       // 2.4 h window
+		mk("Long-1", 1, 1.0, 0.05, ra),      // 2.4 h window
 		mk("Short-2", 2, 0.2, 0.01, ra+0.5), // 5.8 min window
 	}}
 	p, err := PlanNight(req)

@@ -10,11 +10,14 @@ import (
 // The night schedule as an optimisation problem.
 //
 // Candidates. For every occurrence of every phase goal (one orbital cycle's
-// window, intersected with the target's observable intervals) the planner
-// lists candidate blocks: start instants on a grid of whole minutes of UTC
-// (Options.StepS) plus the earliest and latest starts the window allows,
-// with every exposure count n that fits (1 … N wanted, or 1 … the window's
-// capacity for "as many as fit").
+// window) the planner lists candidate blocks: starts at every multiple of
+// Options.StepS in UTC (whole minutes by default), at the earliest whole
+// second the window allows (first exposure's mid-time at its opening) and,
+// for each n, at the latest (last mid-time at its close); every exposure
+// count n from 1 to N wanted (or to the window's capacity C for "as many as
+// fit") such that the whole block lies inside one observable interval (1 s
+// inside its edges) and every exposure's mid-time inside the window. No start
+// depends on the constraints, so relaxing one only adds candidates.
 //
 // Objective. Maximise Σ value(b) over the chosen blocks, where
 //
@@ -23,17 +26,18 @@ import (
 //	v(goal, n) = ½ + ½ × n/C                                  ("as many as fit")
 //
 // with C the window's capacity (exposures whose mid-times fit in the phase
-// window). Reaching a goal at all is worth half of it, every further exposure
-// up to N the rest, so one priority-p goal outweighs two priority-(p+1)
-// goals but not three. Values are integers (v in millionths) so sums are
-// exact. Ties are broken by a second, lexicographically weaker score: fewer
-// airmass-excess exposures (−Σ 1000·(X−1) at each block's middle), and then by
+// window). Reaching a goal window at all is worth half, the exposures up to N
+// (or C) the other half; a goal of priority p weighs as much as three goals
+// of priority p+1 served as fully. Each occurrence of a goal in the night
+// counts on its own. Values are integers (v in millionths) so sums are exact.
+// Ties are broken by a second, lexicographically weaker score, lower airmass
+// (−Σ 1000·(X−1) over the exposures, X at each block's middle), and then by
 // the stable order of the candidates (earlier ends first).
 //
 // Subject to: blocks do not overlap; before a block whose predecessor is a
 // different target, or before the first block, the target's acquisition
-// overhead is charged, and it must lie in the same dark interval; at most one
-// block per goal occurrence.
+// overhead is charged, and it must lie in the block's dark interval; at most
+// one block per goal occurrence.
 //
 // Method. Without the last rule the problem is a weighted interval
 // scheduling with a setup time that depends on the previous target, solved
@@ -45,8 +49,9 @@ import (
 // 30-target night). Instead the state of the dynamic programme remembers the
 // occurrences already served while they can still be served again, for a
 // growing set of critical occurrences: decremental state-space relaxation,
-// in sweep.go. The result is optimal; a state limit (Options.MaxNodes) stops
-// pathological cases with the best feasible schedule found (Optimal false).
+// in sweep.go. The result is optimal; a state limit (Options.MaxStates)
+// stops pathological cases with the best feasible schedule found (Optimal
+// false, with a warning).
 
 // score is an objective value: main (priority-weighted goal value) compared
 // first, tie second. Both are integers so that sums are exact and the same
