@@ -282,23 +282,39 @@ func (c *cellReader) get(name string) string {
 // cell as a formula.
 const formulaStart = "=+-@\t\r"
 
+// csvNeedsQuote reports whether csvSafeCell quotes cell: text starting
+// with = + - @, a tab or a carriage return that is not a plain number, or
+// text starting with a single quote whose rest needs quoting (so that the
+// quote the user typed survives csvUnquoteFormula).
+func csvNeedsQuote(cell string) bool {
+	if cell == "" {
+		return false
+	}
+	if cell[0] == '\'' {
+		return csvNeedsQuote(cell[1:])
+	}
+	if !strings.ContainsRune(formulaStart, rune(cell[0])) {
+		return false
+	}
+	_, isNumber := parseNumber(cell)
+	return !isNumber
+}
+
 // csvSafeCell returns cell so that a spreadsheet reads it as text: a cell
 // starting with = + - @, a tab or a carriage return that is not a plain
 // number gets a leading single quote (OWASP "CSV Injection", common
 // practice). A negative declination stays a number.
 func csvSafeCell(cell string) string {
-	if cell == "" || !strings.ContainsRune(formulaStart, rune(cell[0])) {
-		return cell
+	if csvNeedsQuote(cell) {
+		return "'" + cell
 	}
-	if _, ok := parseNumber(cell); ok {
-		return cell
-	}
-	return "'" + cell
+	return cell
 }
 
-// csvUnquoteFormula undoes csvSafeCell when reading a team CSV.
+// csvUnquoteFormula undoes csvSafeCell when reading a team CSV:
+// csvUnquoteFormula(csvSafeCell(x)) == x for every x.
 func csvUnquoteFormula(cell string) string {
-	if len(cell) >= 2 && cell[0] == '\'' && strings.ContainsRune(formulaStart, rune(cell[1])) {
+	if len(cell) >= 2 && cell[0] == '\'' && csvNeedsQuote(cell[1:]) {
 		return cell[1:]
 	}
 	return cell
