@@ -91,6 +91,7 @@ func (n nightQuery) encode() string {
 // night is a planned night with what the pages and exports show.
 type night struct {
 	q       nightQuery
+	base    *planner.Constraints // a run's constraints, replacing the site's defaults
 	site    store.SiteRecord
 	sites   []store.SiteRecord
 	lists   []store.TargetList
@@ -174,6 +175,10 @@ func tonight(now time.Time, loc *time.Location) string {
 // and messages for overrides that do not parse.
 func (n *night) constraints(errs page.Errs) planner.Constraints {
 	c := n.site.PlanConstraints()
+	if n.base != nil {
+		c = *n.base
+		c.Horizon = n.site.Horizon
+	}
 	if n.q.twilight != "" {
 		if tw, err := planner.ParseTwilight(n.q.twilight); err != nil {
 			errs["twilight"] = fmt.Sprintf("“%s” is not accepted; accepted: civil, nautical or astronomical", n.q.twilight)

@@ -41,6 +41,7 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("POST /team/members/{id}/remove", s.inTeam(s.teamMemberRemove))
 
 	mux.HandleFunc("GET /tonight", s.inTeam(s.tonightShow))
+	mux.HandleFunc("GET /tonight/body", s.inTeam(s.tonightBody))
 	mux.HandleFunc("GET /night", s.inTeam(s.nightShow))
 	mux.HandleFunc("GET /night/sheet", s.inTeam(s.nightSheet))
 	mux.HandleFunc("GET /night.csv", s.inTeam(s.nightExport("csv")))
@@ -55,6 +56,9 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("GET /targets/{id}/edit", s.inTeam(s.targetEdit))
 	mux.HandleFunc("POST /targets/{id}", s.inTeam(s.targetUpdate))
 	mux.HandleFunc("POST /targets/{id}/delete", s.inTeam(s.targetDelete))
+	mux.HandleFunc("POST /targets/{id}/timings", s.inTeam(s.timingAdd))
+	mux.HandleFunc("POST /targets/{id}/refine", s.inTeam(s.targetRefine))
+	mux.HandleFunc("POST /timings/{id}/delete", s.inTeam(s.timingDelete))
 	mux.HandleFunc("POST /lists", s.inTeam(s.listCreate))
 	mux.HandleFunc("GET /lists/{id}/import", s.inTeam(s.importForm))
 	mux.HandleFunc("POST /lists/{id}/import/preview", s.inTeam(s.importPreview))

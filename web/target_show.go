@@ -1,8 +1,22 @@
 package web
 
-import "net/http"
+import (
+	"net/http"
 
-// targetShow is a placeholder until the detail page lands.
+	"phasecast/web/page"
+)
+
+// targetShow is a target's detail page (GET /targets/{id}).
 func (s *Server) targetShow(w http.ResponseWriter, r *http.Request, u *user) {
-	http.Redirect(w, r, "/targets/"+r.PathValue("id")+"/edit", http.StatusSeeOther)
+	id, err := pathID(r, "id")
+	if err != nil {
+		s.renderError(w, r, err)
+		return
+	}
+	v, err := s.targetDetail(r.Context(), u, id)
+	if err != nil {
+		s.renderError(w, r, err)
+		return
+	}
+	s.render(w, r, http.StatusOK, page.TargetDetail(s.chromeFor(r, u, v.Name, "targets"), v))
 }

@@ -171,7 +171,7 @@ func goalSummary(gs []planner.Goal) string {
 	for _, g := range gs {
 		c := strconv.FormatFloat(g.Center, 'f', -1, 64)
 		if g.Event != "" {
-			c = strings.ReplaceAll(g.Event, "_", " ")
+			c = strings.ReplaceAll(g.Event, "_", " ") // the centre is derived from the event
 		}
 		parts = append(parts, c+"±"+strconv.FormatFloat(g.HalfWidth, 'f', -1, 64))
 	}

@@ -83,6 +83,11 @@ func TestBrowserEndToEnd(t *testing.T) {
 	}
 	saveShot(t, ctx, shots, "targets.png")
 
+	// A target's page: ephemeris, upcoming events, uncertainty, timings.
+	step("target detail", chromedp.Evaluate[chromedp.Void](`location.assign(Array.from(document.querySelectorAll('[data-testid=target-row] a')).find(a => a.textContent.includes('J0814')).href)`),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid=sigma-chart] svg`)))
+	saveShot(t, ctx, shots, "target.png")
+
 	// Plan a night: the demo's first night, at its site, on its list.
 	step("plan", chromedp.Navigate(app.base+"/night"), chromedp.WaitVisible(chromedp.CSS(`[data-testid=night-chart] svg`)),
 		chromedp.WaitVisible(chromedp.CSS(`[data-testid=blocks]`)))

@@ -423,9 +423,13 @@ func TestLoad(t *testing.T) {
 	if env.loadListID, err = locationID(r.location, "list="); err != nil {
 		t.Fatal(err)
 	}
-	warmUp(t, owner, env)
+	single := warmUp(t, owner, env)
 
 	rss0, _, err := memory(srv.pid())
+	if err != nil {
+		t.Fatal(err)
+	}
+	cpu0, err := cpuTime(srv.pid())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -463,13 +467,20 @@ func TestLoad(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	cpu1, err := cpuTime(srv.pid())
+	if err != nil {
+		t.Fatal(err)
+	}
 	load1 := loadAverage()
 
 	all := newStats()
 	for _, w := range workers {
 		all.merge(w.st)
 	}
-	report(t, cfg, all, elapsed)
+	total := report(t, cfg, all, single, elapsed)
+	cpu := cpu1 - cpu0
+	t.Logf("server CPU: %.1f s user+system in %.1f s = %.2f of %d cores, %.1f ms per request",
+		cpu.Seconds(), elapsed.Seconds(), cpu.Seconds()/elapsed.Seconds(), runtime.NumCPU(), float64(cpu.Milliseconds())/float64(max(total, 1)))
 	t.Logf("server memory: VmRSS %.1f MiB before the load, %.1f MiB at the end, peak (VmHWM) %.1f MiB; load average at the end %s",
 		float64(rss0)/1024, float64(rss)/1024, float64(peak)/1024, load1)
 
@@ -487,24 +498,37 @@ func TestLoad(t *testing.T) {
 	checkAfterLoad(t, db, env)
 }
 
-// warmUp requests each kind of page once before the clock starts, so that
-// a route broken outright fails at once with its own message.
-func warmUp(t *testing.T, c *client, env *loadEnv) {
+// warmUpRounds is how many times warmUp runs every op.
+const warmUpRounds = 3
+
+// warmUp runs every op a few times from one client before the clock
+// starts, so that a route broken outright fails at once with its own
+// message; it returns the median latency of each route without
+// concurrency, the cost of the request itself.
+func warmUp(t *testing.T, c *client, env *loadEnv) map[string]time.Duration {
 	t.Helper()
 	ctx := context.Background()
 	w := &worker{c: c, env: env, st: newStats(), rng: rand.New(rand.NewPCG(0, 0)), role: store.RoleOwner}
-	for _, o := range ops {
-		o.run(ctx, w)
+	for range warmUpRounds {
+		for _, o := range ops {
+			o.run(ctx, w)
+		}
 	}
+	med := map[string]time.Duration{}
 	for name, r := range w.st.routes {
 		if r.errs > 0 {
 			t.Fatalf("warm-up request %s failed: %s", name, strings.Join(w.st.samples, "\n"))
 		}
+		slices.Sort(r.lat)
+		med[name] = percentile(r.lat, 50)
 	}
+	return med
 }
 
-// report logs the per-route table and fails the test on any error.
-func report(t *testing.T, cfg loadConfig, all *stats, elapsed time.Duration) {
+// report logs the per-route table (with each route's latency with one
+// client, from the warm-up) and fails the test on any error. It returns
+// the number of requests.
+func report(t *testing.T, cfg loadConfig, all *stats, single map[string]time.Duration, elapsed time.Duration) int {
 	t.Helper()
 	names := make([]string, 0, len(all.routes))
 	total, errs, conf := 0, 0, 0
@@ -516,7 +540,7 @@ func report(t *testing.T, cfg loadConfig, all *stats, elapsed time.Duration) {
 	}
 	sort.Strings(names)
 	var b strings.Builder
-	fmt.Fprintf(&b, "\n| route | requests | ok | 409 | errors | p50 ms | p95 ms | p99 ms | max ms |\n|---|--:|--:|--:|--:|--:|--:|--:|--:|\n")
+	fmt.Fprintf(&b, "\n| route | requests | ok | 409 | errors | 1 client p50 ms | p50 ms | p95 ms | p99 ms | max ms |\n|---|--:|--:|--:|--:|--:|--:|--:|--:|--:|\n")
 	ms := func(d time.Duration) string { return fmt.Sprintf("%.1f", float64(d.Microseconds())/1000) }
 	for _, name := range names {
 		r := all.routes[name]
@@ -525,8 +549,8 @@ func report(t *testing.T, cfg loadConfig, all *stats, elapsed time.Duration) {
 		if len(r.lat) > 0 {
 			mx = r.lat[len(r.lat)-1]
 		}
-		fmt.Fprintf(&b, "| %s | %d | %d | %d | %d | %s | %s | %s | %s |\n", name, r.ok+r.conf+r.errs, r.ok, r.conf, r.errs,
-			ms(percentile(r.lat, 50)), ms(percentile(r.lat, 95)), ms(percentile(r.lat, 99)), ms(mx))
+		fmt.Fprintf(&b, "| %s | %d | %d | %d | %d | %s | %s | %s | %s | %s |\n", name, r.ok+r.conf+r.errs, r.ok, r.conf, r.errs,
+			ms(single[name]), ms(percentile(r.lat, 50)), ms(percentile(r.lat, 95)), ms(percentile(r.lat, 99)), ms(mx))
 	}
 	t.Logf("load: %s; %d requests in %v = %.1f requests/s; %d errors, %d version conflicts (409, expected), %d responses mentioning \"database is locked\"%s",
 		cfg.describe(), total, elapsed.Round(time.Millisecond), float64(total)/elapsed.Seconds(), errs, conf, all.locked, b.String())
@@ -536,6 +560,7 @@ func report(t *testing.T, cfg loadConfig, all *stats, elapsed time.Duration) {
 	if total == 0 {
 		t.Error("no request completed")
 	}
+	return total
 }
 
 // checkAfterLoad opens the stopped database: SQLite's checks pass and the

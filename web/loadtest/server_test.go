@@ -226,6 +226,31 @@ func memory(pid int) (rssKiB, peakKiB int64, err error) {
 	return rssKiB, peakKiB, nil
 }
 
+// cpuTime reads the user and system CPU time the process has used from
+// /proc/PID/stat (fields 14 and 15, in clock ticks of USER_HZ = 100, the
+// value Linux exposes to user space on every common architecture).
+func cpuTime(pid int) (time.Duration, error) {
+	b, err := os.ReadFile(fmt.Sprintf("/proc/%d/stat", pid))
+	if err != nil {
+		return 0, err
+	}
+	s := string(b)
+	i := strings.LastIndexByte(s, ')') // the command name may hold spaces
+	if i < 0 {
+		return 0, fmt.Errorf("/proc/%d/stat: no command name", pid)
+	}
+	f := strings.Fields(s[i+1:]) // f[0] is field 3 (state)
+	if len(f) < 13 {
+		return 0, fmt.Errorf("/proc/%d/stat: %d fields", pid, len(f)+2)
+	}
+	utime, err1 := strconv.ParseInt(f[11], 10, 64)
+	stime, err2 := strconv.ParseInt(f[12], 10, 64)
+	if err1 != nil || err2 != nil {
+		return 0, fmt.Errorf("/proc/%d/stat: utime %q stime %q", pid, f[11], f[12])
+	}
+	return time.Duration(utime+stime) * 10 * time.Millisecond, nil
+}
+
 // loadAverage returns the first three fields of /proc/loadavg.
 func loadAverage() string {
 	b, err := os.ReadFile("/proc/loadavg")

@@ -1,0 +1,88 @@
+package web
+
+import (
+	"context"
+	"io"
+	"log/slog"
+	"net/http"
+	"net/http/cookiejar"
+	"net/http/httptest"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"testing"
+	"time"
+
+	"phasecast/store"
+)
+
+// TestDemoPagesRender signs in to the seeded demo scenario with its
+// one-time link and opens every page a newcomer meets, checking that each
+// renders with its main element.
+func TestDemoPagesRender(t *testing.T) {
+	ctx := context.Background()
+	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "demo.db"),
+		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 64, Threads: 1, SaltLen: 16, KeyLen: 32}))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer st.Close()
+	now := time.Now().UTC()
+	info, err := st.SeedDemo(ctx, now)
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv, err := New(Config{Store: st, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ts := httptest.NewServer(srv.Handler())
+	defer ts.Close()
+	jar, _ := cookiejar.New(nil)
+	c := &http.Client{Jar: jar}
+	post := func(path string) *http.Response {
+		req, _ := http.NewRequest(http.MethodPost, ts.URL+path, nil)
+		req.Header.Set("Sec-Fetch-Site", "same-origin")
+		resp, err := c.Do(req)
+		if err != nil {
+			t.Fatal(err)
+		}
+		resp.Body.Close()
+		return resp
+	}
+	if resp := post("/login/link/" + info.SignInToken); resp.StatusCode != http.StatusOK {
+		t.Fatalf("sign in with the demo link: %d", resp.StatusCode)
+	}
+	pages := []struct{ path, testid string }{
+		{"/tonight", "tonight-table"},
+		{"/tonight/body", "tonight-table"},
+		{"/targets", "targets-table"},
+		{"/night", "night-chart"},
+		{"/sites", "sites"},
+		{"/sites/" + i64s(info.Site.ID), "horizon-preview"},
+		{"/team", "members"},
+		{"/account", "token-form"},
+		{"/lists/" + i64s(info.List.ID) + "/import", "import-form"},
+		{"/targets/new?list=" + i64s(info.List.ID), "target-form"},
+	}
+	for _, tg := range info.Targets {
+		pages = append(pages, struct{ path, testid string }{"/targets/" + i64s(tg.ID), "upcoming"},
+			struct{ path, testid string }{"/targets/" + i64s(tg.ID) + "/edit", "target-form"})
+	}
+	for _, p := range pages {
+		t.Run(strings.TrimPrefix(p.path, "/"), func(t *testing.T) {
+			resp, err := c.Get(ts.URL + p.path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			b, _ := io.ReadAll(resp.Body)
+			resp.Body.Close()
+			if resp.StatusCode != http.StatusOK || !hasTestID(string(b), p.testid) {
+				t.Errorf("GET %s = %d, %s present %v", p.path, resp.StatusCode, p.testid, hasTestID(string(b), p.testid))
+			}
+			if m := regexp.MustCompile(`NaN|Inf\b`).FindString(string(b)); m != "" {
+				t.Errorf("GET %s shows %q", p.path, m)
+			}
+		})
+	}
+}

@@ -1,0 +1,114 @@
+package web
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strconv"
+
+	"phasecast/ephem"
+	"phasecast/store"
+	"phasecast/web/chart"
+	"phasecast/web/page"
+)
+
+// residual returns the cycle and O−C, seconds, of a timing against e: the
+// measured BJD_TDB minus the computed time of the same event in the nearest
+// cycle (ephem.Ephemeris.TimeAt). ok is false for an event whose phase the
+// ephemeris cannot give (an eclipse contact without a duration).
+func residual(e ephem.Ephemeris, tm store.Timing) (cycle int64, ocS float64, ok bool) {
+	phase := 0.0
+	if tm.Event != "" {
+		p, err := e.EventPhase(ephem.Event(tm.Event), 0)
+		if err != nil {
+			return 0, 0, false
+		}
+		phase = p
+	}
+	c, ph := e.CyclePhase(tm.BJD)
+	d := ph - phase
+	switch {
+	case d > 0.5:
+		c++
+	case d < -0.5:
+		c--
+	}
+	return c, tm.BJD.SubDays(e.TimeAt(c, phase)) * 86400, true
+}
+
+// timingRows formats the timings and builds the O−C chart's points.
+func timingRows(t store.StoredTarget, timings []store.Timing) ([]page.TimingRow, chart.OC) {
+	e := t.Ephemeris.Ephem
+	oc := chart.OC{Title: "O−C of " + t.Target.Name}
+	var rows []page.TimingRow
+	for _, tm := range timings {
+		ev := "T0 event"
+		if tm.Event != "" {
+			ev = tm.Event
+		}
+		row := page.TimingRow{ID: tm.ID, Version: tm.Version, Event: ev, Time: tm.T.Text + " " + string(tm.T.Standard),
+			BJD: ephem.FormatEpoch(tm.BJD, ephem.FormJD, 6), Err: strconv.FormatFloat(tm.ErrDays*86400, 'g', 3, 64),
+			Observer: tm.Observer, Note: tm.Note, OC: "—"}
+		if c, r, ok := residual(e, tm); ok {
+			row.OC = strconv.FormatFloat(r, 'f', 1, 64)
+			oc.Points = append(oc.Points, chart.OCPoint{Cycle: float64(c), OCSec: r, ErrSec: tm.ErrDays * 86400,
+				Label: fmt.Sprintf("E=%d, %s, %s", c, tm.T.Text, tm.Observer), Excluded: tm.Event != ""})
+		}
+		rows = append(rows, row)
+	}
+	return rows, oc
+}
+
+// proposeFit refines the ephemeris from the timings of its reference event
+// (ephem.FitEphemeris, linear weighted least squares), or says why not.
+func proposeFit(t store.StoredTarget, timings []store.Timing) (*ephem.FitResult, string) {
+	var in []ephem.Timing
+	for _, tm := range timings {
+		if tm.Event == "" {
+			in = append(in, ephem.Timing{Value: tm.BJD, Std: ephem.StdBJDTDB, ErrDays: tm.ErrDays})
+		}
+	}
+	if len(in) < 2 {
+		return nil, "A refinement needs at least two timings of the T0 event (the reference event of the ephemeris)."
+	}
+	res, err := ephem.FitEphemeris(in, t.Ephemeris.Ephem, false)
+	if err != nil {
+		var ae *ephem.AmbiguityError
+		if errors.As(err, &ae) {
+			return nil, "The timings cannot be refined without guessing cycle numbers: " + ae.Error()
+		}
+		return nil, "The timings cannot be fitted: " + err.Error()
+	}
+	return &res, ""
+}
+
+// fitLines describes a proposed refinement against the current ephemeris.
+func fitLines(t store.StoredTarget, f ephem.FitResult) []string {
+	cur, e := t.Ephemeris.Ephem, f.Ephem
+	return []string{
+		fmt.Sprintf("T0 = %s BJD_TDB ± %s", ephem.FormatEpoch(e.T0, ephem.FormJD, 7), fmtSeconds(e.T0ErrDays*86400)),
+		fmt.Sprintf("P = %.10f d ± %s (now %.10f d; change %+.3g s)", e.PeriodDays, fmtSeconds(e.PeriodErr*86400), cur.PeriodDays,
+			(e.PeriodDays-cur.PeriodDays)*86400),
+		fmt.Sprintf("χ² = %.2f, reduced χ² = %.2f, from %d timings", f.ChiSq, f.RedChiSq, len(f.Residuals)),
+		f.Note,
+	}
+}
+
+// fitLine is the refined ephemeris minus the current one, seconds, over
+// the cycles of the points: the line the O−C points should follow.
+func fitLine(cur ephem.Ephemeris, f ephem.FitResult, pts []chart.OCPoint) chart.OCLine {
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, p := range pts {
+		lo, hi = math.Min(lo, p.Cycle), math.Max(hi, p.Cycle)
+	}
+	l := chart.OCLine{Label: "refined ephemeris"}
+	if math.IsInf(lo, 0) {
+		return l
+	}
+	for i := 0; i <= 20; i++ {
+		c := int64(math.Round(lo + (hi-lo)*float64(i)/20))
+		d := f.Ephem.TimeAt(c-f.CycleShift, 0).SubDays(cur.TimeAt(c, 0)) * 86400
+		l.Cycles, l.OCSec = append(l.Cycles, float64(c)), append(l.OCSec, d)
+	}
+	return l
+}
