@@ -301,6 +301,9 @@ func PlanNight(req NightRequest) (*Plan, error) {
 	for _, ts := range targets {
 		p.Visibility = append(p.Visibility, en.visibility(ts))
 	}
+	if err := en.checkOccurrences(targets); err != nil {
+		return nil, err
+	}
 	occs, pr := en.buildProblem(targets)
 	p.Candidates = len(pr.cands)
 	order := make([]int, len(occs))
@@ -460,6 +463,29 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 	pr.nOcc = len(occs)
 	sortCandidates(pr.cands)
 	return occs, pr
+}
+
+// checkOccurrences reports a goal whose window comes round more than
+// Options.MaxOccurrences times in the dark time (buildProblem would consider
+// only the first ones): an error naming the goal, never a silent cut.
+func (en *engine) checkOccurrences(targets []*targetState) error {
+	if len(en.dark) == 0 {
+		return nil
+	}
+	lo, hi := en.dark[0].lo, en.dark[len(en.dark)-1].hi
+	for _, ts := range targets {
+		if !ts.hasClock {
+			continue
+		}
+		for gi, g := range ts.goals {
+			if n := len(ts.clock.occurrences(g.Center, g.HalfWidth, lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences+1)); n > en.opt.MaxOccurrences {
+				return &ephem.InputError{Field: fmt.Sprintf("targets[%d] %q.goals[%d]", ts.idx, ts.t.Name, gi),
+					Value:    fmt.Sprintf("more than %d windows in the night (period %g d)", en.opt.MaxOccurrences, ts.t.Ephem.PeriodDays),
+					Accepted: fmt.Sprintf("at most %d goal windows per night (Options.MaxOccurrences)", en.opt.MaxOccurrences)}
+			}
+		}
+	}
+	return nil
 }
 
 // appendCandidates adds the candidate blocks of one occurrence. Starts are
