@@ -1,0 +1,157 @@
+package planner
+
+// The run's hook into the night planner. PlanNight values a block as
+// PriorityWeight(target) × v(goal, n); the run optimizer needs the same
+// exact scheduler with its own weight per goal (what covering the goal
+// tonight is worth to the run). nightModel builds a night's engine and
+// candidate blocks once (newEngine, buildProblem: every rule of the night
+// planner), and solves it for any weights by rescaling the candidates'
+// values: value(b) = W(target, goal) × v(goal, n). With W = PriorityWeight
+// it is PlanNight exactly (TestNightModelMatchesPlanNight checks it block
+// for block, so a change to PlanNight that is not mirrored here fails a
+// test).
+//
+// Note for the night planner's owner: an exported hook in PlanNight (e.g. a
+// GoalWeight func(target, goal int) int64 in Options, applied in
+// appendCandidates) would let solveNight and plan below shrink to a call.
+
+import (
+	"fmt"
+	"sort"
+)
+
+// nightModel is one night's scheduling problem, ready to be solved for
+// different goal weights.
+type nightModel struct {
+	req     NightRequest
+	en      *engine
+	targets []*targetState
+	occs    []occMeta
+	pr      *problem
+	base    []int64 // v(goal, n) of each candidate, millionths
+}
+
+// newNightModel validates and builds a night's problem.
+func newNightModel(req NightRequest) (*nightModel, error) {
+	en, targets, err := newEngine(req)
+	if err != nil {
+		return nil, err
+	}
+	occs, pr := en.buildProblem(targets)
+	m := &nightModel{req: req, en: en, targets: targets, occs: occs, pr: pr, base: make([]int64, len(pr.cands))}
+	for i := range pr.cands {
+		c := &pr.cands[i]
+		m.base[i] = c.val.main / PriorityWeight(targets[c.target].t.Priority)
+	}
+	return m, nil
+}
+
+// nightSolution is a solved night: the chosen candidates in time order and
+// whether the solver proved them optimal for the weights.
+type nightSolution struct {
+	sol     solution
+	greedy  int64
+	weights [][]int64
+}
+
+// solve schedules the night for goal weights w[target][goal] (each ≥ 1).
+func (m *nightModel) solve(w [][]int64) nightSolution {
+	for i := range m.pr.cands {
+		c := &m.pr.cands[i]
+		om := m.occs[c.occ]
+		c.val.main = m.base[i] * w[om.target][om.goal]
+	}
+	order := make([]int, len(m.occs))
+	for k := range order {
+		order[k] = k
+	}
+	sort.SliceStable(order, func(a, b int) bool {
+		oa, ob := m.occs[order[a]], m.occs[order[b]]
+		wa, wb := w[oa.target][oa.goal], w[ob.target][ob.goal]
+		if wa != wb {
+			return wa > wb
+		}
+		return oa.occ.lo < ob.occ.lo
+	})
+	greedy := m.pr.greedy(order)
+	return nightSolution{sol: m.pr.solve(greedy, m.en.opt.MaxStates), greedy: m.pr.value(greedy).main, weights: w}
+}
+
+// plan turns a solved night into a Plan as PlanNight builds it: blocks with
+// their details and warnings, the reason for every goal left out, optional
+// fillers. Plan.Value, Plan.GreedyValue and Block.Value are in the weights'
+// units.
+func (m *nightModel) plan(ns nightSolution) *Plan {
+	en, targets, pr, occs, sol := m.en, m.targets, m.pr, m.occs, ns.sol
+	// The candidates hold the values of the last solve; restore ns's.
+	for i := range pr.cands {
+		c := &pr.cands[i]
+		om := occs[c.occ]
+		c.val.main = m.base[i] * ns.weights[om.target][om.goal]
+	}
+	req := m.req
+	p := &Plan{Site: req.Site, From: req.From.UTC(), To: req.To.UTC(), Constraints: en.c, Options: en.opt, Dark: toIntervals(en.dark)}
+	if en.c.SunAvoidDeg > 0 {
+		p.Warnings = append(p.Warnings, Warning{Code: WarnSunAvoidApplied, GoalIndex: -1,
+			Message: fmt.Sprintf("targets closer than %s° to the Sun are excluded; %s", fmtNum(en.c.SunAvoidDeg), SafetyCaution)})
+	}
+	for _, ts := range targets {
+		p.Visibility = append(p.Visibility, en.visibility(ts))
+	}
+	p.Candidates = len(pr.cands)
+	p.GreedyValue = ns.greedy
+	p.Value, p.Optimal, p.Rounds, p.States = sol.value.main, sol.optimal, sol.nodes, sol.states
+	if !sol.optimal {
+		p.Warnings = append(p.Warnings, Warning{Code: WarnNotOptimal, GoalIndex: -1,
+			Message: fmt.Sprintf("the optimiser reached its state limit (%d) in round %d: the schedule is feasible but may fall short of the optimum by up to %d value units", en.opt.MaxStates, sol.nodes, max(sol.gap.main, 0))})
+	}
+	var prev *candidate
+	for _, i := range sol.chosen {
+		c := &pr.cands[i]
+		om := occs[c.occ]
+		ts := targets[c.target]
+		acq := 0.0
+		if prev == nil || prev.target != c.target {
+			acq = ts.t.AcquireS
+		}
+		b := en.block(ts, om.goal, c.start, c.n, acq, false)
+		b.Cycle = om.occ.cycle
+		b.Value = c.val.main
+		p.Blocks = append(p.Blocks, b)
+		prev = c
+	}
+	p.Unscheduled, p.Warnings = en.explain(targets, occs, pr, sol.chosen, p.Warnings)
+	if en.opt.Fill {
+		p.Blocks = en.fill(targets, p.Blocks)
+	}
+	for _, b := range p.Blocks {
+		p.Warnings = append(p.Warnings, b.Warnings...)
+	}
+	return p
+}
+
+// counts returns, for each target and goal, the exposures of the chosen
+// candidates whose mid-time phase (on the night's phase clock) lies in the
+// goal's window: what the night adds to the run's coverage (fillers, added
+// only when the plan is built, are not in it).
+func (m *nightModel) counts(ns nightSolution, goals [][]runGoal) [][]int {
+	out := make([][]int, len(goals))
+	for ti := range goals {
+		out[ti] = make([]int, len(goals[ti]))
+	}
+	for _, i := range ns.sol.chosen {
+		c := &m.pr.cands[i]
+		ts := m.targets[c.target]
+		g := ts.goals[m.occs[c.occ].goal]
+		E, L := g.ExposureS, g.ExposureS+g.OverheadS
+		for j := range c.n {
+			_, phi := ts.clock.phase(c.start + float64(j)*L + E/2)
+			for gi, rg := range goals[c.target] {
+				if rg.covers(phi) {
+					out[c.target][gi]++
+				}
+			}
+		}
+	}
+	return out
+}

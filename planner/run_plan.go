@@ -1,0 +1,569 @@
+package planner
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"slices"
+	"time"
+
+	"phasecast/ephem"
+)
+
+// NightPlan is one night of a planned run.
+type NightPlan struct {
+	Night    RunNight
+	From, To time.Time // the planning window, UTC (a half night ends or starts at the middle of the dark time)
+	// Past nights are over: not planned (Plan nil); their coverage is the
+	// observed exposures.
+	Past bool
+	Plan *Plan
+}
+
+// RunPlan is a planned run: every night's schedule, the exposures (observed
+// and planned) with their phases, the coverage against each goal's
+// requirement, and the best-night search.
+type RunPlan struct {
+	Request   RunRequest // as given, for Replan
+	Nights    []NightPlan
+	Exposures []RunExposure // observed first (in request order), then planned by night and time
+	Coverage  []TargetCoverage
+	Reach     []TargetReach
+	// Value is the run objective J (see the coverage notes), millionths;
+	// MaxValue is J when every goal's requirement is met exactly (the sum of
+	// the targets' priority weights over their goals).
+	Value, MaxValue int64
+	// GreedyValue is J after the greedy pass over the nights, before the
+	// improvement rounds; IndependentValue (with CompareIndependent) is J
+	// when every remaining night is planned on its own, as PlanNight does.
+	GreedyValue, IndependentValue int64
+	// Rounds is the number of improvement rounds run, Solves the number of
+	// night schedules solved.
+	Rounds, Solves int
+}
+
+// modelBudget bounds the candidate blocks kept in memory across nights
+// (about 100 bytes each); nights beyond it are rebuilt when solved again.
+const modelBudget = 3_000_000
+
+// PlanRun plans a run of nights so that the run's coverage requirements are
+// met as far as possible, and reports the coverage and the best nights.
+//
+// Objective. Maximise J = Σ_targets w(priority) Σ_goals u(goal), u the
+// goal's value from its exposures night by night (notes in coverage.go):
+// each goal wants N exposures on each of M nights, a night's credit is ½
+// for reaching the window and the rest in proportion to the exposures up to
+// N, and nights beyond the M best count at SurplusValue (diminishing value
+// once a goal is met). Every night's schedule obeys every rule of the night
+// planner, because it is the night planner's exact scheduler (nightModel)
+// that makes it, with a weight per goal in place of the priority weight.
+//
+// Method: a greedy pass over the nights in time order with look-ahead, then
+// improvement rounds.
+//
+//   - Best-night search first: for every goal and night, the capacity (the
+//     most exposures one block can hold) from the lean sky path.
+//   - Greedy pass. For night k, given the coverage S already observed or
+//     planned on earlier nights, the potential of night j for a goal is the
+//     credit of min(capacity_j, N) exposures. G is what tonight's potential
+//     adds to u over S; I is the part of G that the later nights' potentials
+//     F cannot give (u(S+tonight+F) − u(S+F): tonight is one of the last
+//     chances); R the later nights' summed potential. The goal's weight
+//     tonight is w(p)·(I + (G − I)/(1 + R)) per unit of night credit: a goal
+//     with many later chances is worth less tonight, one whose last chance
+//     is tonight its full gain. The night is then solved exactly for these
+//     weights.
+//   - Improvement rounds (coordinate ascent on J): for each night in turn,
+//     the weights become the exact marginal gains G given every other
+//     night's plan (no look-ahead needed); the night is solved again and the
+//     new schedule kept only if J strictly increases. Rounds stop when one
+//     changes nothing, or after RunRequest.Rounds (default 2).
+//
+// J never decreases in the rounds, and with CompareIndependent the run also
+// reports J for nights planned on their own (PlanNight's own values), which
+// the greedy pass beats on runs where a goal's only chances conflict with
+// goals that have others (TestRunBeatsNightByNight). The result is
+// deterministic: nights are solved in a fixed order and parallel work
+// (best-night search, night set-up, final plans) is put back in night
+// order.
+//
+// Progress (may be nil) is called with (done, total) as work completes,
+// from one goroutine at a time; done never decreases and ends at total. A
+// cancelled ctx stops the work between nights and returns ctx.Err().
+//
+// Bad input gives an *ephem.InputError naming the field, or for observed
+// exposures a *TableError listing every bad one by log line.
+func PlanRun(ctx context.Context, req RunRequest, progress func(done, total int)) (*RunPlan, error) {
+	r, err := newRunState(req)
+	if err != nil {
+		return nil, err
+	}
+	return r.plan(ctx, progress)
+}
+
+// runState is a run being planned.
+type runState struct {
+	req     RunRequest
+	loc     *time.Location
+	base    *leanBase
+	targets []*targetState
+	goals   [][]runGoal
+	nights  []RunNight
+	from    []float64 // planning windows (Unix seconds); half nights set in reach
+	to      []float64
+	past    int
+	obsN    []int     // night of each observed exposure
+	obs     [][][]int // [night][target][goal] observed counts
+	reach   [][][]goalNightReach
+	models  []*nightModel
+	kept    int       // candidates kept in models
+	planned [][][]int // [night][target][goal] planned counts (future nights)
+	sols    []nightSolution
+	solves  int
+}
+
+func newRunState(req RunRequest) (*runState, error) {
+	if err := ValidateRunNights(req.Nights); err != nil {
+		return nil, err
+	}
+	if req.Past < 0 || req.Past > len(req.Nights) {
+		return nil, &ephem.InputError{Field: "past", Value: fmt.Sprint(req.Past), Accepted: fmt.Sprintf("0..%d (the nights already over)", len(req.Nights))}
+	}
+	if req.Bins != 0 && (req.Bins < 2 || req.Bins > MaxBins) {
+		return nil, &ephem.InputError{Field: "bins", Value: fmt.Sprint(req.Bins), Accepted: fmt.Sprintf("0 (none) or 2..%d phase bins", MaxBins)}
+	}
+	if req.Rounds > 100 {
+		return nil, &ephem.InputError{Field: "rounds", Value: fmt.Sprint(req.Rounds), Accepted: "at most 100 (0 = default 2, negative = none)"}
+	}
+	base, err := newLeanBase(req.Site, req.Constraints, req.Options)
+	if err != nil {
+		return nil, err
+	}
+	targets, err := checkTargets(req.Targets)
+	if err != nil {
+		return nil, err
+	}
+	loc := req.Zone
+	if loc == nil {
+		loc = time.UTC
+	}
+	r := &runState{req: req, loc: loc, base: base, targets: targets, nights: req.Nights, past: req.Past}
+	r.goals = make([][]runGoal, len(targets))
+	for ti, ts := range targets {
+		for gi, g := range ts.goals {
+			r.goals[ti] = append(r.goals[ti], newRunGoal(ti, gi, ts.t, g))
+		}
+	}
+	n := len(req.Nights)
+	r.from, r.to = make([]float64, n), make([]float64, n)
+	for k, nt := range req.Nights {
+		r.from[k], r.to[k] = runWindow(nt, loc)
+	}
+	return r, nil
+}
+
+// future returns the indices of the nights still to be planned.
+func (r *runState) future() []int {
+	var ks []int
+	for k := r.past; k < len(r.nights); k++ {
+		ks = append(ks, k)
+	}
+	return ks
+}
+
+func (r *runState) rounds() int {
+	switch {
+	case r.req.Rounds < 0:
+		return 0
+	case r.req.Rounds == 0:
+		return 2
+	}
+	return r.req.Rounds
+}
+
+func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*RunPlan, error) {
+	K, fut := len(r.nights), r.future()
+	F := len(fut)
+	pc := &progressCounter{fn: progress, total: K + F + F + r.rounds()*F + F + 1}
+	if r.req.CompareIndependent {
+		pc.total += F
+	}
+	// 1. Half nights, the sky and the best-night search, night by night.
+	if err := r.computeReach(ctx, pc); err != nil {
+		return nil, err
+	}
+	// 2. Observed exposures.
+	obsExp, err := r.observed()
+	if err != nil {
+		return nil, err
+	}
+	// 3. Night models, in parallel.
+	if err := r.buildModels(ctx, fut, pc); err != nil {
+		return nil, err
+	}
+	// 4. Greedy pass with look-ahead.
+	r.planned = make([][][]int, K)
+	r.sols = make([]nightSolution, K)
+	for _, k := range fut {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		m, err := r.model(k)
+		if err != nil {
+			return nil, err
+		}
+		ns := m.solve(r.weights(k, true))
+		r.solves++
+		r.sols[k], r.planned[k] = ns, m.counts(ns, r.goals)
+		pc.tick()
+	}
+	out := &RunPlan{Request: r.req}
+	out.GreedyValue = r.objective(nil)
+	// 5. Improvement rounds.
+	for round := 1; round <= r.rounds(); round++ {
+		out.Rounds = round
+		changed := false
+		for _, k := range fut {
+			if err := ctx.Err(); err != nil {
+				return nil, err
+			}
+			pc.tick()
+			w := r.weights(k, false)
+			if equalWeights(w, r.sols[k].weights) {
+				continue
+			}
+			m, err := r.model(k)
+			if err != nil {
+				return nil, err
+			}
+			ns := m.solve(w)
+			r.solves++
+			cnt := m.counts(ns, r.goals)
+			old := r.objective(nil)
+			if r.objective(map[int][][]int{k: cnt}) > old {
+				r.sols[k], r.planned[k] = ns, cnt
+				changed = true
+			} else {
+				// Keep the old schedule; remember the weights tried so an
+				// unchanged neighbourhood is not solved again.
+				r.sols[k].weights = w
+			}
+		}
+		if !changed {
+			pc.done += (r.rounds() - round) * F
+			break
+		}
+	}
+	// 6. Nights planned on their own, for comparison.
+	if r.req.CompareIndependent {
+		indep := map[int][][]int{}
+		for _, k := range fut {
+			if err := ctx.Err(); err != nil {
+				return nil, err
+			}
+			m, err := r.model(k)
+			if err != nil {
+				return nil, err
+			}
+			w := make([][]int64, len(r.targets))
+			for ti, ts := range r.targets {
+				w[ti] = make([]int64, len(ts.goals))
+				for gi := range w[ti] {
+					w[ti][gi] = PriorityWeight(ts.t.Priority)
+				}
+			}
+			ns := m.solve(w)
+			r.solves++
+			indep[k] = m.counts(ns, r.goals)
+			pc.tick()
+		}
+		out.IndependentValue = r.objective(indep)
+	}
+	out.Solves = r.solves
+	// 7. The nights' plans, in parallel.
+	out.Nights = make([]NightPlan, K)
+	for k, nt := range r.nights {
+		out.Nights[k] = NightPlan{Night: nt, From: timeOf(r.from[k]), To: timeOf(r.to[k]), Past: k < r.past}
+	}
+	err = forEach(ctx, F, func(i int) error {
+		k := fut[i]
+		m, err := r.model(k)
+		if err != nil {
+			return err
+		}
+		out.Nights[k].Plan = m.plan(r.sols[k])
+		return nil
+	}, pc.tick)
+	if err != nil {
+		return nil, err
+	}
+	r.models = nil
+	// 8. Exposures, coverage, reach.
+	out.Exposures = append(obsExp, r.plannedExposures(out.Nights)...)
+	out.Coverage = countCoverage(r.targets, r.goals, K, r.req.Bins, out.Exposures)
+	out.Reach = buildReach(r.targets, r.goals, r.reach)
+	for ti := range out.Coverage {
+		for gi := range out.Coverage[ti].Goals {
+			gc := &out.Coverage[ti].Goals[gi]
+			for _, gn := range out.Reach[ti].Goals[gi].Nights {
+				if gn.Night >= r.past {
+					gc.ReachableNights++
+				}
+			}
+			if gc.Status == CoverageNone && len(out.Reach[ti].Goals[gi].Nights) == 0 {
+				gc.Status = CoverageUnreachable
+			}
+			out.Value += gc.Share
+			out.MaxValue += 1e6 * r.goals[ti][gi].w
+		}
+	}
+	pc.tick()
+	return out, nil
+}
+
+// computeReach sets the half nights' windows and computes every night's
+// reach, in parallel over nights.
+func (r *runState) computeReach(ctx context.Context, pc *progressCounter) error {
+	K := len(r.nights)
+	lo, hi := r.from[0], r.to[K-1]
+	frame := ephem.NewSkyFrame(r.req.Site, timeOf(lo-3600), timeOf(hi+3600))
+	for _, ts := range r.targets {
+		ts.track = frame.Track(ts.star)
+	}
+	pad := make([]float64, len(r.targets))
+	for ti, ts := range r.targets {
+		for _, g := range ts.goals {
+			pad[ti] = math.Max(pad[ti], g.ExposureS+g.OverheadS)
+		}
+		pad[ti] += ts.t.AcquireS + 2*guardS + 1
+	}
+	r.reach = make([][][]goalNightReach, K)
+	return forEach(ctx, K, func(k int) error {
+		if p := r.nights[k].part(); p != PartFull {
+			full := r.base.night(r.from[k], r.to[k])
+			mid := 0.5 * (r.from[k] + r.to[k])
+			if len(full.dark) > 0 {
+				mid = math.Round(0.5 * (full.dark[0].lo + full.dark[len(full.dark)-1].hi))
+			}
+			if p == PartFirst {
+				r.to[k] = mid
+			} else {
+				r.from[k] = mid
+			}
+		}
+		en := r.base.night(r.from[k], r.to[k])
+		clocks := make([]phaseClock, len(r.targets))
+		for ti, ts := range r.targets {
+			clocks[ti] = newSparseClock(r.req.Site, ts.star, ts.t.Ephem, []float64{r.from[k], 0.5 * (r.from[k] + r.to[k]), r.to[k]})
+		}
+		rn, err := reachNight(en, r.targets, clocks, pad)
+		if err != nil {
+			return err
+		}
+		r.reach[k] = rn
+		return nil
+	}, pc.tick)
+}
+
+// observed checks the observed exposures, counts them by night and goal,
+// and returns them as run exposures.
+func (r *runState) observed() ([]RunExposure, error) {
+	names := map[string]int{}
+	for ti, ts := range r.targets {
+		names[ts.t.Name] = ti
+	}
+	bounds := make([][2]float64, len(r.nights))
+	for k := range bounds {
+		bounds[k] = [2]float64{r.from[k], r.to[k]}
+	}
+	nightOf, err := checkObserved(r.req.Observed, names, bounds, r.past, r.nights)
+	if err != nil {
+		return nil, err
+	}
+	r.obs = make([][][]int, len(r.nights))
+	for k := range r.obs {
+		r.obs[k] = r.zeroCounts()
+	}
+	var out []RunExposure
+	for i, e := range r.req.Observed {
+		ti := names[e.Target]
+		ts := r.targets[ti]
+		phi := phaseOf(r.req.Site, ts.t, e.Mid)
+		out = append(out, RunExposure{Target: e.Target, TargetIndex: ti, Night: nightOf[i], Mid: e.Mid.UTC(), ExposureS: e.ExposureS,
+			Phase: phi, Failed: e.Failed, GoalIndex: -1})
+		if e.Failed {
+			continue
+		}
+		for gi, rg := range r.goals[ti] {
+			if rg.covers(phi) {
+				r.obs[nightOf[i]][ti][gi]++
+			}
+		}
+	}
+	return out, nil
+}
+
+func (r *runState) zeroCounts() [][]int {
+	c := make([][]int, len(r.targets))
+	for ti := range c {
+		c[ti] = make([]int, len(r.goals[ti]))
+	}
+	return c
+}
+
+// nightRequest is the night planner's request for night k.
+func (r *runState) nightRequest(k int) NightRequest {
+	return NightRequest{Site: r.req.Site, From: timeOf(r.from[k]), To: timeOf(r.to[k]), Targets: r.req.Targets,
+		Constraints: r.req.Constraints, Options: r.req.Options}
+}
+
+// buildModels sets up the future nights' problems in parallel, keeping
+// them while the candidate budget allows.
+func (r *runState) buildModels(ctx context.Context, fut []int, pc *progressCounter) error {
+	r.models = make([]*nightModel, len(r.nights))
+	built := make([]*nightModel, len(fut))
+	err := forEach(ctx, len(fut), func(i int) error {
+		m, err := newNightModel(r.nightRequest(fut[i]))
+		built[i] = m
+		return err
+	}, pc.tick)
+	if err != nil {
+		return err
+	}
+	for i, k := range fut {
+		if n := len(built[i].pr.cands); r.kept+n <= modelBudget {
+			r.models[k] = built[i]
+			r.kept += n
+		}
+	}
+	return nil
+}
+
+// model returns night k's problem, rebuilding it when it was not kept.
+func (r *runState) model(k int) (*nightModel, error) {
+	if m := r.models[k]; m != nil {
+		return m, nil
+	}
+	return newNightModel(r.nightRequest(k))
+}
+
+// totals returns the exposure counts per night of goal (ti, gi): observed,
+// plus planned on the future nights (override replaces some nights'
+// planned counts; skip leaves night skip out, −1 for none).
+func (r *runState) totals(ti, gi int, override map[int][][]int, skip int) []int {
+	c := make([]int, len(r.nights))
+	for k := range c {
+		if k == skip {
+			continue
+		}
+		c[k] = r.obs[k][ti][gi]
+		if p, ok := override[k]; ok {
+			c[k] += p[ti][gi]
+		} else if r.planned[k] != nil {
+			c[k] += r.planned[k][ti][gi]
+		}
+	}
+	return c
+}
+
+// objective returns J for the planned counts (with override).
+func (r *runState) objective(override map[int][][]int) int64 {
+	var j int64
+	for ti := range r.goals {
+		for gi, rg := range r.goals[ti] {
+			j += rg.value(r.totals(ti, gi, override, -1))
+		}
+	}
+	return j
+}
+
+// potential is the exposures night k can give goal (ti, gi): its capacity,
+// up to what a night needs.
+func (r *runState) potential(k, ti, gi int) int {
+	return min(r.reach[k][ti][gi].capacity, r.goals[ti][gi].need())
+}
+
+// weights returns the goal weights for night k (see PlanRun): with
+// lookAhead, from the nights before k and the later nights' potentials;
+// otherwise the exact marginal gains given every other night's plan.
+func (r *runState) weights(k int, lookAhead bool) [][]int64 {
+	w := make([][]int64, len(r.targets))
+	for ti := range r.targets {
+		w[ti] = make([]int64, len(r.goals[ti]))
+		for gi, rg := range r.goals[ti] {
+			pot := r.potential(k, ti, gi)
+			if pot == 0 {
+				w[ti][gi] = 1000 * rg.w
+				continue
+			}
+			var S []int
+			if lookAhead {
+				S = make([]int, len(r.nights))
+				for j := range k {
+					S[j] = r.obs[j][ti][gi]
+					if r.planned[j] != nil {
+						S[j] += r.planned[j][ti][gi]
+					}
+				}
+			} else {
+				S = r.totals(ti, gi, nil, k)
+			}
+			base := rg.utility(S)
+			S[k] = pot
+			G := rg.utility(S) - base
+			f := G
+			if lookAhead {
+				R := 0.0
+				for j := k + 1; j < len(r.nights); j++ {
+					if p := r.potential(j, ti, gi); p > 0 {
+						S[j] = p
+						R += nightCredit(p, rg.N)
+					}
+				}
+				with := rg.utility(S)
+				S[k] = 0
+				I := math.Max(0, with-rg.utility(S))
+				f = I + math.Max(0, G-I)/(1+R)
+			}
+			w[ti][gi] = max(1, int64(math.Round(1000*float64(rg.w)*f/nightCredit(pot, rg.N))))
+		}
+	}
+	return w
+}
+
+func equalWeights(a, b [][]int64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if !slices.Equal(a[i], b[i]) {
+			return false
+		}
+	}
+	return true
+}
+
+// plannedExposures lists the exposures of the nights' plans (fillers
+// included) with their phases on the full path.
+func (r *runState) plannedExposures(nights []NightPlan) []RunExposure {
+	var out []RunExposure
+	for k, np := range nights {
+		if np.Plan == nil {
+			continue
+		}
+		for _, b := range np.Plan.Blocks {
+			ts := r.targets[b.TargetIndex]
+			L := b.ExposureS + b.OverheadS
+			gi := b.GoalIndex
+			if b.Filler {
+				gi = -1
+			}
+			for j := range b.N {
+				mid := b.Start.Add(durationOf(float64(j)*L + b.ExposureS/2))
+				out = append(out, RunExposure{Target: b.Target, TargetIndex: b.TargetIndex, Night: k, Mid: mid, ExposureS: b.ExposureS,
+					Phase: phaseOf(r.req.Site, ts.t, mid), Planned: true, GoalIndex: gi})
+			}
+		}
+	}
+	return out
+}
