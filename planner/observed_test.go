@@ -50,7 +50,7 @@ func TestParseObservedCSV(t *testing.T) {
 	})
 	for _, tc := range []struct {
 		name, in string
-		want []string // substrings of the error, one per bad cell, in order
+		want     []string // substrings of the error, one per bad cell, in order
 	}{
 		{"ErrEmpty", "", []string{"line 1", "empty"}},
 		{"ErrMissingColumns", "target,note\n", []string{"missing column exposure_s", "missing column start_utc or mid_utc"}},

@@ -76,7 +76,10 @@ func TestPlanRunBadInput(t *testing.T) {
 		field string
 	}{
 		{"ErrNoNights", func(r *planner.RunRequest) { r.Nights = nil }, "nights"},
-		{"ErrTooManyNights", func(r *planner.RunRequest) { r.Nights, _ = planner.NightsFrom(2026, 1, 1, 366); r.Nights = append(r.Nights, planner.RunNight{Year: 2027, Month: 1, Day: 2}) }, "nights"},
+		{"ErrTooManyNights", func(r *planner.RunRequest) {
+			r.Nights, _ = planner.NightsFrom(2026, 1, 1, 366)
+			r.Nights = append(r.Nights, planner.RunNight{Year: 2027, Month: 1, Day: 2})
+		}, "nights"},
 		{"ErrPast", func(r *planner.RunRequest) { r.Past = 4 }, "past"},
 		{"ErrBins", func(r *planner.RunRequest) { r.Bins = 1 }, "bins"},
 		{"ErrNoTargets", func(r *planner.RunRequest) { r.Targets = nil }, "targets"},
