@@ -22,6 +22,8 @@
 // Flags after the package override the defaults: -duration 30s -clients 200
 // for the load test, -seed 7 -kills 20 for the crash test (also as
 // PHASECAST_LOAD_DURATION, PHASECAST_LOAD_CLIENTS, PHASECAST_CRASH_SEED,
-// PHASECAST_CRASH_KILLS). The results and the commands that produced them
-// are recorded in docs/reliability.md. The package has no non-test code.
+// PHASECAST_CRASH_KILLS); PHASECAST_BIN=/path/to/phasecast tests that binary
+// instead of building cmd/phasecast. The results and the commands that
+// produced them are recorded in docs/reliability.md. The package has no
+// non-test code.
 package loadtest

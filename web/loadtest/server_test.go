@@ -42,9 +42,17 @@ func TestMain(m *testing.M) {
 
 // buildServer builds cmd/phasecast once per test run, with the same
 // environment (GOFLAGS, CGO_ENABLED) as the rest of the build, so that a
-// warm cache makes it a link step only.
+// warm cache makes it a link step only. PHASECAST_BIN names a binary to
+// test instead (a release build, or a snapshot while the tree is being
+// edited).
 func buildServer(tb testing.TB) string {
 	tb.Helper()
+	if p := os.Getenv("PHASECAST_BIN"); p != "" {
+		if _, err := os.Stat(p); err != nil {
+			tb.Fatalf("PHASECAST_BIN=%q: %v", p, err)
+		}
+		return p
+	}
 	binOnce.Do(func() {
 		binDir, binErr = os.MkdirTemp("", "phasecast-loadtest-")
 		if binErr != nil {
