@@ -29,7 +29,8 @@ var errMalformed = errors.New("malformed request")
 //	EINTERNAL and anything unknown → 500
 func statusFor(err error) (status int, message string) {
 	if errors.Is(err, errMalformed) {
-		return http.StatusBadRequest, "The request could not be read."
+		_, msg := errorCode(err)
+		return http.StatusBadRequest, orDefault(msg, "The request could not be read.")
 	}
 	if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
 		return http.StatusServiceUnavailable, "The computation was stopped before it finished."

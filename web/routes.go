@@ -79,5 +79,17 @@ func (s *Server) routes(mux *http.ServeMux) {
 	// Read-only share links (no sign-in).
 	mux.HandleFunc("GET /share/{token}", s.shareShow)
 
+	// JSON API (Authorization: Bearer TOKEN); see docs/api.md.
+	mux.HandleFunc("GET /api/v1/teams", s.apiUser(s.apiTeams))
+	mux.HandleFunc("GET /api/v1/lists", s.apiUser(s.apiLists))
+	mux.HandleFunc("POST /api/v1/lists", s.apiUser(s.apiListCreate))
+	mux.HandleFunc("GET /api/v1/lists/{id}/targets", s.apiUser(s.apiTargetsList))
+	mux.HandleFunc("POST /api/v1/lists/{id}/targets", s.apiUser(s.apiTargetCreate))
+	mux.HandleFunc("GET /api/v1/targets/{id}", s.apiUser(s.apiTargetGet))
+	mux.HandleFunc("PUT /api/v1/targets/{id}", s.apiUser(s.apiTargetUpdate))
+	mux.HandleFunc("DELETE /api/v1/targets/{id}", s.apiUser(s.apiTargetDelete))
+	mux.HandleFunc("GET /api/v1/night", s.apiUser(s.apiNight))
+	mux.HandleFunc("/api/", s.apiNotFound)
+
 	mux.HandleFunc("/", s.notFound)
 }

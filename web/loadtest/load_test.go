@@ -7,6 +7,7 @@ import (
 	"math/rand/v2"
 	"net/http"
 	"net/url"
+	"os"
 	"path/filepath"
 	"runtime"
 	"slices"
@@ -433,6 +434,10 @@ func TestLoad(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	self0, err := cpuTime(os.Getpid())
+	if err != nil {
+		t.Fatal(err)
+	}
 	load0 := loadAverage()
 	tr := newTransport(cfg.clients)
 	defer tr.CloseIdleConnections()
@@ -471,6 +476,10 @@ func TestLoad(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	self1, err := cpuTime(os.Getpid())
+	if err != nil {
+		t.Fatal(err)
+	}
 	load1 := loadAverage()
 
 	all := newStats()
@@ -479,8 +488,9 @@ func TestLoad(t *testing.T) {
 	}
 	total := report(t, cfg, all, single, elapsed)
 	cpu := cpu1 - cpu0
-	t.Logf("server CPU: %.1f s user+system in %.1f s = %.2f of %d cores, %.1f ms per request",
-		cpu.Seconds(), elapsed.Seconds(), cpu.Seconds()/elapsed.Seconds(), runtime.NumCPU(), float64(cpu.Milliseconds())/float64(max(total, 1)))
+	t.Logf("CPU: server %.1f s user+system in %.1f s = %.2f of %d cores, %.1f ms per request; the test's clients on the same machine %.1f s",
+		cpu.Seconds(), elapsed.Seconds(), cpu.Seconds()/elapsed.Seconds(), runtime.NumCPU(), float64(cpu.Milliseconds())/float64(max(total, 1)),
+		(self1 - self0).Seconds())
 	t.Logf("server memory: VmRSS %.1f MiB before the load, %.1f MiB at the end, peak (VmHWM) %.1f MiB; load average at the end %s",
 		float64(rss0)/1024, float64(rss)/1024, float64(peak)/1024, load1)
 

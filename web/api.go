@@ -1,0 +1,120 @@
+package web
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"net/http"
+	"strconv"
+	"strings"
+
+	"phasecast/store"
+)
+
+// apiUser wraps a JSON API handler: the caller authenticates with an API
+// token ("Authorization: Bearer TOKEN"); the current team is ?team=ID or
+// the token owner's first team.
+func (s *Server) apiUser(h func(http.ResponseWriter, *http.Request, *user)) http.HandlerFunc {
+	return func(w http.ResponseWriter, r *http.Request) {
+		auth := r.Header.Get("Authorization")
+		token, ok := strings.CutPrefix(auth, "Bearer ")
+		if !ok || strings.TrimSpace(token) == "" {
+			w.Header().Set("WWW-Authenticate", `Bearer realm="phasecast"`)
+			s.apiError(w, r, &codedError{code: codeForbidden, msg: "send an API token: Authorization: Bearer TOKEN (make one on the account page)"})
+			return
+		}
+		a, err := s.store.APITokenActor(r.Context(), strings.TrimSpace(token))
+		if err != nil {
+			w.Header().Set("WWW-Authenticate", `Bearer realm="phasecast", error="invalid_token"`)
+			s.apiError(w, r, err)
+			return
+		}
+		u := &user{actor: a}
+		want, _ := strconv.ParseInt(r.URL.Query().Get("team"), 10, 64)
+		for _, m := range a.Teams {
+			if m.TeamID == want || (want == 0 && u.team.TeamID == 0) {
+				u.team = m
+			}
+		}
+		if want != 0 && u.team.TeamID != want {
+			s.apiError(w, r, errNotFound(fmt.Sprintf("team %d not found among your teams", want)))
+			return
+		}
+		h(w, r, u)
+	}
+}
+
+// apiErrorBody is the JSON of every API error.
+type apiErrorBody struct {
+	Error struct {
+		Code    string             `json:"code"`
+		Message string             `json:"message"`
+		Fields  []store.FieldError `json:"fields,omitempty"`
+	} `json:"error"`
+	// Current is the row as it is now, after a stale-version update.
+	Current any `json:"current,omitempty"`
+}
+
+// apiError writes err as JSON with the status of statusFor; details go to
+// the log only.
+func (s *Server) apiError(w http.ResponseWriter, r *http.Request, err error) {
+	status, msg := statusFor(err)
+	if status >= 500 {
+		s.log.Error("api request failed", "path", r.URL.Path, "err", err)
+	} else {
+		s.log.Info("api request refused", "path", r.URL.Path, "status", status, "err", err)
+	}
+	var body apiErrorBody
+	code, _ := errorCode(err)
+	if errors.Is(err, errMalformed) {
+		code = codeInvalid
+	}
+	if status == http.StatusServiceUnavailable {
+		code = codeInternal
+	}
+	body.Error.Code, body.Error.Message = code, msg
+	var ve *store.ValidationError
+	if errors.As(err, &ve) {
+		body.Error.Fields = ve.Fields
+	}
+	var se *store.Error
+	if errors.As(err, &se) && se.Current != nil {
+		if t, ok := se.Current.(store.StoredTarget); ok {
+			body.Current = targetToJSON(t)
+		}
+	}
+	writeJSON(w, status, body)
+}
+
+// writeJSON writes v as indented JSON with status.
+func writeJSON(w http.ResponseWriter, status int, v any) {
+	b, err := json.MarshalIndent(v, "", "  ")
+	if err != nil {
+		http.Error(w, `{"error":{"code":"EINTERNAL","message":"internal error"}}`, http.StatusInternalServerError)
+		return
+	}
+	w.Header().Set("Content-Type", "application/json")
+	w.Header().Set("Cache-Control", "no-store")
+	w.WriteHeader(status)
+	_, _ = w.Write(append(b, '\n'))
+}
+
+// readJSON decodes a request body of at most 4 MiB into v, refusing
+// unknown members and trailing data.
+func readJSON(w http.ResponseWriter, r *http.Request, v any) error {
+	dec := json.NewDecoder(http.MaxBytesReader(w, r.Body, 4<<20))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(v); err != nil {
+		return &codedError{code: codeInvalid, msg: "the JSON body is not accepted: " + err.Error(), err: errMalformed}
+	}
+	if _, err := dec.Token(); err != io.EOF {
+		return &codedError{code: codeInvalid, msg: "the JSON body has data after the object", err: errMalformed}
+	}
+	return nil
+}
+
+// apiNotFound answers API paths no route matches, in JSON.
+func (s *Server) apiNotFound(w http.ResponseWriter, r *http.Request) {
+	s.apiError(w, r, errNotFound("no such API endpoint: "+r.Method+" "+r.URL.Path+" (see docs/api.md)"))
+}
