@@ -360,7 +360,8 @@ func (en *engine) bestFiller(targets []*targetState, d span, prev, next *Block) 
 			if n < 1 || float64(n)*L < en.opt.FillMinS {
 				continue
 			}
-			if best == nil || ts.t.Priority < best.ts.t.Priority || (ts.t.Priority == best.ts.t.Priority && n*int(L) > best.n*int(best.ts.goals[0].ExposureS+best.ts.goals[0].OverheadS)) {
+			if best == nil || ts.t.Priority < best.ts.t.Priority ||
+				(ts.t.Priority == best.ts.t.Priority && float64(n)*L > float64(best.n)*(best.ts.goals[0].ExposureS+best.ts.goals[0].OverheadS)) {
 				best = &pick{ts, lo, n}
 			}
 		}
