@@ -3,6 +3,7 @@ package loadtest
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"fmt"
 	"math/rand/v2"
 	"net/http"
@@ -24,6 +25,7 @@ import (
 // demo is what the load test learned about the seeded demo scenario.
 type demo struct {
 	sessions  map[store.Role]string // one signed-in session per role
+	tokens    map[store.Role]string // one API token per role
 	siteID    int64
 	listID    int64   // the demo list (eleven targets)
 	targetIDs []int64 // its targets
@@ -31,8 +33,9 @@ type demo struct {
 
 // signInDemo signs the demo owner in with the link the server printed at
 // first start, then the editor and viewer with sign-in links made through
-// the store on the same file (as `serve --signin-link` would), and reads
-// the ids of the demo's site, list and targets.
+// the store on the same file (as `serve --signin-link` would), makes an
+// API token for each (as the account page would), and reads the ids of the
+// demo's site, list and targets.
 func signInDemo(tb testing.TB, srv *server, db string) demo {
 	tb.Helper()
 	ctx := context.Background()
@@ -53,7 +56,7 @@ func signInDemo(tb testing.TB, srv *server, db string) demo {
 		tb.Fatalf("owner session: %v (teams %d)", err, len(a.Teams))
 	}
 	team := a.Teams[0].TeamID
-	d := demo{sessions: map[store.Role]string{store.RoleOwner: owner}}
+	d := demo{sessions: map[store.Role]string{store.RoleOwner: owner}, tokens: map[store.Role]string{}}
 	members, err := st.ListMembers(ctx, a, team)
 	if err != nil {
 		tb.Fatal(err)
@@ -68,6 +71,15 @@ func signInDemo(tb testing.TB, srv *server, db string) demo {
 		}
 		if d.sessions[m.Role], err = redeem(ctx, srv.base+"/login/link/"+tok); err != nil {
 			tb.Fatalf("sign in %s: %v", m.Email, err)
+		}
+	}
+	for role, session := range d.sessions {
+		ra, err := st.SessionActor(ctx, session)
+		if err != nil {
+			tb.Fatal(err)
+		}
+		if _, d.tokens[role], err = st.CreateAPIToken(ctx, ra, "load test", time.Hour); err != nil {
+			tb.Fatalf("API token for the %s: %v", role, err)
 		}
 	}
 	sites, err := st.ListSites(ctx, a, team)
@@ -298,6 +310,20 @@ var ops = []op{
 		r, err := w.c.get(ctx, "/healthz")
 		w.st.record("GET /healthz", r, err, false, 200)
 	}},
+	{3, false, func(ctx context.Context, w *worker) {
+		r, err := w.c.api(ctx, http.MethodGet, fmt.Sprintf("/api/v1/lists/%d/targets", w.env.listID), nil)
+		w.st.record("API GET /api/v1/lists/{id}/targets", r, err, false, 200)
+	}},
+	{4, false, func(ctx context.Context, w *worker) {
+		r, err := w.c.api(ctx, http.MethodGet, fmt.Sprintf("/api/v1/targets/%d", w.env.anyTarget(w.rng)), nil)
+		w.st.record("API GET /api/v1/targets/{id}", r, err, false, 200)
+	}},
+	{3, false, func(ctx context.Context, w *worker) {
+		r, err := w.c.api(ctx, http.MethodGet, "/api/v1/night?"+w.nightQuery(), nil)
+		w.st.record("API GET /api/v1/night (plan)", r, err, false, 200)
+	}},
+	{3, true, func(ctx context.Context, w *worker) { w.apiEdit(ctx) }},
+	{2, true, func(ctx context.Context, w *worker) { w.apiCreate(ctx) }},
 	{8, true, func(ctx context.Context, w *worker) { w.edit(ctx) }},
 	{4, true, func(ctx context.Context, w *worker) { w.create(ctx) }},
 	{1, true, func(ctx context.Context, w *worker) { w.importRows(ctx) }},
@@ -335,6 +361,52 @@ func (w *worker) edit(ctx context.Context) {
 	form.Set("notes", fmt.Sprintf("edited under load by client %d (edit %d)", w.id, w.edits))
 	r, err = w.c.post(ctx, action, form)
 	w.st.record("POST /targets/{id} (versioned)", r, err, true, http.StatusSeeOther)
+}
+
+// apiEdit reads a target through the API, changes its notes and puts it
+// back with the version it read: 200 when saved, 409 when someone saved in
+// between.
+func (w *worker) apiEdit(ctx context.Context) {
+	id := w.env.anyTarget(w.rng)
+	path := fmt.Sprintf("/api/v1/targets/%d", id)
+	r, err := w.c.api(ctx, http.MethodGet, path, nil)
+	if w.st.record("API GET /api/v1/targets/{id}", r, err, false, 200) != okOutcome {
+		return
+	}
+	var tg map[string]any
+	if err := json.Unmarshal(r.body, &tg); err != nil {
+		w.st.record("API GET /api/v1/targets/{id}", response{status: -1}, fmt.Errorf("decode: %w", err), false)
+		return
+	}
+	w.edits++
+	tg["notes"] = fmt.Sprintf("edited through the API under load by client %d (edit %d)", w.id, w.edits)
+	body, _ := json.Marshal(tg)
+	r, err = w.c.api(ctx, http.MethodPut, path, body)
+	w.st.record("API PUT /api/v1/targets/{id} (versioned)", r, err, true, 200)
+}
+
+// apiCreate adds a target to the load list through the API (an API edit
+// once maxCreated exist).
+func (w *worker) apiCreate(ctx context.Context) {
+	if w.env.nCreated() >= maxCreated {
+		w.apiEdit(ctx)
+		return
+	}
+	n, ra, dec := w.env.position()
+	body := fmt.Sprintf(`{"name": "LT API client %d target %d", "ra_deg": %s, "dec_deg": %s, "priority": %d, "tags": ["load"],
+ "ephemeris": {"t0": "2460000.51234", "t0_standard": "BJD_TDB", "t0_convention": "inferior_conjunction", "period_days": %.6f},
+ "goals": [{"phase": 0.5, "phase_halfwidth": 0.05, "exposure_s": 60, "overhead_s": 5}], "notes": "made through the API by the load test"}`,
+		w.id, n, ra, dec, 1+w.rng.IntN(5), 0.05+w.rng.Float64()*0.5)
+	r, err := w.c.api(ctx, http.MethodPost, fmt.Sprintf("/api/v1/lists/%d/targets", w.env.loadListID), []byte(body))
+	if w.st.record("API POST /api/v1/lists/{id}/targets", r, err, false, http.StatusCreated) != okOutcome {
+		return
+	}
+	id, err := locationID(r.location, "/api/v1/targets/")
+	if err != nil {
+		w.st.record("API POST /api/v1/lists/{id}/targets", response{status: -1}, err, false)
+		return
+	}
+	w.env.addCreated(id)
 }
 
 // create adds a target to the load list (an edit once maxCreated exist).
@@ -416,7 +488,7 @@ func TestLoad(t *testing.T) {
 		env.dates = append(env.dates, now.AddDate(0, 0, k).Format("2006-01-02"))
 	}
 	ctx := context.Background()
-	owner := newClient(http.DefaultTransport, srv.base, env.sessions[store.RoleOwner])
+	owner := newAPIClient(http.DefaultTransport, srv.base, env.sessions[store.RoleOwner], env.tokens[store.RoleOwner])
 	r, err := owner.post(ctx, "/lists", url.Values{"name": {"Load test list"}, "description": {"targets made by the load test"}})
 	if err != nil || r.status != http.StatusSeeOther {
 		t.Fatalf("create the load list: status %d, %v", r.status, err)
@@ -449,7 +521,7 @@ func TestLoad(t *testing.T) {
 			role = store.RoleOwner
 		}
 		workers[i] = &worker{id: i, role: role, env: env, st: newStats(),
-			c: newClient(tr, srv.base, env.sessions[role]), rng: rand.New(rand.NewPCG(uint64(i), 0x10ad))}
+			c: newAPIClient(tr, srv.base, env.sessions[role], env.tokens[role]), rng: rand.New(rand.NewPCG(uint64(i), 0x10ad))}
 	}
 	t.Logf("load: %s against %s (pid %d), GOMAXPROCS %d, NumCPU %d, load average before %s",
 		cfg.describe(), srv.base, srv.pid(), runtime.GOMAXPROCS(0), runtime.NumCPU(), load0)

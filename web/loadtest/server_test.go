@@ -2,6 +2,7 @@ package loadtest
 
 import (
 	"bufio"
+	"bytes"
 	"context"
 	"database/sql"
 	"errors"
@@ -296,11 +297,13 @@ func newTransport(conns int) *http.Transport {
 	}
 }
 
-// client is one browser: a session cookie and the server's address.
+// client is one browser (a session cookie) or API script (a token) and
+// the server's address.
 type client struct {
 	hc      *http.Client
 	base    string
 	session string
+	token   string // API token, for api
 }
 
 // newClient returns a client that does not follow redirects (a 303 after a
@@ -311,6 +314,13 @@ func newClient(tr http.RoundTripper, base, session string) *client {
 		Timeout:       60 * time.Second,
 		CheckRedirect: func(*http.Request, []*http.Request) error { return http.ErrUseLastResponse },
 	}}
+}
+
+// newAPIClient is newClient with an API token as well.
+func newAPIClient(tr http.RoundTripper, base, session, token string) *client {
+	c := newClient(tr, base, session)
+	c.token = token
+	return c
 }
 
 // response is what a request returned.
@@ -331,6 +341,25 @@ func (c *client) post(ctx context.Context, path string, form url.Values) (respon
 	return c.do(ctx, http.MethodPost, path, form)
 }
 
+// api sends a JSON API request with the API token c.token (body nil for
+// none), as a script would: no cookie, no browser headers.
+func (c *client) api(ctx context.Context, method, path string, body []byte) (response, error) {
+	var rd io.Reader
+	if body != nil {
+		rd = bytes.NewReader(body)
+	}
+	req, err := http.NewRequestWithContext(ctx, method, c.base+path, rd)
+	if err != nil {
+		return response{}, err
+	}
+	req.Header.Set("Authorization", "Bearer "+c.token)
+	req.Header.Set("Accept", "application/json")
+	if body != nil {
+		req.Header.Set("Content-Type", "application/json")
+	}
+	return c.send(req)
+}
+
 func (c *client) do(ctx context.Context, method, path string, form url.Values) (response, error) {
 	var body io.Reader
 	if form != nil {
@@ -348,6 +377,11 @@ func (c *client) do(ctx context.Context, method, path string, form url.Values) (
 		req.Header.Set("Origin", c.base)
 		req.Header.Set("Sec-Fetch-Site", "same-origin")
 	}
+	return c.send(req)
+}
+
+// send makes the request and reads the whole answer, timing both.
+func (c *client) send(req *http.Request) (response, error) {
 	start := time.Now()
 	resp, err := c.hc.Do(req)
 	if err != nil {
@@ -357,7 +391,7 @@ func (c *client) do(ctx context.Context, method, path string, form url.Values) (
 	b, err := io.ReadAll(resp.Body)
 	r := response{status: resp.StatusCode, body: b, location: resp.Header.Get("Location"), elapsed: time.Since(start)}
 	if err != nil {
-		return r, fmt.Errorf("read body of %s %s: %w", method, path, err)
+		return r, fmt.Errorf("read body of %s %s: %w", req.Method, req.URL.Path, err)
 	}
 	return r, nil
 }
