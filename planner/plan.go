@@ -432,6 +432,10 @@ func (en *engine) visibility(ts *targetState) Visibility {
 	return v
 }
 
+// windowMarginS keeps exposure mid-times this far inside the goal window,
+// seconds (the phase clock is good to 0.2 ms).
+const windowMarginS = 0.01
+
 // guardS keeps blocks this far inside the observable intervals, seconds, so
 // that the full computation (edges within a second of the fast path) agrees
 // that every constraint holds for the whole block.
@@ -500,6 +504,10 @@ func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc o
 	E, L := g.ExposureS, g.ExposureS+g.OverheadS
 	step := en.opt.StepS
 	w := PriorityWeight(ts.t.Priority)
+	// Mid-times stay windowMarginS inside the window, so that a phase
+	// computed independently (to a millisecond) agrees they are in it.
+	oc.lo += windowMarginS
+	oc.hi -= windowMarginS
 	first := math.Ceil(oc.lo - E/2)  // earliest start of the window
 	last1 := math.Floor(oc.hi - E/2) // latest start of a one-exposure block
 	for _, v := range ts.vis {

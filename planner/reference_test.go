@@ -149,7 +149,7 @@ func checkPlanRules(tb testing.TB, req NightRequest, p *Plan) {
 		for k := 0; k < b.N; k++ {
 			mid := b.Start.Add(time.Duration((float64(k)*L + b.ExposureS/2) * 1e9))
 			ph := fullPhase(req.Site, t, mid)
-			if !inWindow(ph, b.Goal.Center, b.Goal.HalfWidth, 1e-6) {
+			if !inWindow(ph, b.Goal.Center, b.Goal.HalfWidth, 0) {
 				tb.Errorf("%s: exposure %d mid-time phase %.6f outside %.4f ± %.4f", name, k, ph, b.Goal.Center, b.Goal.HalfWidth)
 			}
 		}
