@@ -2,6 +2,7 @@ package loadtest
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"maps"
@@ -147,9 +148,13 @@ func (w *crashWriter) run(ctx context.Context) {
 	}
 }
 
-// create adds one target through the form; a 303 acknowledges it.
+// create adds one target, through the form (a 303 acknowledges it) or,
+// half the time, through the JSON API (a 201).
 func (w *crashWriter) create(ctx context.Context) bool {
 	r := w.l.newRow(w.id, 0, w.rng)
+	if w.rng.IntN(2) == 0 {
+		return w.apiCreate(ctx, r)
+	}
 	form := url.Values{
 		"list": {fmt.Sprint(w.list)}, "name": {r.name}, "ra": {strconv.FormatFloat(r.raDeg, 'f', 4, 64)},
 		"dec": {strconv.FormatFloat(r.decDeg, 'f', 4, 64)}, "priority": {"3"},
@@ -179,11 +184,53 @@ func (w *crashWriter) create(ctx context.Context) bool {
 	return false
 }
 
+// apiCreate adds one target through the JSON API; a 201 acknowledges it.
+func (w *crashWriter) apiCreate(ctx context.Context, r *row) bool {
+	resp, err := w.c.api(ctx, http.MethodPost, fmt.Sprintf("/api/v1/lists/%d/targets", w.list), r.json(0, r.notes))
+	if w.transportFailed("API create "+r.name, err) {
+		w.l.count("creates sent, no answer (server killed)", 1)
+		return true
+	}
+	if resp.status != http.StatusCreated {
+		w.l.fail(fmt.Sprintf("API create %s: status %d: %s", r.name, resp.status, snippet(resp.body)))
+		return true
+	}
+	var got struct{ ID, Version int64 }
+	if err := json.Unmarshal(resp.body, &got); err != nil || got.ID == 0 || got.Version != 1 {
+		w.l.fail(fmt.Sprintf("API create %s: answer %s (%v)", r.name, snippet(resp.body), err))
+		return true
+	}
+	w.l.mu.Lock()
+	r.id, r.version, r.acked, r.inFlight = got.ID, 1, true, false
+	w.l.owned[w.id] = append(w.l.owned[w.id], r)
+	w.l.mu.Unlock()
+	w.l.count("creates acknowledged", 1)
+	return false
+}
+
+// json is the row as a JSON API target with version and notes.
+func (r *row) json(version int64, notes string) []byte {
+	b, _ := json.Marshal(map[string]any{
+		"version": version, "name": r.name, "ra_deg": r.raDeg, "dec_deg": r.decDeg, "priority": 3, "notes": notes,
+		"ephemeris": map[string]any{"t0": "2460000.51234", "t0_standard": "BJD_TDB", "t0_form": "JD",
+			"t0_convention": "inferior_conjunction", "period_days": r.periodDays},
+		"goals": []any{map[string]any{"phase": 0.5, "phase_halfwidth": 0.05, "exposure_s": 60, "overhead_s": 0}},
+	})
+	return b
+}
+
 // update changes the notes of one of the writer's own targets with the
-// version it knows; a 303 acknowledges it. No one else writes the row, so
-// a 409 would mean a lost or phantom write.
+// version it knows, through the form (a 303 acknowledges it) or, half the
+// time, the JSON API (a 200). No one else writes the row, so a 409 would
+// mean a lost or phantom write.
 func (w *crashWriter) update(ctx context.Context, r *row) bool {
 	notes := fmt.Sprintf("updated by w%d, %d", w.id, w.l.serial.Add(1))
+	w.l.mu.Lock()
+	r.pendingNotes, r.hasPending = notes, true
+	w.l.mu.Unlock()
+	if w.rng.IntN(2) == 0 {
+		return w.apiUpdate(ctx, r, notes)
+	}
 	form := url.Values{
 		"version": {fmt.Sprint(r.version)}, "list": {fmt.Sprint(w.list)}, "name": {r.name},
 		"ra": {strconv.FormatFloat(r.raDeg, 'f', 4, 64)}, "dec": {strconv.FormatFloat(r.decDeg, 'f', 4, 64)}, "priority": {"3"},
@@ -191,9 +238,6 @@ func (w *crashWriter) update(ctx context.Context, r *row) bool {
 		"period_days": {strconv.FormatFloat(r.periodDays, 'f', 6, 64)}, "notes": {notes},
 		"goals[0].center": {"0.5"}, "goals[0].phase_halfwidth": {"0.05"}, "goals[0].exposure_s": {"60"},
 	}
-	w.l.mu.Lock()
-	r.pendingNotes, r.hasPending = notes, true
-	w.l.mu.Unlock()
 	resp, err := w.c.post(ctx, fmt.Sprintf("/targets/%d", r.id), form)
 	if w.transportFailed("update "+r.name, err) {
 		w.l.count("updates sent, no answer (server killed)", 1)
@@ -201,6 +245,24 @@ func (w *crashWriter) update(ctx context.Context, r *row) bool {
 	}
 	if resp.status != http.StatusSeeOther {
 		w.l.fail(fmt.Sprintf("update %s (id %d, version %d): status %d: %s", r.name, r.id, r.version, resp.status, snippet(resp.body)))
+		return true
+	}
+	w.l.mu.Lock()
+	r.notes, r.version, r.pendingNotes, r.hasPending = notes, r.version+1, "", false
+	w.l.mu.Unlock()
+	w.l.count("updates acknowledged", 1)
+	return false
+}
+
+// apiUpdate puts the row back through the JSON API with new notes.
+func (w *crashWriter) apiUpdate(ctx context.Context, r *row, notes string) bool {
+	resp, err := w.c.api(ctx, http.MethodPut, fmt.Sprintf("/api/v1/targets/%d", r.id), r.json(r.version, notes))
+	if w.transportFailed("API update "+r.name, err) {
+		w.l.count("updates sent, no answer (server killed)", 1)
+		return true
+	}
+	if resp.status != http.StatusOK {
+		w.l.fail(fmt.Sprintf("API update %s (id %d, version %d): status %d: %s", r.name, r.id, r.version, resp.status, snippet(resp.body)))
 		return true
 	}
 	w.l.mu.Lock()
@@ -267,6 +329,7 @@ func TestCrashSafety(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	token := apiToken(t, db, session)
 
 	l := newLedger()
 	var waits []time.Duration
@@ -283,7 +346,7 @@ func TestCrashSafety(t *testing.T) {
 		tr := newTransport(crashWriters)
 		var wg sync.WaitGroup
 		for i := 0; i < crashWriters; i++ {
-			w := &crashWriter{id: i, c: newClient(tr, srv.base, session), l: l, list: list,
+			w := &crashWriter{id: i, c: newAPIClient(tr, srv.base, session, token), l: l, list: list,
 				rng: rand.New(rand.NewPCG(uint64(cfg.seed), uint64(k*crashWriters+i)))}
 			wg.Go(func() { w.run(ctx) })
 		}
@@ -332,6 +395,27 @@ func TestCrashSafety(t *testing.T) {
 	if locked+logErrs+panics > 0 {
 		t.Errorf("server log shows trouble:\n%s", strings.Join(examples, "\n"))
 	}
+}
+
+// apiToken makes an API token for the user of session through the store
+// on the same file (as the account page would).
+func apiToken(t *testing.T, db, session string) string {
+	t.Helper()
+	ctx := context.Background()
+	st, err := store.Open(ctx, db)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer st.Close()
+	a, err := st.SessionActor(ctx, session)
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, tok, err := st.CreateAPIToken(ctx, a, "crash test", time.Hour)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return tok
 }
 
 // verify checks the database file against the ledger: SQLite's own checks
