@@ -55,15 +55,16 @@ func (b reasonBits) reasons() []Reason {
 	return out
 }
 
-// Describe returns a short phrase for the reason, for night sheets.
+// Describe returns a short phrase for the reason that reads after "the
+// target is", for night sheets.
 func (r Reason) Describe(c Constraints) string {
 	switch r {
 	case ReasonDaylight:
-		return "Sun above " + fmtNum(c.SunAltMaxDeg) + "° (" + string(c.Twilight) + " twilight)"
+		return "in daylight or twilight (Sun above " + fmtNum(c.SunAltMaxDeg) + "°, " + string(c.Twilight) + ")"
 	case ReasonBelowHorizon:
 		return "below the horizon"
 	case ReasonAirmass:
-		return "airmass above " + fmtNum(c.MaxAirmass)
+		return "above airmass " + fmtNum(c.MaxAirmass)
 	case ReasonMinAlt:
 		return "below " + fmtNum(c.MinAltDeg) + "° altitude"
 	case ReasonHorizonMask:
@@ -71,11 +72,11 @@ func (r Reason) Describe(c Constraints) string {
 	case ReasonZenith:
 		return "within " + fmtNum(c.ZenithExclDeg) + "° of the zenith"
 	case ReasonHourAngle:
-		return "hour angle outside " + fmtNum(c.HAMinHours) + ".." + fmtNum(c.HAMaxHours) + " h"
+		return "outside hour angles " + fmtNum(c.HAMinHours) + ".." + fmtNum(c.HAMaxHours) + " h"
 	case ReasonMoonSep:
 		return "within " + fmtNum(c.MinMoonSepDeg) + "° of the Moon"
 	case ReasonMoonIllum:
-		return "Moon up and more than " + fmtNum(c.MaxMoonIllum*100) + "% illuminated"
+		return "under a Moon more than " + fmtNum(c.MaxMoonIllum*100) + "% illuminated"
 	case ReasonSunAvoid:
 		return "within " + fmtNum(c.SunAvoidDeg) + "° of the Sun"
 	}
