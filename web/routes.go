@@ -68,6 +68,12 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("POST /lists/{id}/share", s.inTeam(s.shareCreate))
 	mux.HandleFunc("POST /shares/{id}/revoke", s.inTeam(s.shareRevoke))
 
+	// Queue windows.
+	mux.HandleFunc("GET /windows", s.inTeam(s.windowsShow))
+	mux.HandleFunc("GET /windows.csv", s.inTeam(s.windowsExport("csv")))
+	mux.HandleFunc("GET /windows.json", s.inTeam(s.windowsExport("json")))
+	mux.HandleFunc("GET /windows.ics", s.inTeam(s.windowsExport("ics")))
+
 	// Sites.
 	mux.HandleFunc("GET /sites", s.inTeam(s.sitesList))
 	mux.HandleFunc("GET /sites/new", s.inTeam(s.siteNew))
@@ -89,6 +95,7 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("PUT /api/v1/targets/{id}", s.apiUser(s.apiTargetUpdate))
 	mux.HandleFunc("DELETE /api/v1/targets/{id}", s.apiUser(s.apiTargetDelete))
 	mux.HandleFunc("GET /api/v1/night", s.apiUser(s.apiNight))
+	mux.HandleFunc("GET /api/v1/windows", s.apiUser(s.apiWindows))
 	mux.HandleFunc("/api/", s.apiNotFound)
 
 	mux.HandleFunc("/", s.notFound)

@@ -1,0 +1,208 @@
+package web
+
+import (
+	"bytes"
+	"context"
+	"crypto/sha256"
+	"encoding/csv"
+	"encoding/hex"
+	"encoding/json"
+	"fmt"
+	"net/url"
+	"strconv"
+	"strings"
+	"time"
+
+	"phasecast/ephem"
+	"phasecast/planner"
+	"phasecast/store"
+	"phasecast/web/ical"
+	"phasecast/web/page"
+)
+
+// windowsReq is a queue-windows request: the night query's site, list and
+// targets, and a range of local dates (?from=&to=).
+type windowsReq struct {
+	nightQuery
+	from, to string
+}
+
+// windows is a computed list of queue windows.
+type windows struct {
+	*night
+	req    windowsReq
+	groups []planner.GoalWindows
+	from   time.Time
+	to     time.Time
+}
+
+// loadWindows resolves a windows request; it computes only when both dates
+// are given, and returns messages for fields to fix.
+func (s *Server) loadWindows(ctx context.Context, a store.Actor, teamID int64, q url.Values) (*windows, page.Errs, error) {
+	nq, err := parseNightQuery(q)
+	if err != nil {
+		return nil, nil, err
+	}
+	n, errs, err := s.loadNight(ctx, a, teamID, nq)
+	if err != nil {
+		return nil, nil, err
+	}
+	w := &windows{night: n, req: windowsReq{nightQuery: n.q, from: strings.TrimSpace(q.Get("from")), to: strings.TrimSpace(q.Get("to"))}}
+	if len(n.sites) == 0 || len(n.lists) == 0 {
+		return w, errs, nil
+	}
+	if w.req.from == "" {
+		w.req.from = n.q.date
+	}
+	if w.req.to == "" {
+		w.req.to = w.req.from
+		if d, err := time.Parse("2006-01-02", w.req.from); err == nil {
+			w.req.to = d.AddDate(0, 0, 30).Format("2006-01-02")
+		}
+	}
+	y1, m1, d1, err1 := ephem.ParseDate(w.req.from)
+	y2, m2, d2, err2 := ephem.ParseDate(w.req.to)
+	if err1 != nil {
+		errs["from"] = fmt.Sprintf("“%s” is not a date; accepted: YYYY-MM-DD", w.req.from)
+	}
+	if err2 != nil {
+		errs["to"] = fmt.Sprintf("“%s” is not a date; accepted: YYYY-MM-DD", w.req.to)
+	}
+	if len(errs) > 0 || q.Get("from") == "" {
+		return w, errs, nil
+	}
+	w.from, _ = planner.NightWindow(y1, m1, d1, n.loc)
+	_, w.to = planner.NightWindow(y2, m2, d2, n.loc)
+	req := planner.WindowRequest{Site: n.site.Site, From: w.from, To: w.to, Constraints: n.constraints(errs)}
+	for _, t := range n.targets {
+		req.Targets = append(req.Targets, t.Target)
+	}
+	if len(errs) > 0 {
+		return w, errs, nil
+	}
+	w.groups, err = planner.QueueWindows(ctx, req, nil)
+	if err != nil {
+		if fe, _, ok := formErrs(err); ok {
+			for k, v := range fe {
+				if k != "from" && k != "to" {
+					k = ""
+				}
+				errs[k] = v
+			}
+			return w, errs, nil
+		}
+		return nil, nil, err
+	}
+	return w, errs, nil
+}
+
+// encode writes the request as a query string.
+func (w *windows) encode() string {
+	q, _ := url.ParseQuery(w.req.nightQuery.encode())
+	q.Del("date")
+	q.Set("from", w.req.from)
+	q.Set("to", w.req.to)
+	return q.Encode()
+}
+
+// view builds the page.
+func (w *windows) view(errs page.Errs) page.WindowsView {
+	n := w.night
+	v := page.WindowsView{From: w.req.from, To: w.req.to, Errs: errs}
+	f := n.form(errs)
+	v.Sites, v.Lists, v.Targets = f.Sites, f.Lists, f.Targets
+	if w.groups == nil {
+		return v
+	}
+	v.Done, v.Query = true, w.encode()
+	v.Title = fmt.Sprintf("Windows at %s, %s to %s", n.site.Name, w.req.from, w.req.to)
+	v.Zone, _ = w.from.In(n.loc).Zone()
+	for _, g := range w.groups {
+		grp := page.WindowGroup{Target: g.Target, Goal: goalLabel(g.Goal)}
+		for _, qw := range g.Windows {
+			grp.Rows = append(grp.Rows, page.WindowRow{StartUTC: qw.Start.UTC().Format("2006-01-02 15:04:05"), EndUTC: qw.End.UTC().Format("15:04:05"),
+				Local:  qw.Start.In(n.loc).Format("Jan 02 15:04") + "–" + qw.End.In(n.loc).Format("15:04"),
+				Length: fmtDuration(qw.End.Sub(qw.Start)), Cycle: strconv.FormatInt(qw.Cycle, 10),
+				Airmass: fmt.Sprintf("%.2f–%.2f", qw.AirmassMin, qw.AirmassMax), PhaseErr: fmtPhaseErr(qw.PhaseErr), Uncertain: qw.Uncertain,
+				Exposures: strconv.Itoa(qw.Exposures)})
+			v.Total++
+		}
+		v.Groups = append(v.Groups, grp)
+	}
+	return v
+}
+
+// windowJSON is one window in the JSON export.
+type windowJSON struct {
+	Target     string  `json:"target"`
+	PhaseGoal  float64 `json:"phase_goal"`
+	Event      string  `json:"event,omitempty"`
+	Start      string  `json:"start"`
+	End        string  `json:"end"`
+	Cycle      int64   `json:"cycle"`
+	AirmassMin float64 `json:"airmass_min"`
+	AirmassMax float64 `json:"airmass_max"`
+	PhaseErr   float64 `json:"phase_err"`
+	Uncertain  bool    `json:"uncertain"`
+	Exposures  int     `json:"whole_exposures"`
+}
+
+// flat lists every window in target, goal, time order.
+func (w *windows) flat() []windowJSON {
+	out := []windowJSON{}
+	for _, g := range w.groups {
+		for _, qw := range g.Windows {
+			out = append(out, windowJSON{Target: g.Target, PhaseGoal: g.Goal.Center, Event: g.Goal.Event, Start: utcString(qw.Start),
+				End: utcString(qw.End), Cycle: qw.Cycle, AirmassMin: qw.AirmassMin, AirmassMax: qw.AirmassMax, PhaseErr: qw.PhaseErr,
+				Uncertain: qw.Uncertain, Exposures: qw.Exposures})
+		}
+	}
+	return out
+}
+
+func (w *windows) exportJSON() ([]byte, error) {
+	return json.MarshalIndent(map[string]any{"site": w.site.Name, "from": utcString(w.from), "to": utcString(w.to),
+		"windows": w.flat(), "caution": cautionText}, "", "  ")
+}
+
+func (w *windows) exportCSV() ([]byte, error) {
+	var buf bytes.Buffer
+	cw := csv.NewWriter(&buf)
+	_ = cw.Write([]string{"target", "phase_goal", "event", "start_utc", "end_utc", "cycle", "airmass_min", "airmass_max", "phase_err", "uncertain", "whole_exposures"})
+	for _, r := range w.flat() {
+		_ = cw.Write([]string{safeCell(r.Target), num(r.PhaseGoal), safeCell(r.Event), r.Start, r.End, strconv.FormatInt(r.Cycle, 10),
+			strconv.FormatFloat(r.AirmassMin, 'f', 3, 64), strconv.FormatFloat(r.AirmassMax, 'f', 3, 64),
+			strconv.FormatFloat(r.PhaseErr, 'g', 3, 64), strconv.FormatBool(r.Uncertain), strconv.Itoa(r.Exposures)})
+	}
+	cw.Flush()
+	return buf.Bytes(), cw.Error()
+}
+
+// exportICS writes the windows as events; UIDs come from the site, target,
+// goal and cycle, DTSTAMP from the inputs' last change.
+func (w *windows) exportICS() ([]byte, error) {
+	stamp := w.site.UpdatedAt
+	for _, t := range w.targets {
+		if t.UpdatedAt.After(stamp) {
+			stamp = t.UpdatedAt
+		}
+	}
+	cal := ical.Calendar{ProdID: "-//phasecast//queue windows//EN", Name: "Queue windows at " + w.site.Name}
+	for _, g := range w.groups {
+		for _, qw := range g.Windows {
+			sum := sha256.Sum256([]byte(fmt.Sprintf("%d|%s|%s|%s|%d", w.site.ID, g.Target, num(g.Goal.Center), g.Goal.Event, qw.Cycle)))
+			desc := fmt.Sprintf("%s; cycle %d; airmass %.2f–%.2f; phase 1σ %s; %d whole exposures fit\n%s", goalLabel(g.Goal), qw.Cycle,
+				qw.AirmassMin, qw.AirmassMax, fmtPhaseErr(qw.PhaseErr), qw.Exposures, cautionText)
+			cal.Events = append(cal.Events, ical.Event{UID: "window-" + hex.EncodeToString(sum[:12]) + "@phasecast", Stamp: stamp,
+				Start: qw.Start, End: qw.End, Summary: g.Target + " — " + goalLabel(g.Goal), Description: desc, Location: w.site.Name,
+				Categories: []string{"phasecast", "queue window"}})
+		}
+	}
+	var buf bytes.Buffer
+	err := ical.Encode(&buf, cal)
+	return buf.Bytes(), err
+}
+
+func (w *windows) exportName(ext string) string {
+	return fileName(w.site.Name+"-"+w.req.from+"-"+w.req.to, "windows", ext)
+}
