@@ -1,6 +1,7 @@
 package planner
 
 import (
+	"fmt"
 	"math"
 	"sort"
 	"time"
@@ -265,4 +266,23 @@ func countCoverage(targets []*targetState, goals [][]runGoal, nNights, bins int,
 		}
 	}
 	return out
+}
+
+// PhaseBinGoals returns n goals that tile the orbit, for a light curve: bin
+// b centred at phase (b + ½)/n with half-width 1/(2n), 2 ≤ n ≤ MaxBins,
+// each with the exposure setup and requirement of g (its Center and Event
+// are not used). Neighbouring bins share their edges.
+func PhaseBinGoals(n int, g Goal) ([]Goal, error) {
+	if n < 2 || n > MaxBins {
+		return nil, &ephem.InputError{Field: "bins", Value: fmt.Sprint(n), Accepted: fmt.Sprintf("2..%d phase bins", MaxBins)}
+	}
+	out := make([]Goal, n)
+	for b := range out {
+		x := g
+		x.Event, x.EclipseDurDays = "", 0
+		x.Center = (float64(b) + 0.5) / float64(n)
+		x.HalfWidth = 0.5 / float64(n)
+		out[b] = x
+	}
+	return out, nil
 }

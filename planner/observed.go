@@ -379,3 +379,19 @@ func (rp *RunPlan) Replan(ctx context.Context, marks []BlockMark, past int, prog
 	req.Past = past
 	return PlanRun(ctx, req, progress)
 }
+
+// PastThrough returns the number of nights (windows as RunNightWindows
+// gives them) up to and including the last one holding an observed
+// exposure's mid-time: the nights a log shows to be over. 0 for no
+// exposure in any night.
+func PastThrough(windows []Interval, obs []Exposure) int {
+	past := 0
+	for _, e := range obs {
+		for k, w := range windows {
+			if !e.Mid.Before(w.Start) && e.Mid.Before(w.End) {
+				past = max(past, k+1)
+			}
+		}
+	}
+	return past
+}

@@ -2,6 +2,7 @@ package planner
 
 import (
 	"fmt"
+	"math"
 	"strings"
 	"time"
 
@@ -184,4 +185,54 @@ const MaxBins = 100
 func runWindow(n RunNight, loc *time.Location) (from, to float64) {
 	f, t := NightWindow(n.Year, n.Month, n.Day, loc)
 	return unixSec(f), unixSec(t)
+}
+
+// halfSplit returns the instant (Unix seconds) that splits the night
+// [from, to] into halves: the middle of its dark time under base's
+// twilight (to the second), or of [from, to] when it has no dark time.
+func (b *leanBase) halfSplit(from, to float64) float64 {
+	full := b.night(from, to)
+	if len(full.dark) == 0 {
+		return math.Round(0.5 * (from + to))
+	}
+	return math.Round(0.5 * (full.dark[0].lo + full.dark[len(full.dark)-1].hi))
+}
+
+// nightBounds returns the planning window of each night (Unix seconds):
+// local noon to local noon in loc, half nights split by halfSplit.
+func (b *leanBase) nightBounds(nights []RunNight, loc *time.Location) (from, to []float64) {
+	from, to = make([]float64, len(nights)), make([]float64, len(nights))
+	for k, n := range nights {
+		from[k], to[k] = runWindow(n, loc)
+		switch n.part() {
+		case PartFirst:
+			to[k] = b.halfSplit(from[k], to[k])
+		case PartSecond:
+			from[k] = b.halfSplit(from[k], to[k])
+		}
+	}
+	return from, to
+}
+
+// RunNightWindows returns the planning window (UTC) of each night of a run
+// as PlanRun uses it: local noon to the next local noon in zone (nil: UTC),
+// a half night ending or starting at the middle of the dark time under the
+// constraints' twilight. Bad input gives an *ephem.InputError.
+func RunNightWindows(site ephem.Site, zone *time.Location, c Constraints, nights []RunNight) ([]Interval, error) {
+	if err := ValidateRunNights(nights); err != nil {
+		return nil, err
+	}
+	base, err := newLeanBase(site, c, Options{})
+	if err != nil {
+		return nil, err
+	}
+	if zone == nil {
+		zone = time.UTC
+	}
+	from, to := base.nightBounds(nights, zone)
+	out := make([]Interval, len(nights))
+	for k := range out {
+		out[k] = span{from[k], to[k]}.interval()
+	}
+	return out, nil
 }

@@ -109,7 +109,7 @@ type runState struct {
 	targets []*targetState
 	goals   [][]runGoal
 	nights  []RunNight
-	from    []float64 // planning windows (Unix seconds); half nights set in reach
+	from    []float64 // planning windows (Unix seconds)
 	to      []float64
 	past    int
 	obsN    []int     // night of each observed exposure
@@ -154,11 +154,7 @@ func newRunState(req RunRequest) (*runState, error) {
 			r.goals[ti] = append(r.goals[ti], newRunGoal(ti, gi, ts.t, g))
 		}
 	}
-	n := len(req.Nights)
-	r.from, r.to = make([]float64, n), make([]float64, n)
-	for k, nt := range req.Nights {
-		r.from[k], r.to[k] = runWindow(nt, loc)
-	}
+	r.from, r.to = base.nightBounds(req.Nights, loc)
 	return r, nil
 }
 
@@ -188,7 +184,7 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 	if r.req.CompareIndependent {
 		pc.total += F
 	}
-	// 1. Half nights, the sky and the best-night search, night by night.
+	// 1. The sky and the best-night search, night by night.
 	if err := r.computeReach(ctx, pc); err != nil {
 		return nil, err
 	}
@@ -321,8 +317,7 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 	return out, nil
 }
 
-// computeReach sets the half nights' windows and computes every night's
-// reach, in parallel over nights.
+// computeReach computes every night's reach, in parallel over nights.
 func (r *runState) computeReach(ctx context.Context, pc *progressCounter) error {
 	K := len(r.nights)
 	lo, hi := r.from[0], r.to[K-1]
@@ -339,18 +334,6 @@ func (r *runState) computeReach(ctx context.Context, pc *progressCounter) error 
 	}
 	r.reach = make([][][]goalNightReach, K)
 	return forEach(ctx, K, func(k int) error {
-		if p := r.nights[k].part(); p != PartFull {
-			full := r.base.night(r.from[k], r.to[k])
-			mid := 0.5 * (r.from[k] + r.to[k])
-			if len(full.dark) > 0 {
-				mid = math.Round(0.5 * (full.dark[0].lo + full.dark[len(full.dark)-1].hi))
-			}
-			if p == PartFirst {
-				r.to[k] = mid
-			} else {
-				r.from[k] = mid
-			}
-		}
 		en := r.base.night(r.from[k], r.to[k])
 		clocks := make([]phaseClock, len(r.targets))
 		for ti, ts := range r.targets {

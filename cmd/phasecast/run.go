@@ -33,6 +33,8 @@ func commands() []command {
 		{"events", "next orbital events or phase windows of a target in a time range", runEvents},
 		{"fit", "refine an ephemeris from measured event times (CSV)", runFit},
 		{"plan", "plan one night: exposure blocks on the wanted orbital phases of a target list", runPlan},
+		{"run", "plan a run of nights: goals spread over nights, coverage, best nights, observed log", runRun},
+		{"windows", "queue phase windows of targets over a date range (text, JSON, CSV, iCalendar)", runWindows},
 	}
 }
 

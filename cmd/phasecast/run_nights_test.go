@@ -1,0 +1,232 @@
+package main
+
+import (
+	"encoding/json"
+	"math"
+	"strings"
+	"testing"
+	"time"
+)
+
+// runCSV is an invented target list for the test site (27.85° S) in May.
+const runCSV = `name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority
+Tarn-4,13:02:10,-38:40:00,2461120.41872,0.2311,0.25;0.75,0.05,300,20,1
+Mirel-9,14:45:30,-22:05:00,2461118.90233,1.7420,0.25;0.75,0.03,600,20,1
+Okapi-2,11:20:45,-51:12:00,2461121.10490,0.0958,0.0;0.5,0.06,180,15,2
+Suvi-7,16:10:05,-12:30:00,2461119.77310,0.4105,0.25;0.75,0.04,240,20,3
+`
+
+var runArgs = []string{"--tz", "America/Santiago", "--dates", "2026-05-12,2026-05-13:first,2026-05-14"}
+
+// runOut decodes `run --json`.
+type runOutTest struct {
+	Nights []struct {
+		Date   string `json:"date"`
+		Part   string `json:"part"`
+		From   string `json:"from"`
+		To     string `json:"to"`
+		Past   bool   `json:"past"`
+		Blocks []struct {
+			Target     string  `json:"target"`
+			Start      string  `json:"start"`
+			End        string  `json:"end"`
+			NExposures int     `json:"n_exposures"`
+			ExposureS  float64 `json:"exposure_s"`
+			OverheadS  float64 `json:"overhead_s"`
+		} `json:"blocks"`
+	} `json:"nights"`
+	Coverage []struct {
+		Target string `json:"target"`
+		Goals  []struct {
+			PhaseGoal float64 `json:"phase_goal"`
+			Observed  int     `json:"observed"`
+			Planned   int     `json:"planned"`
+			PerNight  []struct {
+				Observed int `json:"observed"`
+				Planned  int `json:"planned"`
+			} `json:"per_night"`
+			Status string `json:"status"`
+		} `json:"goals"`
+		Bins []struct {
+			Observed int `json:"observed"`
+			Planned  int `json:"planned"`
+		} `json:"bins"`
+	} `json:"coverage"`
+	BestNights []struct {
+		Target string `json:"target"`
+	} `json:"best_nights"`
+	Objective struct {
+		Fraction float64 `json:"fraction"`
+		Value    int64   `json:"value"`
+	} `json:"objective"`
+	Observed []struct {
+		Target string `json:"target"`
+	} `json:"observed"`
+}
+
+func decodeRun(t *testing.T, argv ...string) runOutTest {
+	t.Helper()
+	stdout, stderr, code := runCmd(t, append(argv, "--json")...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var out runOutTest
+	if err := json.Unmarshal([]byte(stdout), &out); err != nil {
+		t.Fatalf("not JSON: %v\n%s", err, stdout)
+	}
+	return out
+}
+
+func TestRunCommandJSON(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runCSV)
+	out := decodeRun(t, args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--n-exposures", "3", "--min-nights", "2", "--bins", "8"})...)
+	if len(out.Nights) != 3 || out.Nights[1].Part != "first" || out.Nights[1].Date != "2026-05-13" {
+		t.Fatalf("nights %+v", out.Nights)
+	}
+	blocks := 0
+	for _, n := range out.Nights {
+		for _, b := range n.Blocks {
+			s, _ := time.Parse(time.RFC3339, b.Start)
+			e, _ := time.Parse(time.RFC3339, b.End)
+			from, _ := time.Parse(time.RFC3339, n.From)
+			to, _ := time.Parse(time.RFC3339, n.To)
+			if want := float64(b.NExposures) * (b.ExposureS + b.OverheadS); math.Abs(e.Sub(s).Seconds()-want) > 1e-6 {
+				t.Errorf("%s block %s: %v long, want %g s", n.Date, b.Target, e.Sub(s), want)
+			}
+			if s.Before(from) || e.After(to) {
+				t.Errorf("%s block %s %v–%v outside the night %v–%v", n.Date, b.Target, s, e, from, to)
+			}
+			blocks++
+		}
+	}
+	if blocks == 0 {
+		t.Fatal("no blocks")
+	}
+	// Coverage per night adds up to the blocks' exposures in each window;
+	// here every total is checked against the per-night list.
+	for _, c := range out.Coverage {
+		binTotal := 0
+		for _, b := range c.Bins {
+			binTotal += b.Observed + b.Planned
+		}
+		if len(c.Bins) != 8 {
+			t.Errorf("%s: %d bins, want 8", c.Target, len(c.Bins))
+		}
+		for _, g := range c.Goals {
+			sum := 0
+			for _, pn := range g.PerNight {
+				sum += pn.Planned
+			}
+			if len(g.PerNight) != 3 || sum != g.Planned {
+				t.Errorf("%s goal %.2f: per-night %v does not add up to %d planned", c.Target, g.PhaseGoal, g.PerNight, g.Planned)
+			}
+		}
+	}
+	if len(out.BestNights) != 4 || out.Objective.Fraction <= 0 {
+		t.Errorf("best nights for %d targets, objective %+v", len(out.BestNights), out.Objective)
+	}
+}
+
+func TestRunCommandHuman(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runCSV)
+	stdout, stderr, code := runCmd(t, args([]string{"run"}, siteArgs, []string{"--tz", "America/Santiago", "--from", "2026-05-12", "--nights", "2", "--targets", csvPath, "--compare"})...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	for _, want := range []string{"Run of 2 night(s)", "Night 1: Tue 2026-05-12, full night", "Night 2: Wed 2026-05-13", "Coverage:",
+		"each night planned on its own", "Best nights per goal", "Caution"} {
+		if !strings.Contains(stdout, want) {
+			t.Errorf("output lacks %q:\n%s", want, stdout)
+		}
+	}
+}
+
+// TestRunCommandObserved checks the observed log: the nights it reaches
+// are over (not planned again), its exposures count as observed; a bad log
+// is rejected whole with every bad row by line.
+func TestRunCommandObserved(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runCSV)
+	t.Run("OK", func(t *testing.T) {
+		logPath := writeFile(t, "log.csv", "target,start_utc,exposure_s,n_exposures,overhead_s\nTarn-4,2026-05-13T02:40:00Z,300,3,20\n")
+		out := decodeRun(t, args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--observed", logPath})...)
+		if !out.Nights[0].Past || out.Nights[1].Past || len(out.Nights[0].Blocks) != 0 {
+			t.Fatalf("night 1 past %v with %d blocks, night 2 past %v", out.Nights[0].Past, len(out.Nights[0].Blocks), out.Nights[1].Past)
+		}
+		if len(out.Observed) != 3 {
+			t.Errorf("%d observed exposures, want 3", len(out.Observed))
+		}
+		obs := 0
+		for _, c := range out.Coverage {
+			for _, g := range c.Goals {
+				obs += g.Observed
+			}
+		}
+		if obs == 0 {
+			t.Error("the observed exposures count in no goal")
+		}
+	})
+	t.Run("ErrBadRows", func(t *testing.T) {
+		logPath := writeFile(t, "log.csv", "target,start_utc,exposure_s\n"+
+			"Tarn-4,2026-05-13T01:00:00Z,300\n"+
+			"Nobody-1,2026-05-13T01:00:00Z,300\n"+
+			"Tarn-4,2026-06-30T01:00:00Z,300\n")
+		_, stderr, code := runCmd(t, args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--observed", logPath, "--past", "1"})...)
+		if code != exitUsage {
+			t.Errorf("exit %d, want %d", code, exitUsage)
+		}
+		for _, want := range []string{"--observed", "2 error(s)", "line 3", "matches no target", "line 4", "outside every night"} {
+			if !strings.Contains(stderr, want) {
+				t.Errorf("stderr lacks %q: %s", want, stderr)
+			}
+		}
+	})
+	t.Run("ErrBadCells", func(t *testing.T) {
+		logPath := writeFile(t, "log.csv", "target,start_utc,exposure_s\nTarn-4,soon,300\nTarn-4,2026-05-13T01:00:00Z,0\n")
+		_, stderr, code := runCmd(t, args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--observed", logPath})...)
+		if code != exitUsage || !strings.Contains(stderr, "line 2, column 2 (start_utc)") || !strings.Contains(stderr, "line 3, column 3 (exposure_s)") {
+			t.Errorf("exit %d, stderr %s", code, stderr)
+		}
+	})
+}
+
+func TestRunCommandBadFlags(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runCSV)
+	for _, tc := range []struct {
+		name  string
+		extra []string
+		want  string
+	}{
+		{"ErrUnordered", []string{"--dates", "2026-05-14,2026-05-12"}, "nights[1]"},
+		{"ErrOverlap", []string{"--dates", "2026-05-14,2026-05-14:second"}, "does not overlap"},
+		{"ErrBothForms", []string{"--dates", "2026-05-14", "--from", "2026-05-14"}, "not both"},
+		{"ErrNoNights", []string{}, "missing the nights"},
+		{"ErrTooMany", []string{"--from", "2026-05-14", "--nights", "367"}, "--nights 367"},
+		{"ErrBins", []string{"--from", "2026-05-14", "--bins", "1"}, "--bins 1"},
+		{"ErrBinGoalsAlone", []string{"--from", "2026-05-14", "--bin-goals"}, "--bin-goals needs --bins"},
+		{"ErrPast", []string{"--from", "2026-05-14", "--nights", "2", "--past", "3"}, "--past 3"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			_, stderr, code := runCmd(t, args([]string{"run"}, siteArgs, []string{"--tz", "UTC", "--targets", csvPath}, tc.extra)...)
+			if code != exitUsage || !strings.Contains(stderr, tc.want) {
+				t.Errorf("exit %d, stderr %q; want exit %d and %q", code, stderr, exitUsage, tc.want)
+			}
+		})
+	}
+}
+
+// TestRunCommandBinGoals plans a light curve: with --bin-goals every
+// target's goals are the phase bins.
+func TestRunCommandBinGoals(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runCSV)
+	out := decodeRun(t, args([]string{"run"}, siteArgs, []string{"--tz", "UTC", "--from", "2026-05-12", "--nights", "2", "--targets", csvPath, "--bins", "5", "--bin-goals"})...)
+	for _, c := range out.Coverage {
+		if len(c.Goals) != 5 {
+			t.Errorf("%s: %d goals, want the 5 bins", c.Target, len(c.Goals))
+		}
+		for i, g := range c.Goals {
+			if want := (float64(i) + 0.5) / 5; math.Abs(g.PhaseGoal-want) > 1e-12 {
+				t.Errorf("%s goal %d at %g, want %g", c.Target, i, g.PhaseGoal, want)
+			}
+		}
+	}
+}
