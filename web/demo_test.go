@@ -16,17 +16,23 @@ import (
 	"phasecast/store"
 )
 
-// TestDemoPagesRender signs in to the seeded demo scenario with its
-// one-time link and opens every page a newcomer meets, checking that each
-// renders with its main element.
-func TestDemoPagesRender(t *testing.T) {
+// demo is a server over the seeded demo scenario with a browser-like
+// client signed in as the demo owner through the one-time link.
+type demo struct {
+	ts   *httptest.Server
+	c    *http.Client
+	info store.DemoInfo
+}
+
+func newDemo(t *testing.T) *demo {
+	t.Helper()
 	ctx := context.Background()
 	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "demo.db"),
 		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 64, Threads: 1, SaltLen: 16, KeyLen: 32}))
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer st.Close()
+	t.Cleanup(func() { st.Close() })
 	now := time.Now().UTC()
 	info, err := st.SeedDemo(ctx, now)
 	if err != nil {
@@ -37,7 +43,7 @@ func TestDemoPagesRender(t *testing.T) {
 		t.Fatal(err)
 	}
 	ts := httptest.NewServer(srv.Handler())
-	defer ts.Close()
+	t.Cleanup(ts.Close)
 	jar, _ := cookiejar.New(nil)
 	c := &http.Client{Jar: jar}
 	post := func(path string) *http.Response {
@@ -53,8 +59,20 @@ func TestDemoPagesRender(t *testing.T) {
 	if resp := post("/login/link/" + info.SignInToken); resp.StatusCode != http.StatusOK {
 		t.Fatalf("sign in with the demo link: %d", resp.StatusCode)
 	}
+	return &demo{ts: ts, c: c, info: info}
+}
+
+// TestDemoPagesRender signs in to the seeded demo scenario with its
+// one-time link and opens every page a newcomer meets, checking that each
+// renders with its main element.
+func TestDemoPagesRender(t *testing.T) {
+	d := newDemo(t)
+	ts, c, info := d.ts, d.c, d.info
 	pages := []struct{ path, testid string }{
 		{"/tonight", "tonight-table"},
+		{"/runs", "runs"},
+		{"/runs/" + i64s(info.Run.ID), "optimize-form"},
+		{"/windows", "windows-form"},
 		{"/tonight/body", "tonight-table"},
 		{"/targets", "targets-table"},
 		{"/night", "night-chart"},

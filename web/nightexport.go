@@ -131,20 +131,7 @@ func (n *night) exportJSON() ([]byte, error) {
 		Objective: objectiveJSON{p.Value, p.GreedyValue, p.Optimal}, Caution: cautionText + " " + planner.SafetyCaution,
 	}
 	for _, b := range p.Blocks {
-		bj := blockJSON{Target: b.Target, Event: b.Goal.Event, Start: utcString(b.Start), End: utcString(b.End), NExposures: b.N,
-			ExposureS: b.ExposureS, OverheadS: b.OverheadS, PhaseStart: b.PhaseStart, PhaseEnd: b.PhaseEnd, PhaseMid: b.PhaseMid,
-			PhaseFirstMid: b.PhaseFirstMid, PhaseLastMid: b.PhaseLastMid, Smear: b.Smear, PhaseErr: b.PhaseErr, Cycle: b.Cycle,
-			AirmassMin: b.AirmassMin, AirmassMax: b.AirmassMax, AcquireS: b.AcquireS, MoonSepDeg: b.MoonSepDeg, MoonUp: b.MoonUp,
-			ParallacticDeg: b.Parallactic, HourAngleHours: b.HourAngle, SunAltStartDeg: b.SunAltStart, Priority: b.Priority,
-			Filler: b.Filler, Warnings: []string{}}
-		if !b.Filler {
-			c, w := b.Goal.Center, b.Goal.HalfWidth
-			bj.PhaseGoal, bj.PhaseHalfWidth = &c, &w
-		}
-		for _, w := range b.Warnings {
-			bj.Warnings = append(bj.Warnings, w.Message)
-		}
-		out.Blocks = append(out.Blocks, bj)
+		out.Blocks = append(out.Blocks, toBlockJSON(b))
 	}
 	for _, u := range p.Unscheduled {
 		out.Unscheduled = append(out.Unscheduled, unscheduledJSON{u.Target, u.Goal.Center, u.Detail, string(u.Reason)})

@@ -68,6 +68,19 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("POST /lists/{id}/share", s.inTeam(s.shareCreate))
 	mux.HandleFunc("POST /shares/{id}/revoke", s.inTeam(s.shareRevoke))
 
+	// Runs and background computations.
+	mux.HandleFunc("GET /runs", s.inTeam(s.runsList))
+	mux.HandleFunc("POST /runs", s.inTeam(s.runCreate))
+	mux.HandleFunc("GET /runs/{id}", s.inTeam(s.runShow))
+	mux.HandleFunc("POST /runs/{id}/optimize", s.inTeam(s.runOptimize))
+	mux.HandleFunc("POST /runs/{id}/mark", s.inTeam(s.runMark))
+	mux.HandleFunc("GET /runs/{id}/plan.csv", s.inTeam(s.runExport("csv")))
+	mux.HandleFunc("GET /runs/{id}/plan.json", s.inTeam(s.runExport("json")))
+	mux.HandleFunc("GET /runs/{id}/plan.ics", s.inTeam(s.runExport("ics")))
+	mux.HandleFunc("GET /jobs/{id}", s.signedIn(s.jobShow))
+	mux.HandleFunc("GET /jobs/{id}/progress", s.signedIn(s.jobProgress))
+	mux.HandleFunc("POST /jobs/{id}/cancel", s.signedIn(s.jobCancel))
+
 	// Queue windows.
 	mux.HandleFunc("GET /windows", s.inTeam(s.windowsShow))
 	mux.HandleFunc("GET /windows.csv", s.inTeam(s.windowsExport("csv")))

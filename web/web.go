@@ -38,6 +38,7 @@ type Server struct {
 	store   *store.Store
 	ping    func(ctx context.Context) error
 	logins  *limiter
+	jobs    jobs
 }
 
 // New returns a Server for cfg.

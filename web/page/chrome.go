@@ -13,6 +13,9 @@ type Chrome struct {
 	NightMode bool   // dim red-on-black theme
 	Flash     string // a one-line confirmation shown at the top
 	FlashErr  bool   // Flash reports a failure
+	// Refresh, when > 0, reloads the page after that many seconds (a
+	// progress page without JavaScript).
+	Refresh int
 }
 
 // NavItem is one entry of the main navigation.

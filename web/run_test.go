@@ -1,0 +1,152 @@
+package web
+
+import (
+	"encoding/csv"
+	"encoding/json"
+	"io"
+	"net/http"
+	"net/url"
+	"regexp"
+	"strings"
+	"testing"
+	"time"
+
+	"phasecast/web/ical"
+)
+
+func (d *demo) get(t *testing.T, path string) (*http.Response, string) {
+	t.Helper()
+	resp, err := d.c.Get(d.ts.URL + path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer resp.Body.Close()
+	b, _ := io.ReadAll(resp.Body)
+	return resp, string(b)
+}
+
+func (d *demo) post(t *testing.T, path string, form url.Values) *http.Response {
+	t.Helper()
+	req, _ := http.NewRequest(http.MethodPost, d.ts.URL+path, strings.NewReader(form.Encode()))
+	req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
+	req.Header.Set("Sec-Fetch-Site", "same-origin")
+	c := *d.c
+	c.CheckRedirect = func(*http.Request, []*http.Request) error { return http.ErrUseLastResponse }
+	resp, err := c.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	resp.Body.Close()
+	return resp
+}
+
+// TestRunPlanMarkReplan plans the demo run in the background, follows the
+// progress until it is saved, marks a block done and one lost, replans the
+// rest, and downloads the run's exports.
+func TestRunPlanMarkReplan(t *testing.T) {
+	d := newDemo(t)
+	run := "/runs/" + i64s(d.info.Run.ID)
+	plan := func(past string) string {
+		t.Helper()
+		resp := d.post(t, run+"/optimize", url.Values{"past": {past}})
+		job := resp.Header.Get("Location")
+		if resp.StatusCode != http.StatusSeeOther || !strings.HasPrefix(job, "/jobs/") {
+			t.Fatalf("optimize = %d to %q", resp.StatusCode, job)
+		}
+		_, body := d.get(t, job)
+		if !hasTestID(body, "progress") && !hasTestID(body, "run-name") {
+			t.Errorf("the job page shows neither progress nor the run")
+		}
+		deadline := time.Now().Add(2 * time.Minute)
+		for {
+			_, js := d.get(t, job+"/progress")
+			var p struct {
+				Fraction float64 `json:"fraction"`
+				Done     bool    `json:"done"`
+				Next     string  `json:"next"`
+				Message  string  `json:"message"`
+			}
+			if err := json.Unmarshal([]byte(js), &p); err != nil {
+				t.Fatalf("progress is not JSON: %s", js)
+			}
+			if p.Fraction < 0 || p.Fraction > 1 {
+				t.Errorf("fraction %g outside 0..1", p.Fraction)
+			}
+			if p.Done {
+				if !strings.HasPrefix(p.Next, run) {
+					t.Fatalf("finished with %q: %s", p.Next, p.Message)
+				}
+				return p.Next
+			}
+			if time.Now().After(deadline) {
+				t.Fatal("the run was not planned within 2 minutes")
+			}
+			time.Sleep(50 * time.Millisecond)
+		}
+	}
+	next := plan("0")
+	resp, body := d.get(t, next)
+	for _, id := range []string{"reach", "coverage", "rings", "run-night"} {
+		if !hasTestID(body, id) {
+			t.Errorf("run page lacks %s", id)
+		}
+	}
+	if resp.StatusCode != http.StatusOK {
+		t.Fatalf("run page = %d", resp.StatusCode)
+	}
+	planID := regexp.MustCompile(`name="plan" value="(\d+)"`).FindStringSubmatch(body)
+	if planID == nil {
+		t.Fatal("no block to mark in the planned run")
+	}
+	for i, status := range []string{"done", "lost"} {
+		resp := d.post(t, run+"/mark", url.Values{"plan": {planID[1]}, "night": {"0"}, "block": {i64s(int64(i))}, "status": {status}})
+		if resp.StatusCode != http.StatusSeeOther {
+			t.Fatalf("mark %s = %d", status, resp.StatusCode)
+		}
+	}
+	_, body = d.get(t, run+"?plan="+planID[1])
+	if !strings.Contains(body, `data-testid="block-state">done<`) || !strings.Contains(body, `data-testid="block-state">lost<`) {
+		t.Error("the marked blocks do not show their outcome")
+	}
+	// Replan with the first night over: its marked exposures now count.
+	next = plan("1")
+	_, body = d.get(t, next)
+	if !strings.Contains(body, "with the first 1 nights over") {
+		t.Error("the replanned run does not say one night is over")
+	}
+	t.Run("Exports", func(t *testing.T) {
+		_, js := d.get(t, run+"/plan.json")
+		var doc runDoc
+		if err := json.Unmarshal([]byte(js), &doc); err != nil || len(doc.Nights) != len(d.info.Run.Nights) {
+			t.Fatalf("plan.json: %v, %d nights", err, len(doc.Nights))
+		}
+		blocks := 0
+		for _, n := range doc.Nights {
+			blocks += len(n.Blocks)
+		}
+		_, cs := d.get(t, run+"/plan.csv")
+		rows, err := csv.NewReader(strings.NewReader(cs)).ReadAll()
+		if err != nil || len(rows) != blocks+1 {
+			t.Errorf("plan.csv: %v, %d rows for %d blocks", err, len(rows), blocks)
+		}
+		_, ics := d.get(t, run+"/plan.ics")
+		cal, err := ical.Parse(strings.NewReader(ics))
+		if err != nil || len(cal.Events) != blocks {
+			t.Errorf("plan.ics: %v, %d events for %d blocks", err, len(cal.Events), blocks)
+		}
+	})
+}
+
+func TestRunCreateRejectsBadNights(t *testing.T) {
+	d := newDemo(t)
+	resp := d.post(t, "/runs", url.Values{"name": {"Bad run"}, "site": {i64s(d.info.Site.ID)}, "list": {i64s(d.info.List.ID)},
+		"nights": {"2026-03-15,2026-03-14"}})
+	if resp.StatusCode != http.StatusUnprocessableEntity {
+		t.Errorf("unordered nights = %d, want 422", resp.StatusCode)
+	}
+	resp = d.post(t, "/runs", url.Values{"name": {"Good run"}, "site": {i64s(d.info.Site.ID)}, "list": {i64s(d.info.List.ID)},
+		"nights": {"2026-03-14+3"}})
+	if resp.StatusCode != http.StatusSeeOther {
+		t.Errorf("three nights = %d, want 303", resp.StatusCode)
+	}
+}

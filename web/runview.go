@@ -1,0 +1,154 @@
+package web
+
+import (
+	"encoding/json"
+	"fmt"
+	"strconv"
+	"strings"
+	"time"
+
+	"phasecast/planner"
+	"phasecast/store"
+	"phasecast/web/chart"
+	"phasecast/web/page"
+)
+
+// runView builds a run's page from its inputs and a saved plan document
+// (nil: not planned yet).
+func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, now time.Time) page.RunView {
+	run := in.run
+	v := page.RunView{ID: run.ID, Name: run.Name, NightsN: len(in.nights), Past: in.nightsOver(now), PlanID: planID}
+	zone, _ := now.In(in.loc).Zone()
+	v.Zone = zone
+	_, cons, _ := siteSummary(store.SiteRecord{Site: in.site.Site, Constraints: run.Constraints})
+	v.Summary = fmt.Sprintf("%d nights at %s, %d targets; %s.", len(in.nights), in.site.Name, len(in.targets), cons)
+	for _, p := range plans {
+		v.Plans = append(v.Plans, page.Option{Value: i64s(p.ID), Label: p.Name + " (" + fmtUTC(p.CreatedAt) + ")", Selected: p.ID == planID})
+	}
+	if doc == nil {
+		v.PlanNote = "Not planned yet: plan the run to spread the goals over its nights."
+		return v
+	}
+	v.HasPlan = true
+	v.PlanNote = fmt.Sprintf("Plan made %s with the first %d nights over.", doc.MadeAt, doc.Past)
+	for _, n := range doc.Nights {
+		v.Nights = append(v.Nights, nightHeading(n))
+	}
+	for _, t := range doc.Targets {
+		v.Overview = append(v.Overview, reachRow(t, doc))
+		v.Rings = append(v.Rings, page.RingView{Target: t.Target, Ring: ringOf(t)})
+		for _, g := range t.Goals {
+			v.Coverage = append(v.Coverage, page.CoverageRow{Target: t.Target, Goal: goalLabel(planner.Goal{Center: g.PhaseGoal, HalfWidth: g.PhaseHalfWidth, Event: g.Event}),
+				Need: fmt.Sprintf("%s on %d night(s)", needText(g.NeedExposures), g.NeedNights), Observed: g.Observed, Planned: g.Planned,
+				Nights: fmt.Sprintf("%d of %d", g.NightsMet, g.NeedNights), Status: statusText(g)})
+		}
+	}
+	for k, n := range doc.Nights {
+		ns := page.NightSchedule{Index: k, Label: nightHeading(n), Past: n.Past}
+		switch {
+		case n.Past:
+			ns.Empty = "This night was over when the plan was made; what was observed on it counts in the coverage."
+		default:
+			ns.Empty = "No block on this night."
+		}
+		for bi, b := range n.Blocks {
+			ns.Blocks = append(ns.Blocks, runBlockRow(in, bi, b))
+		}
+		v.Schedules = append(v.Schedules, ns)
+	}
+	v.Objective = fmt.Sprintf("Run objective %.3f of %.3f when every requirement is met (greedy pass %.3f; nights planned on their own %.3f).",
+		float64(doc.Objective.Value)/1e6, float64(doc.Objective.MaxValue)/1e6, float64(doc.Objective.GreedyValue)/1e6,
+		float64(doc.Objective.IndependentValue)/1e6)
+	return v
+}
+
+func needText(n int) string {
+	if n <= 1 {
+		return "exposures"
+	}
+	return strconv.Itoa(n) + " exposures"
+}
+
+func statusText(g runGoalDoc) string {
+	if g.Unreachable != "" {
+		return g.Status + ": " + g.Unreachable
+	}
+	return g.Status
+}
+
+// nightHeading labels a night: "2026-03-14" or "2026-03-14 (first half)".
+func nightHeading(n runNightDoc) string {
+	if n.Part == "" || n.Part == string(planner.PartFull) {
+		return n.Date
+	}
+	return n.Date + " (" + n.Part + " half)"
+}
+
+// reachRow is a target's row of the nights × targets overview.
+func reachRow(t runTargetDoc, doc *runDoc) page.ReachRow {
+	row := page.ReachRow{Target: t.Target}
+	for k := range doc.Nights {
+		n := 0
+		for _, g := range t.Goals {
+			if k < len(g.PerNight) {
+				n += g.PerNight[k].Observed + g.PerNight[k].Planned
+			}
+		}
+		reach := 0
+		if k < len(t.ReachGoals) {
+			reach = t.ReachGoals[k]
+		}
+		row.Cells = append(row.Cells, page.ReachCell{Text: fmt.Sprintf("%d/%d · %d", reach, len(t.Goals), n), Yes: reach > 0,
+			Title: fmt.Sprintf("%s: %d of %d goals reachable, %d exposures", doc.Nights[k].Date, reach, len(t.Goals), n)})
+	}
+	return row
+}
+
+// ringOf is a target's phase ring.
+func ringOf(t runTargetDoc) chart.Ring {
+	r := chart.Ring{Title: "Phase coverage of " + t.Target, Planned: t.Planned, Observed: t.Observed}
+	for _, g := range t.Goals {
+		label := num(g.PhaseGoal)
+		if g.Event != "" {
+			label = strings.ReplaceAll(g.Event, "_", " ")
+		}
+		r.Goals = append(r.Goals, chart.Arc{From: g.PhaseGoal - g.PhaseHalfWidth, To: g.PhaseGoal + g.PhaseHalfWidth, Label: label, Met: g.Status == string(planner.CoverageMet)})
+	}
+	for _, b := range t.Bins {
+		r.Bins = append(r.Bins, chart.Bin{From: b.Lo, To: b.Hi, Count: b.Observed + b.Planned})
+	}
+	return r
+}
+
+// runBlockRow formats a block of a run night with its outcome.
+func runBlockRow(in *runInputs, i int, b runBlockDoc) page.RunBlockRow {
+	start, _ := time.Parse(time.RFC3339, b.Start)
+	end, _ := time.Parse(time.RFC3339, b.End)
+	goal := "filler"
+	if b.PhaseGoal != nil {
+		goal = goalLabel(planner.Goal{Center: *b.PhaseGoal, HalfWidth: *b.PhaseHalfWidth, Event: b.Event})
+	}
+	row := page.RunBlockRow{Index: i, Target: b.Target, Goal: goal,
+		Local: start.In(in.loc).Format("15:04") + "–" + end.In(in.loc).Format("15:04"), UTC: start.UTC().Format("15:04") + "–" + end.UTC().Format("15:04"),
+		Exposures: fmt.Sprintf("%d × %s s", b.NExposures, num(b.ExposureS)), Phases: fmt.Sprintf("%.3f → %.3f", b.PhaseStart, b.PhaseEnd),
+		Airmass: fmt.Sprintf("%.2f–%.2f", b.AirmassMin, b.AirmassMax)}
+	for _, o := range in.obs {
+		if o.TargetID == b.TargetID && o.Source == store.ObsFromBlock && !o.MidUTC.Before(start) && o.MidUTC.Before(end) {
+			row.State = string(o.Status)
+			if o.Status == store.ObsFailed {
+				row.State = "lost"
+			}
+			break
+		}
+	}
+	return row
+}
+
+// loadDoc reads a saved plan's document.
+func loadDoc(p store.SavedPlan) (*runDoc, error) {
+	var d runDoc
+	if err := json.Unmarshal(p.Output, &d); err != nil {
+		return nil, fmt.Errorf("saved plan %d: %w", p.ID, err)
+	}
+	return &d, nil
+}
