@@ -15,6 +15,7 @@ import (
 	"os"
 	"strings"
 	"testing"
+	"time"
 
 	"phasecast/ephem"
 	"phasecast/planner"
@@ -223,6 +224,93 @@ func checkHorizonError(tb testing.TB, err error) {
 	case strings.Contains(msg, "not a number") && !strings.Contains(msg, "column"):
 		tb.Fatalf("error %q names no column", msg)
 	}
+}
+
+// FuzzHostileObservedCSV: any observed log either gives exposures with a
+// target, a UTC mid-time, a length 0 < t ≤ MaxExposureS and the line they
+// came from, or is rejected whole with a *planner.TableError naming lines;
+// never a panic.
+func FuzzHostileObservedCSV(f *testing.F) {
+	const head = "target,start_utc,exposure_s,n_exposures,overhead_s,status,note\n"
+	f.Add(head + "PCX A,2026-03-14T02:31:00Z,120,3,8,ok,first\n")
+	f.Add("target,mid_utc,exposure_s\nPCX A,2026-03-14T02:31:00+01:00,60\n")
+	f.Add("target,mid_utc,start_utc,exposure_s\n")
+	f.Add(head + "PCX A,2026-03-14T02:31:00Z,NaN,1,0,,\n")
+	f.Add(head + "PCX A,2026-03-14T02:31:00Z,1e400,1,0,,\n")
+	f.Add(head + "PCX A,2026-03-14T02:31:00Z,86400,10000,86400,failed,\n")
+	f.Add(head + "=cmd|' /C calc'!A0,9999-12-31T23:59:59Z,1,1,0,FAILED,\n")
+	f.Add(head + "\xff,0001-01-01T00:00:00Z,1,1,0,ok,\n")
+	f.Fuzz(func(t *testing.T, in string) {
+		// A row may ask for 10,000 exposures: keep the fuzzer's memory sane.
+		if strings.Count(in, "\n") > 50 {
+			return
+		}
+		exps, err := planner.ParseObservedCSV(strings.NewReader(in))
+		if err != nil {
+			if exps != nil {
+				t.Fatalf("error %v with %d exposures", err, len(exps))
+			}
+			checkTableError(t, in, err)
+			return
+		}
+		for _, e := range exps {
+			switch {
+			case e.Target == "":
+				t.Fatalf("exposure without a target: %+v", e)
+			case e.Mid.IsZero() || e.Mid.Location() != time.UTC:
+				t.Fatalf("mid-time %v is zero or not UTC", e.Mid)
+			case !finiteAll(e.ExposureS) || e.ExposureS <= 0 || e.ExposureS > planner.MaxExposureS:
+				t.Fatalf("exposure length %v out of range", e.ExposureS)
+			case e.Line < 2:
+				t.Fatalf("exposure from line %d (the header is line 1 at the earliest)", e.Line)
+			}
+		}
+	})
+}
+
+// TestHostileObservedAmplification: a small log cannot make an unbounded
+// number of exposures. A row may ask for 10,000 exposures and a log may
+// hold MaxObservedRows rows; 100 rows of 30 bytes give 1,000,000
+// exposures (64 MB), and MaxObservedRows rows would give 2×10⁹.
+func TestHostileObservedAmplification(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("target,start_utc,exposure_s,n_exposures\n")
+	for i := range 100 {
+		fmt.Fprintf(&b, "T%d,2026-03-14T02:31:00Z,1,10000\n", i)
+	}
+	exps, err := planner.ParseObservedCSV(strings.NewReader(b.String()))
+	t.Logf("%d-byte log: %d exposures, err %v", b.Len(), len(exps), err)
+	if err == nil && len(exps) > planner.MaxObservedRows {
+		hostileKnownDefect(t, "planner.ParseObservedCSV bounds rows (MaxObservedRows) but not exposures: n_exposures ≤ 10000 per row multiplies it")
+		t.Fatalf("a %d-byte log gave %d exposures, more than MaxObservedRows (%d)", b.Len(), len(exps), planner.MaxObservedRows)
+	}
+}
+
+// FuzzHostileRunNights: a nights list either gives nights that
+// planner.ValidateRunNights accepts, or an *ephem.InputError naming the
+// nights or one night; never a panic.
+func FuzzHostileRunNights(f *testing.F) {
+	for _, s := range []string{"2026-03-14,2026-03-15:second", "2026-03-14:first,2026-03-14:second", "2026-03-15,2026-03-14",
+		"2026-03-14,2026-03-14", "2026-02-30", "2026-03-14:third", "", ",", "2026-03-14:", "9999-12-31", "0000-01-01", "\xff",
+		"2026-03-14," + strings.Repeat("2026-03-15,", 3) + "2027-03-20"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		nights, err := planner.ParseRunNights(s)
+		if err != nil {
+			var ie *ephem.InputError
+			if !errors.As(err, &ie) || !strings.HasPrefix(ie.Field, "nights") || ie.Accepted == "" {
+				t.Fatalf("%q: error %v (%T) does not name the nights", s, err, err)
+			}
+			if len(err.Error()) > 1024 {
+				t.Fatalf("%q: error is %d bytes", s, len(err.Error()))
+			}
+			return
+		}
+		if verr := planner.ValidateRunNights(nights); verr != nil {
+			t.Fatalf("%q: parsed nights fail validation: %v", s, verr)
+		}
+	})
 }
 
 // TestHostileTargetsCSVCells puts each hostile value into each column of a
