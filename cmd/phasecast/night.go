@@ -34,6 +34,18 @@ civil, nautical and astronomical dusk and dawn (−6°, −12°, −18°), moonr
 moonset (upper limb, refracted), and the Moon's illuminated fraction at local
 midnight. An event that does not happen that night is shown as absent (null).`
 
+// nightObject is the `night --json` object for a night's events.
+func nightObject(ev ephem.NightEvents) nightJSON {
+	return nightJSON{
+		Sunset: optSeconds(ev.Sunset), CivilDusk: optSeconds(ev.CivilDusk),
+		NauticalDusk: optSeconds(ev.NauticalDusk), AstronomicalDusk: optSeconds(ev.AstronomicalDusk),
+		AstronomicalDawn: optSeconds(ev.AstronomicalDawn), NauticalDawn: optSeconds(ev.NauticalDawn),
+		CivilDawn: optSeconds(ev.CivilDawn), Sunrise: optSeconds(ev.Sunrise),
+		Moonrise: optSeconds(ev.Moonrise), Moonset: optSeconds(ev.Moonset),
+		MoonIlluminated: ev.MoonIlluminated,
+	}
+}
+
 func runNight(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("night", nightSynopsis)
 	sf := addSiteFlags(fl)
@@ -62,14 +74,7 @@ func runNight(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err := checkFinite([]string{"Moon illumination"}, ev.MoonIlluminated); err != nil {
 		return err
 	}
-	out := nightJSON{
-		Sunset: optSeconds(ev.Sunset), CivilDusk: optSeconds(ev.CivilDusk),
-		NauticalDusk: optSeconds(ev.NauticalDusk), AstronomicalDusk: optSeconds(ev.AstronomicalDusk),
-		AstronomicalDawn: optSeconds(ev.AstronomicalDawn), NauticalDawn: optSeconds(ev.NauticalDawn),
-		CivilDawn: optSeconds(ev.CivilDawn), Sunrise: optSeconds(ev.Sunrise),
-		Moonrise: optSeconds(ev.Moonrise), Moonset: optSeconds(ev.Moonset),
-		MoonIlluminated: ev.MoonIlluminated,
-	}
+	out := nightObject(ev)
 	if *asJSON {
 		return writeJSON(stdout, out)
 	}

@@ -324,18 +324,6 @@ func readTargets(v *textValue) ([]planner.Target, error) {
 	return list, nil
 }
 
-// nightObject is the `night --json` object for a night's events.
-func nightObject(ev ephem.NightEvents) nightJSON {
-	return nightJSON{
-		Sunset: optSeconds(ev.Sunset), CivilDusk: optSeconds(ev.CivilDusk),
-		NauticalDusk: optSeconds(ev.NauticalDusk), AstronomicalDusk: optSeconds(ev.AstronomicalDusk),
-		AstronomicalDawn: optSeconds(ev.AstronomicalDawn), NauticalDawn: optSeconds(ev.NauticalDawn),
-		CivilDawn: optSeconds(ev.CivilDawn), Sunrise: optSeconds(ev.Sunrise),
-		Moonrise: optSeconds(ev.Moonrise), Moonset: optSeconds(ev.Moonset),
-		MoonIlluminated: ev.MoonIlluminated,
-	}
-}
-
 func planOutput(p *planner.Plan, ev ephem.NightEvents, acq float64) planJSON {
 	out := planJSON{
 		Night:       nightObject(ev),
