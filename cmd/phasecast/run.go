@@ -35,6 +35,8 @@ func commands() []command {
 		{"plan", "plan one night: exposure blocks on the wanted orbital phases of a target list", runPlan},
 		{"run", "plan a run of nights: goals spread over nights, coverage, best nights, observed log", runRun},
 		{"windows", "queue phase windows of targets over a date range (text, JSON, CSV, iCalendar)", runWindows},
+		{"backup", "take a consistent copy of the database while the server runs", runBackup},
+		{"restore", "put a backup in place of the database (server stopped)", runRestore},
 	}
 }
 
