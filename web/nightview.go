@@ -2,6 +2,7 @@ package web
 
 import (
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 	"time"
@@ -143,11 +144,20 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 
 // goalLabel names a goal: "φ 0.25 ± 0.05" or "quadrature (max recession) φ 0.25 ± 0.05".
 func goalLabel(g planner.Goal) string {
-	s := fmt.Sprintf("φ %s ± %s", num(g.Center), num(g.HalfWidth))
+	s := fmt.Sprintf("φ %s ± %s", phaseNum(g.Center), phaseNum(g.HalfWidth))
 	if g.Event != "" {
 		s = strings.ReplaceAll(g.Event, "_", " ") + ", " + s
 	}
 	return s
+}
+
+// phaseNum formats a phase: as typed when short ("0.25"), else to four
+// decimals (an event's derived phase such as 0.9773).
+func phaseNum(x float64) string {
+	if r := math.Round(x*1e4) / 1e4; math.Abs(r-x) < 1e-12 {
+		return num(r)
+	}
+	return strconv.FormatFloat(x, 'f', 4, 64)
 }
 
 // num formats a number compactly.

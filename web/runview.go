@@ -40,7 +40,7 @@ func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, 
 		for _, g := range t.Goals {
 			v.Coverage = append(v.Coverage, page.CoverageRow{Target: t.Target, Goal: goalLabel(planner.Goal{Center: g.PhaseGoal, HalfWidth: g.PhaseHalfWidth, Event: g.Event}),
 				Need: fmt.Sprintf("%s on %d night(s)", needText(g.NeedExposures), g.NeedNights), Observed: g.Observed, Planned: g.Planned,
-				Nights: fmt.Sprintf("%d of %d", g.NightsMet, g.NeedNights), Status: statusText(g)})
+				Nights: fmt.Sprintf("%d (%d wanted)", g.NightsMet, g.NeedNights), Status: statusText(g)})
 		}
 	}
 	for k, n := range doc.Nights {
@@ -108,7 +108,7 @@ func reachRow(t runTargetDoc, doc *runDoc) page.ReachRow {
 func ringOf(t runTargetDoc) chart.Ring {
 	r := chart.Ring{Title: "Phase coverage of " + t.Target, Planned: t.Planned, Observed: t.Observed}
 	for _, g := range t.Goals {
-		label := num(g.PhaseGoal)
+		label := phaseNum(g.PhaseGoal)
 		if g.Event != "" {
 			label = strings.ReplaceAll(g.Event, "_", " ")
 		}

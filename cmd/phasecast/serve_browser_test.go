@@ -39,7 +39,9 @@ func TestBrowserEndToEnd(t *testing.T) {
 		t.Skipf("skipped: chromium not found at %s", chromiumPath)
 	}
 	shots := t.TempDir()
+	t0 := time.Now()
 	app := startServe(t, filepath.Join(t.TempDir(), "phasecast.db"))
+	t.Logf("%-16s %v", "server start", time.Since(t0).Round(time.Millisecond))
 	defer func() {
 		if err := app.stop(); err != nil {
 			t.Errorf("graceful shutdown: %v", err)
@@ -48,15 +50,19 @@ func TestBrowserEndToEnd(t *testing.T) {
 	if app.link == "" {
 		t.Fatalf("no sign-in link printed:\n%s", app.stdout.String())
 	}
+	t0 = time.Now()
 	ctx := newBrowser(t)
+	t.Logf("%-16s %v", "browser start", time.Since(t0).Round(time.Millisecond))
 	step := func(name string, actions ...chromedp.Action[chromedp.Void]) {
 		t.Helper()
-		sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
+		start := time.Now()
+		sctx, cancel := context.WithTimeout(ctx, 60*time.Second)
 		defer cancel()
 		if err := chromedp.Do(sctx, actions...); err != nil {
 			saveShot(t, ctx, shots, "failed-"+name+".png")
 			t.Fatalf("%s: %v", name, err)
 		}
+		t.Logf("%-16s %v", name, time.Since(start).Round(time.Millisecond))
 	}
 
 	// Sign in with the printed link: one click on the page it opens.
@@ -95,6 +101,7 @@ func TestBrowserEndToEnd(t *testing.T) {
 	if err != nil || rows == 0 {
 		t.Errorf("block rows on the night page: %d (err %v), want some", rows, err)
 	}
+	step("scroll to the night", chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid=night-result] h2').scrollIntoView()`))
 	saveShot(t, ctx, shots, "night.png")
 
 	// Download the iCalendar export through the browser.
@@ -118,11 +125,23 @@ func TestBrowserEndToEnd(t *testing.T) {
 		t.Errorf("iCalendar has %d events, the page %d blocks", len(cal.Events), rows)
 	}
 
+	// Plan the demo run with the optimizer (progress page, then the run).
+	step("plan run", chromedp.Navigate(app.base+"/runs"), chromedp.Click(chromedp.CSS(`[data-testid=runs] a`)),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid=optimize]`)), chromedp.Click(chromedp.CSS(`[data-testid=optimize]`)),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid=rings] svg`)),
+		chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid=reach]').scrollIntoView()`))
+	saveShot(t, ctx, shots, "run.png")
+
 	// Make a share link of the list and open it in a signed-out browser.
 	step("share", chromedp.Navigate(app.base+"/targets"), chromedp.Click(chromedp.CSS(`[data-testid=share-create]`)),
 		chromedp.WaitVisible(chromedp.CSS(`[data-testid=new-share]`)))
 	link := strings.TrimSpace(text(t, ctx, `[data-testid=new-share]`))
-	anon := newBrowser(t)
+	// A fresh browser context (its own cookies) in the same browser.
+	anon, cancelAnon := chromedp.NewContext(ctx, chromedp.WithNewBrowserContext())
+	defer cancelAnon()
+	if err := chromedp.Do(anon); err != nil {
+		t.Fatalf("new browser context: %v", err)
+	}
 	sctx, cancel := context.WithTimeout(anon, 30*time.Second)
 	defer cancel()
 	if err := chromedp.Do(sctx, chromedp.Navigate(link), chromedp.WaitVisible(chromedp.CSS(`[data-testid=share-targets]`))); err != nil {
@@ -135,8 +154,8 @@ func TestBrowserEndToEnd(t *testing.T) {
 	t.Logf("screenshots in %s", shots)
 }
 
-// newBrowser starts a headless Chromium with its own profile (so a second
-// one is signed out) and returns its context.
+// newBrowser starts a headless Chromium with its own profile and returns
+// its context.
 func newBrowser(t *testing.T) context.Context {
 	t.Helper()
 	opts := append(chromedp.DefaultExecAllocatorOptions[:],
@@ -164,11 +183,12 @@ func text(t *testing.T, ctx context.Context, css string) string {
 	return s
 }
 
-// saveShot writes a full-page PNG screenshot to dir and, when
-// PHASECAST_SCREENSHOTS is set, to that directory too.
+// saveShot writes a PNG screenshot of the browser window (1280 × 900) to
+// dir and, when PHASECAST_SCREENSHOTS is set, to that directory too. A
+// window, not the whole page: long tables would make it slow and large.
 func saveShot(t *testing.T, ctx context.Context, dir, name string) {
 	t.Helper()
-	png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100))
+	png, err := chromedp.Run(ctx, chromedp.CaptureScreenshot())
 	if err != nil {
 		t.Logf("screenshot %s: %v", name, err)
 		return
