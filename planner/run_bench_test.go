@@ -29,6 +29,7 @@ func benchPlanRun(b *testing.B, nTargets, nNights int) {
 	b.Helper()
 	req := benchRun(nTargets, nNights)
 	var rp *planner.RunPlan
+	cpu := startCPU()
 	for b.Loop() {
 		var err error
 		if rp, err = planner.PlanRun(context.Background(), req, nil); err != nil {
@@ -42,6 +43,7 @@ func benchPlanRun(b *testing.B, nTargets, nNights int) {
 	b.ReportMetric(float64(blocks), "blocks")
 	b.ReportMetric(float64(rp.Solves), "solves")
 	b.ReportMetric(100*float64(rp.Value)/float64(rp.MaxValue), "%J")
+	cpu.report(b)
 }
 
 // BenchmarkPlanRun50x10 is the figure: a 10-night run of 50 targets.

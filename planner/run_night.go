@@ -51,7 +51,8 @@ func newNightModel(req NightRequest) (*nightModel, error) {
 type nightSolution struct {
 	sol     solution
 	greedy  int64
-	weights [][]int64
+	weights [][]int64 // the weights it was solved for
+	tried   [][]int64 // weights since tried without a better result (nil: none)
 }
 
 // solve schedules the night for goal weights w[target][goal] (each ≥ 1).

@@ -73,19 +73,20 @@ const modelBudget = 3_000_000
 //     with many later chances is worth less tonight, one whose last chance
 //     is tonight its full gain. The night is then solved exactly for these
 //     weights.
-//   - Improvement rounds (coordinate ascent on J): for each night in turn,
-//     the weights become the exact marginal gains G given every other
-//     night's plan (no look-ahead needed); the night is solved again and the
-//     new schedule kept only if J strictly increases. Rounds stop when one
+//   - Improvement rounds (ascent on J): every night's weights become the
+//     exact marginal gains G given every other night's plan (no look-ahead
+//     needed); the nights whose weights changed are solved again, in
+//     parallel; then, night by night in time order, a new schedule replaces
+//     the current one only if J strictly increases. Rounds stop when one
 //     changes nothing, or after RunRequest.Rounds (default 2).
 //
 // J never decreases in the rounds, and with CompareIndependent the run also
 // reports J for nights planned on their own (PlanNight's own values), which
 // the greedy pass beats on runs where a goal's only chances conflict with
 // goals that have others (TestRunBeatsNightByNight). The result is
-// deterministic: nights are solved in a fixed order and parallel work
-// (best-night search, night set-up, final plans) is put back in night
-// order.
+// deterministic: the greedy pass solves the nights in time order, and
+// parallel work (best-night search, night set-up, improvement proposals,
+// final plans) is put back in night order before anything depends on it.
 //
 // Progress (may be nil) is called with (done, total) as work completes,
 // from one goroutine at a time; done never decreases and ends at total. A
@@ -218,32 +219,9 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 	// 5. Improvement rounds.
 	for round := 1; round <= r.rounds(); round++ {
 		out.Rounds = round
-		changed := false
-		for _, k := range fut {
-			if err := ctx.Err(); err != nil {
-				return nil, err
-			}
-			pc.tick()
-			w := r.weights(k, false)
-			if equalWeights(w, r.sols[k].weights) {
-				continue
-			}
-			m, err := r.model(k)
-			if err != nil {
-				return nil, err
-			}
-			ns := m.solve(w)
-			r.solves++
-			cnt := m.counts(ns, r.goals)
-			old := r.objective(nil)
-			if r.objective(map[int][][]int{k: cnt}) > old {
-				r.sols[k], r.planned[k] = ns, cnt
-				changed = true
-			} else {
-				// Keep the old schedule; remember the weights tried so an
-				// unchanged neighbourhood is not solved again.
-				r.sols[k].weights = w
-			}
+		changed, err := r.improve(ctx, fut, pc)
+		if err != nil {
+			return nil, err
 		}
 		if !changed {
 			pc.done += (r.rounds() - round) * F
@@ -252,27 +230,30 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 	}
 	// 6. Nights planned on their own, for comparison.
 	if r.req.CompareIndependent {
-		indep := map[int][][]int{}
-		for _, k := range fut {
-			if err := ctx.Err(); err != nil {
-				return nil, err
+		w := make([][]int64, len(r.targets))
+		for ti, ts := range r.targets {
+			w[ti] = make([]int64, len(ts.goals))
+			for gi := range w[ti] {
+				w[ti][gi] = PriorityWeight(ts.t.Priority)
 			}
-			m, err := r.model(k)
-			if err != nil {
-				return nil, err
-			}
-			w := make([][]int64, len(r.targets))
-			for ti, ts := range r.targets {
-				w[ti] = make([]int64, len(ts.goals))
-				for gi := range w[ti] {
-					w[ti][gi] = PriorityWeight(ts.t.Priority)
-				}
-			}
-			ns := m.solve(w)
-			r.solves++
-			indep[k] = m.counts(ns, r.goals)
-			pc.tick()
 		}
+		cnt := make([][][]int, F)
+		err := forEach(ctx, F, func(i int) error {
+			m, err := r.model(fut[i])
+			if err != nil {
+				return err
+			}
+			cnt[i] = m.counts(m.solve(w), r.goals)
+			return nil
+		}, pc.tick)
+		if err != nil {
+			return nil, err
+		}
+		indep := map[int][][]int{}
+		for i, k := range fut {
+			indep[k] = cnt[i]
+		}
+		r.solves += F
 		out.IndependentValue = r.objective(indep)
 	}
 	out.Solves = r.solves
@@ -514,6 +495,61 @@ func (r *runState) weights(k int, lookAhead bool) [][]int64 {
 	return w
 }
 
+// improve runs one improvement round: every future night's weights become
+// the exact marginal gains given the other nights' current plans; the
+// nights whose weights changed are solved again in parallel; then, in night
+// order, each new schedule replaces the night's current one if that
+// strictly increases J (given the replacements already made). It reports
+// whether any night changed.
+func (r *runState) improve(ctx context.Context, fut []int, pc *progressCounter) (bool, error) {
+	type proposal struct {
+		ns  nightSolution
+		cnt [][]int
+		ok  bool
+	}
+	ws := make([][][]int64, len(fut))
+	var todo []int
+	for i, k := range fut {
+		ws[i] = r.weights(k, false)
+		if equalWeights(ws[i], r.sols[k].weights) || equalWeights(ws[i], r.sols[k].tried) {
+			pc.tick()
+			continue
+		}
+		todo = append(todo, i)
+	}
+	props := make([]proposal, len(fut))
+	err := forEach(ctx, len(todo), func(j int) error {
+		i := todo[j]
+		m, err := r.model(fut[i])
+		if err != nil {
+			return err
+		}
+		ns := m.solve(ws[i])
+		props[i] = proposal{ns: ns, cnt: m.counts(ns, r.goals), ok: true}
+		return nil
+	}, pc.tick)
+	if err != nil {
+		return false, err
+	}
+	r.solves += len(todo)
+	changed := false
+	for i, k := range fut {
+		if !props[i].ok {
+			continue
+		}
+		if r.objective(map[int][][]int{k: props[i].cnt}) > r.objective(nil) {
+			r.sols[k], r.planned[k] = props[i].ns, props[i].cnt
+			changed = true
+		} else {
+			// Keep the schedule; remember the weights tried, so that an
+			// unchanged neighbourhood is not solved again.
+			r.sols[k].tried = ws[i]
+		}
+	}
+	return changed, nil
+}
+
+// equalWeights reports whether two weight tables are the same.
 func equalWeights(a, b [][]int64) bool {
 	if len(a) != len(b) {
 		return false

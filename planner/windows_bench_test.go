@@ -42,6 +42,7 @@ func benchWindows(b *testing.B, nTargets, nNights int) {
 	req := planner.WindowRequest{Site: benchSite, From: from, To: from.AddDate(0, 0, nNights),
 		Targets: benchTargets(nTargets), Constraints: planner.DefaultConstraints()}
 	var n int
+	cpu := startCPU()
 	for b.Loop() {
 		got, err := planner.QueueWindows(context.Background(), req, nil)
 		if err != nil {
@@ -53,6 +54,27 @@ func benchWindows(b *testing.B, nTargets, nNights int) {
 		}
 	}
 	b.ReportMetric(float64(n), "windows")
+	cpu.report(b)
+}
+
+// cpuMeter measures the CPU time a benchmark's loop uses, all threads
+// together: on a machine shared with other jobs the wall time per op
+// swells with the load, the CPU time much less; on an idle 2-core machine
+// the wall time of a well-parallelised op is about half of it.
+type cpuMeter struct {
+	start time.Duration
+	ok    bool
+}
+
+func startCPU() cpuMeter {
+	t, ok := processCPU()
+	return cpuMeter{t, ok}
+}
+
+func (c cpuMeter) report(b *testing.B) {
+	if t, ok := processCPU(); ok && c.ok && b.N > 0 {
+		b.ReportMetric(float64(t-c.start)/float64(b.N)/1e6, "cpu-ms/op")
+	}
 }
 
 // BenchmarkQueueWindows300x180 is the figure: queue windows for 300

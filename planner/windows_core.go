@@ -81,21 +81,35 @@ func (b *leanBase) night(from, to float64) *engine {
 	return en
 }
 
+// leapProbe is how long before a UTC midnight TT − UTC is read to see
+// whether a leap second ends that day: 1 ms, since ephem's UTC Julian date
+// resolves about a microsecond and puts an instant 1 ns before midnight on
+// midnight itself.
+const leapProbe = time.Millisecond
+
 // newSparseClock returns a phase clock for target st whose BJD_TDB is
 // computed by ephem.BJDTDB at the given anchors (Unix seconds, increasing)
 // and interpolated linearly between them (accuracy in the notes above). A
 // leap second between two anchors gets its own anchor, so the step is not
-// smeared: the piece before it ends on the value just before the step, as in
-// newPhaseClock.
+// smeared: the piece before it ends on the value just before the step.
+//
+// Where the anchors are evenly spaced (the days of QueueWindows), every
+// other one is not computed but interpolated by the parabola through its
+// computed neighbours (anchors k−1, k+1, k+3, or k−3, k−1, k+1 at the end):
+// the error is about |f‴|·h³/2 for spacing h, with f‴ of the annual Rømer
+// term A·ω³ = 499 s × (2π/365.25 d)³ ≈ 2.5 ms/d³, so about 1 ms for daily
+// anchors (all at the same local time, where the diurnal term repeats).
 func newSparseClock(site ephem.Site, st ephem.Star, e ephem.Ephemeris, anchors []float64) phaseClock {
 	var all []float64
+	leapAt := map[int]bool{} // indices of anchors inserted at a leap second
 	for k, u := range anchors {
 		if k > 0 {
 			prev := anchors[k-1]
 			if ephem.TTMinusUTC(timeOf(prev)) != ephem.TTMinusUTC(timeOf(u)) {
 				for m := math.Floor(prev/86400)*86400 + 86400; m < u; m += 86400 {
 					t := timeOf(m)
-					if ephem.TTMinusUTC(t.Add(-time.Nanosecond)) != ephem.TTMinusUTC(t) {
+					if ephem.TTMinusUTC(t.Add(-leapProbe)) != ephem.TTMinusUTC(t) {
+						leapAt[len(all)] = true
 						all = append(all, m)
 					}
 				}
@@ -104,22 +118,51 @@ func newSparseClock(site ephem.Site, st ephem.Star, e ephem.Ephemeris, anchors [
 		all = append(all, u)
 	}
 	c := phaseClock{e: e, pieces: make([]clockPiece, 0, len(all))}
-	b := ephem.BJDTDB(site, st, timeOf(all[0]))
 	if len(all) == 1 {
+		b := ephem.BJDTDB(site, st, timeOf(all[0]))
 		c.pieces = append(c.pieces, clockPiece{u0: all[0], u1: all[0] + 1, b0: b, scale: 1})
 		return c
 	}
-	for k := 0; k+1 < len(all); k++ {
+	n := len(all)
+	vals := make([]ephem.JD2, n)
+	exact := make([]bool, n)
+	for k := range all {
+		exact[k] = k%2 == 0 || k == n-1 || leapAt[k] || (k > 0 && leapAt[k-1]) || (k+1 < n && leapAt[k+1])
+		if exact[k] {
+			vals[k] = ephem.BJDTDB(site, st, timeOf(all[k]))
+		}
+	}
+	even := func(i, j int) bool { return math.Abs((all[j]-all[i])-(all[i+1]-all[i])*float64(j-i)) < 1 }
+	for k := range all {
+		if exact[k] {
+			continue
+		}
+		var a, b, d int
+		switch {
+		case k+3 < n && exact[k+3] && exact[k-1] && exact[k+1] && even(k-1, k+3):
+			a, b, d = k-1, k+1, k+3
+		case k >= 3 && exact[k-3] && exact[k-1] && exact[k+1] && even(k-3, k+1):
+			a, b, d = k-3, k-1, k+1
+		default:
+			vals[k] = ephem.BJDTDB(site, st, timeOf(all[k]))
+			continue
+		}
+		// Lagrange parabola through a, b, d in days from vals[a].
+		x := all[k]
+		ya, yb, yd := 0.0, vals[b].SubDays(vals[a]), vals[d].SubDays(vals[a])
+		xa, xb, xd := all[a], all[b], all[d]
+		y := ya*(x-xb)*(x-xd)/((xa-xb)*(xa-xd)) + yb*(x-xa)*(x-xd)/((xb-xa)*(xb-xd)) + yd*(x-xa)*(x-xb)/((xd-xa)*(xd-xb))
+		vals[k] = vals[a].AddDays(y)
+	}
+	for k := 0; k+1 < n; k++ {
 		u0, u1 := all[k], all[k+1]
 		t1 := timeOf(u1)
-		next := ephem.BJDTDB(site, st, t1)
-		end := next
-		before := t1.Add(-time.Nanosecond)
+		end := vals[k+1]
+		before := t1.Add(-leapProbe)
 		if ephem.TTMinusUTC(before) != ephem.TTMinusUTC(t1) {
-			end = ephem.BJDTDB(site, st, before).AddSeconds(1e-9)
+			end = ephem.BJDTDB(site, st, before).AddSeconds(leapProbe.Seconds())
 		}
-		c.pieces = append(c.pieces, clockPiece{u0: u0, u1: u1, b0: b, scale: end.SubDays(b) * 86400 / (u1 - u0)})
-		b = next
+		c.pieces = append(c.pieces, clockPiece{u0: u0, u1: u1, b0: vals[k], scale: end.SubDays(vals[k]) * 86400 / (u1 - u0)})
 	}
 	return c
 }
@@ -170,8 +213,11 @@ func (en *engine) reach(ts *targetState, clock *phaseClock, pad float64) ([][]re
 		}
 	}
 	var vis []span
-	scanned := intersectSpans(intersectSpans(normalizeSpans(want), en.dark), en.possible(ts, lo, hi))
-	for _, s := range scanned {
+	floor := en.altFloorDeg() - (en.site.RefractedAltDeg(-2) + 2) - 0.01
+	for _, s := range intersectSpans(normalizeSpans(want), en.dark) {
+		if !en.mightReach(ts, s.lo, s.hi, floor) {
+			continue
+		}
 		ok, _ := scan(s.lo, s.hi, en.opt.StepS, func(u float64) (float64, reasonBits) { return en.margin(ts, u) })
 		vis = append(vis, ok...)
 	}
@@ -215,27 +261,26 @@ func (en *engine) altFloorDeg() float64 {
 	return floor
 }
 
-// possible returns the parts of [lo, hi] in which target ts can be above
-// the altitude floor at all, from its airless altitude on the fast path
-// every 600 s: a sample a_k below the floor (less the largest refraction,
-// the one at −2° airless) by d excludes the time within d/ω of it, ω the
-// bound siderealRateDegPerS on the altitude's rate. The exclusion is
-// conservative: no observable instant is ever cut, and scan still finds
-// every edge to 1 ms inside what is left.
-func (en *engine) possible(ts *targetState, lo, hi float64) []span {
-	refrMax := en.site.RefractedAltDeg(-2) + 2
-	need := en.altFloorDeg() - refrMax - 0.01
-	var cut []span
-	for _, u := range samplePoints(lo, hi, 600) {
-		if d := need - ts.track.AltUnix(u); d > 0 {
-			r := d / siderealRateDegPerS
-			cut = append(cut, span{u - r, u + r})
+// mightReach reports whether target ts can be above the altitude floor at
+// any instant of [a, b], from its airless altitude on the fast path at a,
+// b and every 600 s between: between two samples h apart with altitudes
+// a₁ and a₂, no altitude exceeds (a₁ + a₂ + ω·h)/2 (the meeting point of
+// the two cones a_k + ω·|u − u_k|, ω the bound siderealRateDegPerS on the
+// altitude's rate). The target is out of reach when that peak stays below
+// the floor less the largest refraction (the one at −2° airless) in every
+// gap. The test is conservative: it never excludes an observable instant.
+func (en *engine) mightReach(ts *targetState, a, b, floor float64) bool {
+	const h = 600.0
+	prevU, prevA := a, ts.track.AltUnix(a)
+	for u := a; u < b; {
+		u = math.Min(u+h, b)
+		alt := ts.track.AltUnix(u)
+		if 0.5*(prevA+alt+siderealRateDegPerS*(u-prevU)) >= floor {
+			return true
 		}
+		prevU, prevA = u, alt
 	}
-	if len(cut) == 0 {
-		return []span{{lo, hi}}
-	}
-	return subtractSpans([]span{{lo, hi}}, normalizeSpans(cut))
+	return prevA >= floor
 }
 
 // capacity returns the most exposures of goal g (exposure E, overhead O,
