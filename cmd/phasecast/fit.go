@@ -212,10 +212,12 @@ func readTimings(file *textValue, site *ephem.Site, star *ephem.Star) ([]timingR
 		if errors.Is(err, io.EOF) {
 			break
 		}
-		line, _ := r.FieldPos(0)
 		if err != nil {
+			// A malformed record has no fields: FieldPos would panic. The
+			// csv.ParseError names its line and column.
 			return nil, usageErrorf("--timings %s: %s", shown(file.value), oneLine(err.Error()))
 		}
+		line, _ := r.FieldPos(0)
 		if len(rows) == maxTimings {
 			return nil, usageErrorf("%s: more than %d timings", where(line), maxTimings)
 		}

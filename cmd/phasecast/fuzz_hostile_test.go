@@ -130,6 +130,8 @@ func TestHostileTimingsFile(t *testing.T) {
 		{"ErrUnderflowsToZero", "time,std,err_s\n2460319.7894313,BJD_TDB,1e-320\n2460319.8506659,BJD_TDB,6\n2460400.1,BJD_TDB,6\n", "line 2"},
 		{"ErrHuge", "time,std,err_s\n2460319.7894313,BJD_TDB,1e308\n2460319.8506659,BJD_TDB,6\n2460400.1,BJD_TDB,6\n", ""},
 		{"TenMBTimeWithSpace", "time,std,err_s\n1 " + strings.Repeat("9", 10<<20) + ",BJD_TDB,6\n", "line 2"},
+		{"BareQuote", "time,std,err_s\n2\"0,BJD_TDB,6\n", "line 2"},
+		{"UnterminatedQuote", "time,std,err_s\n2460319.7894313,BJD_TDB,6\n\"2460320", "line 3"},
 		{"StdInvalidUTF8", "time,std,err_s\n2460319.7894313,BJD\xff,6\n", "line 2"},
 		{"FormulaTime", "time,std,err_s\n=2460319.7894313,BJD_TDB,6\n", "line 2"},
 	}
