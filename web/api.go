@@ -1,6 +1,7 @@
 package web
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -48,9 +49,9 @@ func (s *Server) apiUser(h func(http.ResponseWriter, *http.Request, *user)) http
 // apiErrorBody is the JSON of every API error.
 type apiErrorBody struct {
 	Error struct {
-		Code    string             `json:"code"`
-		Message string             `json:"message"`
-		Fields  []store.FieldError `json:"fields,omitempty"`
+		Code    string          `json:"code"`
+		Message string          `json:"message"`
+		Fields  []apiFieldError `json:"fields,omitempty"`
 	} `json:"error"`
 	// Current is the row as it is now, after a stale-version update.
 	Current any `json:"current,omitempty"`
@@ -76,7 +77,9 @@ func (s *Server) apiError(w http.ResponseWriter, r *http.Request, err error) {
 	body.Error.Code, body.Error.Message = code, msg
 	var ve *store.ValidationError
 	if errors.As(err, &ve) {
-		body.Error.Fields = ve.Fields
+		for _, f := range ve.Fields {
+			body.Error.Fields = append(body.Error.Fields, apiFieldError{apiFieldName(f.Field), f.Value, f.Accepted})
+		}
 	}
 	var se *store.Error
 	if errors.As(err, &se) && se.Current != nil {
@@ -87,17 +90,45 @@ func (s *Server) apiError(w http.ResponseWriter, r *http.Request, err error) {
 	writeJSON(w, status, body)
 }
 
+// apiFieldError is one rejected field of a JSON body, named as in the
+// body ("dec_deg", "ephemeris.period_days", "goals[0].exposure_s").
+type apiFieldError struct {
+	Field    string `json:"field"`
+	Value    string `json:"value"`
+	Accepted string `json:"accepted"`
+}
+
+// ephemFields are the store's names of ephemeris fields, which the API
+// nests under "ephemeris".
+var ephemFields = map[string]bool{"t0": true, "t0_form": true, "t0_standard": true, "t0_convention": true, "t0_err_days": true,
+	"period_days": true, "period_err_days": true, "cov_t0_period": true, "pdot": true, "pdot_err": true, "phase_offset": true,
+	"ecc": true, "omega_deg": true}
+
+// apiFieldName names a store field as the JSON body does.
+func apiFieldName(f string) string {
+	switch {
+	case f == "ra" || f == "dec":
+		return f + "_deg"
+	case ephemFields[f]:
+		return "ephemeris." + f
+	}
+	return f
+}
+
 // writeJSON writes v as indented JSON with status.
 func writeJSON(w http.ResponseWriter, status int, v any) {
-	b, err := json.MarshalIndent(v, "", "  ")
-	if err != nil {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(v); err != nil {
 		http.Error(w, `{"error":{"code":"EINTERNAL","message":"internal error"}}`, http.StatusInternalServerError)
 		return
 	}
 	w.Header().Set("Content-Type", "application/json")
 	w.Header().Set("Cache-Control", "no-store")
 	w.WriteHeader(status)
-	_, _ = w.Write(append(b, '\n'))
+	_, _ = buf.WriteTo(w)
 }
 
 // readJSON decodes a request body of at most 4 MiB into v, refusing

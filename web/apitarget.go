@@ -93,7 +93,7 @@ func (j targetJSON) input() (store.TargetInput, error) {
 	e := j.Ephemeris
 	t0, err := store.ParseEpoch(e.T0, ephem.TimeStandard(e.T0Standard), ephem.EpochForm(e.T0Form))
 	if err != nil {
-		return store.TargetInput{}, apiFieldError("ephemeris.t0", e.T0, err)
+		return store.TargetInput{}, invalidField("ephemeris.t0", e.T0, err)
 	}
 	tg := planner.Target{Name: j.Name, RADeg: j.RADeg, DecDeg: j.DecDeg, PMRAmasyr: j.PMRAmasyr, PMDecmasyr: j.PMDecmasyr, Mag: j.Mag,
 		Priority: j.Priority, AcquireS: j.AcquireS, Tags: j.Tags, Notes: j.Notes,
@@ -113,8 +113,8 @@ func (j targetJSON) input() (store.TargetInput, error) {
 	return store.TargetInput{Target: tg, T0: t0, EphemNote: j.EphemNote}, nil
 }
 
-// apiFieldError is EINVALID for one field of a JSON body.
-func apiFieldError(field, value string, err error) error {
+// invalidField is EINVALID for one field of a JSON body.
+func invalidField(field, value string, err error) error {
 	msg := err.Error()
 	var ie *ephem.InputError
 	if errors.As(err, &ie) {

@@ -42,17 +42,17 @@ type siteJSON struct {
 }
 
 type nightEventsJSON struct {
-	Sunset           *time.Time `json:"sunset"`
-	CivilDusk        *time.Time `json:"civil_dusk"`
-	NauticalDusk     *time.Time `json:"nautical_dusk"`
-	AstronomicalDusk *time.Time `json:"astronomical_dusk"`
-	AstronomicalDawn *time.Time `json:"astronomical_dawn"`
-	NauticalDawn     *time.Time `json:"nautical_dawn"`
-	CivilDawn        *time.Time `json:"civil_dawn"`
-	Sunrise          *time.Time `json:"sunrise"`
-	Moonrise         *time.Time `json:"moonrise"`
-	Moonset          *time.Time `json:"moonset"`
-	MoonIlluminated  float64    `json:"moon_illuminated"`
+	Sunset           *string `json:"sunset"`
+	CivilDusk        *string `json:"civil_dusk"`
+	NauticalDusk     *string `json:"nautical_dusk"`
+	AstronomicalDusk *string `json:"astronomical_dusk"`
+	AstronomicalDawn *string `json:"astronomical_dawn"`
+	NauticalDawn     *string `json:"nautical_dawn"`
+	CivilDawn        *string `json:"civil_dawn"`
+	Sunrise          *string `json:"sunrise"`
+	Moonrise         *string `json:"moonrise"`
+	Moonset          *string `json:"moonset"`
+	MoonIlluminated  float64 `json:"moon_illuminated"`
 }
 
 type blockJSON struct {
@@ -142,11 +142,13 @@ func (n *night) exportJSON() ([]byte, error) {
 	return json.MarshalIndent(out, "", "  ")
 }
 
-func utcp(t *time.Time) *time.Time {
+// utcp writes an optional event as RFC 3339 UTC to the second (null when
+// the event does not happen).
+func utcp(t *time.Time) *string {
 	if t == nil {
 		return nil
 	}
-	u := t.UTC()
+	u := t.UTC().Round(time.Second).Format(time.RFC3339)
 	return &u
 }
 
