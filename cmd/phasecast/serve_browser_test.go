@@ -129,7 +129,7 @@ func TestBrowserEndToEnd(t *testing.T) {
 	step("plan run", chromedp.Navigate(app.base+"/runs"), chromedp.Click(chromedp.CSS(`[data-testid=runs] a`)),
 		chromedp.WaitVisible(chromedp.CSS(`[data-testid=optimize]`)), chromedp.Click(chromedp.CSS(`[data-testid=optimize]`)),
 		chromedp.WaitVisible(chromedp.CSS(`[data-testid=rings] svg`)),
-		chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid=reach]').scrollIntoView()`))
+		chromedp.Evaluate[chromedp.Void](`document.getElementById('overview').scrollIntoView()`))
 	saveShot(t, ctx, shots, "run.png")
 
 	// Make a share link of the list and open it in a signed-out browser.

@@ -76,6 +76,7 @@ func (r Ring) draw(s *svg) {
 		s.text(lx, ly+4, fmtPhase(q), "text-anchor", "middle", "font-size", "10", "class", "tick")
 	}
 	r.drawBins(s, c, rad)
+	var placed []box
 	for i, a := range r.Goals {
 		if !finite(a.From) || !finite(a.To) {
 			continue
@@ -95,13 +96,11 @@ func (r Ring) draw(s *svg) {
 		}
 		s.raw("/>")
 		mid := a.From + arcLen(a.From, a.To)/2
-		lx, ly := ringPoint(c, rad-17, math.Mod(mid, 1))
 		label := a.Label
 		if a.Met {
 			label += " ✓"
 		}
-		s.text(lx, ly+4, label, "text-anchor", "middle", "font-size", "9", "class", "halo", "stroke", "#ffffff",
-			"stroke-width", "2.5", "paint-order", "stroke")
+		placeLabel(s, &placed, c, rad-12, math.Mod(mid, 1), label)
 	}
 	for _, p := range r.Planned {
 		if !finite(p) {
@@ -141,9 +140,9 @@ func (r Ring) drawBins(s *svg, c, rad float64) {
 		if b.Count <= 0 || !finite(b.From) || !finite(b.To) {
 			continue
 		}
-		depth := 4 + 14*float64(b.Count)/float64(maxCount)
+		depth := 3 + 10*float64(b.Count)/float64(maxCount)
 		s.raw(`<path d="`)
-		s.b = appendArc(s.b, c, rad-32-depth/2, b.From, b.To)
+		s.b = appendArc(s.b, c, rad*0.45-depth/2, b.From, b.To)
 		s.raw(`" fill="none" stroke="#59636e" stroke-opacity="0.45" class="bin"`)
 		s.nattr("stroke-width", depth)
 		s.raw("><title>")
@@ -191,4 +190,37 @@ func appendArc(b []byte, c, rad, from, to float64) []byte {
 	b = append(b, " 0 "+large+" 1 "...)
 	b = appendXY(b, x1, y1)
 	return b
+}
+
+// placeLabel writes a goal label just inside the ring at phase p, anchored
+// so that it runs towards the centre, and moves it up or down while it
+// would cover a label already placed.
+func placeLabel(s *svg, placed *[]box, c, rad, p float64, label string) {
+	w := float64(len([]rune(label)))*5.2 + 2
+	shifts := []float64{0, 12, -12, 24, -24}
+	for try, dy := range shifts {
+		x, y := ringPoint(c, rad, p)
+		y += dy
+		anchor, x0 := "middle", x-w/2
+		switch {
+		case x > c+8:
+			anchor, x0 = "end", x-w
+		case x < c-8:
+			anchor, x0 = "start", x
+		}
+		b := box{x0, y - 6, x0 + w, y + 6}
+		free := true
+		for _, o := range *placed {
+			if b.overlaps(o) {
+				free = false
+				break
+			}
+		}
+		if free || try == len(shifts)-1 {
+			*placed = append(*placed, b)
+			s.text(x, y+3, label, "text-anchor", anchor, "font-size", "9", "class", "halo", "stroke", "#ffffff",
+				"stroke-width", "2.5", "paint-order", "stroke")
+			return
+		}
+	}
 }
