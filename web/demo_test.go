@@ -22,6 +22,7 @@ type demo struct {
 	ts   *httptest.Server
 	c    *http.Client
 	info store.DemoInfo
+	st   *store.Store
 }
 
 func newDemo(t *testing.T) *demo {
@@ -59,7 +60,7 @@ func newDemo(t *testing.T) *demo {
 	if resp := post("/login/link/" + info.SignInToken); resp.StatusCode != http.StatusOK {
 		t.Fatalf("sign in with the demo link: %d", resp.StatusCode)
 	}
-	return &demo{ts: ts, c: c, info: info}
+	return &demo{ts: ts, c: c, info: info, st: st}
 }
 
 // TestDemoPagesRender signs in to the seeded demo scenario with its

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"io"
 	"net/http"
+	"net/http/cookiejar"
 	"net/url"
 	"regexp"
 	"strings"
@@ -148,5 +149,51 @@ func TestRunCreateRejectsBadNights(t *testing.T) {
 		"nights": {"2026-03-14+3"}})
 	if resp.StatusCode != http.StatusSeeOther {
 		t.Errorf("three nights = %d, want 303", resp.StatusCode)
+	}
+}
+
+// TestRunOptimizeCancel starts the optimizer and cancels it: the cancel
+// button returns to the run, and the computation ends (cancelled, or
+// finished if it was quicker than the click).
+func TestRunOptimizeCancel(t *testing.T) {
+	d := newDemo(t)
+	run := "/runs/" + i64s(d.info.Run.ID)
+	resp := d.post(t, run+"/optimize", url.Values{"past": {"0"}})
+	job := resp.Header.Get("Location")
+	if !strings.HasPrefix(job, "/jobs/") {
+		t.Fatalf("optimize = %d to %q", resp.StatusCode, job)
+	}
+	resp = d.post(t, job+"/cancel", nil)
+	if resp.StatusCode != http.StatusSeeOther || !strings.HasPrefix(resp.Header.Get("Location"), run) {
+		t.Fatalf("cancel = %d to %q", resp.StatusCode, resp.Header.Get("Location"))
+	}
+	deadline := time.Now().Add(time.Minute)
+	for {
+		_, js := d.get(t, job+"/progress")
+		var p struct{ Done bool }
+		if err := json.Unmarshal([]byte(js), &p); err != nil {
+			t.Fatal(err)
+		}
+		if p.Done {
+			break
+		}
+		if time.Now().After(deadline) {
+			t.Fatal("the cancelled computation did not end within a minute")
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+	// Another member cannot see or cancel it.
+	tok, err := d.st.CreateSignInLink(t.Context(), d.info.Editor.Email, time.Hour)
+	if err != nil {
+		t.Fatal(err)
+	}
+	jar, _ := cookiejar.New(nil)
+	editor := &demo{ts: d.ts, c: &http.Client{Jar: jar}}
+	editor.post(t, "/login/link/"+tok, nil)
+	if resp, _ := editor.get(t, job); resp.StatusCode != http.StatusNotFound {
+		t.Errorf("another member sees the job: %d, want 404", resp.StatusCode)
+	}
+	if resp := editor.post(t, job+"/cancel", nil); resp.StatusCode != http.StatusNotFound {
+		t.Errorf("another member cancels the job: %d, want 404", resp.StatusCode)
 	}
 }
