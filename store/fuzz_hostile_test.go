@@ -546,18 +546,7 @@ func TestHostileExportQuotedNames(t *testing.T) {
 		t.Fatalf("re-import gave %d targets, want 1", len(again))
 	}
 	if !sameTarget(got[0], again[0]) {
-		knownDefect(t, "store csvSafeCell leaves a cell starting with ' and a formula character as is, and csvUnquoteFormula then strips the user's quote")
 		t.Fatalf("CSV round trip: name %q notes %q came back as %q %q", got[0].Target.Name, got[0].Target.Notes, again[0].Target.Name, again[0].Target.Notes)
-	}
-}
-
-// knownDefect skips a test that documents a reported, still unfixed defect,
-// unless PHASECAST_KNOWN_DEFECTS=1 asks to see it fail. Remove the call when
-// the defect is fixed.
-func knownDefect(tb testing.TB, what string) {
-	tb.Helper()
-	if os.Getenv("PHASECAST_KNOWN_DEFECTS") == "" {
-		tb.Skipf("known defect, reported (set PHASECAST_KNOWN_DEFECTS=1 to run): %s", what)
 	}
 }
 
