@@ -426,15 +426,18 @@ func TestHostileTargetsCSVManyRows(t *testing.T) {
 }
 
 // TestHostileHorizonOversize: a horizon line longer than the line scanner's
-// buffer is an error, and so is a 10 MB number.
+// buffer, a huge number or too many fields is an error naming the line,
+// and the message stays short.
 func TestHostileHorizonOversize(t *testing.T) {
 	tests := []struct {
 		name string
 		in   string
+		line string
 	}{
-		{"LongLine", "0 5\n" + strings.Repeat(" ", 10<<20) + "90 12\n"},
-		{"HugeNumber", "0 " + strings.Repeat("9", 1<<20) + "\n"},
-		{"ManyFields", strings.Repeat("1 ", 100000) + "\n"},
+		{"LongLine", "0 5\n" + strings.Repeat(" ", 10<<20) + "90 12\n", "line 2"},
+		{"HugeNumber", "0 " + strings.Repeat("9", 1<<20) + "\n", "line 1"},
+		{"ManyFields", strings.Repeat("1 ", 100000) + "\n", "line 1"},
+		{"HugeNumberShortLine", "0 5\n0 " + strings.Repeat("9", 60000) + "\n", "line 2"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -443,6 +446,35 @@ func TestHostileHorizonOversize(t *testing.T) {
 				t.Fatalf("accepted: %d points", len(pts))
 			}
 			t.Logf("error (%d bytes): %.200s", len(err.Error()), err)
+			if !strings.Contains(err.Error(), tc.line) || len(err.Error()) > 1024 {
+				t.Fatalf("error %.300q: want a short message naming %s", err, tc.line)
+			}
+		})
+	}
+}
+
+// TestHostileHorizonNumbers: a horizon file takes plain decimal numbers
+// only, like the targets file; a point out of range is reported with its
+// line (comments and blank lines counted).
+func TestHostileHorizonNumbers(t *testing.T) {
+	tests := []struct{ name, in, want string }{
+		{"Hex", "0 5\n0x1p4 5\n", "line 2 column 1 (az)"},
+		{"Underscore", "0 5\n90 1_0\n", "line 2 column 2 (alt)"},
+		{"NaN", "0 NaN\n", "line 1 column 2 (alt)"},
+		{"Inf", "-Inf 5\n", "line 1 column 1 (az)"},
+		{"Overflow", "0 1e400\n", "line 1 column 2 (alt)"},
+		{"AltOutOfRange", "# mask\n\n0 5\n90 89.5\n", "line 4"},
+		{"AzimuthTwice", "0 5\n# again\n0 6\n", "line 3"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			pts, err := planner.ParseHorizon(strings.NewReader(tc.in))
+			if err == nil {
+				t.Fatalf("accepted as %v", pts)
+			}
+			if !strings.Contains(err.Error(), tc.want) {
+				t.Fatalf("error %q does not name %s", err, tc.want)
+			}
 		})
 	}
 }

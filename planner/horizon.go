@@ -2,6 +2,7 @@ package planner
 
 import (
 	"bufio"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -114,12 +115,15 @@ func HorizonAltDeg(points []HorizonPoint, azDeg float64) (float64, error) {
 
 // ParseHorizon reads a horizon mask from text: one point per line, azimuth
 // and altitude in degrees separated by white space or a comma; blank lines
-// and lines starting with '#' are skipped. Every bad line is reported (line
-// number, column, value, what is accepted) and no mask is returned if any
-// line is bad; the points are then checked by ValidateHorizon.
+// and lines starting with '#' are skipped. Numbers are plain decimals (no
+// NaN, infinities, hexadecimal or '_' digit separators). Every bad line is
+// reported (line number, column, value, what is accepted) and no mask is
+// returned if any line is bad; the points are then checked by
+// ValidateHorizon, whose *ephem.InputError is wrapped with the point's line.
 func ParseHorizon(r io.Reader) ([]HorizonPoint, error) {
 	sc := bufio.NewScanner(r)
 	var pts []HorizonPoint
+	var lines []int // the line of each point
 	var errs []string
 	line := 0
 	for sc.Scan() {
@@ -136,10 +140,10 @@ func ParseHorizon(r io.Reader) ([]HorizonPoint, error) {
 		var vals [2]float64
 		bad := false
 		for k, f := range fields {
-			v, err := strconv.ParseFloat(f, 64)
-			if err != nil || !finite(v) {
+			v, ok := parseFinite(f)
+			if !ok {
 				name := [2]string{"az", "alt"}[k]
-				errs = append(errs, fmt.Sprintf("line %d column %d (%s): %q is not a number; accepted: decimal degrees", line, k+1, name, f))
+				errs = append(errs, fmt.Sprintf("line %d column %d (%s): %q is not a number; accepted: decimal degrees", line, k+1, name, ClipValue(f)))
 				bad = true
 				continue
 			}
@@ -147,9 +151,13 @@ func ParseHorizon(r io.Reader) ([]HorizonPoint, error) {
 		}
 		if !bad {
 			pts = append(pts, HorizonPoint{AzDeg: vals[0], AltDeg: vals[1]})
+			lines = append(lines, line)
 		}
 	}
 	if err := sc.Err(); err != nil {
+		if errors.Is(err, bufio.ErrTooLong) {
+			return nil, fmt.Errorf("horizon: line %d is longer than %d bytes; accepted: lines of \"azimuth altitude\" in degrees", line+1, bufio.MaxScanTokenSize)
+		}
 		return nil, fmt.Errorf("horizon: %w", err)
 	}
 	if len(errs) > 0 {
@@ -159,6 +167,13 @@ func ParseHorizon(r io.Reader) ([]HorizonPoint, error) {
 		return nil, fmt.Errorf("horizon: no points; accepted: lines of \"azimuth altitude\" in degrees")
 	}
 	if err := ValidateHorizon(pts); err != nil {
+		var ie *ephem.InputError
+		var i int
+		if errors.As(err, &ie) {
+			if _, serr := fmt.Sscanf(ie.Field, "horizon[%d]", &i); serr == nil && i >= 0 && i < len(lines) {
+				return nil, fmt.Errorf("horizon: line %d: %w", lines[i], err)
+			}
+		}
 		return nil, err
 	}
 	return pts, nil
