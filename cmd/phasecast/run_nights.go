@@ -490,7 +490,13 @@ func printRun(w io.Writer, rp *planner.RunPlan, out runJSONOut, loc *time.Locati
 		nt := np.Night
 		label := time.Date(nt.Year, nt.Month, nt.Day, 12, 0, 0, 0, loc).Format("Mon 2006-01-02")
 		part := map[string]string{"full": "full night", "first": "first half", "second": "second half"}[partName(nt)]
-		fmt.Fprintf(&b, "\nNight %d: %s, %s, %s–%s local (%s–%s UTC)", k+1, label, part, lt(np.From), lt(np.To), ut(np.From), ut(np.To))
+		fmt.Fprintf(&b, "\nNight %d: %s, %s", k+1, label, part)
+		switch partName(nt) {
+		case "first":
+			fmt.Fprintf(&b, " (until %s local, %s UTC)", lt(np.To), ut(np.To))
+		case "second":
+			fmt.Fprintf(&b, " (from %s local, %s UTC)", lt(np.From), ut(np.From))
+		}
 		if np.Past {
 			n := 0
 			for _, e := range rp.Exposures {
