@@ -19,5 +19,11 @@ func (s *Server) nightSheet(w http.ResponseWriter, r *http.Request, u *user) {
 		return
 	}
 	v.Chart.Now = n.req.From.Add(-1) // a printed sheet has no "now"
+	switch rows := len(v.Blocks) + len(v.Unscheduled)/2; {
+	case rows > 34:
+		v.Density = "denser"
+	case rows > 20:
+		v.Density = "dense"
+	}
 	s.render(w, r, http.StatusOK, page.NightSheet(s.chromeFor(r, u, n.title(), "night"), v))
 }

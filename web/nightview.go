@@ -133,8 +133,10 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 	if !b.MoonUp {
 		r.MoonSep += " (down)"
 	}
+	r.GoalShort = fmt.Sprintf("φ %s ± %s", phaseNum(b.Goal.Center), phaseNum(b.Goal.HalfWidth))
+	r.ExpShort = fmt.Sprintf("%d×%s s", b.N, num(b.ExposureS))
 	if b.Filler {
-		r.Goal = "filler"
+		r.Goal, r.GoalShort = "filler", "filler"
 	}
 	for _, w := range b.Warnings {
 		r.Warnings = append(r.Warnings, w.Message)

@@ -5,11 +5,14 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 	"time"
 
 	"github.com/chromedp/cdproto/browser"
+	"github.com/chromedp/cdproto/emulation"
+	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/chromedp"
 
 	"phasecast/web/ical"
@@ -103,6 +106,33 @@ func TestBrowserEndToEnd(t *testing.T) {
 	}
 	step("scroll to the night", chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid=night-result] h2').scrollIntoView()`))
 	saveShot(t, ctx, shots, "night.png")
+
+	// Night-vision mode: one click, remembered across pages.
+	step("night vision", chromedp.Click(chromedp.CSS(`[data-testid=theme-toggle]`)),
+		chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid=night-result] h2').scrollIntoView()`))
+	if dark, _ := chromedp.Run(ctx, chromedp.Evaluate[bool](`document.documentElement.classList.contains('nightmode')`)); !dark {
+		t.Error("the night-vision toggle did not switch the theme")
+	}
+	saveShot(t, ctx, shots, "night-vision.png")
+	step("day mode", chromedp.Click(chromedp.CSS(`[data-testid=theme-toggle]`)))
+
+	// The printable night sheet fits one landscape page.
+	step("night sheet", chromedp.Click(chromedp.CSS(`[data-testid=night-sheet]`)), chromedp.WaitVisible(chromedp.CSS(`[data-testid=sheet]`)))
+	landscape, background := true, true
+	pdf, err := chromedp.Call(ctx, page.PrintToPDF, page.PrintToPDFParams{Landscape: &landscape, PrintBackground: &background, PreferCSSPageSize: &background})
+	if err != nil {
+		t.Fatalf("print the night sheet: %v", err)
+	}
+	if n := pdfPages(pdf.Data); n != 1 {
+		t.Errorf("the printed night sheet has %d pages, want 1", n)
+		os.WriteFile(filepath.Join(shots, "sheet.pdf"), pdf.Data, 0o644)
+		chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Media: "print"})
+		chromedp.Do(ctx, chromedp.EmulateViewport(1047, 718))
+		png, _ := chromedp.Run(ctx, chromedp.FullScreenshot(100))
+		os.WriteFile("/tmp/sheet-print.png", png, 0o644)
+		chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Media: ""})
+	}
+	step("back to the night", chromedp.Navigate(app.base+"/night"), chromedp.WaitVisible(chromedp.CSS(`[data-testid=export-night-ics]`)))
 
 	// Download the iCalendar export through the browser.
 	dl := t.TempDir()
@@ -201,6 +231,12 @@ func saveShot(t *testing.T, ctx context.Context, dir, name string) {
 			t.Errorf("save screenshot: %v", err)
 		}
 	}
+}
+
+// pdfPages counts the pages of a PDF: its "/Type /Page" objects (not the
+// "/Type /Pages" tree nodes).
+func pdfPages(pdf []byte) int {
+	return len(regexp.MustCompile(`/Type\s*/Page([^s]|$)`).FindAll(pdf, -1))
 }
 
 // waitForFile waits up to 20 s for a finished download with suffix in dir.
