@@ -30,8 +30,12 @@ type Exposure struct {
 // documented order; see ParseObservedCSV.
 var ObservedCSVColumns = []string{"target", "start_utc", "mid_utc", "exposure_s", "n_exposures", "overhead_s", "status", "note"}
 
-// MaxObservedRows bounds the lines of an observed log.
-const MaxObservedRows = 200000
+// MaxObservedRows bounds the lines of an observed log, and
+// MaxObservedExposures the exposures they hold together.
+const (
+	MaxObservedRows      = 200000
+	MaxObservedExposures = 200000
+)
 
 // ParseObservedCSV reads a log of exposures actually taken. The first line
 // is a header naming the columns (any order, each at most once, no others);
@@ -98,6 +102,10 @@ func ParseObservedCSV(r io.Reader) ([]Exposure, error) {
 			continue
 		}
 		out = append(out, parseObservedRow(rec, col, line, te)...)
+		if len(out) > MaxObservedExposures {
+			te.add(line, 0, "", "", fmt.Sprintf("too many exposures: the log may hold at most %d", MaxObservedExposures))
+			break
+		}
 	}
 	if len(te.Cells) > 0 {
 		return nil, te

@@ -66,6 +66,7 @@ func TestParseObservedCSV(t *testing.T) {
 			[]string{"line 3, column 1 (target)", "line 4, column 2 (start_utc)", "line 5, column 3 (exposure_s)", "line 6, column 3 (exposure_s)", "line 6, column 4 (n_exposures)"}},
 		{"ErrMidWithRun", "target,mid_utc,exposure_s,n_exposures\nRS-01,2026-04-15T01:00:00Z,300,3\n", []string{"line 2", "one exposure per row"}},
 		{"ErrStatus", "target,start_utc,exposure_s,status\nRS-01,2026-04-15T01:00:00Z,300,cloudy\n", []string{"line 2, column 4 (status)"}},
+		{"ErrTooManyExposures", "target,start_utc,exposure_s,n_exposures\n" + strings.Repeat("RS-01,2026-04-15T01:00:00Z,1,10000\n", 21), []string{"line 22", "too many exposures"}},
 		{"ErrFieldCount", "target,start_utc,exposure_s\nRS-01,2026-04-15T01:00:00Z\n", []string{"line 2", "has 2 fields"}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
