@@ -19,7 +19,7 @@ func (s *Server) invitationAccept(w http.ResponseWriter, r *http.Request) {
 			s.renderError(w, r, err)
 			return
 		}
-		setTeamCookie(w, r, m.TeamID)
+		s.setTeamCookie(w, r, m.TeamID)
 		http.Redirect(w, r, "/team?m=joined", http.StatusSeeOther)
 		return
 	}
@@ -43,12 +43,12 @@ func (s *Server) invitationAccept(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	s.startSession(w, r, session)
-	setTeamCookie(w, r, m.TeamID)
+	s.setTeamCookie(w, r, m.TeamID)
 	http.Redirect(w, r, "/team?m=joined", http.StatusSeeOther)
 }
 
 // setTeamCookie remembers the team the pages show.
-func setTeamCookie(w http.ResponseWriter, r *http.Request, teamID int64) {
+func (s *Server) setTeamCookie(w http.ResponseWriter, r *http.Request, teamID int64) {
 	http.SetCookie(w, &http.Cookie{Name: teamCookie, Value: strconv.FormatInt(teamID, 10), Path: "/", HttpOnly: true,
-		SameSite: http.SameSiteLaxMode, Secure: r.TLS != nil, MaxAge: 365 * 24 * 3600})
+		SameSite: http.SameSiteLaxMode, Secure: s.secure(r), MaxAge: 365 * 24 * 3600})
 }

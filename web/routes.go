@@ -74,6 +74,7 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("GET /runs/{id}", s.inTeam(s.runShow))
 	mux.HandleFunc("POST /runs/{id}/optimize", s.inTeam(s.runOptimize))
 	mux.HandleFunc("POST /runs/{id}/mark", s.inTeam(s.runMark))
+	mux.HandleFunc("POST /runs/{id}/share", s.inTeam(s.runShare))
 	mux.HandleFunc("GET /runs/{id}/plan.csv", s.inTeam(s.runExport("csv")))
 	mux.HandleFunc("GET /runs/{id}/plan.json", s.inTeam(s.runExport("json")))
 	mux.HandleFunc("GET /runs/{id}/plan.ics", s.inTeam(s.runExport("ics")))
@@ -97,6 +98,7 @@ func (s *Server) routes(mux *http.ServeMux) {
 
 	// Read-only share links (no sign-in).
 	mux.HandleFunc("GET /share/{token}", s.shareShow)
+	mux.HandleFunc("GET /share/{token}/night", s.shareNight)
 
 	// JSON API (Authorization: Bearer TOKEN); see docs/api.md.
 	mux.HandleFunc("GET /api/v1/teams", s.apiUser(s.apiTeams))

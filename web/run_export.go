@@ -24,7 +24,8 @@ func (s *Server) runExport(ext string) func(http.ResponseWriter, *http.Request, 
 			s.renderError(w, r, err)
 			return
 		}
-		plans, doc, planID, err := s.runPlanDoc(r, u, id)
+		want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
+		plans, doc, planID, err := s.runPlanDoc(r.Context(), u.actor, id, want)
 		if err == nil && doc == nil {
 			err = errNotFound("This run has no saved plan yet.")
 		}

@@ -1,6 +1,7 @@
 package web
 
 import (
+	"context"
 	"net/http"
 	"strconv"
 
@@ -21,34 +22,47 @@ func (s *Server) runShow(w http.ResponseWriter, r *http.Request, u *user) {
 		s.renderError(w, r, err)
 		return
 	}
-	plans, doc, planID, err := s.runPlanDoc(r, u, id)
+	v, err := s.memberRunView(r, u, in)
 	if err != nil {
 		s.renderError(w, r, err)
 		return
 	}
-	v := runView(in, doc, plans, planID, s.now())
-	v.CanEdit = u.can(store.ActCreate, store.EntPlan)
-	if j, ok := s.jobs.running(u.actor.UserID, "/runs/"+i64s(id)); ok {
-		v.Running = "/jobs/" + j.id
-	}
 	s.render(w, r, http.StatusOK, page.Run(s.chromeFor(r, u, "Run "+in.run.Name, "runs"), v))
 }
 
+// memberRunView is a run's page for a member: the plan, the editing
+// controls their role allows, a job in progress, the share links.
+func (s *Server) memberRunView(r *http.Request, u *user, in *runInputs) (page.RunView, error) {
+	want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
+	plans, doc, planID, err := s.runPlanDoc(r.Context(), u.actor, in.run.ID, want)
+	if err != nil {
+		return page.RunView{}, err
+	}
+	v := runView(in, doc, plans, planID, s.now())
+	v.CanEdit = u.can(store.ActCreate, store.EntPlan)
+	if j, ok := s.jobs.running(u.actor.UserID, "/runs/"+i64s(in.run.ID)); ok {
+		v.Running = "/jobs/" + j.id
+	}
+	if u.can(store.ActCreate, store.EntShareLink) {
+		v.Shares, err = s.shareRows(r, u, func(l store.ShareLink) bool { return l.RunID == in.run.ID })
+	}
+	return v, err
+}
+
 // runPlanDoc returns the run's saved plans and the document of the one
-// ?plan= names (the newest by default; nil when there is none).
-func (s *Server) runPlanDoc(r *http.Request, u *user, runID int64) ([]store.SavedPlan, *runDoc, int64, error) {
-	plans, err := s.store.ListPlans(r.Context(), u.actor, runID)
+// want names (the newest when want is 0 or unknown; nil when there is none).
+func (s *Server) runPlanDoc(ctx context.Context, a store.Actor, runID, want int64) ([]store.SavedPlan, *runDoc, int64, error) {
+	plans, err := s.store.ListPlans(ctx, a, runID)
 	if err != nil || len(plans) == 0 {
 		return plans, nil, 0, err
 	}
-	want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
 	planID := plans[0].ID
 	for _, p := range plans {
 		if p.ID == want {
 			planID = want
 		}
 	}
-	p, err := s.store.GetPlan(r.Context(), u.actor, planID)
+	p, err := s.store.GetPlan(ctx, a, planID)
 	if err != nil {
 		return plans, nil, 0, err
 	}

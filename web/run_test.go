@@ -197,3 +197,35 @@ func TestRunOptimizeCancel(t *testing.T) {
 		t.Errorf("another member cancels the job: %d, want 404", resp.StatusCode)
 	}
 }
+
+// TestRunShare shares the demo run and opens it signed out: the run page
+// without editing controls, and one of its nights with its chart.
+func TestRunShare(t *testing.T) {
+	d := newDemo(t)
+	run := "/runs/" + i64s(d.info.Run.ID)
+	req, _ := http.NewRequest(http.MethodPost, d.ts.URL+run+"/share", strings.NewReader("label=collaborator&ttl_days=7"))
+	req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
+	req.Header.Set("Sec-Fetch-Site", "same-origin")
+	resp, err := d.c.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, _ := io.ReadAll(resp.Body)
+	resp.Body.Close()
+	m := regexp.MustCompile(`data-testid="new-share">[^<]*(/share/[^<]+)<`).FindStringSubmatch(string(b))
+	if m == nil {
+		t.Fatalf("share = %d, no link shown", resp.StatusCode)
+	}
+	anon := &demo{ts: d.ts, c: &http.Client{}}
+	resp, body := anon.get(t, m[1])
+	if resp.StatusCode != http.StatusOK || !hasTestID(body, "run-name") || hasTestID(body, "optimize-form") || hasTestID(body, "whoami") {
+		t.Errorf("shared run = %d, read-only %v", resp.StatusCode, !hasTestID(body, "optimize-form"))
+	}
+	resp, body = anon.get(t, m[1]+"/night?n=1")
+	if resp.StatusCode != http.StatusOK || !hasTestID(body, "night-chart") || !hasTestID(body, "caution") {
+		t.Errorf("shared night = %d, chart %v", resp.StatusCode, hasTestID(body, "night-chart"))
+	}
+	if resp, _ := anon.get(t, m[1]+"/night?n=99"); resp.StatusCode != http.StatusNotFound {
+		t.Errorf("a night the run does not have = %d, want 404", resp.StatusCode)
+	}
+}

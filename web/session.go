@@ -104,16 +104,23 @@ func (s *Server) startSession(w http.ResponseWriter, r *http.Request, token stri
 	}
 	http.SetCookie(w, &http.Cookie{
 		Name: sessionCookie, Value: token, Path: "/", HttpOnly: true,
-		SameSite: http.SameSiteLaxMode, Secure: r.TLS != nil, MaxAge: 30 * 24 * 3600,
+		SameSite: http.SameSiteLaxMode, Secure: s.secure(r), MaxAge: 30 * 24 * 3600,
 	})
 }
 
 // endSession clears the session cookie.
-func endSession(w http.ResponseWriter, r *http.Request) {
+func (s *Server) endSession(w http.ResponseWriter, r *http.Request) {
 	http.SetCookie(w, &http.Cookie{
 		Name: sessionCookie, Value: "", Path: "/", HttpOnly: true,
-		SameSite: http.SameSiteLaxMode, Secure: r.TLS != nil, MaxAge: -1,
+		SameSite: http.SameSiteLaxMode, Secure: s.secure(r), MaxAge: -1,
 	})
+}
+
+// secure reports whether cookies must be Secure: the request came over
+// TLS, or the server is reached at an https:// address (TLS ended by a
+// proxy in front).
+func (s *Server) secure(r *http.Request) bool {
+	return r.TLS != nil || strings.HasPrefix(s.baseURL, "https://")
 }
 
 // safeNext returns next when it is a path on this site, and def otherwise

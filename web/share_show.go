@@ -24,20 +24,30 @@ func (s *Server) shareShow(w http.ResponseWriter, r *http.Request) {
 			return
 		}
 	} else {
-		run, err := s.store.GetRun(ctx, a, a.Share.RunID)
+		in, err := s.loadRun(ctx, a, a.Share.RunID)
 		if err != nil {
 			s.renderError(w, r, err)
 			return
 		}
-		v.Heading = "Run " + run.Name
-		for _, n := range run.Nights {
-			v.Nights = append(v.Nights, page.ShareNight{Label: n.Date + " (" + string(n.Part) + ")",
-				Href: "/share/" + url.PathEscape(token) + "/night?date=" + n.Date})
+		plans, doc, planID, err := s.runPlanDoc(ctx, a, in.run.ID, 0)
+		if err != nil {
+			s.renderError(w, r, err)
+			return
 		}
+		rv := runView(in, doc, plans, planID, s.now())
+		rv.Share = url.PathEscape(token)
+		shareHeaders(w)
+		s.render(w, r, http.StatusOK, page.Run(s.chrome(r, "Run "+in.run.Name, ""), rv))
+		return
 	}
+	shareHeaders(w)
+	s.render(w, r, http.StatusOK, page.Share(s.chrome(r, v.Heading, ""), v))
+}
+
+// shareHeaders keep share pages out of caches and search engines.
+func shareHeaders(w http.ResponseWriter) {
 	w.Header().Set("Cache-Control", "no-store")
 	w.Header().Set("X-Robots-Tag", "noindex")
-	s.render(w, r, http.StatusOK, page.Share(s.chrome(r, v.Heading, ""), v))
 }
 
 // shareList fills a share page with a list's targets and their phases now.

@@ -10,6 +10,6 @@ func (s *Server) signOut(w http.ResponseWriter, r *http.Request) {
 			return
 		}
 	}
-	endSession(w, r)
+	s.endSession(w, r)
 	http.Redirect(w, r, "/login", http.StatusSeeOther)
 }

@@ -27,6 +27,6 @@ func (s *Server) teamCreate(w http.ResponseWriter, r *http.Request, u *user) {
 		s.render(w, r, status, page.NoTeam(s.chromeFor(r, u, "New team", "team"), page.NoTeamView{Errs: errs, NewTeam: name}))
 		return
 	}
-	setTeamCookie(w, r, t.ID)
+	s.setTeamCookie(w, r, t.ID)
 	http.Redirect(w, r, "/team?m=team-created", http.StatusSeeOther)
 }

@@ -15,7 +15,7 @@ func (s *Server) teamSelect(w http.ResponseWriter, r *http.Request, u *user) {
 	}
 	for _, m := range u.actor.Teams {
 		if m.TeamID == id {
-			setTeamCookie(w, r, id)
+			s.setTeamCookie(w, r, id)
 			http.Redirect(w, r, "/team?m=team-switched", http.StatusSeeOther)
 			return
 		}

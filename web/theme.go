@@ -24,7 +24,7 @@ func (s *Server) toggleTheme(w http.ResponseWriter, r *http.Request) {
 	}
 	http.SetCookie(w, &http.Cookie{
 		Name: themeCookie, Value: v, Path: "/", MaxAge: int((365 * 24 * time.Hour).Seconds()),
-		SameSite: http.SameSiteLaxMode, Secure: r.TLS != nil,
+		SameSite: http.SameSiteLaxMode, Secure: s.secure(r),
 	})
 	http.Redirect(w, r, localReferer(r), http.StatusSeeOther)
 }
