@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"os"
 	"strings"
 
 	"phasecast/store"
@@ -29,6 +30,7 @@ func runBackup(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	fl := newFlags("backup", backupSynopsis)
 	db := fl.text("db", "FILE", DefaultDBPath, "the live database file")
 	out := fl.text("out", "FILE", "", "the backup file to write (must not exist); required")
+	asJSON := fl.boolean("json", `print one JSON object {"database", "backup"}`)
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
@@ -51,6 +53,9 @@ func runBackup(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err := st.Backup(ctx, outPath); err != nil {
 		return fmt.Errorf("backup of %s: %w", dbPath, err)
 	}
+	if *asJSON {
+		return writeJSON(stdout, map[string]string{"database": dbPath, "backup": outPath})
+	}
 	_, err = fmt.Fprintf(stdout, "phasecast: backup of %s written to %s (integrity checked)\n", dbPath, outPath)
 	return err
 }
@@ -60,6 +65,7 @@ func runRestore(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	fl := newFlags("restore", restoreSynopsis)
 	from := fl.text("from", "FILE", "", "the backup file to restore; required")
 	db := fl.text("db", "FILE", DefaultDBPath, "the database file to replace (the server must be stopped)")
+	asJSON := fl.boolean("json", `print one JSON object {"database", "restored_from", "kept_as"} (kept_as empty when there was no database)`)
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
@@ -74,10 +80,21 @@ func runRestore(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err != nil {
 		return err
 	}
+	kept := ""
+	if _, err := os.Stat(dbPath); err == nil {
+		kept = dbPath + ".before-restore"
+	}
 	if err := store.Restore(ctx, fromPath, dbPath); err != nil {
 		return fmt.Errorf("restore %s into %s: %w", fromPath, dbPath, err)
 	}
-	_, err = fmt.Fprintf(stdout, "phasecast: %s restored into %s; the previous database is kept as %s.before-restore\n", fromPath, dbPath, dbPath)
+	if *asJSON {
+		return writeJSON(stdout, map[string]string{"database": dbPath, "restored_from": fromPath, "kept_as": kept})
+	}
+	if kept == "" {
+		_, err = fmt.Fprintf(stdout, "phasecast: %s restored into %s (there was no previous database)\n", fromPath, dbPath)
+		return err
+	}
+	_, err = fmt.Fprintf(stdout, "phasecast: %s restored into %s; the previous database is kept as %s\n", fromPath, dbPath, kept)
 	return err
 }
 
