@@ -56,5 +56,8 @@ ex "A stale version is refused, with the current target" 'curl -s -o stale.json 
 ex "Bad values: every field named" 'jq ".dec_deg = 95 | .goals[0].phase_halfwidth = 0.7" newtarget.json | curl -s -w "HTTP %{http_code}\n" -X POST -H "Authorization: Bearer $TOKEN" -H "Content-Type: application/json" --data @- $B/api/v1/lists/1/targets'
 ex "Plan a night" "curl -s -H \"Authorization: Bearer \$TOKEN\" \"\$B/api/v1/night?date=$date\" | jq '{site, date, night: {nautical_dusk: .night.nautical_dusk, nautical_dawn: .night.nautical_dawn}, n_blocks: (.blocks | length), first_block: .blocks[0], n_unscheduled: (.unscheduled | length), first_unscheduled: .unscheduled[0]}'"
 ex "Queue windows of one target over a week" "curl -s -H \"Authorization: Bearer \$TOKEN\" \"\$B/api/v1/windows?t=$tgt&from=$date&to=$week\" | jq '{site, from, to, n: (.windows | length), first: .windows[0]}'"
+ex "The team's runs" 'curl -s -H "Authorization: Bearer $TOKEN" $B/api/v1/runs'
+ex "Plan a run (the first night is over) and save the plan" 'curl -s -X POST -H "Authorization: Bearer $TOKEN" "$B/api/v1/runs/1/plan?past=1" | jq "{run, past_nights, objective, nights: [.nights[] | {date, past, blocks: (.blocks | length)}]}"'
+ex "Its coverage, one target" 'curl -s -H "Authorization: Bearer $TOKEN" $B/api/v1/runs/1/coverage | jq "{run, made_at, first: (.targets[0] | {target, goals: [.goals[] | {phase_goal, event, need_exposures, need_nights, observed, planned, nights_met, status}], best_nights})}"'
 ex "Delete a target (with its version)" 'curl -s -o /dev/null -w "HTTP %{http_code}\n" -X DELETE -H "Authorization: Bearer $TOKEN" "$B/api/v1/targets/12?version=2"'
 ex "Without a token" 'curl -s -w "HTTP %{http_code}\n" $B/api/v1/lists'

@@ -111,6 +111,10 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("DELETE /api/v1/targets/{id}", s.apiUser(s.apiTargetDelete))
 	mux.HandleFunc("GET /api/v1/night", s.apiUser(s.apiNight))
 	mux.HandleFunc("GET /api/v1/windows", s.apiUser(s.apiWindows))
+	mux.HandleFunc("GET /api/v1/runs", s.apiUser(s.apiRuns))
+	mux.HandleFunc("GET /api/v1/runs/{id}/plan", s.apiUser(s.apiRunPlan))
+	mux.HandleFunc("POST /api/v1/runs/{id}/plan", s.apiUser(s.apiRunPlanCreate))
+	mux.HandleFunc("GET /api/v1/runs/{id}/coverage", s.apiUser(s.apiRunCoverage))
 	mux.HandleFunc("/api/", s.apiNotFound)
 
 	mux.HandleFunc("/", s.notFound)

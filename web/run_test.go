@@ -229,3 +229,64 @@ func TestRunShare(t *testing.T) {
 		t.Errorf("a night the run does not have = %d, want 404", resp.StatusCode)
 	}
 }
+
+// TestAPIRuns plans the demo run through the API and reads its plan and
+// coverage; a viewer's token may read but not plan.
+func TestAPIRuns(t *testing.T) {
+	d := newDemo(t)
+	tok := func(email string) string {
+		t.Helper()
+		link, err := d.st.CreateSignInLink(t.Context(), email, time.Hour)
+		if err != nil {
+			t.Fatal(err)
+		}
+		_, sess, err := d.st.RedeemSignInLink(t.Context(), link)
+		if err != nil {
+			t.Fatal(err)
+		}
+		a, err := d.st.SessionActor(t.Context(), sess)
+		if err != nil {
+			t.Fatal(err)
+		}
+		_, token, err := d.st.CreateAPIToken(t.Context(), a, "test", time.Hour)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return token
+	}
+	owner, viewer := tok(d.info.Owner.Email), tok(d.info.Viewer.Email)
+	call := func(token, method, path string) (int, map[string]any) {
+		t.Helper()
+		req, _ := http.NewRequest(method, d.ts.URL+path, nil)
+		req.Header.Set("Authorization", "Bearer "+token)
+		resp, err := http.DefaultClient.Do(req)
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer resp.Body.Close()
+		var out map[string]any
+		json.NewDecoder(resp.Body).Decode(&out)
+		return resp.StatusCode, out
+	}
+	run := "/api/v1/runs/" + i64s(d.info.Run.ID)
+	if code, body := call(viewer, "GET", "/api/v1/runs"); code != http.StatusOK || len(body["runs"].([]any)) != 1 {
+		t.Errorf("runs = %d, %v", code, body)
+	}
+	if code, _ := call(viewer, "GET", run+"/plan"); code != http.StatusNotFound {
+		t.Errorf("plan before planning = %d, want 404", code)
+	}
+	if code, _ := call(viewer, "POST", run+"/plan"); code != http.StatusForbidden {
+		t.Errorf("viewer plans = %d, want 403", code)
+	}
+	code, body := call(owner, "POST", run+"/plan?past=1")
+	if code != http.StatusCreated || body["past_nights"] != 1.0 || len(body["nights"].([]any)) != len(d.info.Run.Nights) {
+		t.Fatalf("plan = %d, past %v", code, body["past_nights"])
+	}
+	code, body = call(viewer, "GET", run+"/coverage")
+	if code != http.StatusOK || len(body["targets"].([]any)) != len(d.info.Targets) {
+		t.Errorf("coverage = %d with %d targets", code, len(body["targets"].([]any)))
+	}
+	if code, _ := call(owner, "POST", run+"/plan?past=9"); code != http.StatusUnprocessableEntity {
+		t.Errorf("past beyond the run = %d, want 422", code)
+	}
+}
