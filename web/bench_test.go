@@ -7,7 +7,8 @@ import (
 )
 
 // BenchmarkNightPage30Targets renders the Night page for 30 targets on the
-// server: planning, sampling the chart, drawing it and the template.
+// server: planning (the plan cache is emptied each time), sampling the
+// chart, drawing it and the template.
 func BenchmarkNightPage30Targets(b *testing.B) {
 	h := newHarness(b)
 	f := h.addFixtures(b, 30)
@@ -15,6 +16,7 @@ func BenchmarkNightPage30Targets(b *testing.B) {
 	query := "site=" + i64s(f.siteID) + "&list=" + i64s(f.listID) + "&date=2026-03-14"
 	handler := h.srv.inTeam(h.srv.nightShow)
 	for b.Loop() {
+		h.srv.plans = planCache{} // plan every time: no cached night
 		req := signedRequest(b, h, c)
 		req.URL.Path, req.URL.RawQuery = "/night", query
 		rec := httptest.NewRecorder()

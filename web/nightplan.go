@@ -90,6 +90,7 @@ func (n nightQuery) encode() string {
 
 // night is a planned night with what the pages and exports show.
 type night struct {
+	cache   *planCache
 	q       nightQuery
 	base    *planner.Constraints // a run's constraints, replacing the site's defaults
 	site    store.SiteRecord
@@ -111,7 +112,7 @@ type night struct {
 // and fills in defaults. It plans nothing yet. errs holds messages for
 // form fields the user must fix.
 func (s *Server) loadNight(ctx context.Context, a store.Actor, teamID int64, q nightQuery) (*night, page.Errs, error) {
-	n := &night{q: q}
+	n := &night{q: q, cache: &s.plans}
 	errs := page.Errs{}
 	var err error
 	if n.sites, err = s.store.ListSites(ctx, a, teamID); err != nil {
@@ -216,6 +217,11 @@ func (n *night) planIt(errs page.Errs) error {
 	for _, t := range n.targets {
 		n.req.Targets = append(n.req.Targets, t.Target)
 	}
+	key := n.key()
+	if c, ok := n.cache.get(key, time.Now()); ok {
+		n.plan, n.events = c.plan, c.events
+		return nil
+	}
 	plan, err := planner.PlanNight(n.req)
 	if err != nil {
 		if fe, _, ok := formErrs(err); ok {
@@ -233,6 +239,7 @@ func (n *night) planIt(errs page.Errs) error {
 	}
 	n.plan = plan
 	n.events = ephem.Night(n.site.Site, n.y, n.m, n.d, n.loc)
+	n.cache.put(key, cachedPlan{plan: plan, events: n.events, at: time.Now()})
 	return nil
 }
 

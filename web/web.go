@@ -39,6 +39,7 @@ type Server struct {
 	ping    func(ctx context.Context) error
 	logins  *limiter
 	jobs    jobs
+	plans   planCache
 }
 
 // New returns a Server for cfg.

@@ -302,30 +302,41 @@ func (n Night) drawMoon(s *svg, g nightGeom) {
 		return
 	}
 	var p path
-	best, bestAlt := -1, 0.0
 	prev := AltPoint{AltDeg: math.NaN()}
-	for i, m := range n.Moon {
+	for _, m := range n.Moon {
 		if !finite(m.AltDeg) {
 			p.lift()
 			prev = AltPoint{AltDeg: math.NaN()}
 			continue
 		}
 		addAbove(&p, g, prev.T, prev.AltDeg, m.T, m.AltDeg)
-		if m.AltDeg > bestAlt {
-			best, bestAlt = i, m.AltDeg
-		}
 		prev = m
 	}
 	s.pathEl(&p, "class", "moon", "fill", "none", "stroke", "#59636e", "stroke-width", "2", "stroke-dasharray", "1 3", "stroke-linecap", "round")
-	if best >= 0 {
-		label := "Moon"
-		if n.MoonLabel != "" {
-			label = n.MoonLabel
-		}
-		m := n.Moon[best]
-		s.text(g.x(m.T), g.y(m.AltDeg)-6, label, "text-anchor", "middle", "font-style", "italic", "class", "halo",
+	if x, y, label, ok := n.moonLabel(g); ok {
+		s.text(x, y, label, "text-anchor", "middle", "font-style", "italic", "class", "halo",
 			"stroke", "#ffffff", "stroke-width", "3", "paint-order", "stroke")
 	}
+}
+
+// moonLabel places the Moon's label above the highest point of its curve.
+func (n Night) moonLabel(g nightGeom) (x, y float64, label string, ok bool) {
+	best, bestAlt := -1, 0.0
+	for i, m := range n.Moon {
+		if finite(m.AltDeg) && m.AltDeg > bestAlt && !m.T.Before(n.Start) && !m.T.After(n.End) {
+			best, bestAlt = i, m.AltDeg
+		}
+	}
+	if best < 0 {
+		return 0, 0, "", false
+	}
+	label = "Moon"
+	if n.MoonLabel != "" {
+		label = n.MoonLabel
+	}
+	m := n.Moon[best]
+	half := float64(len([]rune(label)))*3.4 + 2
+	return clamp(g.x(m.T), g.x0+half, g.x1-half), clamp(g.y(m.AltDeg)-6, g.y0+11, g.y1-3), label, true
 }
 
 // addAbove extends p with the segment from (ta, a) to (tb, b), keeping only
@@ -515,6 +526,10 @@ func (a box) overlaps(b box) bool {
 // along the track when it would cover one already placed.
 func (n Night) drawTrackLabels(s *svg, g nightGeom) {
 	var placed []box
+	if x, y, label, ok := n.moonLabel(g); ok {
+		half := float64(len([]rune(label)))*3.4 + 2
+		placed = append(placed, box{x - half, y - 10, x + half, y + 2})
+	}
 	for i, tr := range n.Tracks {
 		var vis []int
 		best := -1
