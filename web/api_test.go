@@ -163,6 +163,15 @@ func TestAPI(t *testing.T) {
 			t.Errorf("after delete: %d, want 404", code)
 		}
 	})
+	t.Run("ListUpdate", func(t *testing.T) {
+		code, body := h.apiCall(editor, "PUT", list, map[string]any{"name": "Renamed", "version": 1})
+		if code != http.StatusOK || body["name"] != "Renamed" {
+			t.Fatalf("status %d: %v", code, body)
+		}
+		if code, _ := h.apiCall(editor, "PUT", list, map[string]any{"name": "Again", "version": 1}); code != http.StatusConflict {
+			t.Errorf("stale list update = %d, want 409", code)
+		}
+	})
 	t.Run("ErrNoRoute", func(t *testing.T) {
 		if code, body := h.apiCall(editor, "GET", "/api/v1/nothing", nil); code != http.StatusNotFound || body["error"] == nil {
 			t.Errorf("status %d, body %v", code, body)

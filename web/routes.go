@@ -104,6 +104,7 @@ func (s *Server) routes(mux *http.ServeMux) {
 	mux.HandleFunc("GET /api/v1/teams", s.apiUser(s.apiTeams))
 	mux.HandleFunc("GET /api/v1/lists", s.apiUser(s.apiLists))
 	mux.HandleFunc("POST /api/v1/lists", s.apiUser(s.apiListCreate))
+	mux.HandleFunc("PUT /api/v1/lists/{id}", s.apiUser(s.apiListUpdate))
 	mux.HandleFunc("GET /api/v1/lists/{id}/targets", s.apiUser(s.apiTargetsList))
 	mux.HandleFunc("POST /api/v1/lists/{id}/targets", s.apiUser(s.apiTargetCreate))
 	mux.HandleFunc("GET /api/v1/targets/{id}", s.apiUser(s.apiTargetGet))
