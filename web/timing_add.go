@@ -47,8 +47,7 @@ func (s *Server) timingAdd(w http.ResponseWriter, r *http.Request, u *user) {
 			return
 		}
 		for k, msg := range errs {
-			k = strings.TrimPrefix(k, "timings[0].")
-			form.Errs[map[string]string{"t": "t", "err_days": "err_s", "event": "event", "observer": "observer", "note": "note", "t_standard": "t_standard", "t_form": "t_form"}[k]] = msg
+			form.Errs[timingField(k)] = msg
 		}
 	}
 	v, err := s.targetDetail(r.Context(), u, id)
@@ -58,4 +57,15 @@ func (s *Server) timingAdd(w http.ResponseWriter, r *http.Request, u *user) {
 	}
 	v.TimingForm = timingForm(form)
 	s.render(w, r, http.StatusUnprocessableEntity, page.TargetDetail(s.chromeFor(r, u, v.Name, "targets"), v))
+}
+
+// timingField names the form field of the store's "timings[0].…" field.
+func timingField(k string) string {
+	switch k = strings.TrimPrefix(k, "timings[0]."); k {
+	case "err_days":
+		return "err_s"
+	case "t", "t_standard", "t_form", "event", "observer", "note":
+		return k
+	}
+	return ""
 }
