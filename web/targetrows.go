@@ -52,7 +52,7 @@ func buildTargetRow(t store.StoredTarget, site ephem.Site, now time.Time) target
 		end := now.Add(time.Duration((e.PeriodDays*1.01)*24*float64(time.Hour)) + time.Hour)
 		if ts := ephem.NextEventsUTC(site, tg.Star(), e, ev, now, end); len(ts) > 0 {
 			r.next = ts[0]
-			r.view.NextEvent = "inf. conj. " + fmtUTC(ts[0])
+			r.view.NextEvent = "inf. conj. " + ts[0].UTC().Format("01-02 15:04") + " UTC"
 			r.view.NextIn = "in " + fmtDuration(ts[0].Sub(now))
 		}
 	}
