@@ -178,10 +178,9 @@ type RunRequest struct {
 // MaxBins is the most phase bins a coverage report takes.
 const MaxBins = 100
 
-// runWindow returns the planning window of night n in zone loc, as UTC Unix
-// seconds: local noon to local noon for a full night; for half nights the
-// split at mid, the middle of the dark time of that full night (computed by
-// the caller).
+// runWindow returns the full-night planning window of night n in zone loc,
+// as UTC Unix seconds: local noon to the next local noon (NightWindow); a
+// half night is cut from it by leanBase.nightBounds.
 func runWindow(n RunNight, loc *time.Location) (from, to float64) {
 	f, t := NightWindow(n.Year, n.Month, n.Day, loc)
 	return unixSec(f), unixSec(t)

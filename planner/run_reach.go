@@ -59,8 +59,10 @@ type TargetReach struct {
 	Ranking []NightRank
 }
 
-// nightReach is the reach of every goal of every target in one night:
-// [target][goal] → spans and capacity.
+// goalNightReach is the reach of one goal in one night: its stretches, the
+// most exposures one block can hold, the phase uncertainty (uncertain: above
+// Options.MaxPhaseErr, so the night planner will not schedule it) and the
+// airmass range over the stretches.
 type goalNightReach struct {
 	spans     []reachSpan
 	capacity  int
@@ -69,7 +71,8 @@ type goalNightReach struct {
 	xlo, xhi  float64
 }
 
-// reachNight computes one night's reach for every target.
+// reachNight computes one night's reach for every goal of every target,
+// indexed [target][goal].
 func reachNight(en *engine, targets []*targetState, clocks []phaseClock, pad []float64) ([][]goalNightReach, error) {
 	out := make([][]goalNightReach, len(targets))
 	for ti, ts := range targets {
