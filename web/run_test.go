@@ -290,3 +290,35 @@ func TestAPIRuns(t *testing.T) {
 		t.Errorf("past beyond the run = %d, want 422", code)
 	}
 }
+
+// TestRunObservedLog adds an observing log to the demo run: a bad log is
+// refused whole with its problems by line, a good one is added.
+func TestRunObservedLog(t *testing.T) {
+	d := newDemo(t)
+	run := "/runs/" + i64s(d.info.Run.ID)
+	name := d.info.Targets[0].Target.Name
+	night := d.info.Run.Nights[0].Date
+	bad := "target,start_utc,exposure_s,n_exposures\n" + name + "," + night + "T05:00:00Z,60,3\nNo such star," + night + "T05:10:00Z,60,1\n" +
+		name + ",yesterday,60,1\n"
+	post := func(content string) (int, string) {
+		req, _ := http.NewRequest(http.MethodPost, d.ts.URL+run+"/observed", strings.NewReader(url.Values{"content": {content}}.Encode()))
+		req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
+		req.Header.Set("Sec-Fetch-Site", "same-origin")
+		resp, err := d.c.Do(req)
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer resp.Body.Close()
+		b, _ := io.ReadAll(resp.Body)
+		return resp.StatusCode, string(b)
+	}
+	code, body := post(bad)
+	if code != http.StatusUnprocessableEntity || !hasTestID(body, "log-errors") || !strings.Contains(body, "line 4") {
+		t.Errorf("bad log = %d, errors shown %v", code, hasTestID(body, "log-errors"))
+	}
+	good := "target,start_utc,exposure_s,n_exposures,overhead_s\n" + name + "," + night + "T05:00:00Z,60,3,5\n"
+	code, body = post(good)
+	if code != http.StatusOK || !hasTestID(body, "log-ok") || !strings.Contains(body, "3 exposures added") {
+		t.Errorf("good log = %d, confirmation shown %v", code, hasTestID(body, "log-ok"))
+	}
+}
