@@ -95,7 +95,14 @@ func (js *jobs) start(userID int64, title, back string, work func(ctx context.Co
 	js.m[j.id] = j
 	go func() {
 		defer cancel()
-		next, err := work(ctx, j)
+		next, err := func() (next string, err error) {
+			defer func() {
+				if v := recover(); v != nil { // a bug must not take the server down
+					err = fmt.Errorf("internal error: %v", v)
+				}
+			}()
+			return work(ctx, j)
+		}()
 		j.mu.Lock()
 		j.finished, j.err, j.next = true, err, next
 		if j.next == "" {
