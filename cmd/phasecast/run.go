@@ -57,14 +57,16 @@ func runWith(ctx context.Context, cmds []command, args []string, stdout, stderr 
 			fmt.Fprintln(stderr, "phasecast: "+oneLine(err.Error()))
 		}
 	}()
-	if len(args) == 0 {
+	switch {
+	case len(args) == 0:
 		args = []string{"serve"} // no command: the web interface with its defaults
+	case args[0] == "help" || args[0] == "-h" || args[0] == "-help" || args[0] == "--help":
+		return overview(stdout, cmds)
+	case strings.HasPrefix(args[0], "-"):
+		// Flags without a command are serve's: phasecast --db FILE --addr :8080.
+		args = append([]string{"serve"}, args...)
 	}
 	name := args[0]
-	switch name {
-	case "help", "-h", "-help", "--help":
-		return overview(stdout, cmds)
-	}
 	for _, c := range cmds {
 		if c.name == name {
 			return c.run(ctx, args[1:], stdout, stderr)
@@ -78,7 +80,7 @@ func overview(w io.Writer, cmds []command) error {
 	var b strings.Builder
 	b.WriteString("phasecast: plan observations of short-period binaries by orbital phase\n\n")
 	b.WriteString("Usage: phasecast COMMAND [flags]    (phasecast COMMAND -h lists a command's flags)\n")
-	b.WriteString("Without a command, phasecast runs serve: the web interface on " + DefaultAddr + ".\n\nCommands:\n")
+	b.WriteString("Without a command (or with only serve's flags, e.g. --db FILE), phasecast runs serve: the web interface on " + DefaultAddr + ".\n\nCommands:\n")
 	tw := tabwriter.NewWriter(&b, 0, 0, 3, ' ', 0)
 	for _, c := range cmds {
 		fmt.Fprintf(tw, "  %s\t%s\n", c.name, c.summary)

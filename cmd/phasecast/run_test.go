@@ -232,3 +232,12 @@ func TestPanicBecomesError(t *testing.T) {
 		t.Errorf("stderr = %q, want one line reporting the internal error", line)
 	}
 }
+
+// TestFlagsWithoutCommandAreServes: "phasecast --addr X" is "phasecast serve
+// --addr X" (checked through serve's own flag validation, so no server starts).
+func TestFlagsWithoutCommandAreServes(t *testing.T) {
+	_, stderr, code := runCmd(t, "--addr", "no-port-here")
+	if code != exitUsage || !strings.Contains(stderr, "--addr no-port-here") || !strings.Contains(stderr, "HOST:PORT") {
+		t.Errorf("exit %d, stderr %q; want serve's --addr message", code, stderr)
+	}
+}
