@@ -113,6 +113,11 @@ func HorizonAltDeg(points []HorizonPoint, azDeg float64) (float64, error) {
 	return newHorizonMask(points).minAltDeg(azDeg), nil
 }
 
+// MaxHorizonPoints is the most points ParseHorizon reads from one text: one
+// per 0.1° of azimuth, finer than any surveyed horizon needs (common
+// practice).
+const MaxHorizonPoints = 3600
+
 // ParseHorizon reads a horizon mask from text: one point per line, azimuth
 // and altitude in degrees separated by white space or a comma; blank lines
 // and lines starting with '#' are skipped. Numbers are plain decimals (no
@@ -120,17 +125,22 @@ func HorizonAltDeg(points []HorizonPoint, azDeg float64) (float64, error) {
 // reported (line number, column, value, what is accepted) and no mask is
 // returned if any line is bad; the points are then checked by
 // ValidateHorizon, whose *ephem.InputError is wrapped with the point's line.
+// A text of more than MaxHorizonPoints points is refused at the first line
+// past the limit, before the rest is read.
 func ParseHorizon(r io.Reader) ([]HorizonPoint, error) {
 	sc := bufio.NewScanner(r)
 	var pts []HorizonPoint
 	var lines []int // the line of each point
 	var errs []string
-	line := 0
+	line, npts := 0, 0 // npts counts the point lines, good or bad
 	for sc.Scan() {
 		line++
 		text := strings.TrimSpace(sc.Text())
 		if text == "" || strings.HasPrefix(text, "#") {
 			continue
+		}
+		if npts++; npts > MaxHorizonPoints {
+			return nil, fmt.Errorf("horizon: line %d: more than %d points; accepted: at most %d lines of \"azimuth altitude\" (one per 0.1° of azimuth)", line, MaxHorizonPoints, MaxHorizonPoints)
 		}
 		fields := strings.FieldsFunc(text, func(r rune) bool { return r == ',' || r == ' ' || r == '\t' })
 		if len(fields) != 2 {

@@ -91,12 +91,21 @@ func ClipValue(s string) string {
 	return string(r[:MaxShownValue]) + "…"
 }
 
-// Limits of the plan CSV's numeric columns.
+// Limits of the plan CSV's numeric columns and of its length.
 const (
+	// MinPeriodDays is the shortest orbital period accepted in a targets
+	// file, days: ephem.MinPeriodDays (0.864 s), so that every period the
+	// reader accepts also passes ephem.Ephemeris.Validate.
+	MinPeriodDays = ephem.MinPeriodDays
 	// MaxPeriodDays is the longest orbital period accepted in a targets file:
 	// one Julian century, far beyond the compact binaries phasecast is for
-	// but a plain sanity bound.
-	MaxPeriodDays = 36525.0
+	// but a plain sanity bound (below ephem.MaxPeriodDays, so such a period
+	// also passes ephem.Ephemeris.Validate).
+	MaxPeriodDays = min(36525.0, ephem.MaxPeriodDays)
+	// MaxTargetRows is the most targets a targets file may hold (the store
+	// keeps at most as many on one list). A longer file is refused at the
+	// first row past the limit, naming its line, before the rest is read.
+	MaxTargetRows = 50000
 	// MaxExposureS is the longest single exposure accepted, s (one day).
 	MaxExposureS = 86400.0
 )
@@ -113,7 +122,8 @@ const (
 //     scale (e.g. 2460123.4567891), read by ephem.ParseEpoch, which keeps
 //     every digit given (two-part ephem.JD2); 1582-10-15 to 3000-01-01, so
 //     an MJD or a reduced date is rejected, not guessed.
-//   - period_days: 0 < P ≤ MaxPeriodDays.
+//   - period_days: MinPeriodDays ≤ P ≤ MaxPeriodDays (0.864 s to one
+//     Julian century).
 //   - phases: goal centres separated by ';' (e.g. "0.25;0.75"), each
 //     0 ≤ φ < 1, no repeats, in the convention of T0.
 //   - phase_halfwidth: half-width of every goal window, 0 < w < 0.5.
@@ -124,7 +134,8 @@ const (
 // The file has no convention column: T0 is recorded as the companion's
 // inferior conjunction (ephem.ConvInferiorConjunction), and the phases are
 // taken as given. On any bad cell the error is a *TableError listing EVERY
-// bad cell by line and column, and no target is returned.
+// bad cell by line and column, and no target is returned. A file of more
+// than MaxTargetRows targets is refused at the first line past the limit.
 func ParseTargetsCSV(r io.Reader) ([]Target, error) {
 	rows, err := ReadTargetsCSV(r)
 	if err != nil {
@@ -168,10 +179,14 @@ func ReadTargetsCSV(r io.Reader) ([]TargetRow, error) {
 	}
 	var targets []TargetRow
 	names := map[string]int{}
+	rows := 0
 	for {
 		rec, err := cr.Read()
 		if errors.Is(err, io.EOF) {
 			break
+		}
+		if rows++; rows > MaxTargetRows {
+			return nil, tooManyRows(cr, err, te)
 		}
 		if err != nil {
 			var pe *csv.ParseError
@@ -205,6 +220,21 @@ func ReadTargetsCSV(r io.Reader) ([]TargetRow, error) {
 		return nil, &TableError{Cells: []CellError{{Line: headerLine + 1, Reason: "the file has a header but no targets"}}}
 	}
 	return targets, nil
+}
+
+// tooManyRows adds to te, and returns it, the error for the row past
+// MaxTargetRows that cr.Read has just returned (with err).
+func tooManyRows(cr *csv.Reader, err error, te *TableError) *TableError {
+	line := 0
+	var pe *csv.ParseError
+	switch {
+	case err == nil:
+		line, _ = cr.FieldPos(0)
+	case errors.As(err, &pe):
+		line = pe.StartLine
+	}
+	te.add(line, 0, "", "", fmt.Sprintf("the file holds more than %d targets; accepted: at most %d rows after the header", MaxTargetRows, MaxTargetRows))
+	return te
 }
 
 // csvReadError reports a malformed CSV (bad quoting) as a one-cell
@@ -287,8 +317,8 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 	{
 		v := get("period_days")
 		p, ok := parseFinite(v)
-		if !ok || p <= 0 || p > MaxPeriodDays {
-			bad("period_days", v, fmt.Sprintf("a period in days, 0 < P ≤ %g", MaxPeriodDays))
+		if !ok || p < MinPeriodDays || p > MaxPeriodDays {
+			bad("period_days", v, fmt.Sprintf("a period in days, %g ≤ P ≤ %g (0.864 s to one Julian century)", MinPeriodDays, MaxPeriodDays))
 		}
 		t.Ephem.PeriodDays = p
 	}
