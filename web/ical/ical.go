@@ -46,13 +46,14 @@ type Event struct {
 // utcFormat is the UTC DATE-TIME form of RFC 5545 §3.3.5 (FORM #2).
 const utcFormat = "20060102T150405Z"
 
-// Encode writes c to w. It refuses an event without UID, without DTSTAMP or
+// Encode writes c to w. It refuses an event without UID (once its control
+// characters, which TEXT cannot hold, are dropped), without DTSTAMP or
 // ending before it starts.
 func Encode(w io.Writer, c Calendar) error {
 	for i, e := range c.Events {
 		switch {
-		case strings.TrimSpace(e.UID) == "":
-			return fmt.Errorf("ical: event %d (%q): UID is empty; a stable unique id is required (RFC 5545 §3.8.4.7)", i+1, e.Summary)
+		case strings.TrimSpace(dropControls(e.UID)) == "":
+			return fmt.Errorf("ical: event %d (%q): UID is empty once control characters are dropped; a stable unique id is required (RFC 5545 §3.8.4.7)", i+1, e.Summary)
 		case e.Stamp.IsZero():
 			return fmt.Errorf("ical: event %d (%q): DTSTAMP is zero; required (RFC 5545 §3.8.7.2)", i+1, e.Summary)
 		case e.Start.IsZero() || e.End.Before(e.Start):
@@ -123,6 +124,18 @@ func escapeText(s string) string {
 		}
 	}
 	return b.String()
+}
+
+// dropControls returns s without the control characters escapeText drops
+// (all but TAB and LF, which escapeText keeps or escapes), invalid UTF-8
+// replaced as escapeText replaces it.
+func dropControls(s string) string {
+	return strings.Map(func(r rune) rune {
+		if r == '\r' || (r < 0x20 && r != '\t' && r != '\n') || r == 0x7f {
+			return -1
+		}
+		return r
+	}, strings.ToValidUTF8(s, "\uFFFD"))
 }
 
 // writeLine writes one content line folded at 75 octets (RFC 5545 §3.1):

@@ -123,6 +123,7 @@ func TestEncodeRejects(t *testing.T) {
 		want string
 	}{
 		{"ErrNoUID", func(e *ical.Event) { e.UID = " " }, "UID"},
+		{"ErrUIDOnlyControls", func(e *ical.Event) { e.UID = "\x01\x7f\r \x00" }, "UID"},
 		{"ErrNoStamp", func(e *ical.Event) { e.Stamp = time.Time{} }, "DTSTAMP"},
 		{"ErrEndBeforeStart", func(e *ical.Event) { e.End = e.Start.Add(-time.Minute) }, "end must not be before"},
 	}
