@@ -190,23 +190,10 @@ func FuzzHostilePlanFiles(f *testing.F) {
 				t.Fatalf("exit %d: stdout %q, stderr %q", code, stdout, stderr)
 			}
 			if !strings.Contains(stderr, "--targets") && !strings.Contains(stderr, "--horizon") {
-				if strings.HasPrefix(stderr, "phasecast: period ") {
-					hostileKnownDefect(t, "planner.ParseTargetsCSV accepts 0 < period_days < ephem.MinPeriodDays; plan then refuses it without file, line or column")
-				}
 				t.Fatalf("error %q names neither file", stderr)
 			}
 		case strings.Contains(stdout, "NaN") || strings.Contains(stdout, "Inf"):
 			t.Fatalf("output holds a non-finite value:\n%s", stdout)
 		}
 	})
-}
-
-// hostileKnownDefect skips a test that documents a reported, still unfixed
-// defect, unless PHASECAST_KNOWN_DEFECTS=1 asks to see it fail. Remove the
-// call when the defect is fixed.
-func hostileKnownDefect(tb testing.TB, what string) {
-	tb.Helper()
-	if os.Getenv("PHASECAST_KNOWN_DEFECTS") == "" {
-		tb.Skipf("known defect, reported (set PHASECAST_KNOWN_DEFECTS=1 to run): %s", what)
-	}
 }
