@@ -7,6 +7,8 @@ import (
 	"runtime/debug"
 	"strings"
 	"time"
+
+	"github.com/go-chi/chi/v5/middleware"
 )
 
 // contentSecurityPolicy allows only the server's own scripts, styles and
@@ -31,51 +33,26 @@ func secureHeaders(next http.Handler) http.Handler {
 	})
 }
 
-// statusWriter records the status and size of a response for the log.
-type statusWriter struct {
-	http.ResponseWriter
-	status int
-	bytes  int
-}
-
-func (w *statusWriter) WriteHeader(code int) {
-	if w.status == 0 {
-		w.status = code
-	}
-	w.ResponseWriter.WriteHeader(code)
-}
-
-func (w *statusWriter) Write(b []byte) (int, error) {
-	if w.status == 0 {
-		w.status = http.StatusOK
-	}
-	n, err := w.ResponseWriter.Write(b)
-	w.bytes += n
-	return n, err
-}
-
-// Unwrap lets http.ResponseController reach the underlying writer.
-func (w *statusWriter) Unwrap() http.ResponseWriter { return w.ResponseWriter }
-
 // logRequests writes one structured log line per request. Secret path
 // segments (sign-in, invitation and share tokens) are redacted.
 func (s *Server) logRequests(next http.Handler) http.Handler {
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		start := time.Now()
-		sw := &statusWriter{ResponseWriter: w}
-		next.ServeHTTP(sw, r)
-		if sw.status == 0 {
-			sw.status = http.StatusOK
+		ww := middleware.NewWrapResponseWriter(w, r.ProtoMajor)
+		next.ServeHTTP(ww, r)
+		status := ww.Status()
+		if status == 0 {
+			status = http.StatusOK
 		}
 		level := slog.LevelInfo
-		if sw.status >= 500 {
+		if status >= 500 {
 			level = slog.LevelError
 		}
 		s.log.LogAttrs(r.Context(), level, "request",
 			slog.String("method", r.Method),
 			slog.String("path", redactPath(r.URL.Path)),
-			slog.Int("status", sw.status),
-			slog.Int("bytes", sw.bytes),
+			slog.Int("status", status),
+			slog.Int("bytes", ww.BytesWritten()),
 			slog.Duration("duration", time.Since(start)),
 			slog.String("remote", r.RemoteAddr),
 		)

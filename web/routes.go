@@ -2,124 +2,175 @@ package web
 
 import (
 	"net/http"
+	"strings"
+
+	"github.com/go-chi/chi/v5"
+	"github.com/go-chi/chi/v5/middleware"
 
 	"phasecast/store"
 )
 
-// routes registers every route of the application. This is the only place
-// routes are declared. Every state-changing route is a POST (or, under
-// /api/v1, PUT/DELETE) and passes the cross-origin protection of Handler.
-func (s *Server) routes(mux *http.ServeMux) {
-	mux.HandleFunc("GET /healthz", s.healthz)
-	mux.Handle("GET /static/", staticFiles())
-	mux.HandleFunc("POST /theme", s.toggleTheme)
-	mux.HandleFunc("GET /{$}", s.home)
+// userHandler is a handler that runs for a known user (from a session or
+// an API token).
+type userHandler = func(http.ResponseWriter, *http.Request, *user)
 
-	// Signing in and out, invitations.
-	mux.HandleFunc("GET /login", s.signInForm)
-	mux.HandleFunc("POST /login", s.signInSubmit)
-	mux.HandleFunc("GET /login/link/{token}", s.signInLinkForm)
-	mux.HandleFunc("POST /login/link/{token}", s.signInLinkSubmit)
-	mux.HandleFunc("POST /logout", s.signOut)
-	mux.HandleFunc("GET /invite/{token}", s.invitationShow)
-	mux.HandleFunc("POST /invite/{token}", s.invitationAccept)
+// guarded registers userHandlers on a chi.Router through one guard
+// (signedIn, inTeam or apiUser), so that a route group states its guard
+// once.
+type guarded struct {
+	r     chi.Router
+	guard func(userHandler) http.HandlerFunc
+}
 
-	// Account.
-	mux.HandleFunc("GET /account", s.signedIn(s.accountShow))
-	mux.HandleFunc("POST /account/profile", s.signedIn(s.accountProfile))
-	mux.HandleFunc("POST /account/password", s.signedIn(s.accountPassword))
-	mux.HandleFunc("POST /account/tokens", s.signedIn(s.accountTokenCreate))
-	mux.HandleFunc("POST /account/tokens/{id}/revoke", s.signedIn(s.accountTokenRevoke))
+func (g guarded) get(pattern string, h userHandler)  { g.r.Get(pattern, g.guard(h)) }
+func (g guarded) post(pattern string, h userHandler) { g.r.Post(pattern, g.guard(h)) }
+func (g guarded) put(pattern string, h userHandler)  { g.r.Put(pattern, g.guard(h)) }
+func (g guarded) del(pattern string, h userHandler)  { g.r.Delete(pattern, g.guard(h)) }
 
-	// Team.
-	mux.HandleFunc("GET /team", s.inTeam(s.teamShow))
-	mux.HandleFunc("POST /teams", s.signedIn(s.teamCreate))
-	mux.HandleFunc("POST /team/select", s.signedIn(s.teamSelect))
-	mux.HandleFunc("POST /team/invitations", s.inTeam(s.teamInviteCreate))
-	mux.HandleFunc("POST /team/invitations/{id}/revoke", s.inTeam(s.teamInviteRevoke))
-	mux.HandleFunc("POST /team/members/{id}/role", s.inTeam(s.teamMemberRole))
-	mux.HandleFunc("POST /team/members/{id}/remove", s.inTeam(s.teamMemberRemove))
+// router returns the chi router with every route of the application and
+// the middleware around them: request log, panic recovery, security
+// headers and cross-origin protection (outermost first). This is the only
+// place routes are declared. Every state-changing route is a POST (or,
+// under /api/v1, PUT/DELETE) and passes the cross-origin protection.
+//
+// Path parameters ({id}, {token}) are read with r.PathValue: chi v5.5
+// copies its URL parameters into the request's path values.
+func (s *Server) router() chi.Router {
+	r := chi.NewRouter()
+	r.Use(s.logRequests, s.recoverPanics, secureHeaders, http.NewCrossOriginProtection().Handler,
+		middleware.GetHead) // a GET route answers HEAD too, as with net/http's ServeMux
+	// No 405s: an address without a route for the method is "not found",
+	// as a page or, under /api/, as a JSON error.
+	r.NotFound(s.noRoute)
+	r.MethodNotAllowed(s.noRoute)
 
-	mux.HandleFunc("GET /tonight", s.inTeam(s.tonightShow))
-	mux.HandleFunc("GET /tonight/body", s.inTeam(s.tonightBody))
-	mux.HandleFunc("GET /night", s.inTeam(s.nightShow))
-	mux.HandleFunc("GET /night/sheet", s.inTeam(s.nightSheet))
-	mux.HandleFunc("GET /night.csv", s.inTeam(s.nightExport("csv")))
-	mux.HandleFunc("GET /night.json", s.inTeam(s.nightExport("json")))
-	mux.HandleFunc("GET /night.ics", s.inTeam(s.nightExport("ics")))
+	r.Get("/healthz", s.healthz)
+	r.Method(http.MethodGet, "/static/*", staticFiles())
+	r.Post("/theme", s.toggleTheme)
+	r.Get("/", s.home)
 
-	// Targets and lists.
-	mux.HandleFunc("GET /targets", s.inTeam(s.targetsList))
-	mux.HandleFunc("GET /targets/new", s.inTeam(s.targetNew))
-	mux.HandleFunc("POST /targets", s.inTeam(s.targetCreate))
-	mux.HandleFunc("GET /targets/{id}", s.inTeam(s.targetShow))
-	mux.HandleFunc("GET /targets/{id}/edit", s.inTeam(s.targetEdit))
-	mux.HandleFunc("POST /targets/{id}", s.inTeam(s.targetUpdate))
-	mux.HandleFunc("POST /targets/{id}/delete", s.inTeam(s.targetDelete))
-	mux.HandleFunc("POST /targets/{id}/timings", s.inTeam(s.timingAdd))
-	mux.HandleFunc("POST /targets/{id}/refine", s.inTeam(s.targetRefine))
-	mux.HandleFunc("POST /timings/{id}/delete", s.inTeam(s.timingDelete))
-	mux.HandleFunc("POST /lists", s.inTeam(s.listCreate))
-	mux.HandleFunc("POST /lists/{id}", s.inTeam(s.listUpdate))
-	mux.HandleFunc("POST /lists/{id}/delete", s.inTeam(s.listDelete))
-	mux.HandleFunc("GET /lists/{id}/import", s.inTeam(s.importForm))
-	mux.HandleFunc("POST /lists/{id}/import/preview", s.inTeam(s.importPreview))
-	mux.HandleFunc("POST /lists/{id}/import", s.inTeam(s.importCommit))
-	mux.HandleFunc("GET /lists/{id}/export.csv", s.inTeam(s.listExport(store.FormatCSV)))
-	mux.HandleFunc("GET /lists/{id}/export.json", s.inTeam(s.listExport(store.FormatJSON)))
-	mux.HandleFunc("POST /lists/{id}/share", s.inTeam(s.shareCreate))
-	mux.HandleFunc("POST /shares/{id}/revoke", s.inTeam(s.shareRevoke))
-
-	// Runs and background computations.
-	mux.HandleFunc("GET /runs", s.inTeam(s.runsList))
-	mux.HandleFunc("POST /runs", s.inTeam(s.runCreate))
-	mux.HandleFunc("GET /runs/{id}", s.inTeam(s.runShow))
-	mux.HandleFunc("POST /runs/{id}/optimize", s.inTeam(s.runOptimize))
-	mux.HandleFunc("POST /runs/{id}/mark", s.inTeam(s.runMark))
-	mux.HandleFunc("POST /runs/{id}/share", s.inTeam(s.runShare))
-	mux.HandleFunc("POST /runs/{id}/observed", s.inTeam(s.runObserved))
-	mux.HandleFunc("GET /runs/{id}/plan.csv", s.inTeam(s.runExport("csv")))
-	mux.HandleFunc("GET /runs/{id}/plan.json", s.inTeam(s.runExport("json")))
-	mux.HandleFunc("GET /runs/{id}/plan.ics", s.inTeam(s.runExport("ics")))
-	mux.HandleFunc("GET /jobs/{id}", s.signedIn(s.jobShow))
-	mux.HandleFunc("GET /jobs/{id}/progress", s.signedIn(s.jobProgress))
-	mux.HandleFunc("POST /jobs/{id}/cancel", s.signedIn(s.jobCancel))
-
-	// Queue windows.
-	mux.HandleFunc("GET /windows", s.inTeam(s.windowsShow))
-	mux.HandleFunc("GET /windows.csv", s.inTeam(s.windowsExport("csv")))
-	mux.HandleFunc("GET /windows.json", s.inTeam(s.windowsExport("json")))
-	mux.HandleFunc("GET /windows.ics", s.inTeam(s.windowsExport("ics")))
-
-	// Sites.
-	mux.HandleFunc("GET /sites", s.inTeam(s.sitesList))
-	mux.HandleFunc("GET /sites/new", s.inTeam(s.siteNew))
-	mux.HandleFunc("POST /sites", s.inTeam(s.siteCreate))
-	mux.HandleFunc("GET /sites/{id}", s.inTeam(s.siteShow))
-	mux.HandleFunc("POST /sites/{id}", s.inTeam(s.siteUpdate))
-	mux.HandleFunc("POST /sites/{id}/delete", s.inTeam(s.siteDelete))
+	// Signing in and out, invitations: no sign-in needed.
+	r.Get("/login", s.signInForm)
+	r.Post("/login", s.signInSubmit)
+	r.Get("/login/link/{token}", s.signInLinkForm)
+	r.Post("/login/link/{token}", s.signInLinkSubmit)
+	r.Post("/logout", s.signOut)
+	r.Get("/invite/{token}", s.invitationShow)
+	r.Post("/invite/{token}", s.invitationAccept)
 
 	// Read-only share links (no sign-in).
-	mux.HandleFunc("GET /share/{token}", s.shareShow)
-	mux.HandleFunc("GET /share/{token}/night", s.shareNight)
+	r.Get("/share/{token}", s.shareShow)
+	r.Get("/share/{token}/night", s.shareNight)
+
+	// Signed in, with or without a team.
+	r.Group(func(r chi.Router) {
+		g := guarded{r, s.signedIn}
+		g.get("/account", s.accountShow)
+		g.post("/account/profile", s.accountProfile)
+		g.post("/account/password", s.accountPassword)
+		g.post("/account/tokens", s.accountTokenCreate)
+		g.post("/account/tokens/{id}/revoke", s.accountTokenRevoke)
+		g.post("/teams", s.teamCreate)
+		g.post("/team/select", s.teamSelect)
+		g.get("/jobs/{id}", s.jobShow)
+		g.get("/jobs/{id}/progress", s.jobProgress)
+		g.post("/jobs/{id}/cancel", s.jobCancel)
+	})
+
+	// Signed in with a current team.
+	r.Group(func(r chi.Router) {
+		g := guarded{r, s.inTeam}
+		g.get("/team", s.teamShow)
+		g.post("/team/invitations", s.teamInviteCreate)
+		g.post("/team/invitations/{id}/revoke", s.teamInviteRevoke)
+		g.post("/team/members/{id}/role", s.teamMemberRole)
+		g.post("/team/members/{id}/remove", s.teamMemberRemove)
+
+		g.get("/tonight", s.tonightShow)
+		g.get("/tonight/body", s.tonightBody)
+		g.get("/night", s.nightShow)
+		g.get("/night/sheet", s.nightSheet)
+		g.get("/night.csv", s.nightExport("csv"))
+		g.get("/night.json", s.nightExport("json"))
+		g.get("/night.ics", s.nightExport("ics"))
+
+		// Targets and lists.
+		g.get("/targets", s.targetsList)
+		g.get("/targets/new", s.targetNew)
+		g.post("/targets", s.targetCreate)
+		g.get("/targets/{id}", s.targetShow)
+		g.get("/targets/{id}/edit", s.targetEdit)
+		g.post("/targets/{id}", s.targetUpdate)
+		g.post("/targets/{id}/delete", s.targetDelete)
+		g.post("/targets/{id}/timings", s.timingAdd)
+		g.post("/targets/{id}/refine", s.targetRefine)
+		g.post("/timings/{id}/delete", s.timingDelete)
+		g.post("/lists", s.listCreate)
+		g.post("/lists/{id}", s.listUpdate)
+		g.post("/lists/{id}/delete", s.listDelete)
+		g.get("/lists/{id}/import", s.importForm)
+		g.post("/lists/{id}/import/preview", s.importPreview)
+		g.post("/lists/{id}/import", s.importCommit)
+		g.get("/lists/{id}/export.csv", s.listExport(store.FormatCSV))
+		g.get("/lists/{id}/export.json", s.listExport(store.FormatJSON))
+		g.post("/lists/{id}/share", s.shareCreate)
+		g.post("/shares/{id}/revoke", s.shareRevoke)
+
+		// Runs and background computations.
+		g.get("/runs", s.runsList)
+		g.post("/runs", s.runCreate)
+		g.get("/runs/{id}", s.runShow)
+		g.post("/runs/{id}/optimize", s.runOptimize)
+		g.post("/runs/{id}/mark", s.runMark)
+		g.post("/runs/{id}/share", s.runShare)
+		g.post("/runs/{id}/observed", s.runObserved)
+		g.get("/runs/{id}/plan.csv", s.runExport("csv"))
+		g.get("/runs/{id}/plan.json", s.runExport("json"))
+		g.get("/runs/{id}/plan.ics", s.runExport("ics"))
+
+		// Queue windows.
+		g.get("/windows", s.windowsShow)
+		g.get("/windows.csv", s.windowsExport("csv"))
+		g.get("/windows.json", s.windowsExport("json"))
+		g.get("/windows.ics", s.windowsExport("ics"))
+
+		// Sites.
+		g.get("/sites", s.sitesList)
+		g.get("/sites/new", s.siteNew)
+		g.post("/sites", s.siteCreate)
+		g.get("/sites/{id}", s.siteShow)
+		g.post("/sites/{id}", s.siteUpdate)
+		g.post("/sites/{id}/delete", s.siteDelete)
+	})
 
 	// JSON API (Authorization: Bearer TOKEN); see docs/api.md.
-	mux.HandleFunc("GET /api/v1/teams", s.apiUser(s.apiTeams))
-	mux.HandleFunc("GET /api/v1/lists", s.apiUser(s.apiLists))
-	mux.HandleFunc("POST /api/v1/lists", s.apiUser(s.apiListCreate))
-	mux.HandleFunc("PUT /api/v1/lists/{id}", s.apiUser(s.apiListUpdate))
-	mux.HandleFunc("GET /api/v1/lists/{id}/targets", s.apiUser(s.apiTargetsList))
-	mux.HandleFunc("POST /api/v1/lists/{id}/targets", s.apiUser(s.apiTargetCreate))
-	mux.HandleFunc("GET /api/v1/targets/{id}", s.apiUser(s.apiTargetGet))
-	mux.HandleFunc("PUT /api/v1/targets/{id}", s.apiUser(s.apiTargetUpdate))
-	mux.HandleFunc("DELETE /api/v1/targets/{id}", s.apiUser(s.apiTargetDelete))
-	mux.HandleFunc("GET /api/v1/night", s.apiUser(s.apiNight))
-	mux.HandleFunc("GET /api/v1/windows", s.apiUser(s.apiWindows))
-	mux.HandleFunc("GET /api/v1/runs", s.apiUser(s.apiRuns))
-	mux.HandleFunc("GET /api/v1/runs/{id}/plan", s.apiUser(s.apiRunPlan))
-	mux.HandleFunc("POST /api/v1/runs/{id}/plan", s.apiUser(s.apiRunPlanCreate))
-	mux.HandleFunc("GET /api/v1/runs/{id}/coverage", s.apiUser(s.apiRunCoverage))
-	mux.HandleFunc("/api/", s.apiNotFound)
+	r.Route("/api/v1", func(r chi.Router) {
+		g := guarded{r, s.apiUser}
+		g.get("/teams", s.apiTeams)
+		g.get("/lists", s.apiLists)
+		g.post("/lists", s.apiListCreate)
+		g.put("/lists/{id}", s.apiListUpdate)
+		g.get("/lists/{id}/targets", s.apiTargetsList)
+		g.post("/lists/{id}/targets", s.apiTargetCreate)
+		g.get("/targets/{id}", s.apiTargetGet)
+		g.put("/targets/{id}", s.apiTargetUpdate)
+		g.del("/targets/{id}", s.apiTargetDelete)
+		g.get("/night", s.apiNight)
+		g.get("/windows", s.apiWindows)
+		g.get("/runs", s.apiRuns)
+		g.get("/runs/{id}/plan", s.apiRunPlan)
+		g.post("/runs/{id}/plan", s.apiRunPlanCreate)
+		g.get("/runs/{id}/coverage", s.apiRunCoverage)
+	})
+	return r
+}
 
-	mux.HandleFunc("/", s.notFound)
+// noRoute answers a request no route takes: a JSON error under /api/, the
+// "no page here" page elsewhere.
+func (s *Server) noRoute(w http.ResponseWriter, r *http.Request) {
+	if strings.HasPrefix(r.URL.Path, "/api/") {
+		s.apiNotFound(w, r)
+		return
+	}
+	s.notFound(w, r)
 }

@@ -65,16 +65,10 @@ func New(cfg Config) (*Server, error) {
 }
 
 // Handler returns the complete HTTP handler: routes wrapped in logging,
-// panic recovery, security headers and cross-origin protection.
+// panic recovery, security headers and cross-origin protection (see
+// router in routes.go).
 func (s *Server) Handler() http.Handler {
-	mux := http.NewServeMux()
-	s.routes(mux)
-	var h http.Handler = mux
-	h = http.NewCrossOriginProtection().Handler(h)
-	h = secureHeaders(h)
-	h = s.recoverPanics(h)
-	h = s.logRequests(h)
-	return h
+	return s.router()
 }
 
 // link returns the absolute URL of path on this server: under BaseURL when
