@@ -113,12 +113,14 @@ func (j targetJSON) input() (store.TargetInput, error) {
 	return store.TargetInput{Target: tg, T0: t0, EphemNote: j.EphemNote}, nil
 }
 
-// invalidField is EINVALID for one field of a JSON body.
+// invalidField is EINVALID for one field of a JSON body. The value is
+// echoed clipped to planner.MaxShownValue characters, so that a huge value
+// does not come back whole in the error.
 func invalidField(field, value string, err error) error {
-	msg := err.Error()
+	msg := planner.ClipValue(err.Error())
 	var ie *ephem.InputError
 	if errors.As(err, &ie) {
 		msg = ie.Accepted
 	}
-	return &codedError{code: codeInvalid, msg: fmt.Sprintf("%s: %q is not accepted; accepted: %s", field, value, strings.TrimSpace(msg))}
+	return &codedError{code: codeInvalid, msg: fmt.Sprintf("%s: %q is not accepted; accepted: %s", field, planner.ClipValue(value), strings.TrimSpace(msg))}
 }

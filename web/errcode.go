@@ -44,7 +44,7 @@ func errorCode(err error) (code, msg string) {
 	}
 	var ie *ephem.InputError
 	if errors.As(err, &ie) {
-		return codeInvalid, ie.Error()
+		return codeInvalid, fmt.Sprintf("%s: %s is not accepted; accepted: %s", ie.Field, planner.ClipValue(ie.Value), ie.Accepted)
 	}
 	var te *planner.TableError
 	if errors.As(err, &te) {

@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"phasecast/ephem"
+	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/page"
 )
@@ -28,11 +29,11 @@ func formErrs(err error) (errs page.Errs, status int, ok bool) {
 	case errors.As(err, &ve):
 		for _, f := range ve.Fields {
 			if _, seen := errs[f.Field]; !seen {
-				errs[f.Field] = fmt.Sprintf("“%s” is not accepted; accepted: %s", f.Value, f.Accepted)
+				errs[f.Field] = fmt.Sprintf("“%s” is not accepted; accepted: %s", planner.ClipValue(f.Value), f.Accepted)
 			}
 		}
 	case errors.As(err, &ie):
-		errs[ie.Field] = fmt.Sprintf("“%s” is not accepted; accepted: %s", ie.Value, ie.Accepted)
+		errs[ie.Field] = fmt.Sprintf("“%s” is not accepted; accepted: %s", planner.ClipValue(ie.Value), ie.Accepted)
 	default:
 		errs[""] = msg
 	}

@@ -21,7 +21,6 @@ import (
 	"math"
 	"net/http"
 	"net/url"
-	"os"
 	"strings"
 	"testing"
 	"time"
@@ -262,7 +261,6 @@ func checkAPIAnswer(tb testing.TB, status int, body []byte) (created bool) {
 			tb.Fatalf("status %d: the answer is not a JSON error (%v): %.300s", status, err, body)
 		}
 		if len(body) > 8<<10 {
-			hostileKnownDefect(tb, "web apiFieldError (apitarget.go) quotes the whole rejected value, e.g. a 3 MB ephemeris.t0, into the JSON error")
 			tb.Fatalf("status %d: the error answer is %d bytes (it echoes the input?): %.300s", status, len(body), body)
 		}
 		return false
@@ -400,15 +398,5 @@ func TestHostileAPIBodies(t *testing.T) {
 				}
 			})
 		}
-	}
-}
-
-// hostileKnownDefect skips a test that documents a reported, still unfixed
-// defect, unless PHASECAST_KNOWN_DEFECTS=1 asks to see it fail. Remove the
-// call when the defect is fixed.
-func hostileKnownDefect(tb testing.TB, what string) {
-	tb.Helper()
-	if os.Getenv("PHASECAST_KNOWN_DEFECTS") == "" {
-		tb.Skipf("known defect, reported (set PHASECAST_KNOWN_DEFECTS=1 to run): %s", what)
 	}
 }
