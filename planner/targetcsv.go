@@ -135,7 +135,8 @@ const (
 // inferior conjunction (ephem.ConvInferiorConjunction), and the phases are
 // taken as given. On any bad cell the error is a *TableError listing EVERY
 // bad cell by line and column, and no target is returned. A file of more
-// than MaxTargetRows targets is refused at the first line past the limit.
+// than MaxTargetRows targets is refused at the first line past the limit,
+// with that one problem.
 func ParseTargetsCSV(r io.Reader) ([]Target, error) {
 	rows, err := ReadTargetsCSV(r)
 	if err != nil {
@@ -186,7 +187,7 @@ func ReadTargetsCSV(r io.Reader) ([]TargetRow, error) {
 			break
 		}
 		if rows++; rows > MaxTargetRows {
-			return nil, tooManyRows(cr, err, te)
+			return nil, tooManyRows(cr, err)
 		}
 		if err != nil {
 			var pe *csv.ParseError
@@ -222,9 +223,9 @@ func ReadTargetsCSV(r io.Reader) ([]TargetRow, error) {
 	return targets, nil
 }
 
-// tooManyRows adds to te, and returns it, the error for the row past
-// MaxTargetRows that cr.Read has just returned (with err).
-func tooManyRows(cr *csv.Reader, err error, te *TableError) *TableError {
+// tooManyRows is the error for the row past MaxTargetRows that cr.Read has
+// just returned (with err): the file's length is its one problem reported.
+func tooManyRows(cr *csv.Reader, err error) *TableError {
 	line := 0
 	var pe *csv.ParseError
 	switch {
@@ -233,6 +234,7 @@ func tooManyRows(cr *csv.Reader, err error, te *TableError) *TableError {
 	case errors.As(err, &pe):
 		line = pe.StartLine
 	}
+	te := &TableError{}
 	te.add(line, 0, "", "", fmt.Sprintf("the file holds more than %d targets; accepted: at most %d rows after the header", MaxTargetRows, MaxTargetRows))
 	return te
 }

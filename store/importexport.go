@@ -47,10 +47,75 @@ type ImportResult struct {
 	ListID                    int64
 }
 
-// importPlan checks a parsed file against the list and decides each row.
-// Any problem is an EINVALID carrying a *planner.TableError with every bad
-// row by line and column; nothing is decided then.
-func importPlan(t *txn, listID int64, pf parsedFile) (ImportResult, []TargetInput, []StoredTarget, error) {
+// fileCheck is what checkFile found in a parsed file on its own: each row
+// validated, and every problem so far by line and column.
+type fileCheck struct {
+	pf        parsedFile
+	inputs    []TargetInput
+	te        *planner.TableError
+	seen      map[cellKey]bool
+	badCoords map[int]bool // lines whose position could not be read or is out of range
+}
+
+type cellKey struct {
+	line   int
+	column string
+}
+
+// add records a problem with a row's field, once per line and column.
+func (c *fileCheck) add(line int, field, value, reason string) {
+	col, n := c.pf.column(field)
+	if c.seen[cellKey{line, col}] { // already reported while reading
+		return
+	}
+	c.seen[cellKey{line, col}] = true
+	if col == "ra" || col == "dec" {
+		c.badCoords[line] = true
+	}
+	c.te.Cells = append(c.te.Cells, planner.CellError{Line: line, Col: n, Column: col, Value: planner.ClipValue(value), Reason: reason})
+}
+
+// checkFile validates every row of a parsed file and finds names given
+// twice, touching no database, so that an import does this work before it
+// opens a transaction. A file of more than MaxTargets rows is refused at
+// once, naming the first line past the limit, before any row is checked.
+func checkFile(pf parsedFile) (*fileCheck, error) {
+	if len(pf.Rows) > MaxTargets {
+		return nil, tableErr(&planner.TableError{Cells: []planner.CellError{{Line: pf.Rows[MaxTargets].Line,
+			Reason: fmt.Sprintf("the file holds more than %d targets; accepted: at most %d", MaxTargets, MaxTargets)}}})
+	}
+	c := &fileCheck{pf: pf, te: &planner.TableError{Cells: append([]planner.CellError(nil), pf.Cells...)},
+		seen: map[cellKey]bool{}, badCoords: map[int]bool{}}
+	for _, cell := range pf.Cells {
+		c.seen[cellKey{cell.Line, cell.Column}] = true
+		if cell.Column == "ra" || cell.Column == "dec" {
+			c.badCoords[cell.Line] = true
+		}
+	}
+	c.inputs = make([]TargetInput, len(pf.Rows))
+	firstLine := map[string]int{}
+	for i, row := range pf.Rows {
+		in, v := validateTargetInput(row.Input)
+		for _, f := range v.Fields {
+			c.add(row.Line, f.Field, f.Value, f.Accepted)
+		}
+		c.inputs[i] = in
+		name := in.Target.Name
+		if l, dup := firstLine[name]; dup && name != "" {
+			c.add(row.Line, "name", name, fmt.Sprintf("duplicate: the same name is on line %d", l))
+		} else if !dup {
+			firstLine[name] = row.Line
+		}
+	}
+	return c, nil
+}
+
+// importPlan checks a file, already checked on its own (checkFile),
+// against the list and decides each row. Any problem is an EINVALID
+// carrying a *planner.TableError with every bad row by line and column;
+// nothing is decided then.
+func importPlan(t *txn, listID int64, c *fileCheck) (ImportResult, []TargetInput, []StoredTarget, error) {
+	pf, inputs, te, add := c.pf, c.inputs, c.te, c.add
 	res := ImportResult{Format: pf.Format, Assumptions: pf.Assumptions, ListID: listID}
 	existing, err := listTargets(t, listID)
 	if err != nil {
@@ -60,50 +125,11 @@ func importPlan(t *txn, listID int64, pf parsedFile) (ImportResult, []TargetInpu
 	for _, st := range existing {
 		byName[st.Target.Name] = st
 	}
-	te := &planner.TableError{Cells: append([]planner.CellError(nil), pf.Cells...)}
-	type key struct {
-		line   int
-		column string
-	}
-	seen := map[key]bool{}
-	badCoords := map[int]bool{} // lines whose position could not be read or is out of range
-	for _, c := range pf.Cells {
-		seen[key{c.Line, c.Column}] = true
-		if c.Column == "ra" || c.Column == "dec" {
-			badCoords[c.Line] = true
-		}
-	}
-	add := func(line int, field, value, reason string) {
-		col, n := pf.column(field)
-		if seen[key{line, col}] { // already reported while reading
-			return
-		}
-		seen[key{line, col}] = true
-		if col == "ra" || col == "dec" {
-			badCoords[line] = true
-		}
-		te.Cells = append(te.Cells, planner.CellError{Line: line, Col: n, Column: col, Value: planner.ClipValue(value), Reason: reason})
-	}
-	inputs := make([]TargetInput, len(pf.Rows))
-	firstLine := map[string]int{}
-	for i, row := range pf.Rows {
-		in, v := validateTargetInput(row.Input)
-		for _, f := range v.Fields {
-			add(row.Line, f.Field, f.Value, f.Accepted)
-		}
-		inputs[i] = in
-		name := in.Target.Name
-		if l, dup := firstLine[name]; dup && name != "" {
-			add(row.Line, "name", name, fmt.Sprintf("duplicate: the same name is on line %d", l))
-		} else if !dup {
-			firstLine[name] = row.Line
-		}
-	}
 	if len(existing)+len(pf.Rows) > MaxTargets {
 		te.Cells = append(te.Cells, planner.CellError{Line: pf.Rows[len(pf.Rows)-1].Line,
 			Reason: fmt.Sprintf("the list would hold more than %d targets", MaxTargets)})
 	}
-	for _, d := range nearPairs(pf, inputs, existing, badCoords) {
+	for _, d := range nearPairs(pf, inputs, existing, c.badCoords) {
 		add(d.line, "ra", "", d.reason)
 	}
 	if len(te.Cells) > 0 {
@@ -284,6 +310,10 @@ func (s *Store) PreviewImport(ctx context.Context, a Actor, listID int64, r io.R
 	if err != nil {
 		return ImportResult{}, wrap(op, err)
 	}
+	checked, err := checkFile(pf)
+	if err != nil {
+		return ImportResult{}, wrap(op, err)
+	}
 	t, err := s.beginRead(ctx, a)
 	if err != nil {
 		return ImportResult{}, wrap(op, err)
@@ -292,7 +322,7 @@ func (s *Store) PreviewImport(ctx context.Context, a Actor, listID int64, r io.R
 	if _, err := authorizedList(t, ActCreate, EntTarget, listID); err != nil {
 		return ImportResult{}, wrap(op, err)
 	}
-	res, _, _, err := importPlan(t, listID, pf)
+	res, _, _, err := importPlan(t, listID, checked)
 	if err != nil {
 		return ImportResult{}, wrap(op, err)
 	}
@@ -301,7 +331,9 @@ func (s *Store) PreviewImport(ctx context.Context, a Actor, listID int64, r io.R
 
 // ImportTargets reads a target file (team CSV, plan CSV or JSON; FormatAuto
 // detects) into a list, all or nothing, in one transaction (editors and
-// owners). Rows whose name is on the list update that target (a changed
+// owners). The file is read and every row validated before that
+// transaction begins; a file of more than MaxTargets rows is refused at
+// once. Rows whose name is on the list update that target (a changed
 // ephemeris is added to its history, source "import"); other rows add
 // targets. A file with any bad row, a name twice, or two positions within
 // DuplicateRadiusArcsec (in the file, or against a target of the list under
@@ -314,6 +346,12 @@ func (s *Store) ImportTargets(ctx context.Context, a Actor, listID int64, r io.R
 		return ImportResult{}, wrap(op, err)
 	}
 	pf, err := parseFile(b, f)
+	if err != nil {
+		return ImportResult{}, wrap(op, err)
+	}
+	// Every row is read and validated before the write transaction begins,
+	// so that a big or bad file does not hold the write lock meanwhile.
+	checked, err := checkFile(pf)
 	if err != nil {
 		return ImportResult{}, wrap(op, err)
 	}
@@ -331,7 +369,7 @@ func (s *Store) ImportTargets(ctx context.Context, a Actor, listID int64, r io.R
 			return ImportResult{}, wrap(op, err)
 		}
 	}
-	res, inputs, befores, err := importPlan(t, listID, pf)
+	res, inputs, befores, err := importPlan(t, listID, checked)
 	if err != nil {
 		return ImportResult{}, wrap(op, err)
 	}

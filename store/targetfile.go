@@ -220,10 +220,22 @@ func parseTeamCSV(b []byte) (parsedFile, error) {
 		return parsedFile{}, tableErr(te)
 	}
 	pf := parsedFile{Format: FormatCSV}
-	for {
+	for n := 1; ; n++ {
 		rec, err := cr.Read()
 		if errors.Is(err, io.EOF) {
 			break
+		}
+		if n > MaxTargets {
+			line := 0
+			var pe *csv.ParseError
+			switch {
+			case err == nil:
+				line, _ = cr.FieldPos(0)
+			case errors.As(err, &pe):
+				line = pe.StartLine
+			}
+			return parsedFile{}, tableErr(&planner.TableError{Cells: []planner.CellError{{Line: line,
+				Reason: fmt.Sprintf("the file holds more than %d targets; accepted: at most %d rows after the header", MaxTargets, MaxTargets)}}})
 		}
 		if err != nil {
 			var pe *csv.ParseError
@@ -721,6 +733,14 @@ func parseJSONFile(b []byte) (parsedFile, error) {
 	}
 	// Find where each target starts, for line numbers.
 	starts := targetOffsets(b)
+	if len(head.Targets) > MaxTargets {
+		line := 1
+		if MaxTargets < len(starts) {
+			line = lineAt(b, starts[MaxTargets])
+		}
+		add(line, fmt.Sprintf("targets[%d]", MaxTargets), "", fmt.Sprintf("the document holds more than %d targets; accepted: at most %d", MaxTargets, MaxTargets))
+		return parsedFile{}, tableErr(te)
+	}
 	pf := parsedFile{Format: FormatJSON}
 	for i, raw := range head.Targets {
 		line := 1

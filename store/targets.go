@@ -110,8 +110,8 @@ const (
 	MaxTagLen   = 40
 	MaxGoals    = 20
 	MaxNameLen  = 200
-	MaxTargets  = 50000 // per list
-	MaxPMmasyr  = 20000 // |proper motion| accepted, mas/yr
+	MaxTargets  = planner.MaxTargetRows // per list, and per imported file (50000)
+	MaxPMmasyr  = 20000                 // |proper motion| accepted, mas/yr
 	MinMag      = -30.0
 	MaxMag      = 40.0
 	MaxAcquireS = 3600.0
