@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"strings"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/store"
 )
@@ -72,7 +71,7 @@ func targetToJSON(t store.StoredTarget) targetJSON {
 		PMRAmasyr: tg.PMRAmasyr, PMDecmasyr: tg.PMDecmasyr, Mag: tg.Mag, Priority: tg.Priority, AcquireS: tg.AcquireS,
 		Tags: tg.Tags, Notes: tg.Notes, Goals: []goalJSON{}, UpdatedAt: utcString(t.UpdatedAt),
 		Ephemeris: ephemJSON{T0: r.T0.Text, T0Form: string(r.T0.Form), T0Standard: string(r.T0.Standard),
-			T0Convention: string(e.Convention), T0BJDTDB: ephem.FormatEpoch(e.T0, ephem.FormJD, 10), T0ErrDays: e.T0ErrDays,
+			T0Convention: string(e.Convention), T0BJDTDB: planner.FormatEpoch(e.T0, planner.FormJD, 10), T0ErrDays: e.T0ErrDays,
 			PeriodDays: e.PeriodDays, PeriodErrDays: e.PeriodErr, CovT0Period: e.CovT0P, Pdot: e.Pdot, PdotErr: e.PdotErr,
 			PhaseOffset: e.PhaseOffset, Ecc: e.Ecc, OmegaDeg: e.OmegaDeg, Source: string(r.Source)}}
 	for _, g := range tg.Goals {
@@ -91,14 +90,14 @@ func targetToJSON(t store.StoredTarget) targetJSON {
 // written; bad T0 text is EINVALID naming the field.
 func (j targetJSON) input() (store.TargetInput, error) {
 	e := j.Ephemeris
-	t0, err := store.ParseEpoch(e.T0, ephem.TimeStandard(e.T0Standard), ephem.EpochForm(e.T0Form))
+	t0, err := store.ParseEpoch(e.T0, planner.TimeStandard(e.T0Standard), planner.EpochForm(e.T0Form))
 	if err != nil {
 		return store.TargetInput{}, invalidField("ephemeris.t0", e.T0, err)
 	}
 	tg := planner.Target{Name: j.Name, RADeg: j.RADeg, DecDeg: j.DecDeg, PMRAmasyr: j.PMRAmasyr, PMDecmasyr: j.PMDecmasyr, Mag: j.Mag,
 		Priority: j.Priority, AcquireS: j.AcquireS, Tags: j.Tags, Notes: j.Notes,
-		Ephem: ephem.Ephemeris{T0ErrDays: e.T0ErrDays, PeriodDays: e.PeriodDays, PeriodErr: e.PeriodErrDays, CovT0P: e.CovT0Period,
-			Pdot: e.Pdot, PdotErr: e.PdotErr, Convention: ephem.Convention(e.T0Convention), PhaseOffset: e.PhaseOffset, Ecc: e.Ecc, OmegaDeg: e.OmegaDeg}}
+		Ephem: planner.Ephemeris{T0ErrDays: e.T0ErrDays, PeriodDays: e.PeriodDays, PeriodErr: e.PeriodErrDays, CovT0P: e.CovT0Period,
+			Pdot: e.Pdot, PdotErr: e.PdotErr, Convention: planner.Convention(e.T0Convention), PhaseOffset: e.PhaseOffset, Ecc: e.Ecc, OmegaDeg: e.OmegaDeg}}
 	for i, g := range j.Goals {
 		if (g.Phase == nil) == (g.Event == "") {
 			return store.TargetInput{}, &codedError{code: codeInvalid, msg: fmt.Sprintf("goals[%d]: give exactly one of phase and event", i)}
@@ -118,7 +117,7 @@ func (j targetJSON) input() (store.TargetInput, error) {
 // does not come back whole in the error.
 func invalidField(field, value string, err error) error {
 	msg := planner.ClipValue(err.Error())
-	var ie *ephem.InputError
+	var ie *planner.InputError
 	if errors.As(err, &ie) {
 		msg = ie.Accepted
 	}

@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/store"
 )
@@ -42,7 +41,7 @@ func errorCode(err error) (code, msg string) {
 	if errors.As(err, &se) {
 		return store.ErrorCode(err), store.ErrorMessage(err)
 	}
-	var ie *ephem.InputError
+	var ie *planner.InputError
 	if errors.As(err, &ie) {
 		return codeInvalid, fmt.Sprintf("%s: %s is not accepted; accepted: %s", ie.Field, planner.ClipValue(ie.Value), ie.Accepted)
 	}

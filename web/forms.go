@@ -8,7 +8,6 @@ import (
 	"strings"
 	"time"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/page"
@@ -24,7 +23,7 @@ func formErrs(err error) (errs page.Errs, status int, ok bool) {
 	}
 	errs = page.Errs{}
 	var ve *store.ValidationError
-	var ie *ephem.InputError
+	var ie *planner.InputError
 	switch {
 	case errors.As(err, &ve):
 		for _, f := range ve.Fields {

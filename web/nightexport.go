@@ -11,7 +11,6 @@ import (
 	"strings"
 	"time"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/web/ical"
 )
@@ -208,7 +207,7 @@ func (n *night) exportICS() ([]byte, error) {
 		}
 		desc := fmt.Sprintf("%s\n%d × %s s (+%s s readout); phases %.3f → %.3f; airmass %.2f–%.2f; Moon %.0f°; parallactic angle %.0f°; RA %s Dec %s\n%s",
 			goal, b.N, num(b.ExposureS), num(b.OverheadS), b.PhaseStart, b.PhaseEnd, b.AirmassMin, b.AirmassMax, b.MoonSepDeg, b.Parallactic,
-			ephem.FormatRAHours(n.req.Targets[b.TargetIndex].RADeg, 1), ephem.FormatDecDeg(n.req.Targets[b.TargetIndex].DecDeg, 0), cautionText)
+			planner.FormatRAHours(n.req.Targets[b.TargetIndex].RADeg, 1), planner.FormatDecDeg(n.req.Targets[b.TargetIndex].DecDeg, 0), cautionText)
 		cal.Events = append(cal.Events, ical.Event{UID: "block-" + hex.EncodeToString(sum[:12]) + "@phasecast", Stamp: stamp,
 			Start: b.Start, End: b.End, Summary: b.Target + " — " + goal, Description: desc, Location: loc,
 			Categories: []string{"phasecast", "observing block"}})

@@ -9,7 +9,6 @@ import (
 	"strings"
 	"time"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/page"
@@ -105,7 +104,7 @@ type night struct {
 	d       int
 	req     planner.NightRequest
 	plan    *planner.Plan
-	events  ephem.NightEvents
+	events  planner.NightEvents
 }
 
 // loadNight resolves the request's site, list and targets for the actor
@@ -132,7 +131,7 @@ func (s *Server) loadNight(ctx context.Context, a store.Actor, teamID int64, q n
 	if q.date == "" {
 		n.q.date = tonight(s.now(), n.loc)
 	}
-	y, m, d, err := ephem.ParseDate(n.q.date)
+	y, m, d, err := planner.ParseDate(n.q.date)
 	if err != nil {
 		errs["date"] = fmt.Sprintf("“%s” is not a date; accepted: YYYY-MM-DD", n.q.date)
 	}
@@ -238,7 +237,7 @@ func (n *night) planIt(errs page.Errs) error {
 		return err
 	}
 	n.plan = plan
-	n.events = ephem.Night(n.site.Site, n.y, n.m, n.d, n.loc)
+	n.events = planner.NightEventsOn(n.site.Site, n.y, n.m, n.d, n.loc)
 	n.cache.put(key, cachedPlan{plan: plan, events: n.events, at: time.Now()})
 	return nil
 }

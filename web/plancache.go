@@ -6,7 +6,6 @@ import (
 	"sync"
 	"time"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 )
 
@@ -22,7 +21,7 @@ type planCache struct {
 
 type cachedPlan struct {
 	plan   *planner.Plan
-	events ephem.NightEvents
+	events planner.NightEvents
 	at     time.Time
 }
 

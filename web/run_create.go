@@ -6,7 +6,6 @@ import (
 	"strconv"
 	"strings"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/page"
@@ -63,7 +62,7 @@ func (s *Server) runCreate(w http.ResponseWriter, r *http.Request, u *user) {
 // "YYYY-MM-DD+N" for N consecutive nights.
 func parseNightsField(s string) ([]planner.RunNight, error) {
 	if start, count, ok := strings.Cut(s, "+"); ok {
-		y, m, d, err := ephem.ParseDate(strings.TrimSpace(start))
+		y, m, d, err := planner.ParseDate(strings.TrimSpace(start))
 		if err != nil {
 			return nil, fmt.Errorf("“%s” is not a date; accepted: YYYY-MM-DD+N", start)
 		}

@@ -6,7 +6,6 @@ import (
 	"strconv"
 	"strings"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/chart"
@@ -132,7 +131,7 @@ func formFromSite(s store.SiteRecord) page.SiteForm {
 // siteSummary describes a site's constraints in one line.
 func siteSummary(s store.SiteRecord) (position, constraints, horizon string) {
 	c := s.Constraints
-	position = fmt.Sprintf("%s, %s", ephem.FormatDecDeg(s.Site.LatDeg, 0), fmtLon(s.Site.LonEastDeg))
+	position = fmt.Sprintf("%s, %s", planner.FormatDecDeg(s.Site.LatDeg, 0), fmtLon(s.Site.LonEastDeg))
 	parts := []string{string(c.Twilight) + " twilight"}
 	if c.MaxAirmass > 0 {
 		parts = append(parts, "airmass ≤ "+num(c.MaxAirmass))

@@ -8,7 +8,7 @@ import (
 	"strings"
 	"time"
 
-	"phasecast/ephem"
+	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/chart"
 	"phasecast/web/page"
@@ -46,7 +46,7 @@ func (s *Server) targetDetail(ctx context.Context, u *user, id int64) (page.Targ
 	for i, h := range hist {
 		v.History = append(v.History, historyRow(h, i == 0))
 	}
-	_, ph, phErr := ephem.PhaseAtUTC(site, tg.Star(), e, now)
+	_, ph, phErr := planner.PhaseNow(site, tg.Star(), e, now)
 	v.PhaseNow = fmt.Sprintf("Phase now %.4f ± %s (%s)", ph, fmtPhaseErr(phErr), fmtUTC(now))
 	v.Events = upcomingEvents(site, t, now)
 	goals, err := tg.ResolveGoals()
@@ -79,7 +79,7 @@ func wantLabel(n int) string {
 func targetFacts(t store.StoredTarget) []page.KV {
 	tg := t.Target
 	kv := []page.KV{
-		{Key: "RA, Dec (ICRS)", Value: ephem.FormatRAHours(tg.RADeg, 2) + "  " + ephem.FormatDecDeg(tg.DecDeg, 1)},
+		{Key: "RA, Dec (ICRS)", Value: planner.FormatRAHours(tg.RADeg, 2) + "  " + planner.FormatDecDeg(tg.DecDeg, 1)},
 		{Key: "Degrees", Value: fmt.Sprintf("%.6f  %+.6f", tg.RADeg, tg.DecDeg)},
 	}
 	if tg.PMRAmasyr != 0 || tg.PMDecmasyr != 0 {
@@ -101,7 +101,7 @@ func ephemFacts(r store.EphemerisRecord) []page.KV {
 	e := r.Ephem
 	kv := []page.KV{
 		{Key: "T0 as given", Value: r.T0.Text + " " + string(r.T0.Form) + " " + string(r.T0.Standard)},
-		{Key: "T0 (BJD_TDB)", Value: ephem.FormatEpoch(e.T0, ephem.FormJD, 8) + " ± " + fmtSeconds(e.T0ErrDays*86400)},
+		{Key: "T0 (BJD_TDB)", Value: planner.FormatEpoch(e.T0, planner.FormJD, 8) + " ± " + fmtSeconds(e.T0ErrDays*86400)},
 		{Key: "T0 marks", Value: strings.ReplaceAll(string(e.Convention), "_", " ")},
 		{Key: "Period", Value: fmtPeriod(e.PeriodDays) + " ± " + fmtSeconds(e.PeriodErr*86400)},
 	}
@@ -148,7 +148,7 @@ func historyRow(h store.EphemerisRecord, current bool) page.EphemRow {
 // upcomingEvents lists the next occurrences of each named orbital event
 // that the ephemeris defines (an eclipse contact needs the eclipse length,
 // periastron an eccentric orbit).
-func upcomingEvents(site ephem.Site, t store.StoredTarget, now time.Time) []page.UpcomingRow {
+func upcomingEvents(site planner.Site, t store.StoredTarget, now time.Time) []page.UpcomingRow {
 	e := t.Ephemeris.Ephem
 	dur := 0.0
 	for _, g := range t.Target.Goals {
@@ -156,13 +156,13 @@ func upcomingEvents(site ephem.Site, t store.StoredTarget, now time.Time) []page
 	}
 	span := time.Duration(math.Min(3*e.PeriodDays*24, 24*400)*float64(time.Hour)) + time.Hour
 	var out []page.UpcomingRow
-	for _, ev := range ephem.Events {
-		ph, err := e.EventPhase(ev, dur)
+	for _, ev := range planner.Events {
+		ph, err := planner.EventPhase(e, ev, dur)
 		if err != nil {
 			continue
 		}
 		row := page.UpcomingRow{Event: strings.ReplaceAll(string(ev), "_", " "), Phase: strconv.FormatFloat(ph, 'f', 4, 64)}
-		for i, at := range ephem.NextEventsUTC(site, t.Target.Star(), e, ph, now, now.Add(span)) {
+		for i, at := range planner.UpcomingEvents(site, t.Target.Star(), e, ph, now, now.Add(span)) {
 			if i == 3 {
 				break
 			}
@@ -175,13 +175,13 @@ func upcomingEvents(site ephem.Site, t store.StoredTarget, now time.Time) []page
 
 // sigmaChart is the phase uncertainty from a year before now to three
 // years ahead, with the goals' half-widths.
-func sigmaChart(site ephem.Site, t store.StoredTarget, now time.Time) chart.Uncertainty {
+func sigmaChart(site planner.Site, t store.StoredTarget, now time.Time) chart.Uncertainty {
 	e := t.Ephemeris.Ephem
 	c := chart.Uncertainty{Title: "Phase uncertainty of " + t.Target.Name, PeriodDays: e.PeriodDays, Now: now}
 	from, to := now.AddDate(-1, 0, 0), now.AddDate(3, 0, 0)
 	for i := 0; i <= 80; i++ {
 		at := from.Add(time.Duration(float64(to.Sub(from)) * float64(i) / 80))
-		c.Points = append(c.Points, chart.UncertaintyPoint{T: at, SigmaPhase: e.PhaseErr(ephem.BJDTDB(site, t.Target.Star(), at))})
+		c.Points = append(c.Points, chart.UncertaintyPoint{T: at, SigmaPhase: planner.PhaseSigmaAt(site, t.Target.Star(), e, at)})
 	}
 	seen := map[float64]bool{}
 	for _, g := range t.Target.Goals {
@@ -202,7 +202,7 @@ func timingForm(f page.TimingForm) page.TimingForm {
 		}
 	}
 	f.Events = []page.Option{{Value: "", Label: "the T0 event (reference)", Selected: sel == ""}}
-	for _, ev := range ephem.Events {
+	for _, ev := range planner.Events {
 		f.Events = append(f.Events, page.Option{Value: string(ev), Label: strings.ReplaceAll(string(ev), "_", " "), Selected: sel == string(ev)})
 	}
 	std, form := "", ""
@@ -216,7 +216,7 @@ func timingForm(f page.TimingForm) page.TimingForm {
 			form = o.Value
 		}
 	}
-	f.Std = options(ephem.TimeStandards, std, string(ephem.StdBJDTDB))
-	f.Forms = options(ephem.EpochForms, form, string(ephem.FormJD))
+	f.Std = options(planner.TimeStandards, std, string(planner.StdBJDTDB))
+	f.Forms = options(planner.EpochForms, form, string(planner.FormJD))
 	return f
 }

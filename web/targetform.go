@@ -8,7 +8,6 @@ import (
 	"strconv"
 	"strings"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/page"
@@ -37,12 +36,12 @@ func parseTargetForm(r *http.Request) targetFormIn {
 		Omega: f("omega_deg"), Priority: f("priority"), AcquireS: f("acquire_s"), Tags: f("tags"), Notes: r.PostFormValue("notes"),
 		EphNote: f("ephem_note")}
 	t := planner.Target{Name: p.form.Name, Notes: p.form.Notes}
-	if v, err := ephem.ParseRA(p.form.RA); err != nil {
+	if v, err := planner.ParseRA(p.form.RA); err != nil {
 		p.errs["ra"] = fmt.Sprintf("“%s” is not a right ascension; accepted: hours as 12:34:56.7 or degrees 0 ≤ RA < 360", p.form.RA)
 	} else {
 		t.RADeg = v
 	}
-	if v, err := ephem.ParseDec(p.form.Dec); err != nil {
+	if v, err := planner.ParseDec(p.form.Dec); err != nil {
 		p.errs["dec"] = fmt.Sprintf("“%s” is not a declination; accepted: degrees −90..90 as -05:06:07.8 or -5.1022", p.form.Dec)
 	} else {
 		t.DecDeg = v
@@ -58,7 +57,7 @@ func parseTargetForm(r *http.Request) targetFormIn {
 	p.num("phase_offset", p.form.PhOffset, &t.Ephem.PhaseOffset)
 	p.num("ecc", p.form.Ecc, &t.Ephem.Ecc)
 	p.num("omega_deg", p.form.Omega, &t.Ephem.OmegaDeg)
-	t.Ephem.Convention = ephem.Convention(p.form.Conv)
+	t.Ephem.Convention = planner.Convention(p.form.Conv)
 	if n, err := strconv.Atoi(p.form.Priority); err != nil {
 		p.errs["priority"] = fmt.Sprintf("“%s” is not accepted; accepted: an integer 1 (highest) to 5", p.form.Priority)
 	} else {
@@ -70,9 +69,9 @@ func parseTargetForm(r *http.Request) targetFormIn {
 		}
 	}
 	t.Goals = p.goals(r)
-	epoch, err := store.ParseEpoch(p.form.T0, ephem.TimeStandard(p.form.T0Std), ephem.EpochForm(p.form.T0Form))
+	epoch, err := store.ParseEpoch(p.form.T0, planner.TimeStandard(p.form.T0Std), planner.EpochForm(p.form.T0Form))
 	if err != nil {
-		var ie *ephem.InputError
+		var ie *planner.InputError
 		if errors.As(err, &ie) {
 			p.errs["t0"] = fmt.Sprintf("“%s” is not accepted; accepted: %s", p.form.T0, ie.Accepted)
 		} else {
@@ -185,7 +184,7 @@ var knownTargetField = map[string]bool{
 func formFromTarget(t store.StoredTarget) page.TargetForm {
 	tg, e := t.Target, t.Ephemeris.Ephem
 	f := page.TargetForm{ID: t.ID, ListID: t.ListID, Version: t.Version, Name: tg.Name,
-		RA: ephem.FormatRAHours(tg.RADeg, 3), Dec: ephem.FormatDecDeg(tg.DecDeg, 2),
+		RA: planner.FormatRAHours(tg.RADeg, 3), Dec: planner.FormatDecDeg(tg.DecDeg, 2),
 		PMRA: optNum(tg.PMRAmasyr), PMDec: optNum(tg.PMDecmasyr), Mag: optNum(tg.Mag),
 		T0: t.Ephemeris.T0.Text, T0Std: string(t.Ephemeris.T0.Standard), T0Form: string(t.Ephemeris.T0.Form),
 		T0Err: optNum(e.T0ErrDays), Period: optNum(e.PeriodDays), PerErr: optNum(e.PeriodErr), Pdot: optNum(e.Pdot),
@@ -212,9 +211,9 @@ func optNum(x float64) string {
 
 // withChoices adds the select options and spare goal rows to a form.
 func withChoices(f page.TargetForm) page.TargetForm {
-	f.Std = options(ephem.TimeStandards, f.T0Std, string(ephem.StdBJDTDB))
-	f.Forms = options(ephem.EpochForms, f.T0Form, string(ephem.FormJD))
-	f.Convs = options(ephem.Conventions, f.Conv, string(ephem.ConvInferiorConjunction))
+	f.Std = options(planner.TimeStandards, f.T0Std, string(planner.StdBJDTDB))
+	f.Forms = options(planner.EpochForms, f.T0Form, string(planner.FormJD))
+	f.Convs = options(planner.Conventions, f.Conv, string(planner.ConvInferiorConjunction))
 	f.Events = planner.EventNames()
 	for len(f.Goals) < 3 || f.Goals[len(f.Goals)-1] != (page.GoalRow{}) {
 		f.Goals = append(f.Goals, page.GoalRow{})
@@ -250,7 +249,7 @@ func conflictLines(err error) []string {
 	}
 	e := cur.Ephemeris.Ephem
 	return []string{
-		"name " + cur.Target.Name + ", RA " + ephem.FormatRAHours(cur.Target.RADeg, 2) + ", Dec " + ephem.FormatDecDeg(cur.Target.DecDeg, 1),
+		"name " + cur.Target.Name + ", RA " + planner.FormatRAHours(cur.Target.RADeg, 2) + ", Dec " + planner.FormatDecDeg(cur.Target.DecDeg, 1),
 		"T0 " + cur.Ephemeris.T0.Text + " " + string(cur.Ephemeris.T0.Standard) + ", period " + fmtPeriod(e.PeriodDays),
 		"goals " + goalSummary(cur.Target.Goals) + ", priority " + strconv.Itoa(cur.Target.Priority),
 		"saved " + fmtUTC(cur.UpdatedAt) + " (version " + strconv.FormatInt(cur.Version, 10) + ")",

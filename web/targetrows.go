@@ -9,7 +9,6 @@ import (
 	"strings"
 	"time"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/page"
@@ -28,29 +27,29 @@ type targetRow struct {
 // site, or the geocentre's surface point (0°, 0°) when it has none. The
 // choice moves barycentric times by at most the Earth's light-radius
 // (21 ms), invisible at the precision shown.
-func phaseSite(sites []store.SiteRecord) (ephem.Site, string) {
+func phaseSite(sites []store.SiteRecord) (planner.Site, string) {
 	if len(sites) == 0 {
-		return ephem.Site{}, "latitude 0°, longitude 0° (no site chosen)"
+		return planner.Site{}, "latitude 0°, longitude 0° (no site chosen)"
 	}
 	return sites[0].Site, sites[0].Name
 }
 
 // buildTargetRow computes what the table shows of one target at now.
-func buildTargetRow(t store.StoredTarget, site ephem.Site, now time.Time) targetRow {
+func buildTargetRow(t store.StoredTarget, site planner.Site, now time.Time) targetRow {
 	tg := t.Target
 	e := tg.Ephem
 	r := targetRow{ra: tg.RADeg, dec: tg.DecDeg, period: e.PeriodDays, phase: math.Inf(1)}
-	r.view = page.TargetRow{ID: t.ID, Name: tg.Name, RA: ephem.FormatRAHours(tg.RADeg, 1), Dec: ephem.FormatDecDeg(tg.DecDeg, 0),
+	r.view = page.TargetRow{ID: t.ID, Name: tg.Name, RA: planner.FormatRAHours(tg.RADeg, 1), Dec: planner.FormatDecDeg(tg.DecDeg, 0),
 		Period: fmtPeriod(e.PeriodDays), Tags: tg.Tags, Priority: tg.Priority, Goals: goalSummary(tg.Goals)}
-	_, ph, phErr := ephem.PhaseAtUTC(site, tg.Star(), e, now)
+	_, ph, phErr := planner.PhaseNow(site, tg.Star(), e, now)
 	if e.PeriodDays > 0 {
 		r.phase = ph
 		r.view.Phase = strconv.FormatFloat(ph, 'f', 3, 64)
 		r.view.PhaseErr = "± " + fmtPhaseErr(phErr)
 	}
-	if ev, err := e.EventPhase(ephem.EventInferiorConjunction, 0); err == nil {
+	if ev, err := planner.EventPhase(e, planner.EventInferiorConjunction, 0); err == nil {
 		end := now.Add(time.Duration((e.PeriodDays*1.01)*24*float64(time.Hour)) + time.Hour)
-		if ts := ephem.NextEventsUTC(site, tg.Star(), e, ev, now, end); len(ts) > 0 {
+		if ts := planner.UpcomingEvents(site, tg.Star(), e, ev, now, end); len(ts) > 0 {
 			r.next = ts[0]
 			r.view.NextEvent = "inf. conj. " + ts[0].UTC().Format("01-02 15:04") + " UTC"
 			r.view.NextIn = "in " + fmtDuration(ts[0].Sub(now))

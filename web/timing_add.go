@@ -6,7 +6,7 @@ import (
 	"strconv"
 	"strings"
 
-	"phasecast/ephem"
+	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/page"
 )
@@ -27,7 +27,7 @@ func (s *Server) timingAdd(w http.ResponseWriter, r *http.Request, u *user) {
 		Events: []page.Option{{Value: f("event"), Selected: true}}, Std: []page.Option{{Value: f("t_standard"), Selected: true}},
 		Forms: []page.Option{{Value: f("t_form"), Selected: true}}}
 	in := store.TimingInput{Event: f("event"), Observer: form.Obs, Note: form.Note}
-	in.T, err = store.ParseEpoch(form.Time, ephem.TimeStandard(f("t_standard")), ephem.EpochForm(f("t_form")))
+	in.T, err = store.ParseEpoch(form.Time, planner.TimeStandard(f("t_standard")), planner.EpochForm(f("t_form")))
 	if err != nil {
 		form.Errs["t"] = fmt.Sprintf("“%s” is not accepted: %v", form.Time, err)
 	}

@@ -6,7 +6,7 @@ import (
 	"math"
 	"strconv"
 
-	"phasecast/ephem"
+	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/chart"
 	"phasecast/web/page"
@@ -14,12 +14,12 @@ import (
 
 // residual returns the cycle and O−C, seconds, of a timing against e: the
 // measured BJD_TDB minus the computed time of the same event in the nearest
-// cycle (ephem.Ephemeris.TimeAt). ok is false for an event whose phase the
+// cycle (Ephemeris.TimeAt). ok is false for an event whose phase the
 // ephemeris cannot give (an eclipse contact without a duration).
-func residual(e ephem.Ephemeris, tm store.Timing) (cycle int64, ocS float64, ok bool) {
+func residual(e planner.Ephemeris, tm store.Timing) (cycle int64, ocS float64, ok bool) {
 	phase := 0.0
 	if tm.Event != "" {
-		p, err := e.EventPhase(ephem.Event(tm.Event), 0)
+		p, err := planner.EventPhase(e, planner.Event(tm.Event), 0)
 		if err != nil {
 			return 0, 0, false
 		}
@@ -47,7 +47,7 @@ func timingRows(t store.StoredTarget, timings []store.Timing) ([]page.TimingRow,
 			ev = tm.Event
 		}
 		row := page.TimingRow{ID: tm.ID, Version: tm.Version, Event: ev, Time: tm.T.Text + " " + string(tm.T.Standard),
-			BJD: ephem.FormatEpoch(tm.BJD, ephem.FormJD, 6), Err: strconv.FormatFloat(tm.ErrDays*86400, 'g', 3, 64),
+			BJD: planner.FormatEpoch(tm.BJD, planner.FormJD, 6), Err: strconv.FormatFloat(tm.ErrDays*86400, 'g', 3, 64),
 			Observer: tm.Observer, Note: tm.Note, OC: "—"}
 		if c, r, ok := residual(e, tm); ok {
 			row.OC = strconv.FormatFloat(r, 'f', 1, 64)
@@ -60,20 +60,20 @@ func timingRows(t store.StoredTarget, timings []store.Timing) ([]page.TimingRow,
 }
 
 // proposeFit refines the ephemeris from the timings of its reference event
-// (ephem.FitEphemeris, linear weighted least squares), or says why not.
-func proposeFit(t store.StoredTarget, timings []store.Timing) (*ephem.FitResult, string) {
-	var in []ephem.Timing
+// (planner.RefineEphemeris: linear weighted least squares), or says why not.
+func proposeFit(t store.StoredTarget, timings []store.Timing) (*planner.FitResult, string) {
+	var in []planner.EphemTiming
 	for _, tm := range timings {
 		if tm.Event == "" {
-			in = append(in, ephem.Timing{Value: tm.BJD, Std: ephem.StdBJDTDB, ErrDays: tm.ErrDays})
+			in = append(in, planner.EphemTiming{Value: tm.BJD, Std: planner.StdBJDTDB, ErrDays: tm.ErrDays})
 		}
 	}
 	if len(in) < 2 {
 		return nil, "A refinement needs at least two timings of the T0 event (the reference event of the ephemeris)."
 	}
-	res, err := ephem.FitEphemeris(in, t.Ephemeris.Ephem, false)
+	res, err := planner.RefineEphemeris(in, t.Ephemeris.Ephem, false)
 	if err != nil {
-		var ae *ephem.AmbiguityError
+		var ae *planner.AmbiguityError
 		if errors.As(err, &ae) {
 			return nil, "The timings cannot be refined without guessing cycle numbers: " + ae.Error()
 		}
@@ -83,10 +83,10 @@ func proposeFit(t store.StoredTarget, timings []store.Timing) (*ephem.FitResult,
 }
 
 // fitLines describes a proposed refinement against the current ephemeris.
-func fitLines(t store.StoredTarget, f ephem.FitResult) []string {
+func fitLines(t store.StoredTarget, f planner.FitResult) []string {
 	cur, e := t.Ephemeris.Ephem, f.Ephem
 	return []string{
-		fmt.Sprintf("T0 = %s BJD_TDB ± %s", ephem.FormatEpoch(e.T0, ephem.FormJD, 7), fmtSeconds(e.T0ErrDays*86400)),
+		fmt.Sprintf("T0 = %s BJD_TDB ± %s", planner.FormatEpoch(e.T0, planner.FormJD, 7), fmtSeconds(e.T0ErrDays*86400)),
 		fmt.Sprintf("P = %.10f d ± %s (now %.10f d; change %+.3g s)", e.PeriodDays, fmtSeconds(e.PeriodErr*86400), cur.PeriodDays,
 			(e.PeriodDays-cur.PeriodDays)*86400),
 		fmt.Sprintf("χ² = %.2f, reduced χ² = %.2f, from %d timings", f.ChiSq, f.RedChiSq, len(f.Residuals)),
@@ -96,7 +96,7 @@ func fitLines(t store.StoredTarget, f ephem.FitResult) []string {
 
 // fitLine is the refined ephemeris minus the current one, seconds, over
 // the cycles of the points: the line the O−C points should follow.
-func fitLine(cur ephem.Ephemeris, f ephem.FitResult, pts []chart.OCPoint) chart.OCLine {
+func fitLine(cur planner.Ephemeris, f planner.FitResult, pts []chart.OCPoint) chart.OCLine {
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, p := range pts {
 		lo, hi = math.Min(lo, p.Cycle), math.Max(hi, p.Cycle)

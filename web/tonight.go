@@ -8,7 +8,7 @@ import (
 	"slices"
 	"time"
 
-	"phasecast/ephem"
+	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/page"
 )
@@ -117,9 +117,9 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 func tonightRow(n *night, i int, t store.StoredTarget, now time.Time) page.TonightRow {
 	tg := n.req.Targets[i]
 	r := page.TonightRow{Name: tg.Name, Href: "/targets/" + i64s(t.ID)}
-	_, ph, phErr := ephem.PhaseAtUTC(n.site.Site, tg.Star(), tg.Ephem, now)
+	_, ph, phErr := planner.PhaseNow(n.site.Site, tg.Star(), tg.Ephem, now)
 	r.Phase, r.PhaseErr = fmt.Sprintf("%.3f", ph), "± "+fmtPhaseErr(phErr)
-	sky := ephem.Observe(n.site.Site, tg.Star(), now)
+	sky := planner.SkyAt(n.site.Site, tg.Star(), now)
 	r.Altitude = fmt.Sprintf("%.0f°", sky.AltRefractedDeg)
 	if sky.AirmassOK {
 		r.Altitude += fmt.Sprintf(" (airmass %.2f)", sky.Airmass)
@@ -132,7 +132,7 @@ func tonightRow(n *night, i int, t store.StoredTarget, now time.Time) page.Tonig
 		label := ""
 		for _, g := range goals {
 			start := math.Mod(g.Center-g.HalfWidth+1, 1)
-			ts := ephem.NextEventsUTC(n.site.Site, tg.Star(), tg.Ephem, start, now, now.Add(time.Duration(tg.Ephem.PeriodDays*24*float64(time.Hour))+time.Minute))
+			ts := planner.UpcomingEvents(n.site.Site, tg.Star(), tg.Ephem, start, now, now.Add(time.Duration(tg.Ephem.PeriodDays*24*float64(time.Hour))+time.Minute))
 			if len(ts) > 0 && (best.IsZero() || ts[0].Before(best)) {
 				best, label = ts[0], goalLabel(g)
 			}

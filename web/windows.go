@@ -13,7 +13,6 @@ import (
 	"strings"
 	"time"
 
-	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/web/ical"
@@ -60,8 +59,8 @@ func (s *Server) loadWindows(ctx context.Context, a store.Actor, teamID int64, q
 			w.req.to = d.AddDate(0, 0, 30).Format("2006-01-02")
 		}
 	}
-	y1, m1, d1, err1 := ephem.ParseDate(w.req.from)
-	y2, m2, d2, err2 := ephem.ParseDate(w.req.to)
+	y1, m1, d1, err1 := planner.ParseDate(w.req.from)
+	y2, m2, d2, err2 := planner.ParseDate(w.req.to)
 	if err1 != nil {
 		errs["from"] = fmt.Sprintf("“%s” is not a date; accepted: YYYY-MM-DD", w.req.from)
 	}
