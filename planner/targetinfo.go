@@ -128,3 +128,36 @@ func SkyAt(site Site, st Star, t time.Time) SkyPoint { return ephem.Observe(site
 func RefineEphemeris(timings []EphemTiming, guess Ephemeris, quadratic bool) (FitResult, error) {
 	return ephem.FitEphemeris(timings, guess, quadratic)
 }
+
+// TimingResidual returns the cycle and the O−C, seconds, of a measured event
+// time bjd (BJD_TDB) against e: bjd minus the time e computes for the same
+// event (ev; "" is phase 0 of e's convention) in the nearest cycle
+// (Ephemeris.CyclePhase, Ephemeris.TimeAt). ok is false for an event whose
+// phase e cannot give (an eclipse contact without a duration).
+func TimingResidual(e Ephemeris, bjd JD2, ev Event) (cycle int64, ocS float64, ok bool) {
+	phase := 0.0
+	if ev != "" {
+		p, err := e.EventPhase(ev, 0)
+		if err != nil {
+			return 0, 0, false
+		}
+		phase = p
+	}
+	c, ph := e.CyclePhase(bjd)
+	d := ph - phase
+	switch {
+	case d > 0.5:
+		c++
+	case d < -0.5:
+		c--
+	}
+	return c, bjd.SubDays(e.TimeAt(c, phase)) * 86400, true
+}
+
+// RefinedMinusCurrentS returns, in seconds, the time refined predicts for
+// phase 0 of cycle c minus the time cur predicts for it (both BJD_TDB), the
+// refined ephemeris' cycles being cur's minus cycleShift (FitResult's
+// CycleShift): the line O−C points against cur should follow.
+func RefinedMinusCurrentS(refined Ephemeris, cycleShift int64, cur Ephemeris, c int64) float64 {
+	return refined.TimeAt(c-cycleShift, 0).SubDays(cur.TimeAt(c, 0)) * 86400
+}

@@ -14,26 +14,10 @@ import (
 
 // residual returns the cycle and O−C, seconds, of a timing against e: the
 // measured BJD_TDB minus the computed time of the same event in the nearest
-// cycle (Ephemeris.TimeAt). ok is false for an event whose phase the
+// cycle (planner.TimingResidual). ok is false for an event whose phase the
 // ephemeris cannot give (an eclipse contact without a duration).
 func residual(e planner.Ephemeris, tm store.Timing) (cycle int64, ocS float64, ok bool) {
-	phase := 0.0
-	if tm.Event != "" {
-		p, err := planner.EventPhase(e, planner.Event(tm.Event), 0)
-		if err != nil {
-			return 0, 0, false
-		}
-		phase = p
-	}
-	c, ph := e.CyclePhase(tm.BJD)
-	d := ph - phase
-	switch {
-	case d > 0.5:
-		c++
-	case d < -0.5:
-		c--
-	}
-	return c, tm.BJD.SubDays(e.TimeAt(c, phase)) * 86400, true
+	return planner.TimingResidual(e, tm.BJD, planner.Event(tm.Event))
 }
 
 // timingRows formats the timings and builds the O−C chart's points.
@@ -107,7 +91,7 @@ func fitLine(cur planner.Ephemeris, f planner.FitResult, pts []chart.OCPoint) ch
 	}
 	for i := 0; i <= 20; i++ {
 		c := int64(math.Round(lo + (hi-lo)*float64(i)/20))
-		d := f.Ephem.TimeAt(c-f.CycleShift, 0).SubDays(cur.TimeAt(c, 0)) * 86400
+		d := planner.RefinedMinusCurrentS(f.Ephem, f.CycleShift, cur, c)
 		l.Cycles, l.OCSec = append(l.Cycles, float64(c)), append(l.OCSec, d)
 	}
 	return l
