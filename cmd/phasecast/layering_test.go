@@ -157,3 +157,24 @@ func TestLayeringRules(t *testing.T) {
 		})
 	}
 }
+
+// TestWebNoAstronomy: web and the packages under it do no astronomy of their
+// own: their non-test files do not import ephem, and reach it only through
+// planner (planner/targetinfo.go). Tests may still import ephem.
+func TestWebNoAstronomy(t *testing.T) {
+	found := false
+	for _, p := range listPackages(t) {
+		if top, _ := topLevel(p.ImportPath); top != "web" {
+			continue
+		}
+		found = true
+		for _, imp := range p.Imports {
+			if itop, _ := topLevel(imp); itop == "ephem" {
+				t.Errorf("%s imports %s: web calls planner for astronomy (see planner/targetinfo.go), never ephem", p.ImportPath, imp)
+			}
+		}
+	}
+	if !found {
+		t.Fatal("no web package listed")
+	}
+}
