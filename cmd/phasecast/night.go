@@ -9,24 +9,14 @@ import (
 	"time"
 
 	"phasecast/ephem"
+	"phasecast/planner"
 )
 
-// nightJSON is the `night --json` contract: RFC 3339 UTC instants to the
-// second, null for an event that does not happen between local noon on DATE
-// and local noon the next day.
-type nightJSON struct {
-	Sunset           *utcSeconds `json:"sunset"`
-	CivilDusk        *utcSeconds `json:"civil_dusk"`
-	NauticalDusk     *utcSeconds `json:"nautical_dusk"`
-	AstronomicalDusk *utcSeconds `json:"astronomical_dusk"`
-	AstronomicalDawn *utcSeconds `json:"astronomical_dawn"`
-	NauticalDawn     *utcSeconds `json:"nautical_dawn"`
-	CivilDawn        *utcSeconds `json:"civil_dawn"`
-	Sunrise          *utcSeconds `json:"sunrise"`
-	Moonrise         *utcSeconds `json:"moonrise"`
-	Moonset          *utcSeconds `json:"moonset"`
-	MoonIlluminated  float64     `json:"moon_illuminated"`
-}
+// nightJSON is the `night --json` contract (planner.NightDoc, also the
+// `night` object of `plan --json` and of the web's night export): RFC 3339
+// UTC instants to the second, null for an event that does not happen between
+// local noon on DATE and local noon the next day.
+type nightJSON = planner.NightDoc
 
 const nightSynopsis = `The night that begins on the evening of local date DATE in time zone ZONE, from
 local noon to the next local noon: sunset and sunrise (Sun's centre at −0.833°),
@@ -35,16 +25,7 @@ moonset (upper limb, refracted), and the Moon's illuminated fraction at local
 midnight. An event that does not happen that night is shown as absent (null).`
 
 // nightObject is the `night --json` object for a night's events.
-func nightObject(ev ephem.NightEvents) nightJSON {
-	return nightJSON{
-		Sunset: optSeconds(ev.Sunset), CivilDusk: optSeconds(ev.CivilDusk),
-		NauticalDusk: optSeconds(ev.NauticalDusk), AstronomicalDusk: optSeconds(ev.AstronomicalDusk),
-		AstronomicalDawn: optSeconds(ev.AstronomicalDawn), NauticalDawn: optSeconds(ev.NauticalDawn),
-		CivilDawn: optSeconds(ev.CivilDawn), Sunrise: optSeconds(ev.Sunrise),
-		Moonrise: optSeconds(ev.Moonrise), Moonset: optSeconds(ev.Moonset),
-		MoonIlluminated: ev.MoonIlluminated,
-	}
-}
+func nightObject(ev ephem.NightEvents) nightJSON { return planner.NewNightDoc(ev) }
 
 func runNight(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("night", nightSynopsis)
@@ -136,7 +117,7 @@ func printNight(w io.Writer, site ephem.Site, loc *time.Location, y int, m time.
 			continue
 		}
 		lt := r.t.In(loc).Round(time.Second)
-		tb.row(r.name, lt.Format("Mon 15:04:05 MST"), utcSeconds(*r.t).String())
+		tb.row(r.name, lt.Format("Mon 15:04:05 MST"), planner.DocSecond(*r.t).String())
 	}
 	if err := tb.flush(); err != nil {
 		return err

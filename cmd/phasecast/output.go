@@ -31,16 +31,6 @@ func (j jdValue) MarshalJSON() ([]byte, error) {
 	return []byte(j.String()), nil
 }
 
-// utcSeconds is an instant written in RFC 3339 UTC to the nearest second;
-// a nil *utcSeconds marshals as null.
-type utcSeconds time.Time
-
-func (t utcSeconds) String() string {
-	return time.Time(t).UTC().Round(time.Second).Format("2006-01-02T15:04:05Z")
-}
-
-func (t utcSeconds) MarshalJSON() ([]byte, error) { return json.Marshal(t.String()) }
-
 // utcMillis is an instant in RFC 3339 UTC with milliseconds.
 type utcMillis time.Time
 
@@ -49,14 +39,6 @@ func (t utcMillis) String() string {
 }
 
 func (t utcMillis) MarshalJSON() ([]byte, error) { return json.Marshal(t.String()) }
-
-func optSeconds(t *time.Time) *utcSeconds {
-	if t == nil {
-		return nil
-	}
-	u := utcSeconds(*t)
-	return &u
-}
 
 // writeJSON prints v as one indented JSON object. encoding/json refuses NaN
 // and infinities, so a non-finite value becomes an error, never output.

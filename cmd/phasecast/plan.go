@@ -14,118 +14,19 @@ import (
 	"phasecast/planner"
 )
 
-// planJSON is the `plan --json` contract: `night` is the object `night
-// --json` prints, `blocks` the exposure blocks in time order, `unscheduled`
-// every goal without a block and why. The other keys are extras.
-type planJSON struct {
-	Night       nightJSON         `json:"night"`
-	Blocks      []planBlockJSON   `json:"blocks"`
-	Unscheduled []unscheduledJSON `json:"unscheduled"`
-	Warnings    []warningJSON     `json:"warnings"`
-	Dark        []intervalJSON    `json:"dark"`
-	Visibility  []visibilityJSON  `json:"visibility"`
-	Constraints constraintsJSON   `json:"constraints"`
-	Objective   objectiveJSON     `json:"objective"`
-	Caution     string            `json:"caution"`
-}
-
-// planBlockJSON is one block. Times are RFC 3339 UTC (fractions of a second
-// only when the exposure setup makes them); end − start = n_exposures ×
-// (exposure_s + overhead_s). Phases are 0..1 at the instants named.
-type planBlockJSON struct {
-	Target         string   `json:"target"`
-	PhaseGoal      *float64 `json:"phase_goal"` // null for a filler
-	Start          planTime `json:"start"`
-	End            planTime `json:"end"`
-	NExposures     int      `json:"n_exposures"`
-	ExposureS      float64  `json:"exposure_s"`
-	OverheadS      float64  `json:"overhead_s"`
-	PhaseStart     float64  `json:"phase_start"`
-	PhaseEnd       float64  `json:"phase_end"`
-	AirmassMax     float64  `json:"airmass_max"`
-	AirmassMin     float64  `json:"airmass_min"`
-	PhaseMid       float64  `json:"phase_mid"`
-	PhaseFirstMid  float64  `json:"phase_first_exposure_mid"`
-	PhaseLastMid   float64  `json:"phase_last_exposure_mid"`
-	PhaseHalfWidth *float64 `json:"phase_halfwidth"`
-	Smear          float64  `json:"smear"`
-	PhaseErr       float64  `json:"phase_err"`
-	Cycle          int64    `json:"cycle"`
-	AcquireS       float64  `json:"acquire_s"`
-	MoonSepDeg     float64  `json:"moon_sep_deg"`
-	MoonUp         bool     `json:"moon_up"`
-	ParallacticDeg float64  `json:"parallactic_deg"`
-	HourAngleHours float64  `json:"hour_angle_hours"`
-	SunAltStartDeg float64  `json:"sun_alt_start_deg"`
-	Priority       int      `json:"priority"`
-	Filler         bool     `json:"filler"`
-	Warnings       []string `json:"warnings"`
-}
-
-type unscheduledJSON struct {
-	Target    string  `json:"target"`
-	PhaseGoal float64 `json:"phase_goal"`
-	Reason    string  `json:"reason"`
-	Code      string  `json:"reason_code"`
-}
-
-type warningJSON struct {
-	Code      string   `json:"code"`
-	Target    string   `json:"target,omitempty"`
-	PhaseGoal *float64 `json:"phase_goal,omitempty"`
-	Message   string   `json:"message"`
-}
-
-type intervalJSON struct {
-	Start planTime `json:"start"`
-	End   planTime `json:"end"`
-}
-
-type gapJSON struct {
-	Start   planTime `json:"start"`
-	End     planTime `json:"end"`
-	Reasons []string `json:"reasons"`
-}
-
-type visibilityJSON struct {
-	Target    string         `json:"target"`
-	Intervals []intervalJSON `json:"intervals"`
-	Gaps      []gapJSON      `json:"gaps"`
-}
-
-type constraintsJSON struct {
-	Twilight      string   `json:"twilight"`
-	SunAltMaxDeg  float64  `json:"sun_alt_max_deg"`
-	MaxAirmass    float64  `json:"max_airmass"`
-	MinAltDeg     float64  `json:"min_alt_deg"`
-	MinMoonSepDeg float64  `json:"min_moon_sep_deg"`
-	MaxMoonIllum  float64  `json:"max_moon_illum"`
-	HAMinHours    *float64 `json:"ha_min_hours"`
-	HAMaxHours    *float64 `json:"ha_max_hours"`
-	ZenithExclDeg float64  `json:"zenith_excl_deg"`
-	SunAvoidDeg   float64  `json:"sun_avoid_deg"`
-	HorizonPoints int      `json:"horizon_points"`
-	AcquireS      float64  `json:"acquire_s"`
-}
-
-type objectiveJSON struct {
-	Value       int64 `json:"value"`
-	GreedyValue int64 `json:"greedy_value"`
-	Optimal     bool  `json:"optimal"`
-	Candidates  int   `json:"candidates"`
-	Rounds      int   `json:"rounds"`
-	States      int   `json:"states"`
-}
-
-// planTime is an instant in RFC 3339 UTC, with the fraction of a second
-// written only when there is one (to the microsecond).
-type planTime time.Time
-
-func (t planTime) String() string {
-	return time.Time(t).UTC().Format("2006-01-02T15:04:05.999999Z07:00")
-}
-
-func (t planTime) MarshalJSON() ([]byte, error) { return []byte(`"` + t.String() + `"`), nil }
+// The `plan --json` document is planner.PlanDoc, shared with the web; these
+// names stay for run_nights.go, which prints the same objects per night.
+type (
+	planJSON        = planner.PlanDoc
+	planBlockJSON   = planner.BlockDoc
+	unscheduledJSON = planner.UnscheduledDoc
+	warningJSON     = planner.WarningDoc
+	intervalJSON    = planner.IntervalDoc
+	constraintsJSON = planner.ConstraintsDoc
+	// planTime is an instant in RFC 3339 UTC, with the fraction of a second
+	// written only when there is one (to the microsecond).
+	planTime = planner.DocTime
+)
 
 const planSynopsis = `Plan one night: for every target of a CSV list, the observable intervals under the
 constraints, then the exposure blocks that land on its wanted orbital phases,
@@ -324,90 +225,9 @@ func readTargets(v *textValue) ([]planner.Target, error) {
 	return list, nil
 }
 
+// planOutput is the `plan --json` document; acq is the --acquire-s value.
 func planOutput(p *planner.Plan, ev ephem.NightEvents, acq float64) planJSON {
-	out := planJSON{
-		Night:       nightObject(ev),
-		Blocks:      []planBlockJSON{},
-		Unscheduled: []unscheduledJSON{},
-		Warnings:    []warningJSON{},
-		Dark:        []intervalJSON{},
-		Caution:     planner.SafetyCaution,
-		Objective:   objectiveJSON{Value: p.Value, GreedyValue: p.GreedyValue, Optimal: p.Optimal, Candidates: p.Candidates, Rounds: p.Rounds, States: p.States},
-	}
-	c := p.Constraints
-	out.Constraints = constraintsJSON{Twilight: string(c.Twilight), SunAltMaxDeg: c.SunAltMaxDeg, MaxAirmass: c.MaxAirmass,
-		MinAltDeg: c.MinAltDeg, MinMoonSepDeg: c.MinMoonSepDeg, MaxMoonIllum: c.MaxMoonIllum, ZenithExclDeg: c.ZenithExclDeg,
-		SunAvoidDeg: c.SunAvoidDeg, HorizonPoints: len(c.Horizon), AcquireS: acq}
-	if c.HAMinHours != 0 || c.HAMaxHours != 0 {
-		lo, hi := c.HAMinHours, c.HAMaxHours
-		out.Constraints.HAMinHours, out.Constraints.HAMaxHours = &lo, &hi
-	}
-	for _, d := range p.Dark {
-		out.Dark = append(out.Dark, intervalJSON{planTime(d.Start), planTime(d.End)})
-	}
-	for _, b := range p.Blocks {
-		bj := planBlockJSON{
-			Target: b.Target, Start: planTime(b.Start), End: planTime(b.End), NExposures: b.N,
-			ExposureS: b.ExposureS, OverheadS: b.OverheadS, PhaseStart: b.PhaseStart, PhaseEnd: b.PhaseEnd,
-			AirmassMax: b.AirmassMax, AirmassMin: b.AirmassMin, PhaseMid: b.PhaseMid,
-			PhaseFirstMid: b.PhaseFirstMid, PhaseLastMid: b.PhaseLastMid, Smear: b.Smear, PhaseErr: b.PhaseErr,
-			Cycle: b.Cycle, AcquireS: b.AcquireS, MoonSepDeg: b.MoonSepDeg, MoonUp: b.MoonUp,
-			ParallacticDeg: b.Parallactic, HourAngleHours: b.HourAngle, SunAltStartDeg: b.SunAltStart,
-			Priority: b.Priority, Filler: b.Filler, Warnings: []string{},
-		}
-		if !b.Filler {
-			c, w := b.Goal.Center, b.Goal.HalfWidth
-			bj.PhaseGoal, bj.PhaseHalfWidth = &c, &w
-		}
-		for _, w := range b.Warnings {
-			bj.Warnings = append(bj.Warnings, w.Message)
-		}
-		out.Blocks = append(out.Blocks, bj)
-	}
-	for _, u := range p.Unscheduled {
-		out.Unscheduled = append(out.Unscheduled, unscheduledJSON{Target: u.Target, PhaseGoal: u.Goal.Center, Reason: u.Detail, Code: string(u.Reason)})
-	}
-	type goalKey struct {
-		target string
-		goal   int
-	}
-	centers := map[goalKey]float64{}
-	for _, b := range p.Blocks {
-		if !b.Filler {
-			centers[goalKey{b.Target, b.GoalIndex}] = b.Goal.Center
-		}
-	}
-	for _, u := range p.Unscheduled {
-		centers[goalKey{u.Target, u.GoalIndex}] = u.Goal.Center
-	}
-	seen := map[string]bool{}
-	for _, w := range p.Warnings {
-		k := string(w.Code) + "\x00" + w.Target + "\x00" + w.Message
-		if seen[k] {
-			continue
-		}
-		seen[k] = true
-		wj := warningJSON{Code: string(w.Code), Target: w.Target, Message: w.Message}
-		if c, ok := centers[goalKey{w.Target, w.GoalIndex}]; ok && w.Target != "" {
-			wj.PhaseGoal = &c
-		}
-		out.Warnings = append(out.Warnings, wj)
-	}
-	for _, v := range p.Visibility {
-		vj := visibilityJSON{Target: v.Target, Intervals: []intervalJSON{}, Gaps: []gapJSON{}}
-		for _, iv := range v.Intervals {
-			vj.Intervals = append(vj.Intervals, intervalJSON{planTime(iv.Start), planTime(iv.End)})
-		}
-		for _, g := range v.Gaps {
-			gj := gapJSON{Start: planTime(g.Start), End: planTime(g.End)}
-			for _, r := range g.Reasons {
-				gj.Reasons = append(gj.Reasons, string(r))
-			}
-			vj.Gaps = append(vj.Gaps, gj)
-		}
-		out.Visibility = append(out.Visibility, vj)
-	}
-	return out
+	return planner.NewPlanDoc(p, ev, acq)
 }
 
 // checkPlanFinite makes sure no NaN reaches the output.
