@@ -22,13 +22,19 @@ func (s *Server) apiUser(h func(http.ResponseWriter, *http.Request, *user)) http
 		token, ok := strings.CutPrefix(auth, "Bearer ")
 		if !ok || strings.TrimSpace(token) == "" {
 			w.Header().Set("WWW-Authenticate", `Bearer realm="phasecast"`)
-			s.apiError(w, r, &codedError{code: codeForbidden, msg: "send an API token: Authorization: Bearer TOKEN (make one on the account page)"})
+			s.apiError(w, r, &codedError{code: codeUnauthenticated, msg: "send an API token: Authorization: Bearer TOKEN (make one on the account page)"})
 			return
 		}
 		a, err := s.store.APITokenActor(r.Context(), strings.TrimSpace(token))
 		if err != nil {
+			if code, _ := errorCode(err); code == codeInternal || code == "" {
+				s.apiError(w, r, err)
+				return
+			}
+			// RFC 6750, section 3.1: an invalid token is answered 401.
 			w.Header().Set("WWW-Authenticate", `Bearer realm="phasecast", error="invalid_token"`)
-			s.apiError(w, r, err)
+			s.apiError(w, r, &codedError{code: codeUnauthenticated, err: err,
+				msg: "the API token is not valid (revoked, expired or unknown); make a new one on the account page"})
 			return
 		}
 		u := &user{actor: a}

@@ -68,11 +68,11 @@ func TestAPI(t *testing.T) {
 	list := "/api/v1/lists/" + i64s(f.listID)
 
 	t.Run("ErrNoToken", func(t *testing.T) {
-		if code, body := h.apiCall("", "GET", "/api/v1/lists", nil); code != http.StatusForbidden || body["error"] == nil {
-			t.Errorf("status %d, body %v; want 403 with an error", code, body)
+		if code, body := h.apiCall("", "GET", "/api/v1/lists", nil); code != http.StatusUnauthorized || body["error"] == nil {
+			t.Errorf("status %d, body %v; want 401 with an error", code, body)
 		}
-		if code, _ := h.apiCall("not-a-token", "GET", "/api/v1/lists", nil); code != http.StatusForbidden {
-			t.Errorf("bad token: status %d, want 403", code)
+		if code, _ := h.apiCall("not-a-token", "GET", "/api/v1/lists", nil); code != http.StatusUnauthorized {
+			t.Errorf("bad token: status %d, want 401", code)
 		}
 	})
 	t.Run("ReadLists", func(t *testing.T) {

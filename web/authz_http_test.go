@@ -33,6 +33,7 @@ const (
 	see  = http.StatusSeeOther // a redirect: after a change, or to sign in
 	bad  = http.StatusUnprocessableEntity
 	forb = http.StatusForbidden
+	unau = http.StatusUnauthorized // API without a valid bearer token (RFC 6750, section 3.1)
 	nf   = http.StatusNotFound
 	tmr  = http.StatusTooManyRequests
 )
@@ -46,7 +47,7 @@ var (
 	// A change to one of this team's things by an editor or an owner.
 	teamWrite = want{see, see, forb, nf, see, see, see, see}
 	// An API read of one of this team's things.
-	apiThing = want{forb, forb, forb, forb, forb, forb, nf, ok}
+	apiThing = want{unau, unau, unau, unau, unau, unau, nf, ok}
 )
 
 // authzWorld holds the ids a route's path and form are made from. A fresh
@@ -243,31 +244,31 @@ func authzTable() []authzRow {
 			return url.Values{"version": {fmt.Sprint(w.siteVersion)}}
 		}, want: want{http.StatusConflict, http.StatusConflict, forb, nf, see, see, see, see}}, // in use by the run
 
-		// JSON API: session cookies and share links do not count, only an
+		// JSON API (401 without a valid token): session cookies and share links do not count, only an
 		// API token; another team's token finds nothing of this team.
-		{method: "GET", pattern: "/api/v1/teams", path: p("/api/v1/teams"), want: want{forb, forb, forb, forb, forb, forb, ok, ok}},
-		{method: "GET", pattern: "/api/v1/lists", path: p("/api/v1/lists"), want: want{forb, forb, forb, forb, forb, forb, ok, ok}},
+		{method: "GET", pattern: "/api/v1/teams", path: p("/api/v1/teams"), want: want{unau, unau, unau, unau, unau, unau, ok, ok}},
+		{method: "GET", pattern: "/api/v1/lists", path: p("/api/v1/lists"), want: want{unau, unau, unau, unau, unau, unau, ok, ok}},
 		{method: "POST", pattern: "/api/v1/lists", path: p("/api/v1/lists"), json: func(authzWorld) string { return `{"name":"API list"}` },
-			want: want{forb, forb, forb, forb, forb, forb, made, made}},
+			want: want{unau, unau, unau, unau, unau, unau, made, made}},
 		{method: "PUT", pattern: "/api/v1/lists/{id}", fresh: true, path: pf("/api/v1/lists/%d", "list"),
 			json: func(w authzWorld) string {
 				return fmt.Sprintf(`{"name":"Renamed %d","version":%d}`, w.run, w.listVersion)
 			},
-			want: want{forb, forb, forb, forb, forb, forb, nf, ok}},
+			want: want{unau, unau, unau, unau, unau, unau, nf, ok}},
 		{method: "GET", pattern: "/api/v1/lists/{id}/targets", path: pf("/api/v1/lists/%d/targets", "list"), want: apiThing},
 		{method: "POST", pattern: "/api/v1/lists/{id}/targets", path: pf("/api/v1/lists/%d/targets", "list"), json: func(authzWorld) string { return `{}` },
-			want: want{forb, forb, forb, forb, forb, forb, bad, bad}},
+			want: want{unau, unau, unau, unau, unau, unau, bad, bad}},
 		{method: "GET", pattern: "/api/v1/targets/{id}", path: pf("/api/v1/targets/%d", "target"), want: apiThing},
 		{method: "PUT", pattern: "/api/v1/targets/{id}", path: pf("/api/v1/targets/%d", "target"), json: func(authzWorld) string { return `{}` },
-			want: want{forb, forb, forb, forb, forb, forb, bad, bad}},
+			want: want{unau, unau, unau, unau, unau, unau, bad, bad}},
 		{method: "DELETE", pattern: "/api/v1/targets/{id}", fresh: true, path: pf("/api/v1/targets/%d?version=VERSION", "target"),
-			want: want{forb, forb, forb, forb, forb, forb, nf, http.StatusNoContent}},
+			want: want{unau, unau, unau, unau, unau, unau, nf, http.StatusNoContent}},
 		{method: "GET", pattern: "/api/v1/night", path: func(w authzWorld) string { return "/api/v1/night" + night(w) }, want: apiThing},
-		{method: "GET", pattern: "/api/v1/windows", path: windowsQuery("/api/v1/windows"), want: want{forb, forb, forb, forb, forb, forb, bad, ok}},
-		{method: "GET", pattern: "/api/v1/runs", path: p("/api/v1/runs"), want: want{forb, forb, forb, forb, forb, forb, ok, ok}},
-		{method: "GET", pattern: "/api/v1/runs/{id}/plan", path: pf("/api/v1/runs/%d/plan", "run"), want: want{forb, forb, forb, forb, forb, forb, nf, nf}},
+		{method: "GET", pattern: "/api/v1/windows", path: windowsQuery("/api/v1/windows"), want: want{unau, unau, unau, unau, unau, unau, bad, ok}},
+		{method: "GET", pattern: "/api/v1/runs", path: p("/api/v1/runs"), want: want{unau, unau, unau, unau, unau, unau, ok, ok}},
+		{method: "GET", pattern: "/api/v1/runs/{id}/plan", path: pf("/api/v1/runs/%d/plan", "run"), want: want{unau, unau, unau, unau, unau, unau, nf, nf}},
 		{method: "POST", pattern: "/api/v1/runs/{id}/plan", path: pf("/api/v1/runs/%d/plan", "run"), json: func(authzWorld) string { return `{}` },
-			want: want{forb, forb, forb, forb, forb, forb, nf, made}},
+			want: want{unau, unau, unau, unau, unau, unau, nf, made}},
 		{method: "GET", pattern: "/api/v1/runs/{id}/coverage", path: pf("/api/v1/runs/%d/coverage", "run"), want: apiThing},
 
 		// Last: these change the callers' memberships. Making a team adds

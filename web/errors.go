@@ -13,6 +13,9 @@ const (
 	codeConflict  = "ECONFLICT"
 	codeForbidden = "EFORBIDDEN"
 	codeInternal  = "EINTERNAL"
+	// codeUnauthenticated is the web's own: an API request whose bearer
+	// token is missing, revoked, expired or unknown (RFC 6750, section 3.1).
+	codeUnauthenticated = "EUNAUTHENTICATED"
 )
 
 // errMalformed marks a request that could not be parsed at all (bad form
@@ -26,6 +29,7 @@ var errMalformed = errors.New("malformed request")
 //	ENOTFOUND  → 404
 //	ECONFLICT  → 409
 //	EFORBIDDEN → 403
+//	EUNAUTHENTICATED → 401 (API requests without a valid bearer token)
 //	EINTERNAL and anything unknown → 500
 func statusFor(err error) (status int, message string) {
 	if errors.Is(err, errMalformed) {
@@ -45,6 +49,8 @@ func statusFor(err error) (status int, message string) {
 		return http.StatusConflict, orDefault(msg, "Someone else changed this in the meantime.")
 	case codeForbidden:
 		return http.StatusForbidden, orDefault(msg, "You are not allowed to do that.")
+	case codeUnauthenticated:
+		return http.StatusUnauthorized, orDefault(msg, "Send a valid API token.")
 	}
 	return http.StatusInternalServerError, "Something went wrong on our side; it has been logged."
 }

@@ -193,9 +193,9 @@ func TestSessionSecurity(t *testing.T) {
 		if resp := h.post(h.client("owner"), "/account/tokens/"+i64s(k.ID)+"/revoke", nil); resp.StatusCode != http.StatusSeeOther {
 			t.Fatalf("revoke = %d", resp.StatusCode)
 		}
-		// docs/api.md: a request without a valid token gets 403.
-		if code, auth := api(tok, "/api/v1/teams"); code != http.StatusForbidden || !strings.Contains(auth, "invalid_token") {
-			t.Errorf("revoked token = %d (WWW-Authenticate %q), want 403 with error=\"invalid_token\"", code, auth)
+		// RFC 6750, section 3.1 and docs/api.md: an invalid token gets 401.
+		if code, auth := api(tok, "/api/v1/teams"); code != http.StatusUnauthorized || !strings.Contains(auth, "invalid_token") {
+			t.Errorf("revoked token = %d (WWW-Authenticate %q), want 401 with error=\"invalid_token\"", code, auth)
 		}
 	})
 
@@ -205,8 +205,8 @@ func TestSessionSecurity(t *testing.T) {
 			t.Fatal(err)
 		}
 		clk.advance(24*time.Hour + time.Second)
-		if code, _ := api(tok, "/api/v1/teams"); code != http.StatusForbidden {
-			t.Errorf("expired token = %d, want 403", code)
+		if code, _ := api(tok, "/api/v1/teams"); code != http.StatusUnauthorized {
+			t.Errorf("expired token = %d, want 401", code)
 		}
 	})
 
