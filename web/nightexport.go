@@ -18,19 +18,13 @@ import (
 // cautionText goes with every exported plan.
 const cautionText = "Times are computed; verify against the observatory's own tools and rules before pointing. Never point near the Sun."
 
-// nightJSON is the JSON export of a night; its keys follow the plan
-// command's output.
-type nightJSON struct {
-	Site        siteJSON          `json:"site"`
-	Date        string            `json:"date"`
-	Zone        string            `json:"zone"`
-	Night       nightEventsJSON   `json:"night"`
-	Blocks      []blockJSON       `json:"blocks"`
-	Unscheduled []unscheduledJSON `json:"unscheduled"`
-	Warnings    []warningJSON     `json:"warnings"`
-	Constraints constraintsJSON   `json:"constraints"`
-	Objective   objectiveJSON     `json:"objective"`
-	Caution     string            `json:"caution"`
+// nightDoc is the JSON export of a night (also GET /api/v1/night): the
+// site, date and zone, then the plan command's document, planner.PlanDoc.
+type nightDoc struct {
+	Site siteJSON `json:"site"`
+	Date string   `json:"date"`
+	Zone string   `json:"zone"`
+	planner.PlanDoc
 }
 
 type siteJSON struct {
@@ -40,115 +34,25 @@ type siteJSON struct {
 	ElevM      float64 `json:"elev_m"`
 }
 
-type nightEventsJSON struct {
-	Sunset           *string `json:"sunset"`
-	CivilDusk        *string `json:"civil_dusk"`
-	NauticalDusk     *string `json:"nautical_dusk"`
-	AstronomicalDusk *string `json:"astronomical_dusk"`
-	AstronomicalDawn *string `json:"astronomical_dawn"`
-	NauticalDawn     *string `json:"nautical_dawn"`
-	CivilDawn        *string `json:"civil_dawn"`
-	Sunrise          *string `json:"sunrise"`
-	Moonrise         *string `json:"moonrise"`
-	Moonset          *string `json:"moonset"`
-	MoonIlluminated  float64 `json:"moon_illuminated"`
-}
-
-type blockJSON struct {
-	Target         string   `json:"target"`
-	PhaseGoal      *float64 `json:"phase_goal"`
-	Event          string   `json:"event,omitempty"`
-	Start          string   `json:"start"`
-	End            string   `json:"end"`
-	NExposures     int      `json:"n_exposures"`
-	ExposureS      float64  `json:"exposure_s"`
-	OverheadS      float64  `json:"overhead_s"`
-	PhaseStart     float64  `json:"phase_start"`
-	PhaseEnd       float64  `json:"phase_end"`
-	PhaseMid       float64  `json:"phase_mid"`
-	PhaseFirstMid  float64  `json:"phase_first_exposure_mid"`
-	PhaseLastMid   float64  `json:"phase_last_exposure_mid"`
-	PhaseHalfWidth *float64 `json:"phase_halfwidth"`
-	Smear          float64  `json:"smear"`
-	PhaseErr       float64  `json:"phase_err"`
-	Cycle          int64    `json:"cycle"`
-	AirmassMin     float64  `json:"airmass_min"`
-	AirmassMax     float64  `json:"airmass_max"`
-	AcquireS       float64  `json:"acquire_s"`
-	MoonSepDeg     float64  `json:"moon_sep_deg"`
-	MoonUp         bool     `json:"moon_up"`
-	ParallacticDeg float64  `json:"parallactic_deg"`
-	HourAngleHours float64  `json:"hour_angle_hours"`
-	SunAltStartDeg float64  `json:"sun_alt_start_deg"`
-	Priority       int      `json:"priority"`
-	Filler         bool     `json:"filler"`
-	Warnings       []string `json:"warnings"`
-}
-
-type unscheduledJSON struct {
-	Target    string  `json:"target"`
-	PhaseGoal float64 `json:"phase_goal"`
-	Reason    string  `json:"reason"`
-	Code      string  `json:"reason_code"`
-}
-
-type warningJSON struct {
-	Code    string `json:"code"`
-	Target  string `json:"target,omitempty"`
-	Message string `json:"message"`
-}
-
-type constraintsJSON struct {
-	Twilight      string  `json:"twilight"`
-	SunAltMaxDeg  float64 `json:"sun_alt_max_deg"`
-	MaxAirmass    float64 `json:"max_airmass"`
-	MinAltDeg     float64 `json:"min_alt_deg"`
-	MinMoonSepDeg float64 `json:"min_moon_sep_deg"`
-	MaxMoonIllum  float64 `json:"max_moon_illum"`
-	SunAvoidDeg   float64 `json:"sun_avoid_deg"`
-}
-
-type objectiveJSON struct {
-	Value       int64 `json:"value"`
-	GreedyValue int64 `json:"greedy_value"`
-	Optimal     bool  `json:"optimal"`
-}
-
 // utcString writes an instant as RFC 3339 UTC.
 func utcString(t time.Time) string { return t.UTC().Format(time.RFC3339) }
 
 // exportJSON is the night as JSON.
 func (n *night) exportJSON() ([]byte, error) {
-	p, ev := n.plan, n.events
-	out := nightJSON{
-		Site: siteJSON{n.site.Name, n.site.Site.LatDeg, n.site.Site.LonEastDeg, n.site.Site.ElevM}, Date: n.q.date, Zone: n.site.Zone,
-		Night: nightEventsJSON{utcp(ev.Sunset), utcp(ev.CivilDusk), utcp(ev.NauticalDusk), utcp(ev.AstronomicalDusk), utcp(ev.AstronomicalDawn),
-			utcp(ev.NauticalDawn), utcp(ev.CivilDawn), utcp(ev.Sunrise), utcp(ev.Moonrise), utcp(ev.Moonset), ev.MoonIlluminated},
-		Blocks: []blockJSON{}, Unscheduled: []unscheduledJSON{}, Warnings: []warningJSON{},
-		Constraints: constraintsJSON{string(p.Constraints.Twilight), p.Constraints.SunAltMaxDeg, p.Constraints.MaxAirmass, p.Constraints.MinAltDeg,
-			p.Constraints.MinMoonSepDeg, p.Constraints.MaxMoonIllum, p.Constraints.SunAvoidDeg},
-		Objective: objectiveJSON{p.Value, p.GreedyValue, p.Optimal}, Caution: cautionText + " " + planner.SafetyCaution,
-	}
-	for _, b := range p.Blocks {
-		out.Blocks = append(out.Blocks, toBlockJSON(b))
-	}
-	for _, u := range p.Unscheduled {
-		out.Unscheduled = append(out.Unscheduled, unscheduledJSON{u.Target, u.Goal.Center, u.Detail, string(u.Reason)})
-	}
-	for _, w := range p.Warnings {
-		out.Warnings = append(out.Warnings, warningJSON{string(w.Code), w.Target, w.Message})
-	}
+	out := nightDoc{Site: siteJSON{n.site.Name, n.site.Site.LatDeg, n.site.Site.LonEastDeg, n.site.Site.ElevM}, Date: n.q.date, Zone: n.site.Zone,
+		PlanDoc: planner.NewPlanDoc(n.plan, n.events, largestAcquire(n.req.Targets))}
+	out.Caution = cautionText + " " + planner.SafetyCaution
 	return json.MarshalIndent(out, "", "  ")
 }
 
-// utcp writes an optional event as RFC 3339 UTC to the second (null when
-// the event does not happen).
-func utcp(t *time.Time) *string {
-	if t == nil {
-		return nil
+// largestAcquire is the largest acquisition overhead per visit of ts, in
+// seconds (the constraints' acquire_s; each block shows its target's own).
+func largestAcquire(ts []planner.Target) float64 {
+	m := 0.0
+	for _, t := range ts {
+		m = max(m, t.AcquireS)
 	}
-	u := t.UTC().Round(time.Second).Format(time.RFC3339)
-	return &u
+	return m
 }
 
 // nightCSVHeader is the CSV export's header.

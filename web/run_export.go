@@ -70,7 +70,7 @@ func runCSV(doc *runDoc) ([]byte, error) {
 			if b.PhaseGoal != nil {
 				goal = num(*b.PhaseGoal)
 			}
-			_ = cw.Write([]string{n.Date, n.Part, safeCell(b.Target), goal, safeCell(b.Event), b.Start, b.End, strconv.Itoa(b.NExposures),
+			_ = cw.Write([]string{n.Date, n.Part, safeCell(b.Target), goal, safeCell(b.Event), b.Start.String(), b.End.String(), strconv.Itoa(b.NExposures),
 				num(b.ExposureS), num(b.OverheadS), f(b.PhaseStart), f(b.PhaseEnd), f(b.AirmassMin), f(b.AirmassMax),
 				strconv.Itoa(b.Priority), strconv.FormatBool(b.Filler)})
 		}
@@ -85,12 +85,8 @@ func runICS(doc *runDoc, planID int64, stamp time.Time) ([]byte, error) {
 	cal := ical.Calendar{ProdID: "-//phasecast//run plan//EN", Name: "Run " + doc.Run}
 	for _, n := range doc.Nights {
 		for _, b := range n.Blocks {
-			start, err1 := time.Parse(time.RFC3339, b.Start)
-			end, err2 := time.Parse(time.RFC3339, b.End)
-			if err1 != nil || err2 != nil {
-				return nil, fmt.Errorf("block times %q–%q", b.Start, b.End)
-			}
-			sum := sha256.Sum256([]byte(fmt.Sprintf("%d|%d|%s", doc.RunID, b.TargetID, b.Start)))
+			start, end := time.Time(b.Start), time.Time(b.End)
+			sum := sha256.Sum256([]byte(fmt.Sprintf("%d|%d|%s", doc.RunID, b.TargetID, b.Start.String())))
 			goal := "filler"
 			if b.PhaseGoal != nil {
 				goal = "φ " + num(*b.PhaseGoal)

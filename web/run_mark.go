@@ -49,7 +49,7 @@ func (s *Server) runMark(w http.ResponseWriter, r *http.Request, u *user) {
 // from its start, or one failed record spanning a lost block's first
 // exposure.
 func blockObservations(runID int64, b runBlockDoc, status string) []store.ObservationInput {
-	start, _ := time.Parse(time.RFC3339, b.Start)
+	start := time.Time(b.Start)
 	step := time.Duration((b.ExposureS + b.OverheadS) * float64(time.Second))
 	var goal *float64
 	if b.PhaseGoal != nil {

@@ -64,8 +64,7 @@ func (s *Server) planRunJob(ctx context.Context, a store.Actor, in *runInputs, p
 	}
 	inputs, err := json.Marshal(map[string]any{"run_id": in.run.ID, "site_id": in.site.ID, "site_version": in.site.Version,
 		"list_id": in.run.ListID, "targets": len(in.targets), "observed": len(req.Observed), "past_nights": past,
-		"constraints": constraintsJSON{string(req.Constraints.Twilight), req.Constraints.SunAltMaxDeg, req.Constraints.MaxAirmass,
-			req.Constraints.MinAltDeg, req.Constraints.MinMoonSepDeg, req.Constraints.MaxMoonIllum, req.Constraints.SunAvoidDeg}})
+		"constraints": planner.NewConstraintsDoc(req.Constraints, largestAcquire(req.Targets))})
 	if err != nil {
 		return "", err
 	}

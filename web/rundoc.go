@@ -27,18 +27,18 @@ type runDoc struct {
 }
 
 type runNightDoc struct {
-	Date        string            `json:"date"`
-	Part        string            `json:"part"`
-	From        string            `json:"from"`
-	To          string            `json:"to"`
-	Past        bool              `json:"past"`
-	Blocks      []runBlockDoc     `json:"blocks"`
-	Unscheduled []unscheduledJSON `json:"unscheduled"`
-	Warnings    []string          `json:"warnings"`
+	Date        string                   `json:"date"`
+	Part        string                   `json:"part"`
+	From        string                   `json:"from"`
+	To          string                   `json:"to"`
+	Past        bool                     `json:"past"`
+	Blocks      []runBlockDoc            `json:"blocks"`
+	Unscheduled []planner.UnscheduledDoc `json:"unscheduled"`
+	Warnings    []string                 `json:"warnings"`
 }
 
 type runBlockDoc struct {
-	blockJSON
+	planner.BlockDoc
 	TargetID int64 `json:"target_id"`
 }
 
@@ -101,16 +101,16 @@ func newRunDoc(in *runInputs, rp *planner.RunPlan, now time.Time) runDoc {
 	}
 	for _, np := range rp.Nights {
 		nd := runNightDoc{Date: fmt.Sprintf("%04d-%02d-%02d", np.Night.Year, np.Night.Month, np.Night.Day), Part: string(np.Night.Part),
-			From: utcString(np.From), To: utcString(np.To), Past: np.Past, Blocks: []runBlockDoc{}, Unscheduled: []unscheduledJSON{}}
+			From: utcString(np.From), To: utcString(np.To), Past: np.Past, Blocks: []runBlockDoc{}, Unscheduled: []planner.UnscheduledDoc{}}
 		if nd.Part == "" {
 			nd.Part = string(planner.PartFull)
 		}
 		if np.Plan != nil {
 			for _, b := range np.Plan.Blocks {
-				nd.Blocks = append(nd.Blocks, runBlockDoc{blockJSON: toBlockJSON(b), TargetID: ids[b.TargetIndex]})
+				nd.Blocks = append(nd.Blocks, runBlockDoc{BlockDoc: planner.NewBlockDoc(b), TargetID: ids[b.TargetIndex]})
 			}
 			for _, u := range np.Plan.Unscheduled {
-				nd.Unscheduled = append(nd.Unscheduled, unscheduledJSON{u.Target, u.Goal.Center, u.Detail, string(u.Reason)})
+				nd.Unscheduled = append(nd.Unscheduled, planner.NewUnscheduledDoc(u))
 			}
 			for _, w := range np.Plan.Warnings {
 				nd.Warnings = append(nd.Warnings, warningText(w))
@@ -163,22 +163,4 @@ func newRunDoc(in *runInputs, rp *planner.RunPlan, now time.Time) runDoc {
 		}
 	}
 	return d
-}
-
-// toBlockJSON converts a block with every figure.
-func toBlockJSON(b planner.Block) blockJSON {
-	bj := blockJSON{Target: b.Target, Event: b.Goal.Event, Start: utcString(b.Start), End: utcString(b.End), NExposures: b.N,
-		ExposureS: b.ExposureS, OverheadS: b.OverheadS, PhaseStart: b.PhaseStart, PhaseEnd: b.PhaseEnd, PhaseMid: b.PhaseMid,
-		PhaseFirstMid: b.PhaseFirstMid, PhaseLastMid: b.PhaseLastMid, Smear: b.Smear, PhaseErr: b.PhaseErr, Cycle: b.Cycle,
-		AirmassMin: b.AirmassMin, AirmassMax: b.AirmassMax, AcquireS: b.AcquireS, MoonSepDeg: b.MoonSepDeg, MoonUp: b.MoonUp,
-		ParallacticDeg: b.Parallactic, HourAngleHours: b.HourAngle, SunAltStartDeg: b.SunAltStart, Priority: b.Priority,
-		Filler: b.Filler, Warnings: []string{}}
-	if !b.Filler {
-		c, w := b.Goal.Center, b.Goal.HalfWidth
-		bj.PhaseGoal, bj.PhaseHalfWidth = &c, &w
-	}
-	for _, w := range b.Warnings {
-		bj.Warnings = append(bj.Warnings, w.Message)
-	}
-	return bj
 }

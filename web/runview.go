@@ -122,8 +122,7 @@ func ringOf(t runTargetDoc) chart.Ring {
 
 // runBlockRow formats a block of a run night with its outcome.
 func runBlockRow(in *runInputs, i int, b runBlockDoc) page.RunBlockRow {
-	start, _ := time.Parse(time.RFC3339, b.Start)
-	end, _ := time.Parse(time.RFC3339, b.End)
+	start, end := time.Time(b.Start), time.Time(b.End)
 	goal := "filler"
 	if b.PhaseGoal != nil {
 		goal = goalLabel(planner.Goal{Center: *b.PhaseGoal, HalfWidth: *b.PhaseHalfWidth, Event: b.Event})
