@@ -27,22 +27,12 @@ the site's position; the Shapiro delay (≤ 0.1 ms) is neglected.`
 
 func runBJD(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("bjd", bjdSynopsis)
-	sf := addSiteFlags(fl)
-	tf := addTargetFlags(fl)
-	at := fl.text("at", "TIME", "now", "instant of observation, RFC 3339; UTC unless an offset is given")
+	sg := addSightingFlags(fl, "instant of observation, RFC 3339; UTC unless an offset is given")
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	site, err := sf.site()
-	if err != nil {
-		return err
-	}
-	star, err := tf.star()
-	if err != nil {
-		return err
-	}
-	t, err := instant(at, time.Now)
+	site, star, t, err := sg.read(time.Now)
 	if err != nil {
 		return err
 	}

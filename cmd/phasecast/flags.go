@@ -285,6 +285,38 @@ func (t targetFlags) star() (ephem.Star, error) {
 	return ephem.Star{RADeg: ra, DecDeg: dec, PMRAmasyr: pmra, PMDecmasyr: pmdec}, nil
 }
 
+// sightingFlags are the site, the target and the instant (--at) of a command
+// about one target seen from a site at one moment (bjd, phase, sky).
+type sightingFlags struct {
+	site   siteFlags
+	target targetFlags
+	at     *textValue
+}
+
+// addSightingFlags adds the site flags, the target flags and --at (help
+// text atUsage), in that order.
+func addSightingFlags(f *flags, atUsage string) sightingFlags {
+	return sightingFlags{site: addSiteFlags(f), target: addTargetFlags(f), at: f.text("at", "TIME", "now", atUsage)}
+}
+
+// read parses and validates the site, the target and the instant (now()
+// when --at is not given), in that order.
+func (s sightingFlags) read(now func() time.Time) (ephem.Site, ephem.Star, time.Time, error) {
+	site, err := s.site.site()
+	if err != nil {
+		return ephem.Site{}, ephem.Star{}, time.Time{}, err
+	}
+	star, err := s.target.star()
+	if err != nil {
+		return ephem.Site{}, ephem.Star{}, time.Time{}, err
+	}
+	t, err := instant(s.at, now)
+	if err != nil {
+		return ephem.Site{}, ephem.Star{}, time.Time{}, err
+	}
+	return site, star, t, nil
+}
+
 // instant parses a time flag; when it was not given the result is now.
 func instant(v *textValue, now func() time.Time) (time.Time, error) {
 	if !v.set {

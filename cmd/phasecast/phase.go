@@ -24,23 +24,13 @@ uncertainty propagated from those of T0 and P. Phase 0 is the event T0 marks.`
 
 func runPhase(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("phase", phaseSynopsis)
-	sf := addSiteFlags(fl)
-	tf := addTargetFlags(fl)
-	at := fl.text("at", "TIME", "now", "instant of observation, RFC 3339; UTC unless an offset is given")
+	sg := addSightingFlags(fl, "instant of observation, RFC 3339; UTC unless an offset is given")
 	ef := addEphemFlags(fl)
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	site, err := sf.site()
-	if err != nil {
-		return err
-	}
-	star, err := tf.star()
-	if err != nil {
-		return err
-	}
-	t, err := instant(at, time.Now)
+	site, star, t, err := sg.read(time.Now)
 	if err != nil {
 		return err
 	}
@@ -54,7 +44,7 @@ func runPhase(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	cycle, ph, err := e.Locate(b.BJDTDB)
 	if err != nil {
-		return fromInputError(err, "has no orbital phase", map[string]*textValue{"bjd": at})
+		return fromInputError(err, "has no orbital phase", map[string]*textValue{"bjd": sg.at})
 	}
 	out := phaseJSON{BJDTDB: jdValue(b.BJDTDB), Cycle: cycle, Phase: ph, PhaseErr: e.PhaseErr(b.BJDTDB)}
 	if err := checkFinite([]string{"phase", "phase uncertainty"}, out.Phase, out.PhaseErr); err != nil {

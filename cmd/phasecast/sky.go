@@ -34,22 +34,12 @@ distance from the target. UT1 is taken equal to UTC.`
 
 func runSky(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("sky", skySynopsis)
-	sf := addSiteFlags(fl)
-	tf := addTargetFlags(fl)
-	at := fl.text("at", "TIME", "now", "instant, RFC 3339 (2026-12-01T03:00:00Z); UTC unless an offset is given")
+	sg := addSightingFlags(fl, "instant, RFC 3339 (2026-12-01T03:00:00Z); UTC unless an offset is given")
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	site, err := sf.site()
-	if err != nil {
-		return err
-	}
-	star, err := tf.star()
-	if err != nil {
-		return err
-	}
-	t, err := instant(at, time.Now)
+	site, star, t, err := sg.read(time.Now)
 	if err != nil {
 		return err
 	}
