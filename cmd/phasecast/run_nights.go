@@ -405,7 +405,7 @@ func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq flo
 				nj := runBestNightJSON{Date: rp.Nights[gn.Night].Night.String(), Capacity: gn.Capacity, DurationMin: gn.Duration.Minutes(),
 					AirmassMin: gn.AirmassMin, AirmassMax: gn.AirmassMax, PhaseErr: gn.PhaseErr, Windows: []intervalJSON{}}
 				for _, w := range gn.Windows {
-					nj.Windows = append(nj.Windows, intervalJSON{planTime(w.Start), planTime(w.End)})
+					nj.Windows = append(nj.Windows, intervalJSON{Start: planTime(w.Start), End: planTime(w.End)})
 				}
 				gj.Nights = append(gj.Nights, nj)
 			}
