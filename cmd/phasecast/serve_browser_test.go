@@ -242,16 +242,35 @@ func pdfPages(pdf []byte) int {
 // waitForFile waits up to 20 s for a finished download with suffix in dir.
 func waitForFile(t *testing.T, dir, suffix string) string {
 	t.Helper()
+	// Chromium may create the file under its final name before it has
+	// written all of it: wait until no partial download remains and the
+	// size has stayed the same for half a second.
 	deadline := time.Now().Add(20 * time.Second)
+	var found string
+	lastSize, stableSince := int64(-1), time.Time{}
 	for time.Now().Before(deadline) {
 		entries, _ := os.ReadDir(dir)
+		partial := false
+		found = ""
 		for _, e := range entries {
-			if strings.HasSuffix(e.Name(), suffix) {
-				return filepath.Join(dir, e.Name())
+			switch {
+			case strings.HasSuffix(e.Name(), ".crdownload"):
+				partial = true
+			case strings.HasSuffix(e.Name(), suffix):
+				found = filepath.Join(dir, e.Name())
+			}
+		}
+		if found != "" && !partial {
+			if fi, err := os.Stat(found); err == nil {
+				if fi.Size() != lastSize {
+					lastSize, stableSince = fi.Size(), time.Now()
+				} else if fi.Size() > 0 && time.Since(stableSince) >= 500*time.Millisecond {
+					return found
+				}
 			}
 		}
 		time.Sleep(100 * time.Millisecond)
 	}
-	t.Fatalf("no %s file downloaded into %s", suffix, dir)
+	t.Fatalf("no complete %s file downloaded into %s (last seen %q, %d bytes)", suffix, dir, found, lastSize)
 	return ""
 }
