@@ -2,6 +2,7 @@ package web
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"io"
 	"net/http"
@@ -56,6 +57,7 @@ var (
 type authzWorld struct {
 	list, target, targetVersion, site, siteVersion, run, timing  int64
 	listVersion, shareID, inviteID, tokenID, memberID, memberVer int64
+	plan                                                         int64 // the run's saved plan (shared world only)
 	runShareToken, inviteToken, linkToken                        string
 }
 
@@ -80,7 +82,7 @@ func ids(w authzWorld) map[string]int64 {
 func pf(format string, names ...string) func(authzWorld) string {
 	return func(w authzWorld) string {
 		m := ids(w)
-		m["timing"], m["share"], m["invite"], m["token"], m["member"] = w.timing, w.shareID, w.inviteID, w.tokenID, w.memberID
+		m["timing"], m["share"], m["invite"], m["token"], m["member"], m["plan"] = w.timing, w.shareID, w.inviteID, w.tokenID, w.memberID, w.plan
 		args := make([]any, len(names))
 		for i, n := range names {
 			args[i] = m[n]
@@ -106,7 +108,6 @@ func authzTable() []authzRow {
 		return fmt.Sprintf("?site=%d&list=%d&date=2026-03-14", w.site, w.list)
 	}
 	public := want{ok, ok, ok, ok, ok, ok, ok, ok}
-	noPlan := want{nf, nf, nf, nf, see, see, see, see} // the run has no saved plan yet
 	// Windows are computed for the caller's own team: another team's member
 	// is told their team has no site and list (nothing of this team shown).
 	windowsWant := want{ok, ok, ok, bad, see, see, see, see}
@@ -189,7 +190,7 @@ func authzTable() []authzRow {
 			want: want{bad, bad, bad, nf, see, see, see, see}},
 		{method: "POST", pattern: "/targets/{id}/refine", fresh: true, path: pf("/targets/%d/refine", "target"),
 			form: func(w authzWorld) url.Values { return url.Values{"version": {fmt.Sprint(w.targetVersion)}} },
-			want: want{bad, bad, bad, nf, see, see, see, see}}, // one timing is too few to refine
+			want: teamWrite}, // two T0 timings: the fit is adopted
 		{method: "POST", pattern: "/timings/{id}/delete", fresh: true, path: pf("/timings/%d/delete", "timing"),
 			form: func(w authzWorld) url.Values {
 				return url.Values{"target": {fmt.Sprint(w.target)}, "version": {fmt.Sprint(w.targetVersion)}}
@@ -216,15 +217,17 @@ func authzTable() []authzRow {
 			return url.Values{"name": {fmt.Sprint("New run ", w.run)}, "list": {fmt.Sprint(w.list)}, "site": {fmt.Sprint(w.site)}, "nights": {"2026-03-14"}}
 		}, want: teamWrite},
 		{method: "GET", pattern: "/runs/{id}", path: pf("/runs/%d", "run"), want: teamThing},
-		{method: "POST", pattern: "/runs/{id}/optimize", path: pf("/runs/%d/optimize", "run"), want: want{bad, bad, forb, nf, see, see, see, see}},
-		{method: "POST", pattern: "/runs/{id}/mark", path: pf("/runs/%d/mark", "run"), form: form("plan", "999999", "night", "0", "block", "0", "status", "done"),
-			want: want{nf, nf, nf, nf, see, see, see, see}}, // no such plan
+		// A started job is followed to its end (a saved plan) before the next case.
+		{method: "POST", pattern: "/runs/{id}/optimize", fresh: true, path: pf("/runs/%d/optimize", "run"), form: form("past", "0"), want: teamWrite},
+		{method: "POST", pattern: "/runs/{id}/mark", path: pf("/runs/%d/mark", "run"), form: func(w authzWorld) url.Values {
+			return url.Values{"plan": {fmt.Sprint(w.plan)}, "night": {"0"}, "block": {"0"}, "status": {"done"}}
+		}, want: teamWrite},
 		{method: "POST", pattern: "/runs/{id}/share", path: pf("/runs/%d/share", "run"), form: form("label", "x", "ttl_days", "7"),
 			want: want{ok, ok, forb, nf, see, see, see, see}},
 		{method: "POST", pattern: "/runs/{id}/observed", path: pf("/runs/%d/observed", "run"), want: want{bad, bad, bad, nf, see, see, see, see}},
-		{method: "GET", pattern: "/runs/{id}/plan.csv", path: pf("/runs/%d/plan.csv", "run"), want: noPlan},
-		{method: "GET", pattern: "/runs/{id}/plan.json", path: pf("/runs/%d/plan.json", "run"), want: noPlan},
-		{method: "GET", pattern: "/runs/{id}/plan.ics", path: pf("/runs/%d/plan.ics", "run"), want: noPlan},
+		{method: "GET", pattern: "/runs/{id}/plan.csv", path: pf("/runs/%d/plan.csv?plan=%d", "run", "plan"), want: teamThing},
+		{method: "GET", pattern: "/runs/{id}/plan.json", path: pf("/runs/%d/plan.json?plan=%d", "run", "plan"), want: teamThing},
+		{method: "GET", pattern: "/runs/{id}/plan.ics", path: pf("/runs/%d/plan.ics?plan=%d", "run", "plan"), want: teamThing},
 
 		// Queue windows.
 		{method: "GET", pattern: "/windows", path: p("/windows"), want: teamPage},
@@ -266,7 +269,7 @@ func authzTable() []authzRow {
 		{method: "GET", pattern: "/api/v1/night", path: func(w authzWorld) string { return "/api/v1/night" + night(w) }, want: apiThing},
 		{method: "GET", pattern: "/api/v1/windows", path: windowsQuery("/api/v1/windows"), want: want{unau, unau, unau, unau, unau, unau, bad, ok}},
 		{method: "GET", pattern: "/api/v1/runs", path: p("/api/v1/runs"), want: want{unau, unau, unau, unau, unau, unau, ok, ok}},
-		{method: "GET", pattern: "/api/v1/runs/{id}/plan", path: pf("/api/v1/runs/%d/plan", "run"), want: want{unau, unau, unau, unau, unau, unau, nf, nf}},
+		{method: "GET", pattern: "/api/v1/runs/{id}/plan", path: pf("/api/v1/runs/%d/plan", "run"), want: apiThing},
 		{method: "POST", pattern: "/api/v1/runs/{id}/plan", path: pf("/api/v1/runs/%d/plan", "run"), json: func(authzWorld) string { return `{}` },
 			want: want{unau, unau, unau, unau, unau, unau, nf, made}},
 		{method: "GET", pattern: "/api/v1/runs/{id}/coverage", path: pf("/api/v1/runs/%d/coverage", "run"), want: apiThing},
@@ -322,7 +325,12 @@ func (h *harness) newAuthzWorld(tb testing.TB, n int) authzWorld {
 	if err != nil {
 		tb.Fatal(err)
 	}
-	tms, err := h.store.AddTimings(ctx, owner, w.target, []store.TimingInput{{Event: "", T: ep, ErrDays: 1e-5}})
+	// A second T0 timing 1,000 cycles on, 4.3 s late: enough to refine.
+	ep2, err := store.ParseEpoch("2460480.123507", ephem.StdBJDTDB, ephem.FormJD)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	tms, err := h.store.AddTimings(ctx, owner, w.target, []store.TimingInput{{Event: "", T: ep, ErrDays: 1e-5}, {Event: "", T: ep2, ErrDays: 1e-5}})
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -393,6 +401,66 @@ func (h *harness) newAuthzWorld(tb testing.TB, n int) authzWorld {
 	return w
 }
 
+// addAuthzPlan plans w's run through the optimizer's own code path
+// (planRunJob, as POST /runs/{id}/optimize does in the background) and
+// records the saved plan's id; the plan must have a block to mark.
+func (h *harness) addAuthzPlan(tb testing.TB, w *authzWorld) {
+	tb.Helper()
+	ctx := context.Background()
+	owner := h.actor("owner")
+	in, err := h.srv.loadRun(ctx, owner, w.run)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	if _, err := h.srv.planRunJob(ctx, owner, in, 0, &job{}); err != nil {
+		tb.Fatal(err)
+	}
+	plans, err := h.store.ListPlans(ctx, owner, w.run)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	if len(plans) != 1 {
+		tb.Fatalf("run %d has %d saved plans, want 1", w.run, len(plans))
+	}
+	w.plan = plans[0].ID
+	_, doc, _, err := h.srv.runPlanDoc(ctx, owner, w.run, w.plan)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	if len(doc.Nights) == 0 || len(doc.Nights[0].Blocks) == 0 {
+		tb.Fatalf("the saved plan of run %d has no block on its first night", w.run)
+	}
+}
+
+// followJob waits until the background job that resp redirects to has
+// finished and checks that it ended on the run's page with a saved plan.
+func followJob(t *testing.T, h *harness, c *http.Client, resp *http.Response) {
+	t.Helper()
+	loc := resp.Header.Get("Location")
+	if !strings.HasPrefix(loc, "/jobs/") {
+		return
+	}
+	for range 600 { // a bound, not a timing: 600 polls of 50 ms
+		_, body := h.get(c, loc+"/progress")
+		var p struct {
+			Done    bool   `json:"done"`
+			Next    string `json:"next"`
+			Message string `json:"message"`
+		}
+		if err := json.Unmarshal([]byte(body), &p); err != nil {
+			t.Fatalf("progress of %s is not JSON: %.200s", loc, body)
+		}
+		if p.Done {
+			if !strings.Contains(p.Next, "?plan=") {
+				t.Errorf("job %s finished at %q: %s", loc, p.Next, p.Message)
+			}
+			return
+		}
+		time.Sleep(50 * time.Millisecond)
+	}
+	t.Fatalf("job %s did not finish", loc)
+}
+
 // TestAuthorizationEveryRoute requests every registered route as each of
 // authzRoles and checks the status. A route without a row fails the test.
 func TestAuthorizationEveryRoute(t *testing.T) {
@@ -442,6 +510,7 @@ func TestAuthorizationEveryRoute(t *testing.T) {
 		t.Fatal(err)
 	}
 	shared := h.newAuthzWorld(t, 0)
+	h.addAuthzPlan(t, &shared)
 	_, listShareTok, err := h.store.CreateShareLink(ctx, h.actor("owner"), store.ShareInput{ListID: shared.list, Label: "visitor", TTL: 24 * time.Hour})
 	if err != nil {
 		t.Fatal(err)
@@ -507,6 +576,9 @@ func TestAuthorizationEveryRoute(t *testing.T) {
 				}
 				b, _ := io.ReadAll(resp.Body)
 				resp.Body.Close()
+				if row.pattern == "/runs/{id}/optimize" {
+					followJob(t, h, c, resp)
+				}
 				if (role == "outsider" || role == "apiOther") && !strings.HasPrefix(row.pattern, "/share/") && (strings.Contains(string(b), "AZT ") || strings.Contains(string(b), "Ridge ")) {
 					t.Errorf("%s %s as %s shows this team's targets or sites", row.method, path, role)
 				}
