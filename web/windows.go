@@ -20,10 +20,14 @@ import (
 )
 
 // windowsReq is a queue-windows request: the night query's site, list and
-// targets, and a range of local dates (?from=&to=).
+// targets, a range of local dates (?from=&to=) and optionally one goal of
+// a single target (?goal=N, its number in the target's goal list from 1;
+// empty = every goal).
 type windowsReq struct {
 	nightQuery
 	from, to string
+	goal     string // as given
+	goalN    int    // 1-based; 0 = every goal
 }
 
 // windows is a computed list of queue windows.
@@ -46,9 +50,13 @@ func (s *Server) loadWindows(ctx context.Context, a store.Actor, teamID int64, q
 	if err != nil {
 		return nil, nil, err
 	}
-	w := &windows{night: n, req: windowsReq{nightQuery: n.q, from: strings.TrimSpace(q.Get("from")), to: strings.TrimSpace(q.Get("to"))}}
+	w := &windows{night: n, req: windowsReq{nightQuery: n.q, from: strings.TrimSpace(q.Get("from")), to: strings.TrimSpace(q.Get("to")),
+		goal: strings.TrimSpace(q.Get("goal"))}}
 	if len(n.sites) == 0 || len(n.lists) == 0 {
 		return w, errs, nil
+	}
+	if msg := w.parseGoal(); msg != "" {
+		errs["goal"] = msg
 	}
 	if w.req.from == "" {
 		w.req.from = n.q.date
@@ -74,6 +82,9 @@ func (s *Server) loadWindows(ctx context.Context, a store.Actor, teamID int64, q
 	_, w.to = planner.NightWindow(y2, m2, d2, n.loc)
 	req := planner.WindowRequest{Site: n.site.Site, From: w.from, To: w.to, Constraints: n.constraints(errs)}
 	for _, t := range n.targets {
+		if w.req.goalN > 0 {
+			t.Target.Goals = []planner.Goal{t.Target.Goals[w.req.goalN-1]}
+		}
 		req.Targets = append(req.Targets, t.Target)
 	}
 	if len(errs) > 0 {
@@ -95,12 +106,34 @@ func (s *Server) loadWindows(ctx context.Context, a store.Actor, teamID int64, q
 	return w, errs, nil
 }
 
+// parseGoal checks ?goal= against the chosen targets: a goal is chosen
+// by its number (1 = the first) among the goals of exactly one target. It
+// returns a message for the field, or "".
+func (w *windows) parseGoal() string {
+	if w.req.goal == "" {
+		return ""
+	}
+	if len(w.targets) != 1 {
+		return fmt.Sprintf("“%s” needs exactly one target (t), and %d are chosen; accepted: empty (every goal) with several targets", w.req.goal, len(w.targets))
+	}
+	goals := w.targets[0].Target.Goals
+	k, err := strconv.Atoi(w.req.goal)
+	if err != nil || k < 1 || k > len(goals) {
+		return fmt.Sprintf("“%s” is not a goal of %s; accepted: 1 to %d (its goals in order), or empty for every goal", w.req.goal, w.targets[0].Target.Name, len(goals))
+	}
+	w.req.goalN = k
+	return ""
+}
+
 // encode writes the request as a query string.
 func (w *windows) encode() string {
 	q, _ := url.ParseQuery(w.req.nightQuery.encode())
 	q.Del("date")
 	q.Set("from", w.req.from)
 	q.Set("to", w.req.to)
+	if w.req.goalN > 0 {
+		q.Set("goal", strconv.Itoa(w.req.goalN))
+	}
 	return q.Encode()
 }
 
@@ -110,11 +143,21 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 	v := page.WindowsView{From: w.req.from, To: w.req.to, Errs: errs}
 	f := n.form(errs)
 	v.Sites, v.Lists, v.Targets = f.Sites, f.Lists, f.Targets
+	if len(n.targets) == 1 {
+		v.Goals = []page.Option{{Value: "", Label: "every goal", Selected: w.req.goal == ""}}
+		for i, g := range n.targets[0].Target.Goals {
+			k := strconv.Itoa(i + 1)
+			v.Goals = append(v.Goals, page.Option{Value: k, Label: k + ": " + goalLabel(g), Selected: w.req.goal == k})
+		}
+	}
 	if w.groups == nil {
 		return v
 	}
 	v.Done, v.Query = true, w.encode()
 	v.Title = fmt.Sprintf("Windows at %s, %s to %s", n.site.Name, w.req.from, w.req.to)
+	if w.req.goalN > 0 {
+		v.Title = fmt.Sprintf("Windows of %s, goal %d, at %s, %s to %s", n.targets[0].Target.Name, w.req.goalN, n.site.Name, w.req.from, w.req.to)
+	}
 	v.Zone, _ = w.from.In(n.loc).Zone()
 	for _, g := range w.groups {
 		grp := page.WindowGroup{Target: g.Target, Goal: goalLabel(g.Goal)}
@@ -159,9 +202,20 @@ func (w *windows) flat() []windowJSON {
 	return out
 }
 
+// windowsDoc is the JSON export; Goal is the chosen goal's number, absent
+// when every goal is listed.
+type windowsDoc struct {
+	Site    string       `json:"site"`
+	From    string       `json:"from"`
+	To      string       `json:"to"`
+	Goal    int          `json:"goal,omitempty"`
+	Windows []windowJSON `json:"windows"`
+	Caution string       `json:"caution"`
+}
+
 func (w *windows) exportJSON() ([]byte, error) {
-	return json.MarshalIndent(map[string]any{"site": w.site.Name, "from": utcString(w.from), "to": utcString(w.to),
-		"windows": w.flat(), "caution": cautionText}, "", "  ")
+	return json.MarshalIndent(windowsDoc{Site: w.site.Name, From: utcString(w.from), To: utcString(w.to), Goal: w.req.goalN,
+		Windows: w.flat(), Caution: cautionText}, "", "  ")
 }
 
 func (w *windows) exportCSV() ([]byte, error) {
@@ -203,5 +257,9 @@ func (w *windows) exportICS() ([]byte, error) {
 }
 
 func (w *windows) exportName(ext string) string {
-	return fileName(w.site.Name+"-"+w.req.from+"-"+w.req.to, "windows", ext)
+	name := w.site.Name + "-" + w.req.from + "-" + w.req.to
+	if w.req.goalN > 0 {
+		name = w.site.Name + "-" + w.targets[0].Target.Name + "-goal" + strconv.Itoa(w.req.goalN) + "-" + w.req.from + "-" + w.req.to
+	}
+	return fileName(name, "windows", ext)
 }
