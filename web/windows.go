@@ -147,7 +147,11 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 		v.Goals = []page.Option{{Value: "", Label: "every goal", Selected: w.req.goal == ""}}
 		for i, g := range n.targets[0].Target.Goals {
 			k := strconv.Itoa(i + 1)
-			v.Goals = append(v.Goals, page.Option{Value: k, Label: k + ": " + goalLabel(g), Selected: w.req.goal == k})
+			label := goalLabel(g)
+			if g.Event != "" { // an event goal's phase is found per window, not stored
+				label = fmt.Sprintf("%s ± %s", strings.ReplaceAll(g.Event, "_", " "), phaseNum(g.HalfWidth))
+			}
+			v.Goals = append(v.Goals, page.Option{Value: k, Label: k + ": " + label, Selected: w.req.goal == k})
 		}
 	}
 	if w.groups == nil {
