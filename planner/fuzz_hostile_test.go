@@ -280,9 +280,11 @@ func TestHostileObservedAmplification(t *testing.T) {
 	}
 	exps, err := planner.ParseObservedCSV(strings.NewReader(b.String()))
 	t.Logf("%d-byte log: %d exposures, err %v", b.Len(), len(exps), err)
-	if err == nil && len(exps) > planner.MaxObservedRows {
-		hostileKnownDefect(t, "planner.ParseObservedCSV bounds rows (MaxObservedRows) but not exposures: n_exposures ≤ 10000 per row multiplies it")
-		t.Fatalf("a %d-byte log gave %d exposures, more than MaxObservedRows (%d)", b.Len(), len(exps), planner.MaxObservedRows)
+	if err == nil {
+		t.Fatalf("a %d-byte log asking for 1,000,000 exposures was accepted (%d exposures; the limit is %d)", b.Len(), len(exps), planner.MaxObservedExposures)
+	}
+	if !strings.Contains(err.Error(), "line 22") || !strings.Contains(err.Error(), "too many exposures") || len(exps) != 0 {
+		t.Errorf("err %q, %d exposures: want the line past the exposure limit named and nothing read", err, len(exps))
 	}
 }
 
@@ -475,15 +477,5 @@ func TestHostileHorizonNumbers(t *testing.T) {
 				t.Fatalf("error %q does not name %s", err, tc.want)
 			}
 		})
-	}
-}
-
-// hostileKnownDefect skips a test that documents a reported, still unfixed
-// defect, unless PHASECAST_KNOWN_DEFECTS=1 asks to see it fail. Remove the
-// call when the defect is fixed.
-func hostileKnownDefect(tb testing.TB, what string) {
-	tb.Helper()
-	if os.Getenv("PHASECAST_KNOWN_DEFECTS") == "" {
-		tb.Skipf("known defect, reported (set PHASECAST_KNOWN_DEFECTS=1 to run): %s", what)
 	}
 }
