@@ -191,7 +191,11 @@ func (en *engine) reason(ts *targetState, gi int, g Goal, occs []occMeta, need [
 		inVis = append(inVis, intersectSpans(w, ts.vis)...)
 	}
 	if len(inDark) == 0 {
-		return UnschedWindowInDaylight, "its phase windows tonight " + en.windowList(ts, g, false) + " all fall outside dark time"
+		list := en.windowList(ts, g, false)
+		if list == "" {
+			return UnschedWindowInDaylight, "its phase window does not come round between this night's two local noons (the orbit is longer than the night)"
+		}
+		return UnschedWindowInDaylight, "its phase windows tonight " + list + " all fall outside dark time"
 	}
 	if len(ts.vis) == 0 {
 		var why reasonBits
@@ -251,7 +255,7 @@ func (en *engine) reason(ts *targetState, gi int, g Goal, occs []occMeta, need [
 
 // windowList formats the goal's windows overlapping the night window (only
 // their parts in dark time when darkOnly) as "(HH:MM–HH:MM, …) UTC", at most
-// five.
+// five; "" when there is none.
 func (en *engine) windowList(ts *targetState, g Goal, darkOnly bool) string {
 	var parts []string
 	for _, o := range ts.clock.occurrences(g.Center, g.HalfWidth, en.from, en.to, 50) {
@@ -265,6 +269,9 @@ func (en *engine) windowList(ts *targetState, g Goal, darkOnly bool) string {
 			}
 			parts = append(parts, timeOf(w.lo).Format("15:04")+"–"+timeOf(w.hi).Format("15:04"))
 		}
+	}
+	if len(parts) == 0 {
+		return ""
 	}
 	return "(" + strings.Join(parts, ", ") + " UTC)"
 }

@@ -2,6 +2,7 @@ package planner
 
 import (
 	"math"
+	"strings"
 	"testing"
 	"time"
 
@@ -321,5 +322,29 @@ func TestScenarioHighLatitudeSummer(t *testing.T) {
 				t.Errorf("dark %v, want ephem's civil dusk %v to dawn %v within 1 s", d, ev.CivilDusk, ev.CivilDawn)
 			}
 		})
+	}
+}
+
+// An orbit longer than the night: P = 3 d, and the goal (phase 0.5 ± 0.02,
+// ± 1.44 h) is centred at local midnight plus 1.5 d, so no part of any of
+// its windows lies between the night's two local noons (the nearest window
+// edges are 1.5 d − 1.44 h away from midnight, well outside the ± 12 h
+// span). The goal must be unscheduled, with a reason that says the window
+// does not come round tonight (not an empty list of windows).
+func TestScenarioWindowNotTonight(t *testing.T) {
+	site := ephem.Site{LatDeg: 52, LonEastDeg: 5, ElevM: 30}
+	loc := time.FixedZone("CET", 3600)
+	from, to := NightWindow(2026, 12, 10, loc)
+	midnight := to.Add(-12 * time.Hour)
+	g := Goal{Center: 0.5, HalfWidth: 0.02, ExposureS: 300, OverheadS: 15}
+	// Phase 0.5 at midnight + 1.5 d means phase 0 at midnight.
+	tg := phasedTarget(site, "Slow-1", 40, 75, 3, 0.0, midnight, g)
+	p := planOrFail(t, NightRequest{Site: site, From: from, To: to, Constraints: DefaultConstraints(), Targets: []Target{tg}})
+	if len(p.Blocks) != 0 || len(p.Unscheduled) != 1 {
+		t.Fatalf("%d blocks, %d unscheduled; want 0 and 1", len(p.Blocks), len(p.Unscheduled))
+	}
+	u := p.Unscheduled[0]
+	if u.Reason != UnschedWindowInDaylight || !strings.Contains(u.Detail, "does not come round") || strings.Contains(u.Detail, "( UTC)") {
+		t.Errorf("reason %s %q; want %s saying the window does not come round tonight", u.Reason, u.Detail, UnschedWindowInDaylight)
 	}
 }
