@@ -287,49 +287,7 @@ func (c *cellReader) get(name string) string {
 	if !ok {
 		return ""
 	}
-	return csvUnquoteFormula(strings.TrimSpace(c.rec[i]))
-}
-
-// formulaStart are the first characters that make a spreadsheet read a
-// cell as a formula.
-const formulaStart = "=+-@\t\r"
-
-// csvNeedsQuote reports whether csvSafeCell quotes cell: text starting
-// with = + - @, a tab or a carriage return that is not a plain number, or
-// text starting with a single quote whose rest needs quoting (so that the
-// quote the user typed survives csvUnquoteFormula).
-func csvNeedsQuote(cell string) bool {
-	if cell == "" {
-		return false
-	}
-	if cell[0] == '\'' {
-		return csvNeedsQuote(cell[1:])
-	}
-	if !strings.ContainsRune(formulaStart, rune(cell[0])) {
-		return false
-	}
-	_, isNumber := parseNumber(cell)
-	return !isNumber
-}
-
-// csvSafeCell returns cell so that a spreadsheet reads it as text: a cell
-// starting with = + - @, a tab or a carriage return that is not a plain
-// number gets a leading single quote (OWASP "CSV Injection", common
-// practice). A negative declination stays a number.
-func csvSafeCell(cell string) string {
-	if csvNeedsQuote(cell) {
-		return "'" + cell
-	}
-	return cell
-}
-
-// csvUnquoteFormula undoes csvSafeCell when reading a team CSV:
-// csvUnquoteFormula(csvSafeCell(x)) == x for every x.
-func csvUnquoteFormula(cell string) string {
-	if len(cell) >= 2 && cell[0] == '\'' && csvNeedsQuote(cell[1:]) {
-		return cell[1:]
-	}
-	return cell
+	return planner.UnquoteCSVCell(strings.TrimSpace(c.rec[i]))
 }
 
 func (c *cellReader) bad(name, value, reason string) {
@@ -610,7 +568,7 @@ func writeTeamCSV(w io.Writer, targets []StoredTarget) error {
 			strconv.Itoa(t.Priority), numOrEmpty(t.AcquireS), strings.Join(t.Tags, ";"), t.Notes,
 		}
 		for i := range rec {
-			rec[i] = csvSafeCell(rec[i])
+			rec[i] = planner.SafeCSVCell(rec[i])
 		}
 		if err := cw.Write(rec); err != nil {
 			return err

@@ -167,15 +167,3 @@ func TestListExportRoundTrip(t *testing.T) {
 		t.Errorf("re-importing the JSON export: %v, %d unchanged of 4", err, res.Unchanged)
 	}
 }
-
-func TestSafeCell(t *testing.T) {
-	tests := []struct{ in, want string }{
-		{"=1+2", "'=1+2"}, {"+cmd", "'+cmd"}, {"@SUM(A1)", "'@SUM(A1)"}, {"-x", "'-x"}, {"\tx", "'\tx"},
-		{"-12.5", "-12.5"}, {"+3", "+3"}, {"-05:06:07.8", "-05:06:07.8"}, {"1e-5", "1e-5"}, {"plain", "plain"}, {"", ""},
-	}
-	for _, tt := range tests {
-		if got := safeCell(tt.in); got != tt.want {
-			t.Errorf("safeCell(%q) = %q, want %q", tt.in, got, tt.want)
-		}
-	}
-}

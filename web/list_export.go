@@ -11,7 +11,9 @@ import (
 
 // listExport downloads a list as team CSV or JSON (GET
 // /lists/{id}/export.csv and .json). CSV cells that a spreadsheet would
-// run as formulas are neutralised.
+// run as formulas are neutralised by the store's export
+// (planner.SafeCSVCell), which its import undoes; they are not quoted again
+// here, so that the file round-trips.
 func (s *Server) listExport(format store.FileFormat) func(http.ResponseWriter, *http.Request, *user) {
 	return func(w http.ResponseWriter, r *http.Request, u *user) {
 		id, err := pathID(r, "id")
@@ -24,20 +26,14 @@ func (s *Server) listExport(format store.FileFormat) func(http.ResponseWriter, *
 			s.renderError(w, r, err)
 			return
 		}
-		var raw, out bytes.Buffer
-		if err := s.store.ExportTargets(r.Context(), u.actor, id, &raw, format); err != nil {
+		var out bytes.Buffer
+		if err := s.store.ExportTargets(r.Context(), u.actor, id, &out, format); err != nil {
 			s.renderError(w, r, err)
 			return
 		}
 		ctype, ext := "application/json", "json"
 		if format == store.FormatCSV {
 			ctype, ext = "text/csv; charset=utf-8", "csv"
-			if err := neutralizeCSV(&out, &raw); err != nil {
-				s.renderError(w, r, err)
-				return
-			}
-		} else {
-			out = raw
 		}
 		download(w, ctype, fileName(l.Name, "targets", ext), out.Bytes())
 	}

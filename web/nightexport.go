@@ -78,11 +78,11 @@ func (n *night) exportCSV() ([]byte, error) {
 		for _, w := range b.Warnings {
 			ws = append(ws, w.Message)
 		}
-		row := []string{safeCell(b.Target), goal, safeCell(b.Goal.Event), utcString(b.Start), utcString(b.End),
+		row := []string{planner.SafeCSVCell(b.Target), goal, planner.SafeCSVCell(b.Goal.Event), utcString(b.Start), utcString(b.End),
 			b.Start.In(n.loc).Format(time.RFC3339), b.End.In(n.loc).Format(time.RFC3339), strconv.Itoa(b.N), num(b.ExposureS),
 			num(b.OverheadS), f(b.PhaseStart, 4), f(b.PhaseEnd, 4), f(b.PhaseMid, 4), f(b.Smear, 5), f(b.PhaseErr, 5),
 			f(b.AirmassMin, 3), f(b.AirmassMax, 3), f(b.MoonSepDeg, 1), f(b.Parallactic, 1), f(b.HourAngle, 3), f(b.SunAltStart, 2),
-			num(b.AcquireS), strconv.Itoa(b.Priority), strconv.FormatBool(b.Filler), safeCell(strings.Join(ws, "; "))}
+			num(b.AcquireS), strconv.Itoa(b.Priority), strconv.FormatBool(b.Filler), planner.SafeCSVCell(strings.Join(ws, "; "))}
 		if err := cw.Write(row); err != nil {
 			return nil, err
 		}

@@ -11,6 +11,7 @@ import (
 	"strconv"
 	"time"
 
+	"phasecast/planner"
 	"phasecast/web/ical"
 )
 
@@ -70,7 +71,7 @@ func runCSV(doc *runDoc) ([]byte, error) {
 			if b.PhaseGoal != nil {
 				goal = num(*b.PhaseGoal)
 			}
-			_ = cw.Write([]string{n.Date, n.Part, safeCell(b.Target), goal, safeCell(b.Event), b.Start.String(), b.End.String(), strconv.Itoa(b.NExposures),
+			_ = cw.Write([]string{n.Date, n.Part, planner.SafeCSVCell(b.Target), goal, planner.SafeCSVCell(b.Event), b.Start.String(), b.End.String(), strconv.Itoa(b.NExposures),
 				num(b.ExposureS), num(b.OverheadS), f(b.PhaseStart), f(b.PhaseEnd), f(b.AirmassMin), f(b.AirmassMax),
 				strconv.Itoa(b.Priority), strconv.FormatBool(b.Filler)})
 		}

@@ -227,7 +227,7 @@ func (w *windows) exportCSV() ([]byte, error) {
 	cw := csv.NewWriter(&buf)
 	_ = cw.Write([]string{"target", "phase_goal", "event", "start_utc", "end_utc", "cycle", "airmass_min", "airmass_max", "phase_err", "uncertain", "whole_exposures"})
 	for _, r := range w.flat() {
-		_ = cw.Write([]string{safeCell(r.Target), num(r.PhaseGoal), safeCell(r.Event), r.Start, r.End, strconv.FormatInt(r.Cycle, 10),
+		_ = cw.Write([]string{planner.SafeCSVCell(r.Target), num(r.PhaseGoal), planner.SafeCSVCell(r.Event), r.Start, r.End, strconv.FormatInt(r.Cycle, 10),
 			strconv.FormatFloat(r.AirmassMin, 'f', 3, 64), strconv.FormatFloat(r.AirmassMax, 'f', 3, 64),
 			strconv.FormatFloat(r.PhaseErr, 'g', 3, 64), strconv.FormatBool(r.Uncertain), strconv.Itoa(r.Exposures)})
 	}

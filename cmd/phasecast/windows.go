@@ -296,16 +296,6 @@ func checkWindowsFinite(got []planner.GoalWindows) error {
 var windowsCSVHeader = []string{"target", "phase_goal", "phase_halfwidth", "start_utc", "end_utc", "duration_min", "cycle",
 	"phase_err", "uncertain", "airmass_min", "airmass_max", "exposures"}
 
-// csvText neutralises a text cell that a spreadsheet would run as a
-// formula (leading =, +, -, @, tab or CR) with a leading apostrophe
-// (OWASP's advice on CSV injection, common practice).
-func csvText(s string) string {
-	if s != "" && strings.ContainsRune("=+-@\t\r", rune(s[0])) {
-		return "'" + s
-	}
-	return s
-}
-
 func writeWindowsCSV(w io.Writer, got []planner.GoalWindows) error {
 	cw := csv.NewWriter(w)
 	if err := cw.Write(windowsCSVHeader); err != nil {
@@ -313,7 +303,7 @@ func writeWindowsCSV(w io.Writer, got []planner.GoalWindows) error {
 	}
 	for _, gw := range got {
 		for _, win := range gw.Windows {
-			rec := []string{csvText(gw.Target), f(gw.Goal.Center, 4), f(gw.Goal.HalfWidth, 4), planTime(win.Start).String(), planTime(win.End).String(),
+			rec := []string{planner.SafeCSVCell(gw.Target), f(gw.Goal.Center, 4), f(gw.Goal.HalfWidth, 4), planTime(win.Start).String(), planTime(win.End).String(),
 				f(win.Duration().Minutes(), 2), strconv.FormatInt(win.Cycle, 10), f(win.PhaseErr, 5), strconv.FormatBool(win.Uncertain),
 				f(win.AirmassMin, 3), f(win.AirmassMax, 3), strconv.Itoa(win.Exposures)}
 			if err := cw.Write(rec); err != nil {
