@@ -3,7 +3,6 @@ package planner
 import (
 	"fmt"
 	"math"
-	"sort"
 	"time"
 
 	"phasecast/ephem"
@@ -278,7 +277,9 @@ type occMeta struct {
 // every constraint from start to end with every exposure's mid-time phase in
 // its window. It is solved exactly (decremental state-space relaxation; see
 // the notes in schedule.go and sweep.go), not greedily: Plan.GreedyValue is
-// what first-fit by priority would reach on the same candidates.
+// what first-fit by priority would reach on the same candidates. (The
+// run planner solves the same problem with its own weight per goal in place
+// of w(priority): see nightModel.)
 //
 // A block never starts with the Sun above the chosen twilight altitude (the
 // whole block is in dark time); a block that starts while the Sun is above
@@ -293,62 +294,11 @@ func PlanNight(req NightRequest) (*Plan, error) {
 	if err != nil {
 		return nil, err
 	}
-	p := &Plan{Site: req.Site, From: req.From.UTC(), To: req.To.UTC(), Constraints: en.c, Options: en.opt, Dark: toIntervals(en.dark)}
-	if en.c.SunAvoidDeg > 0 {
-		p.Warnings = append(p.Warnings, Warning{Code: WarnSunAvoidApplied, GoalIndex: -1,
-			Message: fmt.Sprintf("targets closer than %s° to the Sun are excluded; %s", fmtNum(en.c.SunAvoidDeg), SafetyCaution)})
-	}
-	for _, ts := range targets {
-		p.Visibility = append(p.Visibility, en.visibility(ts))
-	}
 	if err := en.checkOccurrences(targets); err != nil {
 		return nil, err
 	}
-	occs, pr := en.buildProblem(targets)
-	p.Candidates = len(pr.cands)
-	order := make([]int, len(occs))
-	for k := range order {
-		order[k] = k
-	}
-	sort.SliceStable(order, func(a, b int) bool {
-		oa, ob := occs[order[a]], occs[order[b]]
-		pa, pb := targets[oa.target].t.Priority, targets[ob.target].t.Priority
-		if pa != pb {
-			return pa < pb
-		}
-		return oa.occ.lo < ob.occ.lo
-	})
-	greedy := pr.greedy(order)
-	p.GreedyValue = pr.value(greedy).main
-	sol := pr.solve(greedy, en.opt.MaxStates)
-	p.Value, p.Optimal, p.Rounds, p.States = sol.value.main, sol.optimal, sol.nodes, sol.states
-	if !sol.optimal {
-		p.Warnings = append(p.Warnings, Warning{Code: WarnNotOptimal, GoalIndex: -1,
-			Message: fmt.Sprintf("the optimiser reached its state limit (%d) in round %d: the schedule is feasible but may fall short of the optimum by up to %d value units", en.opt.MaxStates, sol.nodes, max(sol.gap.main, 0))})
-	}
-	var prev *candidate
-	for _, i := range sol.chosen {
-		c := &pr.cands[i]
-		m := occs[c.occ]
-		ts := targets[c.target]
-		acq := 0.0
-		if prev == nil || prev.target != c.target {
-			acq = ts.t.AcquireS
-		}
-		b := en.block(ts, m.goal, c.start, c.n, acq, false)
-		b.Cycle = m.occ.cycle
-		b.Value = c.val.main
-		p.Blocks = append(p.Blocks, b)
-		prev = c
-	}
-	p.Unscheduled, p.Warnings = en.explain(targets, occs, pr, sol.chosen, p.Warnings)
-	if en.opt.Fill {
-		p.Blocks = en.fill(targets, p.Blocks)
-	}
-	for _, b := range p.Blocks {
-		p.Warnings = append(p.Warnings, b.Warnings...)
-	}
-	return p, nil
+	m := buildNightModel(req, en, targets)
+	return m.plan(m.solve(m.priorityWeights())), nil
 }
 
 // newEngine validates the request and computes the dark spans and each

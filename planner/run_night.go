@@ -1,19 +1,15 @@
 package planner
 
-// The run's hook into the night planner. PlanNight values a block as
-// PriorityWeight(target) × v(goal, n); the run optimizer needs the same
-// exact scheduler with its own weight per goal (what covering the goal
-// tonight is worth to the run). nightModel builds a night's engine and
-// candidate blocks once (newEngine, buildProblem: every rule of the night
-// planner), and solves it for any weights by rescaling the candidates'
-// values: value(b) = W(target, goal) × v(goal, n). With W = PriorityWeight
-// it is PlanNight exactly (TestNightModelMatchesPlanNight checks it block
-// for block, so a change to PlanNight that is not mirrored here fails a
-// test).
-//
-// Note for the night planner's owner: an exported hook in PlanNight (e.g. a
-// GoalWeight func(target, goal int) int64 in Options, applied in
-// appendCandidates) would let solveNight and plan below shrink to a call.
+// The night planner's exact scheduler, shared by PlanNight and the run
+// planner. PlanNight values a block as PriorityWeight(target) × v(goal, n)
+// (see the notes in schedule.go); the run optimizer needs the same scheduler
+// with its own weight per goal (what covering the goal tonight is worth to
+// the run). nightModel builds a night's engine and candidate blocks once
+// (newEngine, buildProblem: every rule of the night planner), and solves it
+// for any weights by rescaling the candidates' values:
+// value(b) = W(target, goal) × v(goal, n), W an integer ≥ 1 so that sums
+// stay exact. PlanNight is solve with W = PriorityWeight (priorityWeights)
+// followed by plan.
 
 import (
 	"fmt"
@@ -31,19 +27,40 @@ type nightModel struct {
 	base    []int64 // v(goal, n) of each candidate, millionths
 }
 
-// newNightModel validates and builds a night's problem.
+// newNightModel validates and builds a night's problem. Unlike PlanNight it
+// does not reject a goal with more than Options.MaxOccurrences windows in
+// the night (buildProblem then considers the first ones).
 func newNightModel(req NightRequest) (*nightModel, error) {
 	en, targets, err := newEngine(req)
 	if err != nil {
 		return nil, err
 	}
+	return buildNightModel(req, en, targets), nil
+}
+
+// buildNightModel builds the candidate blocks of a validated night (en and
+// targets from newEngine) and their values v(goal, n) without weights.
+func buildNightModel(req NightRequest, en *engine, targets []*targetState) *nightModel {
 	occs, pr := en.buildProblem(targets)
 	m := &nightModel{req: req, en: en, targets: targets, occs: occs, pr: pr, base: make([]int64, len(pr.cands))}
 	for i := range pr.cands {
 		c := &pr.cands[i]
 		m.base[i] = c.val.main / PriorityWeight(targets[c.target].t.Priority)
 	}
-	return m, nil
+	return m
+}
+
+// priorityWeights returns PlanNight's weights: w[target][goal] =
+// PriorityWeight of the target's priority.
+func (m *nightModel) priorityWeights() [][]int64 {
+	w := make([][]int64, len(m.targets))
+	for ti, ts := range m.targets {
+		w[ti] = make([]int64, len(ts.goals))
+		for gi := range w[ti] {
+			w[ti][gi] = PriorityWeight(ts.t.Priority)
+		}
+	}
+	return w
 }
 
 // nightSolution is a solved night: the chosen candidates in time order and
@@ -55,7 +72,11 @@ type nightSolution struct {
 	tried   [][]int64 // weights since tried without a better result (nil: none)
 }
 
-// solve schedules the night for goal weights w[target][goal] (each ≥ 1).
+// solve schedules the night for goal weights w[target][goal] (each ≥ 1):
+// it maximises Σ w[target][goal] × v(goal, n) over the blocks. The greedy
+// start (Plan.GreedyValue) takes the occurrences by weight, heaviest first,
+// then by window opening; with the priority weights that is PlanNight's
+// first-fit by priority.
 func (m *nightModel) solve(w [][]int64) nightSolution {
 	for i := range m.pr.cands {
 		c := &m.pr.cands[i]
@@ -78,7 +99,7 @@ func (m *nightModel) solve(w [][]int64) nightSolution {
 	return nightSolution{sol: m.pr.solve(greedy, m.en.opt.MaxStates), greedy: m.pr.value(greedy).main, weights: w}
 }
 
-// plan turns a solved night into a Plan as PlanNight builds it: blocks with
+// plan turns a solved night into the Plan PlanNight returns: blocks with
 // their details and warnings, the reason for every goal left out, optional
 // fillers. Plan.Value, Plan.GreedyValue and Block.Value are in the weights'
 // units.

@@ -33,11 +33,27 @@ func modelNight(seed uint64) NightRequest {
 	return req
 }
 
-// TestNightModelMatchesPlanNight checks the run's hook into the night
-// planner: solved with the priority weights, a night model gives PlanNight's
-// plan block for block (so a change to PlanNight not mirrored in
-// nightModel fails here).
-func TestNightModelMatchesPlanNight(t *testing.T) {
+// TestNightModelWeights checks the weights of the night scheduler that
+// PlanNight and the run planner share: the priority weights give PlanNight's
+// plan, scaling every weight by k scales the value by k and keeps the
+// blocks, and a heavy weight on a goal PlanNight left out puts it in the
+// schedule at the expense of a block PlanNight chose.
+func TestNightModelWeights(t *testing.T) {
+	type key struct {
+		target, goal int
+		start        time.Time
+		n            int
+	}
+	keys := func(p *Plan) map[key]bool {
+		out := map[key]bool{}
+		for _, b := range p.Blocks {
+			if !b.Filler {
+				out[key{b.TargetIndex, b.GoalIndex, b.Start, b.N}] = true
+			}
+		}
+		return out
+	}
+	conflicts := 0
 	for seed := uint64(1); seed <= 4; seed++ {
 		t.Run(fmt.Sprintf("seed%d", seed), func(t *testing.T) {
 			req := modelNight(seed)
@@ -45,34 +61,72 @@ func TestNightModelMatchesPlanNight(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
+			if len(want.Blocks) == 0 || !want.Optimal {
+				t.Fatalf("%d blocks, optimal %v: the case tests nothing", len(want.Blocks), want.Optimal)
+			}
 			m, err := newNightModel(req)
 			if err != nil {
 				t.Fatal(err)
 			}
-			w := make([][]int64, len(m.targets))
-			for ti, ts := range m.targets {
-				w[ti] = make([]int64, len(ts.goals))
+
+			const k = 7
+			w := m.priorityWeights()
+			for ti := range w {
 				for gi := range w[ti] {
-					w[ti][gi] = PriorityWeight(ts.t.Priority)
+					w[ti][gi] *= k
 				}
 			}
-			got := m.plan(m.solve(w))
-			if got.Value != want.Value || got.GreedyValue != want.GreedyValue || len(got.Blocks) != len(want.Blocks) {
-				t.Fatalf("value %d (greedy %d), %d blocks; PlanNight: %d (greedy %d), %d blocks",
-					got.Value, got.GreedyValue, len(got.Blocks), want.Value, want.GreedyValue, len(want.Blocks))
+			scaled := m.plan(m.solve(w))
+			if scaled.Value != k*want.Value || scaled.GreedyValue != k*want.GreedyValue {
+				t.Errorf("weights ×%d: value %d (greedy %d), want %d (greedy %d)", k, scaled.Value, scaled.GreedyValue, k*want.Value, k*want.GreedyValue)
 			}
-			for i := range want.Blocks {
-				a, b := got.Blocks[i], want.Blocks[i]
-				if a.Target != b.Target || a.GoalIndex != b.GoalIndex || !a.Start.Equal(b.Start) || a.N != b.N {
-					t.Errorf("block %d: %s goal %d %v ×%d; PlanNight: %s goal %d %v ×%d", i, a.Target, a.GoalIndex, a.Start, a.N, b.Target, b.GoalIndex, b.Start, b.N)
+			if fmt.Sprint(keys(scaled)) != fmt.Sprint(keys(want)) {
+				t.Errorf("weights ×%d: blocks %v, PlanNight's %v", k, keys(scaled), keys(want))
+			}
+
+			// A goal with candidates tonight but no block in PlanNight's plan.
+			served := map[[2]int]bool{}
+			for _, b := range want.Blocks {
+				served[[2]int{b.TargetIndex, b.GoalIndex}] = true
+			}
+			tg, gg := -1, -1
+			for _, c := range m.pr.cands {
+				om := m.occs[c.occ]
+				if !served[[2]int{om.target, om.goal}] {
+					tg, gg = om.target, om.goal
+					break
 				}
 			}
-			if fmt.Sprint(got.Unscheduled) != fmt.Sprint(want.Unscheduled) {
-				t.Error("unscheduled goals differ from PlanNight's")
+			if tg < 0 {
+				t.Skip("every goal with a candidate is served: no conflict to resolve")
 			}
-			if len(want.Blocks) == 0 {
-				t.Error("no blocks: the case tests nothing")
+			conflicts++
+			w = m.priorityWeights()
+			w[tg][gg] = 1_000_000
+			heavy := m.plan(m.solve(w))
+			if !heavy.Optimal {
+				t.Fatal("heavy-weight schedule not proved optimal")
+			}
+			got, dropped := false, 0
+			for _, b := range heavy.Blocks {
+				got = got || (b.TargetIndex == tg && b.GoalIndex == gg)
+			}
+			hk := keys(heavy)
+			for kb := range keys(want) {
+				if !hk[kb] {
+					dropped++
+				}
+			}
+			t.Logf("goal %d of %s weighted 10^6: scheduled %v, %d of PlanNight's %d blocks displaced", gg, req.Targets[tg].Name, got, dropped, len(keys(want)))
+			if !got {
+				t.Errorf("goal %d of %s weighted 10^6 gets no block", gg, req.Targets[tg].Name)
+			}
+			if dropped == 0 {
+				t.Errorf("goal %d of %s scheduled without displacing any of PlanNight's blocks: PlanNight was not optimal", gg, req.Targets[tg].Name)
 			}
 		})
+	}
+	if conflicts == 0 {
+		t.Error("no night had a goal left out: the heavy-weight case tested nothing")
 	}
 }
