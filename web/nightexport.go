@@ -123,5 +123,8 @@ func (n *night) exportICS() ([]byte, error) {
 
 // exportName is the download name of the night: "hill-station-2026-03-14-night.csv".
 func (n *night) exportName(ext string) string {
+	if n.half() {
+		return fileName(n.site.Name+"-"+n.q.date+"-"+string(n.part), "night", ext)
+	}
 	return fileName(n.site.Name+"-"+n.q.date, "night", ext)
 }

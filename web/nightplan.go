@@ -16,11 +16,15 @@ import (
 
 // nightQuery is a night request as the Night page's GET form sends it:
 // ?site=&date=&list=&t=&t=&twilight=&max_airmass=&min_alt=&min_moon_sep=
-// &max_moon_illum=&sun_avoid=&fill=1. Empty fields take defaults: the
-// team's first site and list, tonight at the site, the site's constraints.
+// &max_moon_illum=&sun_avoid=&fill=1&part=&run=. Empty fields take
+// defaults: the team's first site and list, tonight at the site, the
+// site's constraints, the whole night. run= names a run: its site, list and
+// constraints, and, for one of its nights, the part of it the run holds.
 type nightQuery struct {
 	siteID, listID int64
-	date           string // YYYY-MM-DD; "" = tonight at the site
+	runID          int64
+	part           planner.NightPart // "" = the run's part, else the full night
+	date           string            // YYYY-MM-DD; "" = tonight at the site
 	targetIDs      []int64
 	twilight       string
 	maxAirmass     string
@@ -44,6 +48,12 @@ func parseNightQuery(q url.Values) (nightQuery, error) {
 	if n.listID, err = optID(q.Get("list")); err != nil {
 		return n, err
 	}
+	if n.runID, err = optID(q.Get("run")); err != nil {
+		return n, err
+	}
+	if n.part, err = parsePart(q.Get("part")); err != nil {
+		return n, err
+	}
 	for _, t := range q["t"] {
 		id, err := optID(t)
 		if err != nil {
@@ -52,6 +62,16 @@ func parseNightQuery(q url.Values) (nightQuery, error) {
 		n.targetIDs = append(n.targetIDs, id)
 	}
 	return n, nil
+}
+
+// parsePart reads the part query parameter: "" (the run's part, else the
+// full night), full, first or second.
+func parsePart(s string) (planner.NightPart, error) {
+	switch p := planner.NightPart(strings.TrimSpace(s)); p {
+	case "", planner.PartFull, planner.PartFirst, planner.PartSecond:
+		return p, nil
+	}
+	return "", errInvalid(fmt.Sprintf("part: “%s” is not accepted; accepted: full, first or second", s))
 }
 
 func optID(s string) (int64, error) {
@@ -72,6 +92,12 @@ func (n nightQuery) encode() string {
 	q.Set("site", i64s(n.siteID))
 	q.Set("date", n.date)
 	q.Set("list", i64s(n.listID))
+	if n.runID != 0 {
+		q.Set("run", i64s(n.runID))
+	}
+	if n.part != "" {
+		q.Set("part", string(n.part))
+	}
 	for _, id := range n.targetIDs {
 		q.Add("t", i64s(id))
 	}
@@ -102,6 +128,9 @@ type night struct {
 	y       int
 	m       time.Month
 	d       int
+	run     *store.Run
+	part    planner.NightPart // the part planned: full, first or second
+	whole   planner.Interval  // the whole night's planning window (UTC)
 	req     planner.NightRequest
 	plan    *planner.Plan
 	events  planner.NightEvents
@@ -114,6 +143,19 @@ func (s *Server) loadNight(ctx context.Context, a store.Actor, teamID int64, q n
 	n := &night{q: q, cache: &s.plans}
 	errs := page.Errs{}
 	var err error
+	if q.runID != 0 {
+		run, err := s.store.GetRun(ctx, a, q.runID)
+		if err != nil {
+			return nil, nil, err
+		}
+		if run.TeamID != teamID {
+			return nil, nil, errNotFound("The team has no such run.")
+		}
+		n.run = &run
+		c := run.Constraints
+		n.base = &c
+		q.siteID, q.listID = run.SiteID, run.ListID
+	}
 	if n.sites, err = s.store.ListSites(ctx, a, teamID); err != nil {
 		return nil, nil, err
 	}
@@ -136,6 +178,17 @@ func (s *Server) loadNight(ctx context.Context, a store.Actor, teamID int64, q n
 		errs["date"] = fmt.Sprintf("“%s” is not a date; accepted: YYYY-MM-DD", n.q.date)
 	}
 	n.y, n.m, n.d = y, m, d
+	n.part = q.part
+	if n.part == "" && n.run != nil {
+		for _, rn := range n.run.Nights {
+			if rn.Date == n.q.date {
+				n.part = runPart(rn.Part)
+			}
+		}
+	}
+	if n.part == "" {
+		n.part = planner.PartFull
+	}
 	if n.all, err = s.store.ListTargets(ctx, a, n.list.ID); err != nil {
 		return nil, nil, err
 	}
@@ -212,6 +265,20 @@ func (n *night) planIt(errs page.Errs) error {
 		return nil
 	}
 	from, to := planner.NightWindow(n.y, n.m, n.d, n.loc)
+	n.whole = planner.Interval{Start: from, End: to}
+	if n.part != planner.PartFull {
+		ws, err := planner.RunNightWindows(n.site.Site, n.loc, c, []planner.RunNight{{Year: n.y, Month: n.m, Day: n.d, Part: n.part}})
+		if err != nil {
+			if fe, _, ok := formErrs(err); ok {
+				for k, v := range fe {
+					errs[k] = v
+				}
+				return nil
+			}
+			return err
+		}
+		from, to = ws[0].Start, ws[0].End
+	}
 	n.req = planner.NightRequest{Site: n.site.Site, From: from, To: to, Constraints: c, Options: planner.Options{Fill: n.q.fill}}
 	for _, t := range n.targets {
 		n.req.Targets = append(n.req.Targets, t.Target)
@@ -248,7 +315,38 @@ var constraintField = map[string]string{
 	"max_moon_illum": "max_moon_illum", "sun_avoid": "sun_avoid",
 }
 
-// title names the night: "Night of 2026-03-14 at Mount Example".
+// title names the night: "Night of 2026-03-14 at Mount Example", with
+// " (first half)" or " (second half)" for half a night.
 func (n *night) title() string {
-	return "Night of " + n.q.date + " at " + n.site.Name
+	t := "Night of " + n.q.date + " at " + n.site.Name
+	if n.half() {
+		t += " (" + string(n.part) + " half)"
+	}
+	return t
+}
+
+// half reports whether only half of the night is planned.
+func (n *night) half() bool {
+	return n.part == planner.PartFirst || n.part == planner.PartSecond
+}
+
+// runPart is the planner's part for a stored run night's part.
+func runPart(p store.NightPart) planner.NightPart {
+	switch p {
+	case store.NightFirstHalf:
+		return planner.PartFirst
+	case store.NightSecondHalf:
+		return planner.PartSecond
+	}
+	return planner.PartFull
+}
+
+// partNote says which half is planned: "first half of the night:
+// 20:14–00:53 local"; "" for the whole night.
+func (n *night) partNote() string {
+	if !n.half() {
+		return ""
+	}
+	return fmt.Sprintf("%s half of the night: %s–%s local (%s–%s UTC); only this part is planned.", n.part,
+		n.req.From.In(n.loc).Format("15:04"), n.req.To.In(n.loc).Format("15:04"), n.req.From.UTC().Format("15:04"), n.req.To.UTC().Format("15:04"))
 }

@@ -19,6 +19,14 @@ const chartStep = 2 * time.Minute
 func (n *night) form(errs page.Errs) page.NightForm {
 	f := page.NightForm{Date: n.q.date, MaxAirmass: n.q.maxAirmass, MinAlt: n.q.minAlt, MinMoonSep: n.q.minMoonSep,
 		MaxMoonIllum: n.q.maxMoonIllum, SunAvoid: n.q.sunAvoid, Fill: n.q.fill, Errs: errs}
+	if n.run != nil {
+		f.Run, f.RunName = i64s(n.run.ID), n.run.Name
+	}
+	f.Parts = []page.Option{{Value: "", Label: "as the run holds it, else the whole night"}, {Value: "full", Label: "whole night"},
+		{Value: "first", Label: "first half"}, {Value: "second", Label: "second half"}}
+	for i := range f.Parts {
+		f.Parts[i].Selected = f.Parts[i].Value == string(n.q.part)
+	}
 	for _, st := range n.sites {
 		f.Sites = append(f.Sites, page.Option{Value: i64s(st.ID), Label: st.Name, Selected: st.ID == n.site.ID})
 	}
@@ -49,7 +57,7 @@ func (n *night) view(now time.Time) (page.NightView, error) {
 	} else if n.events.Sunset != nil {
 		zone, _ = n.events.Sunset.In(n.loc).Zone()
 	}
-	v := page.NightView{HasPlan: true, Title: n.title(), Zone: zone, Query: n.q.encode()}
+	v := page.NightView{HasPlan: true, Title: n.title(), Zone: zone, Query: n.q.encode(), PartNote: n.partNote()}
 	v.Events = n.eventRows()
 	for _, b := range p.Blocks {
 		v.Blocks = append(v.Blocks, n.blockRow(b))
@@ -175,6 +183,14 @@ func (n *night) chart(now time.Time) (chart.Night, error) {
 	}
 	c := chart.Night{Title: n.title(), Start: from, End: to, Zone: n.loc, Now: now,
 		MoonLabel: fmt.Sprintf("Moon %.0f%% lit", samples.MoonIllum*100)}
+	if n.half() {
+		if n.req.From.After(from) {
+			c.Unallocated = append(c.Unallocated, chart.Span{Start: from, End: n.req.From, Label: "not allocated"})
+		}
+		if n.req.To.Before(to) {
+			c.Unallocated = append(c.Unallocated, chart.Span{Start: n.req.To, End: to, Label: "not allocated"})
+		}
+	}
 	for _, b := range samples.Bands {
 		c.Bands = append(c.Bands, chart.Band{Start: b.Start, End: b.End, Kind: b.Kind})
 	}
@@ -212,9 +228,10 @@ func (n *night) chart(now time.Time) (chart.Night, error) {
 }
 
 // chartSpan is an hour before sunset to an hour after sunrise, within the
-// planning window (the whole window when the Sun does not set or rise).
+// whole night's planning window (the whole window when the Sun does not set
+// or rise); for half a night the other half is shown, shaded.
 func (n *night) chartSpan() (time.Time, time.Time) {
-	from, to := n.req.From, n.req.To
+	from, to := n.whole.Start, n.whole.End
 	if n.events.Sunset != nil && n.events.Sunset.Add(-time.Hour).After(from) {
 		from = n.events.Sunset.Add(-time.Hour).Truncate(30 * time.Minute)
 	}

@@ -33,7 +33,7 @@ const (
 // key describes every input of a night's plan.
 func (n *night) key() string {
 	var b strings.Builder
-	fmt.Fprintf(&b, "site %d v%d|%s|%v|%+v|%+v|", n.site.ID, n.site.Version, n.q.date, n.req.From, n.req.Constraints, n.req.Options)
+	fmt.Fprintf(&b, "site %d v%d|%s|%v|%v|%+v|%+v|", n.site.ID, n.site.Version, n.q.date, n.req.From, n.req.To, n.req.Constraints, n.req.Options)
 	for _, t := range n.targets {
 		fmt.Fprintf(&b, "%d v%d,", t.ID, t.Version)
 	}

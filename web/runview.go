@@ -3,6 +3,7 @@ package web
 import (
 	"encoding/json"
 	"fmt"
+	"net/url"
 	"strconv"
 	"strings"
 	"time"
@@ -44,7 +45,7 @@ func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, 
 		}
 	}
 	for k, n := range doc.Nights {
-		ns := page.NightSchedule{Index: k, Label: nightHeading(n), Past: n.Past}
+		ns := page.NightSchedule{Index: k, Label: nightHeading(n), Past: n.Past, Href: "/night?" + url.Values{"run": {i64s(run.ID)}, "date": {n.Date}}.Encode()}
 		switch {
 		case n.Past:
 			ns.Empty = "This night was over when the plan was made; what was observed on it counts in the coverage."

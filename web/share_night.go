@@ -32,13 +32,11 @@ func (s *Server) shareNight(w http.ResponseWriter, r *http.Request) {
 		s.renderError(w, r, errNotFound("The run has no such night."))
 		return
 	}
-	n, errs, err := s.loadNight(ctx, a, a.Share.TeamID, nightQuery{siteID: in.run.SiteID, listID: in.run.ListID, date: in.run.Nights[k].Date})
+	n, errs, err := s.loadNight(ctx, a, a.Share.TeamID, nightQuery{runID: in.run.ID, date: in.run.Nights[k].Date})
 	if err == nil && len(errs) == 0 && (len(n.sites) == 0 || len(n.lists) == 0) {
 		err = errNotFound("The shared run's site or list is no longer there.")
 	}
 	if err == nil && len(errs) == 0 {
-		c := in.run.Constraints
-		n.base = &c
 		err = n.planIt(errs)
 	}
 	for f, msg := range errs {

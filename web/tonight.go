@@ -48,15 +48,11 @@ func (s *Server) tonightNight(ctx context.Context, u *user, q url.Values) (*nigh
 		}
 	}
 	if run != nil {
-		nq.siteID, nq.listID = run.SiteID, run.ListID
+		nq.runID = run.ID // its site, list, constraints and tonight's part
 	}
 	n, errs, err := s.loadNight(ctx, u.actor, u.team.TeamID, nq)
 	if err != nil {
 		return nil, nil, nil, err
-	}
-	if run != nil {
-		c := run.Constraints
-		n.base = &c
 	}
 	if len(n.sites) > 0 && len(n.lists) > 0 && len(errs) == 0 {
 		if err := n.planIt(errs); err != nil {
@@ -81,6 +77,9 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 		v.Heading = "Tonight: run " + run.Name + " at " + n.site.Name
 	}
 	v.Clock = now.In(n.loc).Format("15:04 MST") + " · " + now.UTC().Format("15:04 UTC") + " · night of " + n.q.date
+	if n.half() && n.plan != nil {
+		v.Clock += " · " + n.partNote()
+	}
 	if n.plan == nil {
 		v.NoPlan = "No plan could be made for tonight; open the Night page for details."
 		return v

@@ -33,6 +33,10 @@ type Night struct {
 	// dashed line, labelled LimitLabel; NaN or ≤ 0 means none.
 	LimitAltDeg float64
 	LimitLabel  string
+	// Unallocated shades spans of the chart that are not the caller's to
+	// plan (the other half of a half night), greyed over the plot with
+	// their Label ("not allocated").
+	Unallocated []Span
 	// Now draws a "now" marker when it lies within Start..End.
 	Now time.Time
 	// Width of the drawing in pixels; 0 means 1000.
@@ -185,6 +189,7 @@ func (n Night) draw(s *svg) {
 		n.drawTrack(s, g, i, tr)
 	}
 	s.raw("</g>")
+	n.drawUnallocated(s, g)
 	n.drawTrackLabels(s, g)
 	n.drawLanes(s, g, lanesTop, id)
 	n.drawNow(s, g, lanesTop)
@@ -654,6 +659,25 @@ func (n Night) drawNow(s *svg, g nightGeom, lanesTop float64) {
 	bottom := lanesTop + float64(len(n.Tracks))*nLaneH
 	s.line(x, g.y0, x, bottom, "class", "now", "stroke", "#CC79A7", "stroke-width", "1.5")
 	s.text(x+3, g.y0+12, "now", "font-weight", "600")
+}
+
+// drawUnallocated greys the spans outside the allocated time.
+func (n Night) drawUnallocated(s *svg, g nightGeom) {
+	if len(n.Unallocated) == 0 {
+		return
+	}
+	s.raw(`<g class="unallocated">`)
+	for _, u := range n.Unallocated {
+		xa, xb := clamp(g.x(u.Start), g.x0, g.x1), clamp(g.x(u.End), g.x0, g.x1)
+		if xb-xa <= 0 {
+			continue
+		}
+		s.rect(xa, g.y0, xb-xa, g.y1-g.y0, "class", "unallocated", "fill", "#59636e", "fill-opacity", "0.35")
+		if u.Label != "" && xb-xa >= 80 {
+			s.text((xa+xb)/2, g.y0+28, u.Label, "text-anchor", "middle", "font-size", "11", "font-weight", "600")
+		}
+	}
+	s.raw("</g>")
 }
 
 func (n Night) drawLegend(s *svg, y float64) {
