@@ -48,16 +48,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	tz := fl.text("tz", "ZONE", "", "IANA time zone of the site, e.g. America/Santiago or UTC; required")
 	date := fl.text("date", "YYYY-MM-DD", "today in ZONE", "local calendar date of the evening the night begins")
 	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, header above); required")
-	twilight := fl.text("twilight", "NAME|DEG", "nautical", "darkness limit: civil (−6°), nautical (−12°), astronomical (−18°) or a Sun altitude −30..0")
-	maxAirmass := fl.text("max-airmass", "X", "2.0", "highest airmass, 1..40 (0 = none, the horizon only)")
-	minAlt := fl.text("min-alt", "DEG", "0", "lowest altitude, refracted, degrees (0 = the horizon)")
-	minMoonSep := fl.text("min-moon-sep", "DEG", "0", "closest distance to the Moon while it is up, degrees (0 = none)")
-	maxMoonIllum := fl.text("max-moon-illum", "FRAC", "0", "brightest Moon allowed while it is up, illuminated fraction 0..1 (0 = no limit)")
-	haMin := fl.text("ha-min", "HOURS", "", "lowest hour angle, hours −12..12 (equatorial mounts); with --ha-max")
-	haMax := fl.text("ha-max", "HOURS", "", "highest hour angle, hours −12..12; with --ha-min")
-	zenith := fl.text("zenith-excl", "DEG", "0", "no tracking within this distance of the zenith (alt-az mounts), degrees 0..30")
-	sunAvoid := fl.text("sun-avoid", "DEG", "30", "never point closer than this to the Sun, degrees 0..90 (safety)")
-	horizon := fl.text("horizon", "FILE", "", "horizon mask file: lines of \"azimuth altitude\" in degrees")
+	cf := addConstraintFlags(fl)
 	acquire := fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
 	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = as many as fit)")
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
@@ -80,7 +71,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 			return fromInputError(err, "not a date", map[string]*textValue{"date": date})
 		}
 	}
-	c, err := planConstraints(twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum, haMin, haMax, zenith, sunAvoid, horizon)
+	c, err := cf.constraints()
 	if err != nil {
 		return err
 	}
@@ -128,8 +119,32 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	return printPlan(stdout, p, ev, loc, y, m, d, acq)
 }
 
-// planConstraints parses the constraint flags.
-func planConstraints(twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum, haMin, haMax, zenith, sunAvoid, horizon *textValue) (planner.Constraints, error) {
+// constraintFlags are the observing-limit flags shared by plan, run and
+// windows.
+type constraintFlags struct {
+	twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum, haMin, haMax, zenith, sunAvoid, horizon *textValue
+}
+
+// addConstraintFlags registers the observing-limit flags on fl.
+func addConstraintFlags(fl *flags) constraintFlags {
+	return constraintFlags{
+		twilight:     fl.text("twilight", "NAME|DEG", "nautical", "darkness limit: civil (−6°), nautical (−12°), astronomical (−18°) or a Sun altitude −30..0"),
+		maxAirmass:   fl.text("max-airmass", "X", "2.0", "highest airmass, 1..40 (0 = none, the horizon only)"),
+		minAlt:       fl.text("min-alt", "DEG", "0", "lowest altitude, refracted, degrees (0 = the horizon)"),
+		minMoonSep:   fl.text("min-moon-sep", "DEG", "0", "closest distance to the Moon while it is up, degrees (0 = none)"),
+		maxMoonIllum: fl.text("max-moon-illum", "FRAC", "0", "brightest Moon allowed while it is up, illuminated fraction 0..1 (0 = no limit)"),
+		haMin:        fl.text("ha-min", "HOURS", "", "lowest hour angle, hours −12..12 (equatorial mounts); with --ha-max"),
+		haMax:        fl.text("ha-max", "HOURS", "", "highest hour angle, hours −12..12; with --ha-min"),
+		zenith:       fl.text("zenith-excl", "DEG", "0", "no tracking within this distance of the zenith (alt-az mounts), degrees 0..30"),
+		sunAvoid:     fl.text("sun-avoid", "DEG", "30", "never point closer than this to the Sun, degrees 0..90 (safety)"),
+		horizon:      fl.text("horizon", "FILE", "", "horizon mask file: lines of \"azimuth altitude\" in degrees"),
+	}
+}
+
+// constraints reads the observing-limit flags into planner.Constraints.
+func (cf constraintFlags) constraints() (planner.Constraints, error) {
+	twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum := cf.twilight, cf.maxAirmass, cf.minAlt, cf.minMoonSep, cf.maxMoonIllum
+	haMin, haMax, zenith, sunAvoid, horizon := cf.haMin, cf.haMax, cf.zenith, cf.sunAvoid, cf.horizon
 	c := planner.DefaultConstraints()
 	tw := strings.TrimSpace(twilight.value)
 	if !twilight.set {

@@ -53,16 +53,7 @@ func runRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, as for plan); required")
 	observed := fl.text("observed", "LOG.csv", "", "log of exposures already taken (CSV, columns above)")
 	past := fl.text("past", "N", "the nights the log reaches", "nights already over, 0..number of nights")
-	twilight := fl.text("twilight", "NAME|DEG", "nautical", "darkness limit: civil (−6°), nautical (−12°), astronomical (−18°) or a Sun altitude −30..0")
-	maxAirmass := fl.text("max-airmass", "X", "2.0", "highest airmass, 1..40 (0 = none, the horizon only)")
-	minAlt := fl.text("min-alt", "DEG", "0", "lowest altitude, refracted, degrees (0 = the horizon)")
-	minMoonSep := fl.text("min-moon-sep", "DEG", "0", "closest distance to the Moon while it is up, degrees (0 = none)")
-	maxMoonIllum := fl.text("max-moon-illum", "FRAC", "0", "brightest Moon allowed while it is up, illuminated fraction 0..1 (0 = no limit)")
-	haMin := fl.text("ha-min", "HOURS", "", "lowest hour angle, hours −12..12 (equatorial mounts); with --ha-max")
-	haMax := fl.text("ha-max", "HOURS", "", "highest hour angle, hours −12..12; with --ha-min")
-	zenith := fl.text("zenith-excl", "DEG", "0", "no tracking within this distance of the zenith (alt-az mounts), degrees 0..30")
-	sunAvoid := fl.text("sun-avoid", "DEG", "30", "never point closer than this to the Sun, degrees 0..90 (safety)")
-	horizon := fl.text("horizon", "FILE", "", "horizon mask file: lines of \"azimuth altitude\" in degrees")
+	cf := addConstraintFlags(fl)
 	acquire := fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
 	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal and night (0 = as many as fit)")
 	minNights := fl.text("min-nights", "M", "1", "nights each goal wants its exposures on, 1..366")
@@ -88,7 +79,7 @@ func runRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 	if err != nil {
 		return err
 	}
-	c, err := planConstraints(twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum, haMin, haMax, zenith, sunAvoid, horizon)
+	c, err := cf.constraints()
 	if err != nil {
 		return err
 	}

@@ -43,16 +43,7 @@ func runWindows(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	halfWidth := fl.text("halfwidth", "W", "the CSV's", "half-width of the --goal window in phase, 0 < w < 0.5")
 	from := fl.text("from", "DATE|TIME", "", "start of the range: YYYY-MM-DD (local midnight) or RFC 3339; required")
 	to := fl.text("to", "DATE|TIME", "", "end of the range, at most 366 days after --from; required")
-	twilight := fl.text("twilight", "NAME|DEG", "nautical", "darkness limit: civil (−6°), nautical (−12°), astronomical (−18°) or a Sun altitude −30..0")
-	maxAirmass := fl.text("max-airmass", "X", "2.0", "highest airmass, 1..40 (0 = none, the horizon only)")
-	minAlt := fl.text("min-alt", "DEG", "0", "lowest altitude, refracted, degrees (0 = the horizon)")
-	minMoonSep := fl.text("min-moon-sep", "DEG", "0", "closest distance to the Moon while it is up, degrees (0 = none)")
-	maxMoonIllum := fl.text("max-moon-illum", "FRAC", "0", "brightest Moon allowed while it is up, illuminated fraction 0..1 (0 = no limit)")
-	haMin := fl.text("ha-min", "HOURS", "", "lowest hour angle, hours −12..12 (equatorial mounts); with --ha-max")
-	haMax := fl.text("ha-max", "HOURS", "", "highest hour angle, hours −12..12; with --ha-min")
-	zenith := fl.text("zenith-excl", "DEG", "0", "no tracking within this distance of the zenith (alt-az mounts), degrees 0..30")
-	sunAvoid := fl.text("sun-avoid", "DEG", "30", "never point closer than this to the Sun, degrees 0..90 (safety)")
-	horizon := fl.text("horizon", "FILE", "", "horizon mask file: lines of \"azimuth altitude\" in degrees")
+	cf := addConstraintFlags(fl)
 	minExp := fl.text("min-exposures", "N", "0", "list only windows that hold at least N whole exposures (0 = every window)")
 	step := fl.text("step-s", "S", "60", "constraint scan step, seconds 1..900 (edges are refined to 1 ms)")
 	format := fl.text("format", "text|json|csv|ics", "text", "output format")
@@ -97,7 +88,7 @@ func runWindows(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if !t1.After(t0) || t1.Sub(t0) > planner.MaxWindowDays*24*time.Hour {
 		return fieldError(to, "out of range", fmt.Sprintf("an instant after --from, at most %d days later", planner.MaxWindowDays))
 	}
-	c, err := planConstraints(twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum, haMin, haMax, zenith, sunAvoid, horizon)
+	c, err := cf.constraints()
 	if err != nil {
 		return err
 	}
