@@ -13,6 +13,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 // The team target file formats are described in FORMAT.md.
@@ -287,7 +288,7 @@ func (c *cellReader) get(name string) string {
 	if !ok {
 		return ""
 	}
-	return planner.UnquoteCSVCell(strings.TrimSpace(c.rec[i]))
+	return export.UnquoteCSVCell(strings.TrimSpace(c.rec[i]))
 }
 
 func (c *cellReader) bad(name, value, reason string) {
@@ -568,7 +569,7 @@ func writeTeamCSV(w io.Writer, targets []StoredTarget) error {
 			strconv.Itoa(t.Priority), numOrEmpty(t.AcquireS), strings.Join(t.Tags, ";"), t.Notes,
 		}
 		for i := range rec {
-			rec[i] = planner.SafeCSVCell(rec[i])
+			rec[i] = export.SafeCSVCell(rec[i])
 		}
 		if err := cw.Write(rec); err != nil {
 			return err

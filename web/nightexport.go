@@ -12,19 +12,19 @@ import (
 	"time"
 
 	"phasecast/planner"
-	"phasecast/web/ical"
+	"phasecast/planner/export"
 )
 
 // cautionText goes with every exported plan.
 const cautionText = "Times are computed; verify against the observatory's own tools and rules before pointing. Never point near the Sun."
 
 // nightDoc is the JSON export of a night (also GET /api/v1/night): the
-// site, date and zone, then the plan command's document, planner.PlanDoc.
+// site, date and zone, then the plan command's document, export.PlanDoc.
 type nightDoc struct {
 	Site siteJSON `json:"site"`
 	Date string   `json:"date"`
 	Zone string   `json:"zone"`
-	planner.PlanDoc
+	export.PlanDoc
 }
 
 type siteJSON struct {
@@ -40,7 +40,7 @@ func utcString(t time.Time) string { return t.UTC().Format(time.RFC3339) }
 // exportJSON is the night as JSON.
 func (n *night) exportJSON() ([]byte, error) {
 	out := nightDoc{Site: siteJSON{n.site.Name, n.site.Site.LatDeg, n.site.Site.LonEastDeg, n.site.Site.ElevM}, Date: n.q.date, Zone: n.site.Zone,
-		PlanDoc: planner.NewPlanDoc(n.plan, n.events, largestAcquire(n.req.Targets))}
+		PlanDoc: export.NewPlanDoc(n.plan, n.events, largestAcquire(n.req.Targets))}
 	out.Caution = cautionText + " " + planner.SafetyCaution
 	return json.MarshalIndent(out, "", "  ")
 }
@@ -78,11 +78,11 @@ func (n *night) exportCSV() ([]byte, error) {
 		for _, w := range b.Warnings {
 			ws = append(ws, w.Message)
 		}
-		row := []string{planner.SafeCSVCell(b.Target), goal, planner.SafeCSVCell(b.Goal.Event), utcString(b.Start), utcString(b.End),
+		row := []string{export.SafeCSVCell(b.Target), goal, export.SafeCSVCell(b.Goal.Event), utcString(b.Start), utcString(b.End),
 			b.Start.In(n.loc).Format(time.RFC3339), b.End.In(n.loc).Format(time.RFC3339), strconv.Itoa(b.N), num(b.ExposureS),
 			num(b.OverheadS), f(b.PhaseStart, 4), f(b.PhaseEnd, 4), f(b.PhaseMid, 4), f(b.Smear, 5), f(b.PhaseErr, 5),
 			f(b.AirmassMin, 3), f(b.AirmassMax, 3), f(b.MoonSepDeg, 1), f(b.Parallactic, 1), f(b.HourAngle, 3), f(b.SunAltStart, 2),
-			num(b.AcquireS), strconv.Itoa(b.Priority), strconv.FormatBool(b.Filler), planner.SafeCSVCell(strings.Join(ws, "; "))}
+			num(b.AcquireS), strconv.Itoa(b.Priority), strconv.FormatBool(b.Filler), export.SafeCSVCell(strings.Join(ws, "; "))}
 		if err := cw.Write(row); err != nil {
 			return nil, err
 		}
@@ -101,7 +101,7 @@ func (n *night) exportICS() ([]byte, error) {
 			stamp = t.UpdatedAt
 		}
 	}
-	cal := ical.Calendar{ProdID: "-//phasecast//night plan//EN", Name: n.title()}
+	cal := export.Calendar{ProdID: "-//phasecast//night plan//EN", Name: n.title()}
 	loc := fmt.Sprintf("%s (lat %s, lon %s east, %s m)", n.site.Name, num(n.site.Site.LatDeg), num(n.site.Site.LonEastDeg), num(n.site.Site.ElevM))
 	for _, b := range n.plan.Blocks {
 		sum := sha256.Sum256([]byte(fmt.Sprintf("%d|%s|%s|%s", n.site.ID, b.Target, num(b.Goal.Center), utcString(b.Start))))
@@ -112,12 +112,12 @@ func (n *night) exportICS() ([]byte, error) {
 		desc := fmt.Sprintf("%s\n%d × %s s (+%s s readout); phases %.3f → %.3f; airmass %.2f–%.2f; Moon %.0f°; parallactic angle %.0f°; RA %s Dec %s\n%s",
 			goal, b.N, num(b.ExposureS), num(b.OverheadS), b.PhaseStart, b.PhaseEnd, b.AirmassMin, b.AirmassMax, b.MoonSepDeg, b.Parallactic,
 			planner.FormatRAHours(n.req.Targets[b.TargetIndex].RADeg, 1), planner.FormatDecDeg(n.req.Targets[b.TargetIndex].DecDeg, 0), cautionText)
-		cal.Events = append(cal.Events, ical.Event{UID: "block-" + hex.EncodeToString(sum[:12]) + "@phasecast", Stamp: stamp,
+		cal.Events = append(cal.Events, export.Event{UID: "block-" + hex.EncodeToString(sum[:12]) + "@phasecast", Stamp: stamp,
 			Start: b.Start, End: b.End, Summary: b.Target + " — " + goal, Description: desc, Location: loc,
 			Categories: []string{"phasecast", "observing block"}})
 	}
 	var buf bytes.Buffer
-	err := ical.Encode(&buf, cal)
+	err := export.EncodeICal(&buf, cal)
 	return buf.Bytes(), err
 }
 

@@ -10,6 +10,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
 )
 
@@ -32,7 +33,7 @@ func halfWindow(tb testing.TB, part planner.NightPart) planner.Interval {
 }
 
 // nightJSON fetches a night's JSON export and checks its file name.
-func nightJSON(tb testing.TB, h *harness, c *http.Client, query, wantName string) planner.PlanDoc {
+func nightJSON(tb testing.TB, h *harness, c *http.Client, query, wantName string) export.PlanDoc {
 	tb.Helper()
 	resp, body := h.get(c, "/night.json?"+query)
 	if resp.StatusCode != http.StatusOK {
@@ -41,7 +42,7 @@ func nightJSON(tb testing.TB, h *harness, c *http.Client, query, wantName string
 	if cd := resp.Header.Get("Content-Disposition"); !strings.Contains(cd, `filename="`+wantName+`"`) {
 		tb.Errorf("Content-Disposition %q, want file name %q", cd, wantName)
 	}
-	var doc planner.PlanDoc
+	var doc export.PlanDoc
 	if err := json.Unmarshal([]byte(body), &doc); err != nil {
 		tb.Fatal(err)
 	}

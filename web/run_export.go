@@ -11,8 +11,7 @@ import (
 	"strconv"
 	"time"
 
-	"phasecast/planner"
-	"phasecast/web/ical"
+	"phasecast/planner/export"
 )
 
 // runExport downloads a saved run plan as CSV (every block of every night),
@@ -71,7 +70,7 @@ func runCSV(doc *runDoc) ([]byte, error) {
 			if b.PhaseGoal != nil {
 				goal = num(*b.PhaseGoal)
 			}
-			_ = cw.Write([]string{n.Date, n.Part, planner.SafeCSVCell(b.Target), goal, planner.SafeCSVCell(b.Event), b.Start.String(), b.End.String(), strconv.Itoa(b.NExposures),
+			_ = cw.Write([]string{n.Date, n.Part, export.SafeCSVCell(b.Target), goal, export.SafeCSVCell(b.Event), b.Start.String(), b.End.String(), strconv.Itoa(b.NExposures),
 				num(b.ExposureS), num(b.OverheadS), f(b.PhaseStart), f(b.PhaseEnd), f(b.AirmassMin), f(b.AirmassMax),
 				strconv.Itoa(b.Priority), strconv.FormatBool(b.Filler)})
 		}
@@ -83,7 +82,7 @@ func runCSV(doc *runDoc) ([]byte, error) {
 // runICS writes every block as an event; UIDs come from the plan and the
 // block, DTSTAMP is when the plan was made.
 func runICS(doc *runDoc, planID int64, stamp time.Time) ([]byte, error) {
-	cal := ical.Calendar{ProdID: "-//phasecast//run plan//EN", Name: "Run " + doc.Run}
+	cal := export.Calendar{ProdID: "-//phasecast//run plan//EN", Name: "Run " + doc.Run}
 	for _, n := range doc.Nights {
 		for _, b := range n.Blocks {
 			start, end := time.Time(b.Start), time.Time(b.End)
@@ -92,7 +91,7 @@ func runICS(doc *runDoc, planID int64, stamp time.Time) ([]byte, error) {
 			if b.PhaseGoal != nil {
 				goal = "φ " + num(*b.PhaseGoal)
 			}
-			cal.Events = append(cal.Events, ical.Event{UID: "run-block-" + hex.EncodeToString(sum[:12]) + "@phasecast", Stamp: stamp,
+			cal.Events = append(cal.Events, export.Event{UID: "run-block-" + hex.EncodeToString(sum[:12]) + "@phasecast", Stamp: stamp,
 				Start: start, End: end, Summary: b.Target + " — " + goal,
 				Description: fmt.Sprintf("%d × %s s; phases %.3f → %.3f; airmass %.2f–%.2f\n%s", b.NExposures, num(b.ExposureS), b.PhaseStart,
 					b.PhaseEnd, b.AirmassMin, b.AirmassMax, cautionText),
@@ -100,6 +99,6 @@ func runICS(doc *runDoc, planID int64, stamp time.Time) ([]byte, error) {
 		}
 	}
 	var buf bytes.Buffer
-	err := ical.Encode(&buf, cal)
+	err := export.EncodeICal(&buf, cal)
 	return buf.Bytes(), err
 }

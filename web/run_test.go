@@ -11,7 +11,7 @@ import (
 	"testing"
 	"time"
 
-	"phasecast/web/ical"
+	"phasecast/planner/export/exporttest"
 )
 
 // get fetches path with the demo's client (following redirects).
@@ -126,7 +126,7 @@ func TestRunPlanMarkReplan(t *testing.T) {
 			t.Errorf("plan.csv: %v, %d rows for %d blocks", err, len(rows), blocks)
 		}
 		_, ics := d.get(t, run+"/plan.ics")
-		cal, err := ical.Parse(strings.NewReader(ics))
+		cal, err := exporttest.ParseICal(strings.NewReader(ics))
 		if err != nil || len(cal.Events) != blocks {
 			t.Errorf("plan.ics: %v, %d events for %d blocks", err, len(cal.Events), blocks)
 		}

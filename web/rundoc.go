@@ -5,6 +5,7 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 // engineVersion names the planner that made a saved run plan.
@@ -27,18 +28,18 @@ type runDoc struct {
 }
 
 type runNightDoc struct {
-	Date        string                   `json:"date"`
-	Part        string                   `json:"part"`
-	From        string                   `json:"from"`
-	To          string                   `json:"to"`
-	Past        bool                     `json:"past"`
-	Blocks      []runBlockDoc            `json:"blocks"`
-	Unscheduled []planner.UnscheduledDoc `json:"unscheduled"`
-	Warnings    []string                 `json:"warnings"`
+	Date        string                  `json:"date"`
+	Part        string                  `json:"part"`
+	From        string                  `json:"from"`
+	To          string                  `json:"to"`
+	Past        bool                    `json:"past"`
+	Blocks      []runBlockDoc           `json:"blocks"`
+	Unscheduled []export.UnscheduledDoc `json:"unscheduled"`
+	Warnings    []string                `json:"warnings"`
 }
 
 type runBlockDoc struct {
-	planner.BlockDoc
+	export.BlockDoc
 	TargetID int64 `json:"target_id"`
 }
 
@@ -101,16 +102,16 @@ func newRunDoc(in *runInputs, rp *planner.RunPlan, now time.Time) runDoc {
 	}
 	for _, np := range rp.Nights {
 		nd := runNightDoc{Date: fmt.Sprintf("%04d-%02d-%02d", np.Night.Year, np.Night.Month, np.Night.Day), Part: string(np.Night.Part),
-			From: utcString(np.From), To: utcString(np.To), Past: np.Past, Blocks: []runBlockDoc{}, Unscheduled: []planner.UnscheduledDoc{}}
+			From: utcString(np.From), To: utcString(np.To), Past: np.Past, Blocks: []runBlockDoc{}, Unscheduled: []export.UnscheduledDoc{}}
 		if nd.Part == "" {
 			nd.Part = string(planner.PartFull)
 		}
 		if np.Plan != nil {
 			for _, b := range np.Plan.Blocks {
-				nd.Blocks = append(nd.Blocks, runBlockDoc{BlockDoc: planner.NewBlockDoc(b), TargetID: ids[b.TargetIndex]})
+				nd.Blocks = append(nd.Blocks, runBlockDoc{BlockDoc: export.NewBlockDoc(b), TargetID: ids[b.TargetIndex]})
 			}
 			for _, u := range np.Plan.Unscheduled {
-				nd.Unscheduled = append(nd.Unscheduled, planner.NewUnscheduledDoc(u))
+				nd.Unscheduled = append(nd.Unscheduled, export.NewUnscheduledDoc(u))
 			}
 			for _, w := range np.Plan.Warnings {
 				nd.Warnings = append(nd.Warnings, warningText(w))

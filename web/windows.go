@@ -14,8 +14,8 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
-	"phasecast/web/ical"
 	"phasecast/web/page"
 )
 
@@ -227,7 +227,7 @@ func (w *windows) exportCSV() ([]byte, error) {
 	cw := csv.NewWriter(&buf)
 	_ = cw.Write([]string{"target", "phase_goal", "event", "start_utc", "end_utc", "cycle", "airmass_min", "airmass_max", "phase_err", "uncertain", "whole_exposures"})
 	for _, r := range w.flat() {
-		_ = cw.Write([]string{planner.SafeCSVCell(r.Target), num(r.PhaseGoal), planner.SafeCSVCell(r.Event), r.Start, r.End, strconv.FormatInt(r.Cycle, 10),
+		_ = cw.Write([]string{export.SafeCSVCell(r.Target), num(r.PhaseGoal), export.SafeCSVCell(r.Event), r.Start, r.End, strconv.FormatInt(r.Cycle, 10),
 			strconv.FormatFloat(r.AirmassMin, 'f', 3, 64), strconv.FormatFloat(r.AirmassMax, 'f', 3, 64),
 			strconv.FormatFloat(r.PhaseErr, 'g', 3, 64), strconv.FormatBool(r.Uncertain), strconv.Itoa(r.Exposures)})
 	}
@@ -244,19 +244,19 @@ func (w *windows) exportICS() ([]byte, error) {
 			stamp = t.UpdatedAt
 		}
 	}
-	cal := ical.Calendar{ProdID: "-//phasecast//queue windows//EN", Name: "Queue windows at " + w.site.Name}
+	cal := export.Calendar{ProdID: "-//phasecast//queue windows//EN", Name: "Queue windows at " + w.site.Name}
 	for _, g := range w.groups {
 		for _, qw := range g.Windows {
 			sum := sha256.Sum256([]byte(fmt.Sprintf("%d|%s|%s|%s|%d", w.site.ID, g.Target, num(g.Goal.Center), g.Goal.Event, qw.Cycle)))
 			desc := fmt.Sprintf("%s; cycle %d; airmass %.2f–%.2f; phase 1σ %s; %d whole exposures fit\n%s", goalLabel(g.Goal), qw.Cycle,
 				qw.AirmassMin, qw.AirmassMax, fmtPhaseErr(qw.PhaseErr), qw.Exposures, cautionText)
-			cal.Events = append(cal.Events, ical.Event{UID: "window-" + hex.EncodeToString(sum[:12]) + "@phasecast", Stamp: stamp,
+			cal.Events = append(cal.Events, export.Event{UID: "window-" + hex.EncodeToString(sum[:12]) + "@phasecast", Stamp: stamp,
 				Start: qw.Start, End: qw.End, Summary: g.Target + " — " + goalLabel(g.Goal), Description: desc, Location: w.site.Name,
 				Categories: []string{"phasecast", "queue window"}})
 		}
 	}
 	var buf bytes.Buffer
-	err := ical.Encode(&buf, cal)
+	err := export.EncodeICal(&buf, cal)
 	return buf.Bytes(), err
 }
 

@@ -8,7 +8,7 @@ import (
 	"strings"
 	"testing"
 
-	"phasecast/web/ical"
+	"phasecast/planner/export/exporttest"
 )
 
 // windowsDocTest is the part of the windows JSON export the goal tests read.
@@ -49,7 +49,7 @@ func TestWindowsGoalFilter(t *testing.T) {
 	}
 	all := windowsDocOf(t, js)
 	_, icsAll := h.get(c, "/windows.ics"+base)
-	calAll, err := ical.Parse(strings.NewReader(icsAll))
+	calAll, err := exporttest.ParseICal(strings.NewReader(icsAll))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -103,7 +103,7 @@ func TestWindowsGoalFilter(t *testing.T) {
 			}
 
 			_, ics := h.get(c, "/windows.ics"+q)
-			cal, err := ical.Parse(strings.NewReader(ics))
+			cal, err := exporttest.ParseICal(strings.NewReader(ics))
 			if err != nil || len(cal.Events) != len(want) {
 				t.Fatalf("windows.ics: %v, %d events for %d windows", err, len(cal.Events), len(want))
 			}

@@ -12,20 +12,21 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
-// The `plan --json` document is planner.PlanDoc, shared with the web; these
+// The `plan --json` document is export.PlanDoc, shared with the web; these
 // names stay for run_nights.go, which prints the same objects per night.
 type (
-	planJSON        = planner.PlanDoc
-	planBlockJSON   = planner.BlockDoc
-	unscheduledJSON = planner.UnscheduledDoc
-	warningJSON     = planner.WarningDoc
-	intervalJSON    = planner.IntervalDoc
-	constraintsJSON = planner.ConstraintsDoc
+	planJSON        = export.PlanDoc
+	planBlockJSON   = export.BlockDoc
+	unscheduledJSON = export.UnscheduledDoc
+	warningJSON     = export.WarningDoc
+	intervalJSON    = export.IntervalDoc
+	constraintsJSON = export.ConstraintsDoc
 	// planTime is an instant in RFC 3339 UTC, with the fraction of a second
 	// written only when there is one (to the microsecond).
-	planTime = planner.DocTime
+	planTime = export.DocTime
 )
 
 const planSynopsis = `Plan one night: for every target of a CSV list, the observable intervals under the
@@ -242,7 +243,7 @@ func readTargets(v *textValue) ([]planner.Target, error) {
 
 // planOutput is the `plan --json` document; acq is the --acquire-s value.
 func planOutput(p *planner.Plan, ev ephem.NightEvents, acq float64) planJSON {
-	return planner.NewPlanDoc(p, ev, acq)
+	return export.NewPlanDoc(p, ev, acq)
 }
 
 // checkPlanFinite makes sure no NaN reaches the output.

@@ -11,7 +11,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
-	"phasecast/web/ical"
+	"phasecast/planner/export"
 )
 
 const windowsSynopsis = `Queue phase windows: for targets of a CSV list (the plan command's), every UTC
@@ -294,7 +294,7 @@ func writeWindowsCSV(w io.Writer, got []planner.GoalWindows) error {
 	}
 	for _, gw := range got {
 		for _, win := range gw.Windows {
-			rec := []string{planner.SafeCSVCell(gw.Target), f(gw.Goal.Center, 4), f(gw.Goal.HalfWidth, 4), planTime(win.Start).String(), planTime(win.End).String(),
+			rec := []string{export.SafeCSVCell(gw.Target), f(gw.Goal.Center, 4), f(gw.Goal.HalfWidth, 4), planTime(win.Start).String(), planTime(win.End).String(),
 				f(win.Duration().Minutes(), 2), strconv.FormatInt(win.Cycle, 10), f(win.PhaseErr, 5), strconv.FormatBool(win.Uncertain),
 				f(win.AirmassMin, 3), f(win.AirmassMax, 3), strconv.Itoa(win.Exposures)}
 			if err := cw.Write(rec); err != nil {
@@ -320,20 +320,20 @@ func windowUID(gw planner.GoalWindows, w planner.QueueWindow) string {
 }
 
 func writeWindowsICS(w io.Writer, got []planner.GoalWindows, stamp time.Time) error {
-	cal := ical.Calendar{ProdID: "-//phasecast//queue windows//EN", Name: "phasecast queue windows"}
+	cal := export.Calendar{ProdID: "-//phasecast//queue windows//EN", Name: "phasecast queue windows"}
 	for _, gw := range got {
 		for _, win := range gw.Windows {
 			desc := fmt.Sprintf("Phase window %.4f ± %.4f of %s (cycle %d), %.1f min; phase uncertainty 1σ %.4f; airmass %.2f–%.2f; %d exposure(s) of %ss fit. %s",
 				gw.Goal.Center, gw.Goal.HalfWidth, gw.Target, win.Cycle, win.Duration().Minutes(), win.PhaseErr, win.AirmassMin, win.AirmassMax,
 				win.Exposures, fmtG(gw.Goal.ExposureS), planner.SafetyCaution)
-			cal.Events = append(cal.Events, ical.Event{
+			cal.Events = append(cal.Events, export.Event{
 				UID: windowUID(gw, win), Stamp: stamp, Start: win.Start, End: win.End,
 				Summary:     fmt.Sprintf("%s phase %.3f", gw.Target, gw.Goal.Center),
 				Description: desc, Categories: []string{"phasecast", "queue window"},
 			})
 		}
 	}
-	return ical.Encode(w, cal)
+	return export.EncodeICal(w, cal)
 }
 
 func printWindows(w io.Writer, got []planner.GoalWindows, site ephem.Site, loc *time.Location, t0, t1 time.Time, c planner.Constraints) error {

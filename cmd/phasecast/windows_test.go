@@ -8,7 +8,7 @@ import (
 	"testing"
 	"time"
 
-	"phasecast/web/ical"
+	"phasecast/planner/export/exporttest"
 )
 
 var windowsArgs = []string{"--from", "2026-05-01", "--to", "2026-05-21"}
@@ -68,7 +68,7 @@ func TestWindowsFormats(t *testing.T) {
 	if strings.Join(rows[0], ",") != strings.Join(windowsCSVHeader, ",") || len(rows)-1 != n {
 		t.Errorf("CSV header %v and %d rows; want %v and %d", rows[0], len(rows)-1, windowsCSVHeader, n)
 	}
-	cal, err := ical.Parse(strings.NewReader(windowsRun(t, "--format", "ics", "--target", "Mirel-9")))
+	cal, err := exporttest.ParseICal(strings.NewReader(windowsRun(t, "--format", "ics", "--target", "Mirel-9")))
 	if err != nil {
 		t.Fatal(err)
 	}
