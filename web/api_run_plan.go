@@ -1,6 +1,8 @@
 package web
 
 import (
+	"phasecast/planner/export"
+
 	"net/http"
 	"strconv"
 
@@ -21,11 +23,15 @@ func (s *Server) apiRunPlan(w http.ResponseWriter, r *http.Request, u *user) {
 	if err == nil && doc == nil {
 		err = errNotFound("the run has no saved plan yet: POST /api/v1/runs/{id}/plan makes one")
 	}
+	var b []byte
+	if err == nil {
+		b, err = export.JSON(doc)
+	}
 	if err != nil {
 		s.apiError(w, r, err)
 		return
 	}
-	writeJSON(w, http.StatusOK, doc)
+	writeDoc(w, b)
 }
 
 // apiRunCoverage returns only the coverage part of a run's saved plan
@@ -37,7 +43,7 @@ func (s *Server) apiRunCoverage(w http.ResponseWriter, r *http.Request, u *user)
 		return
 	}
 	want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
-	_, doc, _, err := s.runPlanDoc(r.Context(), u.actor, id, want)
+	plans, doc, planID, err := s.runPlanDoc(r.Context(), u.actor, id, want)
 	if err == nil && doc == nil {
 		err = errNotFound("the run has no saved plan yet: POST /api/v1/runs/{id}/plan makes one")
 	}
@@ -45,7 +51,7 @@ func (s *Server) apiRunCoverage(w http.ResponseWriter, r *http.Request, u *user)
 		s.apiError(w, r, err)
 		return
 	}
-	writeJSON(w, http.StatusOK, map[string]any{"run": doc.Run, "made_at": doc.MadeAt, "past_nights": doc.Past,
+	writeJSON(w, http.StatusOK, map[string]any{"run": doc.Run, "made_at": planMade(plans, planID), "past_nights": doc.Past,
 		"targets": doc.Targets, "objective": doc.Objective})
 }
 

@@ -100,7 +100,7 @@ func TestNightPageOfRunHalf(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	rv := runView(in, &runDoc{Nights: []runNightDoc{{Date: "2026-03-14", Part: "second"}, {Date: "2026-03-15", Part: "full"}}}, nil, 0, testNow)
+	rv := runView(in, &export.Run{Nights: []export.RunNight{{Date: "2026-03-14", Part: "second"}, {Date: "2026-03-15", Part: "full"}}}, nil, 0, testNow)
 	link := "/night?date=2026-03-14&run=" + i64s(run.ID)
 	if len(rv.Schedules) != 2 || rv.Schedules[0].Href != link {
 		t.Fatalf("run page night links %+v, want the first %q", rv.Schedules, link)

@@ -2,12 +2,11 @@ package web
 
 import (
 	"fmt"
-	"math"
 	"strconv"
-	"strings"
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/web/chart"
 	"phasecast/web/page"
 )
@@ -69,7 +68,7 @@ func (n *night) view(now time.Time) (page.NightView, error) {
 		v.Warnings = append(v.Warnings, warningText(w))
 	}
 	for _, u := range p.Unscheduled {
-		v.Unscheduled = append(v.Unscheduled, page.UnschedRow{Target: u.Target, Goal: goalLabel(u.Goal), Reason: u.Detail})
+		v.Unscheduled = append(v.Unscheduled, page.UnschedRow{Target: u.Target, Goal: export.GoalLabel(u.Goal), Reason: u.Detail})
 	}
 	v.Objective = objectiveText(p)
 	c, err := n.chart(now)
@@ -127,7 +126,7 @@ func (n *night) eventRows() []page.EventRow {
 
 // blockRow formats one block with every figure.
 func (n *night) blockRow(b planner.Block) page.BlockRow {
-	r := page.BlockRow{Target: b.Target, Goal: goalLabel(b.Goal), Priority: b.Priority, Filler: b.Filler,
+	r := page.BlockRow{Target: b.Target, Goal: export.GoalLabel(b.Goal), Priority: b.Priority, Filler: b.Filler,
 		Local:     b.Start.In(n.loc).Format("15:04:05") + "–" + b.End.In(n.loc).Format("15:04:05"),
 		UTC:       b.Start.UTC().Format("15:04:05") + "–" + b.End.UTC().Format("15:04:05"),
 		Exposures: fmt.Sprintf("%d × %s s + %s s", b.N, num(b.ExposureS), num(b.OverheadS)),
@@ -141,7 +140,7 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 	if !b.MoonUp {
 		r.MoonSep += " (down)"
 	}
-	r.GoalShort = fmt.Sprintf("φ %s ± %s", phaseNum(b.Goal.Center), phaseNum(b.Goal.HalfWidth))
+	r.GoalShort = fmt.Sprintf("φ %s ± %s", export.PhaseText(b.Goal.Center), export.PhaseText(b.Goal.HalfWidth))
 	r.ExpShort = fmt.Sprintf("%d×%s s", b.N, num(b.ExposureS))
 	if b.Filler {
 		r.Goal, r.GoalShort = "filler", "filler"
@@ -150,24 +149,6 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 		r.Warnings = append(r.Warnings, w.Message)
 	}
 	return r
-}
-
-// goalLabel names a goal: "φ 0.25 ± 0.05" or "quadrature (max recession) φ 0.25 ± 0.05".
-func goalLabel(g planner.Goal) string {
-	s := fmt.Sprintf("φ %s ± %s", phaseNum(g.Center), phaseNum(g.HalfWidth))
-	if g.Event != "" {
-		s = strings.ReplaceAll(g.Event, "_", " ") + ", " + s
-	}
-	return s
-}
-
-// phaseNum formats a phase: as typed when short ("0.25"), else to four
-// decimals (an event's derived phase such as 0.9773).
-func phaseNum(x float64) string {
-	if r := math.Round(x*1e4) / 1e4; math.Abs(r-x) < 1e-12 {
-		return num(r)
-	}
-	return strconv.FormatFloat(x, 'f', 4, 64)
 }
 
 // num formats a number compactly.

@@ -5,6 +5,7 @@ import (
 	"strconv"
 	"time"
 
+	"phasecast/planner/export"
 	"phasecast/store"
 )
 
@@ -48,7 +49,7 @@ func (s *Server) runMark(w http.ResponseWriter, r *http.Request, u *user) {
 // blockObservations are the exposures of a block marked done, back to back
 // from its start, or one failed record spanning a lost block's first
 // exposure.
-func blockObservations(runID int64, b runBlockDoc, status string) []store.ObservationInput {
+func blockObservations(runID int64, b export.RunBlock, status string) []store.ObservationInput {
 	start := time.Time(b.Start)
 	step := time.Duration((b.ExposureS + b.OverheadS) * float64(time.Second))
 	var goal *float64

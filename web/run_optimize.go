@@ -58,7 +58,7 @@ func (s *Server) planRunJob(ctx context.Context, a store.Actor, in *runInputs, p
 	if err != nil {
 		return "", err
 	}
-	doc := newRunDoc(in, rp, s.now())
+	doc := newRunDoc(in, rp)
 	out, err := json.Marshal(doc)
 	if err != nil {
 		return "", err

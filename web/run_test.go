@@ -11,6 +11,7 @@ import (
 	"testing"
 	"time"
 
+	"phasecast/planner/export"
 	"phasecast/planner/export/exporttest"
 )
 
@@ -112,7 +113,7 @@ func TestRunPlanMarkReplan(t *testing.T) {
 	}
 	t.Run("Exports", func(t *testing.T) {
 		_, js := d.get(t, run+"/plan.json")
-		var doc runDoc
+		var doc export.Run
 		if err := json.Unmarshal([]byte(js), &doc); err != nil || len(doc.Nights) != len(d.info.Run.Nights) {
 			t.Fatalf("plan.json: %v, %d nights", err, len(doc.Nights))
 		}

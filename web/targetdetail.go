@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
 	"phasecast/web/chart"
 	"phasecast/web/page"
@@ -54,7 +55,7 @@ func (s *Server) targetDetail(ctx context.Context, u *user, id int64) (page.Targ
 		goals = tg.Goals
 	}
 	for _, g := range goals {
-		v.Goals = append(v.Goals, goalLabel(g)+fmt.Sprintf(": %s s exposures + %s s readout, %s", num(g.ExposureS), num(g.OverheadS), wantLabel(g.NExposures)))
+		v.Goals = append(v.Goals, export.GoalLabel(g)+fmt.Sprintf(": %s s exposures + %s s readout, %s", num(g.ExposureS), num(g.OverheadS), wantLabel(g.NExposures)))
 	}
 	v.Sigma = sigmaChart(site, t, now)
 	v.Timings, v.OC = timingRows(t, timings)

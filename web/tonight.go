@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
 	"phasecast/web/page"
 )
@@ -88,7 +89,7 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 	v.NightLink = "/night?" + q.encode()
 	zone, _ := now.In(n.loc).Zone()
 	for _, b := range n.plan.Blocks {
-		nb := &page.NowBlock{Target: b.Target, Goal: goalLabel(b.Goal), Exposures: fmt.Sprintf("%d × %s s", b.N, num(b.ExposureS)),
+		nb := &page.NowBlock{Target: b.Target, Goal: export.GoalLabel(b.Goal), Exposures: fmt.Sprintf("%d × %s s", b.N, num(b.ExposureS)),
 			Span: b.Start.In(n.loc).Format("15:04") + "–" + b.End.In(n.loc).Format("15:04") + " " + zone}
 		if b.Filler {
 			nb.Goal = "filler"
@@ -133,7 +134,7 @@ func tonightRow(n *night, i int, t store.StoredTarget, now time.Time) page.Tonig
 			start := math.Mod(g.Center-g.HalfWidth+1, 1)
 			ts := planner.UpcomingEvents(n.site.Site, tg.Star(), tg.Ephem, start, now, now.Add(time.Duration(tg.Ephem.PeriodDays*24*float64(time.Hour))+time.Minute))
 			if len(ts) > 0 && (best.IsZero() || ts[0].Before(best)) {
-				best, label = ts[0], goalLabel(g)
+				best, label = ts[0], export.GoalLabel(g)
 			}
 		}
 		if !best.IsZero() {
@@ -143,7 +144,7 @@ func tonightRow(n *night, i int, t store.StoredTarget, now time.Time) page.Tonig
 	}
 	for _, b := range n.plan.Blocks {
 		if b.TargetIndex == i && b.End.After(now) {
-			r.NextBlock = b.Start.In(n.loc).Format("15:04") + "–" + b.End.In(n.loc).Format("15:04") + ", " + goalLabel(b.Goal)
+			r.NextBlock = b.Start.In(n.loc).Format("15:04") + "–" + b.End.In(n.loc).Format("15:04") + ", " + export.GoalLabel(b.Goal)
 			if b.Start.After(now) {
 				r.BlockAt, r.BlockIn = b.Start.UTC().Format(time.RFC3339), "in "+fmtDuration(b.Start.Sub(now))
 			} else {

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"net/http"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -97,8 +98,8 @@ func TestWindowsGoalFilter(t *testing.T) {
 				t.Fatalf("windows.csv: %v, %d rows for %d windows", err, len(rows), len(want))
 			}
 			for _, r := range rows[1:] {
-				if r[1] != num(center) {
-					t.Errorf("windows.csv row %v: phase_goal %s, want %s", r, r[1], num(center))
+				if g, err := strconv.ParseFloat(r[1], 64); err != nil || g != center {
+					t.Errorf("windows.csv row %v: phase_goal %s, want %g", r, r[1], center)
 				}
 			}
 

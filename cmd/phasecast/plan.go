@@ -15,20 +15,6 @@ import (
 	"phasecast/planner/export"
 )
 
-// The `plan --json` document is export.PlanDoc, shared with the web; these
-// names stay for run_nights.go, which prints the same objects per night.
-type (
-	planJSON        = export.PlanDoc
-	planBlockJSON   = export.BlockDoc
-	unscheduledJSON = export.UnscheduledDoc
-	warningJSON     = export.WarningDoc
-	intervalJSON    = export.IntervalDoc
-	constraintsJSON = export.ConstraintsDoc
-	// planTime is an instant in RFC 3339 UTC, with the fraction of a second
-	// written only when there is one (to the microsecond).
-	planTime = export.DocTime
-)
-
 const planSynopsis = `Plan one night: for every target of a CSV list, the observable intervals under the
 constraints, then the exposure blocks that land on its wanted orbital phases,
 scheduled for the highest total value (priorities weigh; not a greedy fill), with
@@ -54,7 +40,8 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = as many as fit)")
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
-	asJSON := fl.boolean("json", "print one JSON object")
+	siteName := addSiteNameFlag(fl)
+	asJSON := fl.boolean("json", "print one JSON object (the night document, docs/formats.md)")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
@@ -110,8 +97,8 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return fromInputError(err, "not accepted", nil)
 	}
 	ev := ephem.Night(site, y, m, d, loc)
-	out := planOutput(p, ev, acq)
-	if err := checkPlanFinite(out); err != nil {
+	out := export.NewNight(export.NewSite(siteName.value, site), fmt.Sprintf("%04d-%02d-%02d", y, int(m), d), loc.String(), p, ev, acq)
+	if err := checkPlanFinite(out.PlanDoc); err != nil {
 		return err
 	}
 	if *asJSON {
@@ -241,13 +228,8 @@ func readTargets(v *textValue) ([]planner.Target, error) {
 	return list, nil
 }
 
-// planOutput is the `plan --json` document; acq is the --acquire-s value.
-func planOutput(p *planner.Plan, ev ephem.NightEvents, acq float64) planJSON {
-	return export.NewPlanDoc(p, ev, acq)
-}
-
 // checkPlanFinite makes sure no NaN reaches the output.
-func checkPlanFinite(out planJSON) error {
+func checkPlanFinite(out export.PlanDoc) error {
 	for _, b := range out.Blocks {
 		if err := checkFinite([]string{"phase", "phase", "airmass", "airmass", "phase", "smear", "phase error", "Moon separation", "parallactic angle", "hour angle", "Sun altitude"},
 			b.PhaseStart, b.PhaseEnd, b.AirmassMax, b.AirmassMin, b.PhaseMid, b.Smear, b.PhaseErr, b.MoonSepDeg, b.ParallacticDeg, b.HourAngleHours, b.SunAltStartDeg); err != nil {

@@ -14,6 +14,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 const runSynopsis = `Plan a run of nights: spread the exposures of a target list over several nights
@@ -63,8 +64,16 @@ func runRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 	rounds := fl.text("rounds", "N", "2", "improvement rounds after the greedy pass, 0..100")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
 	compare := fl.boolean("compare", "also plan every night on its own (as plan does) and show that objective")
-	asJSON := fl.boolean("json", "print one JSON object")
+	siteName := addSiteNameFlag(fl)
+	name := fl.text("name", "NAME", "none", "the run's name, written into the JSON, CSV and iCalendar documents")
+	format := fl.text("format", "text|json|csv|ics", "text", "output format (the run document, docs/formats.md)")
+	stamp := fl.text("stamp", "TIME", "the first night's start", "DTSTAMP of the iCalendar events (RFC 3339)")
+	asJSON := fl.boolean("json", "print one JSON object (the same as --format json)")
 	if help, err := fl.parse(args, stdout); help || err != nil {
+		return err
+	}
+	fmtName, err := outputFormat(format, *asJSON)
+	if err != nil {
 		return err
 	}
 	site, err := sf.site()
@@ -144,12 +153,23 @@ func runRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 		}
 		return fromInputError(err, "not accepted", nil)
 	}
-	out := runOutput(rp, site, loc, acq)
+	out := export.NewRun(export.RunInput{Name: name.value, Site: export.NewSite(siteName.value, site), Loc: loc, AcquireS: acq}, rp)
 	if err := checkRunFinite(out); err != nil {
 		return err
 	}
-	if *asJSON {
+	switch fmtName {
+	case "json":
 		return writeJSON(stdout, out)
+	case "csv":
+		return writeBytes(stdout, func() ([]byte, error) { return export.RunCSV(out, loc) })
+	case "ics":
+		dtstamp := rp.Nights[0].From
+		if stamp.set {
+			if dtstamp, err = ephem.ParseTime(stamp.value); err != nil {
+				return fromInputError(err, "not a time", map[string]*textValue{"time": stamp})
+			}
+		}
+		return writeBytes(stdout, func() ([]byte, error) { return export.RunICS(out, name.value, dtstamp) })
 	}
 	return printRun(stdout, rp, out, loc, acq)
 }
@@ -223,123 +243,6 @@ func runObserved(observed, past *textValue, site ephem.Site, loc *time.Location,
 	return obs, planner.PastThrough(windows, obs), nil
 }
 
-// runJSONOut is the `run --json` object.
-type runJSONOut struct {
-	Zone        string            `json:"zone"`
-	Nights      []runNightJSON    `json:"nights"`
-	Coverage    []runCoverageJSON `json:"coverage"`
-	BestNights  []runBestJSON     `json:"best_nights"`
-	Objective   runObjectiveJSON  `json:"objective"`
-	Constraints constraintsJSON   `json:"constraints"`
-	Observed    []runObservedJSON `json:"observed"`
-	Caution     string            `json:"caution"`
-}
-
-// runNightJSON is one night: its date and part, planning window, whether it
-// is over, the night's events, and (for nights still to come) the blocks
-// and unscheduled goals exactly as `plan --json` gives them.
-type runNightJSON struct {
-	Date        string            `json:"date"`
-	Part        string            `json:"part"`
-	From        planTime          `json:"from"`
-	To          planTime          `json:"to"`
-	Past        bool              `json:"past"`
-	Night       nightJSON         `json:"night"`
-	Dark        []intervalJSON    `json:"dark"`
-	Blocks      []planBlockJSON   `json:"blocks"`
-	Unscheduled []unscheduledJSON `json:"unscheduled"`
-	Warnings    []warningJSON     `json:"warnings"`
-}
-
-type runNightCountJSON struct {
-	Observed int `json:"observed"`
-	Planned  int `json:"planned"`
-}
-
-// runCoverageJSON is one target's coverage.
-type runCoverageJSON struct {
-	Target   string        `json:"target"`
-	Priority int           `json:"priority"`
-	Goals    []runGoalJSON `json:"goals"`
-	Bins     []runBinJSON  `json:"bins,omitempty"`
-}
-
-type runGoalJSON struct {
-	PhaseGoal       float64             `json:"phase_goal"`
-	PhaseHalfWidth  float64             `json:"phase_halfwidth"`
-	NeedExposures   int                 `json:"need_exposures"`
-	NeedNights      int                 `json:"need_nights"`
-	Observed        int                 `json:"observed"`
-	Planned         int                 `json:"planned"`
-	PerNight        []runNightCountJSON `json:"per_night"`
-	NightsMet       int                 `json:"nights_met"`
-	Status          string              `json:"status"`
-	Value           float64             `json:"value"`
-	ReachableNights int                 `json:"reachable_nights"`
-}
-
-type runBinJSON struct {
-	Lo       float64 `json:"phase_lo"`
-	Hi       float64 `json:"phase_hi"`
-	Observed int     `json:"observed"`
-	Planned  int     `json:"planned"`
-	Nights   int     `json:"nights"`
-}
-
-// runBestJSON is the best-night search for one target.
-type runBestJSON struct {
-	Target  string            `json:"target"`
-	Goals   []runBestGoalJSON `json:"goals"`
-	Ranking []runRankJSON     `json:"ranking"`
-}
-
-type runBestGoalJSON struct {
-	PhaseGoal   float64            `json:"phase_goal"`
-	Nights      []runBestNightJSON `json:"nights"`
-	Unreachable string             `json:"unreachable,omitempty"`
-}
-
-type runBestNightJSON struct {
-	Date        string         `json:"date"`
-	Capacity    int            `json:"capacity"`
-	DurationMin float64        `json:"duration_min"`
-	AirmassMin  float64        `json:"airmass_min"`
-	AirmassMax  float64        `json:"airmass_max"`
-	PhaseErr    float64        `json:"phase_err"`
-	Windows     []intervalJSON `json:"windows"`
-}
-
-type runRankJSON struct {
-	Date       string  `json:"date"`
-	Goals      int     `json:"goals"`
-	Fraction   float64 `json:"fraction"`
-	AirmassMin float64 `json:"airmass_min"`
-}
-
-// runObjectiveJSON gives the run objective J (coverage notes of the
-// planner), as a fraction of what meeting every requirement exactly is
-// worth (above 1 with coverage beyond the requirements), and the raw
-// values in millionths.
-type runObjectiveJSON struct {
-	Fraction         float64  `json:"fraction"`
-	Value            int64    `json:"value"`
-	MaxValue         int64    `json:"max_value"`
-	GreedyValue      int64    `json:"greedy_value"`
-	IndependentValue *int64   `json:"independent_value"`
-	IndependentFrac  *float64 `json:"independent_fraction"`
-	Rounds           int      `json:"rounds"`
-	Solves           int      `json:"solves"`
-}
-
-type runObservedJSON struct {
-	Target    string   `json:"target"`
-	Night     string   `json:"date"`
-	Mid       planTime `json:"mid"`
-	ExposureS float64  `json:"exposure_s"`
-	Phase     float64  `json:"phase"`
-	Failed    bool     `json:"failed"`
-}
-
 func nightLabel(n planner.RunNight) string {
 	return fmt.Sprintf("%04d-%02d-%02d", n.Year, int(n.Month), n.Day)
 }
@@ -351,103 +254,25 @@ func partName(n planner.RunNight) string {
 	return string(n.Part)
 }
 
-func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq float64) runJSONOut {
-	out := runJSONOut{Zone: loc.String(), Caution: planner.SafetyCaution,
-		Nights: []runNightJSON{}, Coverage: []runCoverageJSON{}, BestNights: []runBestJSON{}, Observed: []runObservedJSON{}}
-	for _, np := range rp.Nights {
-		nt := np.Night
-		ev := ephem.Night(site, nt.Year, nt.Month, nt.Day, loc)
-		nj := runNightJSON{Date: nightLabel(nt), Part: partName(nt), From: planTime(np.From), To: planTime(np.To), Past: np.Past,
-			Night: nightObject(ev), Dark: []intervalJSON{}, Blocks: []planBlockJSON{}, Unscheduled: []unscheduledJSON{}, Warnings: []warningJSON{}}
-		if np.Plan != nil {
-			po := planOutput(np.Plan, ev, acq)
-			nj.Dark, nj.Blocks, nj.Unscheduled, nj.Warnings = po.Dark, po.Blocks, po.Unscheduled, po.Warnings
-			out.Constraints = po.Constraints
-		}
-		out.Nights = append(out.Nights, nj)
-	}
-	if len(rp.Nights) > 0 && out.Constraints.Twilight == "" {
-		rc, _ := rp.Request.Constraints.Resolved()
-		out.Constraints = constraintsJSON{Twilight: string(rc.Twilight), SunAltMaxDeg: rc.SunAltMaxDeg, MaxAirmass: rc.MaxAirmass,
-			MinAltDeg: rc.MinAltDeg, MinMoonSepDeg: rc.MinMoonSepDeg, MaxMoonIllum: rc.MaxMoonIllum, ZenithExclDeg: rc.ZenithExclDeg,
-			SunAvoidDeg: rc.SunAvoidDeg, HorizonPoints: len(rc.Horizon), AcquireS: acq}
-	}
-	for _, tc := range rp.Coverage {
-		cj := runCoverageJSON{Target: tc.Target, Priority: tc.Priority, Goals: []runGoalJSON{}}
-		for _, gc := range tc.Goals {
-			gj := runGoalJSON{PhaseGoal: gc.Goal.Center, PhaseHalfWidth: gc.Goal.HalfWidth, NeedExposures: gc.NeedExposures, NeedNights: gc.NeedNights,
-				Observed: gc.Observed, Planned: gc.Planned, NightsMet: gc.NightsMet, Status: string(gc.Status), Value: gc.Value,
-				ReachableNights: gc.ReachableNights}
-			for _, nc := range gc.PerNight {
-				gj.PerNight = append(gj.PerNight, runNightCountJSON{nc.Observed, nc.Planned})
-			}
-			cj.Goals = append(cj.Goals, gj)
-		}
-		for _, b := range tc.Bins {
-			cj.Bins = append(cj.Bins, runBinJSON{Lo: b.Lo, Hi: b.Hi, Observed: b.Observed, Planned: b.Planned, Nights: b.Nights})
-		}
-		out.Coverage = append(out.Coverage, cj)
-	}
-	for _, tr := range rp.Reach {
-		bj := runBestJSON{Target: tr.Target, Goals: []runBestGoalJSON{}, Ranking: []runRankJSON{}}
-		for _, gr := range tr.Goals {
-			gj := runBestGoalJSON{PhaseGoal: gr.Goal.Center, Nights: []runBestNightJSON{}, Unreachable: gr.Unreachable}
-			for _, gn := range gr.Nights {
-				nj := runBestNightJSON{Date: rp.Nights[gn.Night].Night.String(), Capacity: gn.Capacity, DurationMin: gn.Duration.Minutes(),
-					AirmassMin: gn.AirmassMin, AirmassMax: gn.AirmassMax, PhaseErr: gn.PhaseErr, Windows: []intervalJSON{}}
-				for _, w := range gn.Windows {
-					nj.Windows = append(nj.Windows, intervalJSON{Start: planTime(w.Start), End: planTime(w.End)})
-				}
-				gj.Nights = append(gj.Nights, nj)
-			}
-			bj.Goals = append(bj.Goals, gj)
-		}
-		for _, r := range tr.Ranking {
-			bj.Ranking = append(bj.Ranking, runRankJSON{Date: rp.Nights[r.Night].Night.String(), Goals: r.Goals, Fraction: r.Fraction, AirmassMin: r.AirmassMin})
-		}
-		out.BestNights = append(out.BestNights, bj)
-	}
-	for _, e := range rp.Exposures {
-		if !e.Planned {
-			out.Observed = append(out.Observed, runObservedJSON{Target: e.Target, Night: rp.Nights[e.Night].Night.String(), Mid: planTime(e.Mid),
-				ExposureS: e.ExposureS, Phase: e.Phase, Failed: e.Failed})
-		}
-	}
-	o := runObjectiveJSON{Value: rp.Value, MaxValue: rp.MaxValue, GreedyValue: rp.GreedyValue, Rounds: rp.Rounds, Solves: rp.Solves}
-	if rp.MaxValue > 0 {
-		o.Fraction = float64(rp.Value) / float64(rp.MaxValue)
-	}
-	if rp.Request.CompareIndependent {
-		v := rp.IndependentValue
-		o.IndependentValue = &v
-		if rp.MaxValue > 0 {
-			f := float64(v) / float64(rp.MaxValue)
-			o.IndependentFrac = &f
-		}
-	}
-	out.Objective = o
-	return out
-}
-
 // checkRunFinite makes sure no NaN reaches the output.
-func checkRunFinite(out runJSONOut) error {
+func checkRunFinite(out export.Run) error {
 	for _, n := range out.Nights {
-		if err := checkPlanFinite(planJSON{Blocks: n.Blocks, Night: n.Night}); err != nil {
+		pd := export.PlanDoc{Night: n.Night}
+		for _, b := range n.Blocks {
+			pd.Blocks = append(pd.Blocks, b.BlockDoc)
+		}
+		if err := checkPlanFinite(pd); err != nil {
 			return fmt.Errorf("night %s: %w", n.Date, err)
 		}
 	}
-	for _, c := range out.Coverage {
-		for _, g := range c.Goals {
+	for _, t := range out.Targets {
+		for _, g := range t.Goals {
 			if err := checkFinite([]string{"coverage value"}, g.Value); err != nil {
-				return fmt.Errorf("%s: %w", c.Target, err)
+				return fmt.Errorf("%s: %w", t.Target, err)
 			}
-		}
-	}
-	for _, b := range out.BestNights {
-		for _, g := range b.Goals {
 			for _, n := range g.Nights {
 				if err := checkFinite([]string{"airmass", "airmass", "phase error"}, n.AirmassMin, n.AirmassMax, n.PhaseErr); err != nil {
-					return fmt.Errorf("%s: %w", b.Target, err)
+					return fmt.Errorf("%s: %w", t.Target, err)
 				}
 			}
 		}
@@ -457,7 +282,7 @@ func checkRunFinite(out runJSONOut) error {
 
 // printRun writes the human run sheet: the objective, every night's
 // blocks, the coverage table and the best nights.
-func printRun(w io.Writer, rp *planner.RunPlan, out runJSONOut, loc *time.Location, acq float64) error {
+func printRun(w io.Writer, rp *planner.RunPlan, out export.Run, loc *time.Location, acq float64) error {
 	var b strings.Builder
 	req := rp.Request
 	first, last := rp.Nights[0].Night, rp.Nights[len(rp.Nights)-1].Night

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"strconv"
@@ -48,6 +47,7 @@ func runWindows(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	step := fl.text("step-s", "S", "60", "constraint scan step, seconds 1..900 (edges are refined to 1 ms)")
 	format := fl.text("format", "text|json|csv|ics", "text", "output format")
 	stamp := fl.text("stamp", "TIME", "--from", "DTSTAMP of the iCalendar events (RFC 3339)")
+	siteName := addSiteNameFlag(fl)
 	asJSON := fl.boolean("json", "print one JSON object (the same as --format json)")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
@@ -62,20 +62,9 @@ func runWindows(ctx context.Context, args []string, stdout, stderr io.Writer) er
 			return err
 		}
 	}
-	fmtName := strings.ToLower(strings.TrimSpace(format.value))
-	if !format.set {
-		fmtName = "text"
-	}
-	switch fmtName {
-	case "text", "json", "csv", "ics":
-	default:
-		return fieldError(format, "not a format", "text, json, csv or ics")
-	}
-	if *asJSON {
-		if format.set && fmtName != "json" {
-			return usageErrorf("--json and --format %s: give one output format", shown(format.value))
-		}
-		fmtName = "json"
+	fmtName, err := outputFormat(format, *asJSON)
+	if err != nil {
+		return err
 	}
 	t0, err := rangeEnd(from, loc)
 	if err != nil {
@@ -130,13 +119,14 @@ func runWindows(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := checkWindowsFinite(got); err != nil {
 		return err
 	}
+	doc := export.NewWindows(siteName.value, loc.String(), t0, t1, 0, got)
 	switch fmtName {
 	case "json":
-		return writeJSON(stdout, windowsOutput(got, loc, t0, t1))
+		return writeJSON(stdout, doc)
 	case "csv":
-		return writeWindowsCSV(stdout, got)
+		return writeBytes(stdout, func() ([]byte, error) { return export.WindowsCSV(doc) })
 	case "ics":
-		return writeWindowsICS(stdout, got, dtstamp)
+		return writeBytes(stdout, func() ([]byte, error) { return export.WindowsICS(doc, dtstamp) })
 	}
 	return printWindows(stdout, got, site, loc, t0, t1, c)
 }
@@ -225,53 +215,6 @@ func pickTargets(list []planner.Target, target, goal, halfWidth *textValue) ([]p
 	return list, nil
 }
 
-// queueWindowJSON is one window.
-type queueWindowJSON struct {
-	Start       planTime `json:"start"`
-	End         planTime `json:"end"`
-	DurationMin float64  `json:"duration_min"`
-	Cycle       int64    `json:"cycle"`
-	PhaseErr    float64  `json:"phase_err"`
-	Uncertain   bool     `json:"uncertain"`
-	AirmassMin  float64  `json:"airmass_min"`
-	AirmassMax  float64  `json:"airmass_max"`
-	Exposures   int      `json:"exposures"`
-}
-
-// goalWindowsJSON is one goal's list.
-type goalWindowsJSON struct {
-	Target         string            `json:"target"`
-	PhaseGoal      float64           `json:"phase_goal"`
-	PhaseHalfWidth float64           `json:"phase_halfwidth"`
-	Event          string            `json:"event,omitempty"`
-	ExposureS      float64           `json:"exposure_s"`
-	OverheadS      float64           `json:"overhead_s"`
-	Windows        []queueWindowJSON `json:"windows"`
-}
-
-// windowsJSONOut is the `windows --format json` object.
-type windowsJSONOut struct {
-	From    planTime          `json:"from"`
-	To      planTime          `json:"to"`
-	Zone    string            `json:"zone"`
-	Goals   []goalWindowsJSON `json:"goals"`
-	Caution string            `json:"caution"`
-}
-
-func windowsOutput(got []planner.GoalWindows, loc *time.Location, t0, t1 time.Time) windowsJSONOut {
-	out := windowsJSONOut{From: planTime(t0), To: planTime(t1), Zone: loc.String(), Goals: []goalWindowsJSON{}, Caution: planner.SafetyCaution}
-	for _, gw := range got {
-		gj := goalWindowsJSON{Target: gw.Target, PhaseGoal: gw.Goal.Center, PhaseHalfWidth: gw.Goal.HalfWidth, Event: gw.Goal.Event,
-			ExposureS: gw.Goal.ExposureS, OverheadS: gw.Goal.OverheadS, Windows: []queueWindowJSON{}}
-		for _, w := range gw.Windows {
-			gj.Windows = append(gj.Windows, queueWindowJSON{Start: planTime(w.Start), End: planTime(w.End), DurationMin: w.Duration().Minutes(),
-				Cycle: w.Cycle, PhaseErr: w.PhaseErr, Uncertain: w.Uncertain, AirmassMin: w.AirmassMin, AirmassMax: w.AirmassMax, Exposures: w.Exposures})
-		}
-		out.Goals = append(out.Goals, gj)
-	}
-	return out
-}
-
 func checkWindowsFinite(got []planner.GoalWindows) error {
 	for _, gw := range got {
 		for _, w := range gw.Windows {
@@ -281,59 +224,6 @@ func checkWindowsFinite(got []planner.GoalWindows) error {
 		}
 	}
 	return nil
-}
-
-// windowsCSVHeader is the header of --format csv.
-var windowsCSVHeader = []string{"target", "phase_goal", "phase_halfwidth", "start_utc", "end_utc", "duration_min", "cycle",
-	"phase_err", "uncertain", "airmass_min", "airmass_max", "exposures"}
-
-func writeWindowsCSV(w io.Writer, got []planner.GoalWindows) error {
-	cw := csv.NewWriter(w)
-	if err := cw.Write(windowsCSVHeader); err != nil {
-		return err
-	}
-	for _, gw := range got {
-		for _, win := range gw.Windows {
-			rec := []string{export.SafeCSVCell(gw.Target), f(gw.Goal.Center, 4), f(gw.Goal.HalfWidth, 4), planTime(win.Start).String(), planTime(win.End).String(),
-				f(win.Duration().Minutes(), 2), strconv.FormatInt(win.Cycle, 10), f(win.PhaseErr, 5), strconv.FormatBool(win.Uncertain),
-				f(win.AirmassMin, 3), f(win.AirmassMax, 3), strconv.Itoa(win.Exposures)}
-			if err := cw.Write(rec); err != nil {
-				return err
-			}
-		}
-	}
-	cw.Flush()
-	return cw.Error()
-}
-
-// windowUID is a window's stable iCalendar UID: the same target, goal and
-// window always give the same UID (RFC 5545 §3.8.4.7), so a calendar
-// updates an imported window instead of duplicating it.
-func windowUID(gw planner.GoalWindows, w planner.QueueWindow) string {
-	name := strings.Map(func(r rune) rune {
-		if r < 0x21 || r > 0x7e || r == '@' {
-			return '_'
-		}
-		return r
-	}, gw.Target)
-	return fmt.Sprintf("window-%s-%s-%d-%d@phasecast", name, strconv.FormatFloat(gw.Goal.Center, 'f', -1, 64), w.Cycle, w.Start.Unix())
-}
-
-func writeWindowsICS(w io.Writer, got []planner.GoalWindows, stamp time.Time) error {
-	cal := export.Calendar{ProdID: "-//phasecast//queue windows//EN", Name: "phasecast queue windows"}
-	for _, gw := range got {
-		for _, win := range gw.Windows {
-			desc := fmt.Sprintf("Phase window %.4f ± %.4f of %s (cycle %d), %.1f min; phase uncertainty 1σ %.4f; airmass %.2f–%.2f; %d exposure(s) of %ss fit. %s",
-				gw.Goal.Center, gw.Goal.HalfWidth, gw.Target, win.Cycle, win.Duration().Minutes(), win.PhaseErr, win.AirmassMin, win.AirmassMax,
-				win.Exposures, fmtG(gw.Goal.ExposureS), planner.SafetyCaution)
-			cal.Events = append(cal.Events, export.Event{
-				UID: windowUID(gw, win), Stamp: stamp, Start: win.Start, End: win.End,
-				Summary:     fmt.Sprintf("%s phase %.3f", gw.Target, gw.Goal.Center),
-				Description: desc, Categories: []string{"phasecast", "queue window"},
-			})
-		}
-	}
-	return export.EncodeICal(w, cal)
 }
 
 func printWindows(w io.Writer, got []planner.GoalWindows, site ephem.Site, loc *time.Location, t0, t1 time.Time, c planner.Constraints) error {

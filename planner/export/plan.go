@@ -270,7 +270,7 @@ func NewConstraintsDoc(c planner.Constraints, acquireS float64) ConstraintsDoc {
 // NewPlanDoc is the document of plan p, whose night has events ev;
 // acquireS is as for NewConstraintsDoc. Repeated warnings (same code, target
 // and message) are given once; a warning about one goal carries its centre.
-// Caution is planner.SafetyCaution.
+// Caution is the package's Caution.
 func NewPlanDoc(p *planner.Plan, ev planner.NightEvents, acquireS float64) PlanDoc {
 	d := PlanDoc{
 		Night:       NewNightDoc(ev),
@@ -282,7 +282,7 @@ func NewPlanDoc(p *planner.Plan, ev planner.NightEvents, acquireS float64) PlanD
 		Constraints: NewConstraintsDoc(p.Constraints, acquireS),
 		Objective: ObjectiveDoc{Value: p.Value, GreedyValue: p.GreedyValue, Optimal: p.Optimal,
 			Candidates: p.Candidates, Rounds: p.Rounds, States: p.States},
-		Caution: planner.SafetyCaution,
+		Caution: Caution,
 	}
 	for _, dk := range p.Dark {
 		d.Dark = append(d.Dark, IntervalDoc{DocTime(dk.Start), DocTime(dk.End)})
@@ -334,4 +334,16 @@ func NewPlanDoc(p *planner.Plan, ev planner.NightEvents, acquireS float64) PlanD
 		d.Visibility = append(d.Visibility, vd)
 	}
 	return d
+}
+
+// UnmarshalJSON reads a warning, or a bare message (the saved run plans
+// of earlier versions gave a night's warnings as messages only).
+func (w *WarningDoc) UnmarshalJSON(b []byte) error {
+	var msg string
+	if json.Unmarshal(b, &msg) == nil {
+		*w = WarningDoc{Message: msg}
+		return nil
+	}
+	type plain WarningDoc
+	return json.Unmarshal(b, (*plain)(w))
 }
