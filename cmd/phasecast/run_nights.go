@@ -153,7 +153,11 @@ func runRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 		}
 		return fromInputError(err, "not accepted", nil)
 	}
-	out := export.NewRun(export.RunInput{Name: name.value, Site: export.NewSite(siteName.value, site), Loc: loc, AcquireS: acq}, rp)
+	ids := make([]int64, len(list)) // a target's id is its row in the file, from 1
+	for i := range ids {
+		ids[i] = int64(i + 1)
+	}
+	out := export.NewRun(export.RunInput{Name: name.value, Site: export.NewSite(siteName.value, site), Loc: loc, AcquireS: acq, TargetIDs: ids}, rp)
 	if err := checkRunFinite(out); err != nil {
 		return err
 	}

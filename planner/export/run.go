@@ -47,8 +47,9 @@ type RunNight struct {
 	Warnings    []WarningDoc     `json:"warnings"`
 }
 
-// RunBlock is a block of a run night; TargetID is the target's id where
-// the caller has one (the web's), omitted otherwise.
+// RunBlock is a block of a run night; TargetID is the target's id: its
+// id in the web's database, in `phasecast run` its row in the targets
+// file (from 1); omitted when the caller gives none.
 type RunBlock struct {
 	BlockDoc
 	TargetID int64 `json:"target_id,omitempty"`
@@ -173,7 +174,7 @@ type RunObserved struct {
 // RunInput is what the run document says besides the plan: the run's name
 // (may be empty), the site, its zone, the acquisition overhead the
 // constraints show (as for NewConstraintsDoc), and the callers' ids of the
-// request's targets (nil when there are none).
+// request's targets, by index (see RunBlock; nil when there are none).
 type RunInput struct {
 	Name      string
 	Site      Site
