@@ -35,13 +35,19 @@ func (n *night) exportCSV() ([]byte, error) { return export.NightCSV(n.doc(), n.
 // the inputs last changed, so exporting the same plan twice gives the same
 // file.
 func (n *night) exportICS() ([]byte, error) {
+	return export.NightICS(n.title(), i64s(n.site.ID), export.NewSite(n.site.Name, n.site.Site), n.lastChange(), n.plan, n.req.Targets)
+}
+
+// lastChange is when the night's inputs (the site and the chosen targets)
+// last changed: the DTSTAMP of its calendars.
+func (n *night) lastChange() time.Time {
 	stamp := n.site.UpdatedAt
 	for _, t := range n.targets {
 		if t.UpdatedAt.After(stamp) {
 			stamp = t.UpdatedAt
 		}
 	}
-	return export.NightICS(n.title(), i64s(n.site.ID), export.NewSite(n.site.Name, n.site.Site), stamp, n.plan, n.req.Targets)
+	return stamp
 }
 
 // exportName is the download name of the night: "hill-station-2026-03-14-night.csv".

@@ -184,15 +184,7 @@ func (w *windows) exportCSV() ([]byte, error) { return export.WindowsCSV(w.doc()
 
 // exportICS writes the windows as events; DTSTAMP is the inputs' last
 // change.
-func (w *windows) exportICS() ([]byte, error) {
-	stamp := w.site.UpdatedAt
-	for _, t := range w.targets {
-		if t.UpdatedAt.After(stamp) {
-			stamp = t.UpdatedAt
-		}
-	}
-	return export.WindowsICS(w.doc(), stamp)
-}
+func (w *windows) exportICS() ([]byte, error) { return export.WindowsICS(w.doc(), w.lastChange()) }
 
 func (w *windows) exportName(ext string) string {
 	name := w.site.Name + "-" + w.req.from + "-" + w.req.to
