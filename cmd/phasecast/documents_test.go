@@ -52,7 +52,8 @@ type docsWeb struct {
 func newDocsWeb(t *testing.T) *docsWeb {
 	t.Helper()
 	ctx := context.Background()
-	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "docs.db"),
+	now := testClock(t)
+	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "docs.db"), now,
 		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 64, Threads: 1, SaltLen: 16, KeyLen: 32}))
 	if err != nil {
 		t.Fatal(err)
@@ -95,8 +96,7 @@ func newDocsWeb(t *testing.T) *docsWeb {
 	if _, d.token, err = st.CreateAPIToken(ctx, d.actor, "docs", 24*time.Hour); err != nil {
 		t.Fatal(err)
 	}
-	now := time.Date(2026, 5, 1, 12, 0, 0, 0, time.UTC)
-	srv, err := web.New(web.Config{Store: st, Logger: slog.New(slog.NewTextHandler(io.Discard, nil)), Now: func() time.Time { return now }})
+	srv, err := web.New(web.Config{Store: st, Logger: slog.New(slog.NewTextHandler(io.Discard, nil)), Now: now})
 	if err != nil {
 		t.Fatal(err)
 	}

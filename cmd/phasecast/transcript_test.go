@@ -286,7 +286,7 @@ func TestManualTranscripts(t *testing.T) {
 			}
 			ran++
 			var stdout, stderr bytes.Buffer
-			_ = run(context.Background(), argv, &stdout, &stderr)
+			_ = run(context.Background(), testClock(t), argv, &stdout, &stderr)
 			got := outputLines(stdout.String() + stderr.String())
 			for _, st := range stages[1:] {
 				if got, err = pipeStage(st, got); err != nil {
