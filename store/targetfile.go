@@ -200,23 +200,10 @@ func parseTeamCSV(b []byte) (parsedFile, error) {
 		return parsedFile{}, tableErr(te)
 	}
 	headerLine, _ := cr.FieldPos(0)
-	col := map[string]int{}
-	for i, h := range header {
-		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
-		switch {
-		case !slices.Contains(csvColumns, h):
-			add(headerLine, i+1, h, h, "unknown column; accepted columns: "+strings.Join(csvColumns, ","))
-		case hasKey(col, h):
-			add(headerLine, i+1, h, h, fmt.Sprintf("column repeated (first at column %d)", col[h]+1))
-		default:
-			col[h] = i
-		}
-	}
-	for _, n := range csvRequired {
-		if !hasKey(col, n) {
-			add(headerLine, 0, n, "", "missing required column "+n+"; required: "+strings.Join(csvRequired, ","))
-		}
-	}
+	col := planner.ColumnIndex(header, csvColumns, csvRequired, headerLine, te, "accepted columns: "+strings.Join(csvColumns, ","),
+		func(n string) string {
+			return "missing required column " + n + "; required: " + strings.Join(csvRequired, ",")
+		})
 	if len(te.Cells) > 0 {
 		return parsedFile{}, tableErr(te)
 	}
