@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/csv"
 	"encoding/json"
 	"math"
 	"strings"
@@ -8,6 +9,7 @@ import (
 	"time"
 
 	"phasecast/planner/export"
+	"phasecast/planner/export/exporttest"
 )
 
 // runCSV is an invented target list for the test site (27.85° S) in May.
@@ -189,5 +191,43 @@ func TestRunCommandBinGoals(t *testing.T) {
 				t.Errorf("%s goal %d at %g, want %g", c.Target, i, g.PhaseGoal, want)
 			}
 		}
+	}
+}
+
+// TestRunCommandFormats checks --format csv and ics against the JSON
+// document: one row and one event per block, the same every time.
+func TestRunCommandFormats(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runCSV)
+	base := args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--name", "Test run"})
+	out := decodeRun(t, base...)
+	blocks := 0
+	for _, n := range out.Nights {
+		blocks += len(n.Blocks)
+	}
+	if blocks == 0 || out.Run != "Test run" {
+		t.Fatalf("%d blocks, run %q", blocks, out.Run)
+	}
+	get := func(extra ...string) string {
+		t.Helper()
+		stdout, stderr, code := runCmd(t, append(append([]string{}, base...), extra...)...)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		return stdout
+	}
+	rows, err := csv.NewReader(strings.NewReader(get("--format", "csv"))).ReadAll()
+	if err != nil || len(rows) != blocks+1 || strings.Join(rows[0], ",") != strings.Join(export.RunCSVHeader, ",") {
+		t.Errorf("CSV: %v, %d rows for %d blocks, header %v", err, len(rows), blocks, rows[0])
+	}
+	ics := get("--format", "ics", "--stamp", "2026-05-01T00:00:00Z")
+	cal, err := exporttest.ParseICal(strings.NewReader(ics))
+	if err != nil || len(cal.Events) != blocks || !cal.Events[0].Stamp.Equal(time.Date(2026, 5, 1, 0, 0, 0, 0, time.UTC)) {
+		t.Errorf("iCalendar: %v, %d events for %d blocks", err, len(cal.Events), blocks)
+	}
+	if again := get("--format", "ics", "--stamp", "2026-05-01T00:00:00Z"); again != ics {
+		t.Error("the same command gives another calendar")
+	}
+	if _, stderr, code := runCmd(t, append(append([]string{}, base...), "--format", "csv", "--json")...); code != 2 || !strings.Contains(stderr, "give one output format") {
+		t.Errorf("--format csv with --json: exit %d, %s", code, stderr)
 	}
 }

@@ -26,11 +26,13 @@ the window's half-width for --goal (default: the CSV's phase_halfwidth).
 --from and --to take a date YYYY-MM-DD (local midnight in --tz) or an instant
 (RFC 3339).
 
---format text (default), json, csv (one window per row, header
+--format text (default), json (the queue-windows document of the web and the
+API), csv (one window per row, header
 target,phase_goal,phase_halfwidth,start_utc,end_utc,duration_min,cycle,phase_err,
-uncertain,airmass_min,airmass_max,exposures), or ics (iCalendar, RFC 5545: one
-event per window, UTC times, stable UIDs; DTSTAMP is --stamp, default --from, so
-the same command gives the same file).`
+uncertain,airmass_min,airmass_max,exposures,event), or ics (iCalendar, RFC 5545:
+one event per window, UTC times, stable UIDs; DTSTAMP is --stamp, default --from,
+so the same command gives the same file). The documents are described in
+docs/formats.md.`
 
 func runWindows(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("windows", windowsSynopsis)
