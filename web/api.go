@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"net/http"
-	"strconv"
 	"strings"
 
 	"phasecast/store"
@@ -38,7 +37,11 @@ func (s *Server) apiUser(h func(http.ResponseWriter, *http.Request, *user)) http
 			return
 		}
 		u := &user{actor: a}
-		want, _ := strconv.ParseInt(r.URL.Query().Get("team"), 10, 64)
+		want, err := queryID(r.URL.Query(), "team")
+		if err != nil {
+			s.apiError(w, r, err)
+			return
+		}
 		for _, m := range a.Teams {
 			if m.TeamID == want || (want == 0 && u.team.TeamID == 0) {
 				u.team = m
@@ -77,7 +80,7 @@ func (s *Server) apiError(w http.ResponseWriter, r *http.Request, err error) {
 	if errors.Is(err, errMalformed) {
 		code = codeInvalid
 	}
-	if status == http.StatusServiceUnavailable {
+	if status == http.StatusServiceUnavailable && code != codeBusy {
 		code = codeInternal
 	}
 	body.Error.Code, body.Error.Message = code, msg
@@ -134,7 +137,7 @@ func writeJSON(w http.ResponseWriter, status int, v any) {
 	w.Header().Set("Content-Type", "application/json")
 	w.Header().Set("Cache-Control", "no-store")
 	w.WriteHeader(status)
-	_, _ = buf.WriteTo(w)
+	_, _ = buf.WriteTo(w) // dropped: the status is sent; a client that has gone cannot be told more
 }
 
 // readJSON decodes a request body of at most 4 MiB into v, refusing

@@ -30,6 +30,8 @@ var errMalformed = errors.New("malformed request")
 //	ECONFLICT  → 409
 //	EFORBIDDEN → 403
 //	EUNAUTHENTICATED → 401 (API requests without a valid bearer token)
+//	ETOOMANY   → 429 (the caller's heavy requests; heavy.go)
+//	EBUSY      → 503 (the server's heavy slots; heavy.go)
 //	EINTERNAL and anything unknown → 500
 func statusFor(err error) (status int, message string) {
 	if errors.Is(err, errMalformed) {
@@ -51,6 +53,10 @@ func statusFor(err error) (status int, message string) {
 		return http.StatusForbidden, orDefault(msg, "You are not allowed to do that.")
 	case codeUnauthenticated:
 		return http.StatusUnauthorized, orDefault(msg, "Send a valid API token.")
+	case codeTooMany:
+		return http.StatusTooManyRequests, msg
+	case codeBusy:
+		return http.StatusServiceUnavailable, msg
 	}
 	return http.StatusInternalServerError, "Something went wrong on our side; it has been logged."
 }

@@ -74,6 +74,21 @@ func parsePart(s string) (planner.NightPart, error) {
 	return "", errInvalid(fmt.Sprintf("part: “%s” is not accepted; accepted: full, first or second", s))
 }
 
+// queryID reads the optional id parameter name of a query: 0 when absent
+// or empty, else a positive whole number, or EINVALID naming the parameter
+// and the value.
+func queryID(q url.Values, name string) (int64, error) {
+	s := q.Get(name)
+	if s == "" {
+		return 0, nil
+	}
+	id, err := strconv.ParseInt(s, 10, 64)
+	if err != nil || id <= 0 {
+		return 0, errInvalid(fmt.Sprintf("%s: %q is not accepted; accepted: an id (a whole number above 0)", name, planner.ClipValue(s)))
+	}
+	return id, nil
+}
+
 func optID(s string) (int64, error) {
 	if s == "" {
 		return 0, nil
@@ -88,6 +103,11 @@ func optID(s string) (int64, error) {
 // encode writes the request back as a query string (with the defaults it
 // resolved to, so that exports plan the same night).
 func (n nightQuery) encode() string {
+	return n.values().Encode()
+}
+
+// values is the request as query values (see encode).
+func (n nightQuery) values() url.Values {
 	q := url.Values{}
 	q.Set("site", i64s(n.siteID))
 	q.Set("date", n.date)
@@ -110,7 +130,7 @@ func (n nightQuery) encode() string {
 	if n.fill {
 		q.Set("fill", "1")
 	}
-	return q.Encode()
+	return q
 }
 
 // night is a planned night with what the pages and exports show.

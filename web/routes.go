@@ -60,7 +60,7 @@ func (s *Server) router() chi.Router {
 
 	// Read-only share links (no sign-in).
 	r.Get("/share/{token}", s.shareShow)
-	r.Get("/share/{token}/night", s.shareNight)
+	r.Get("/share/{token}/night", s.heavyPublic(s.shareNight))
 
 	// Signed in, with or without a team.
 	r.Group(func(r chi.Router) {
@@ -86,13 +86,13 @@ func (s *Server) router() chi.Router {
 		g.post("/team/members/{id}/role", s.teamMemberRole)
 		g.post("/team/members/{id}/remove", s.teamMemberRemove)
 
-		g.get("/tonight", s.tonightShow)
-		g.get("/tonight/body", s.tonightBody)
-		g.get("/night", s.nightShow)
-		g.get("/night/sheet", s.nightSheet)
-		g.get("/night.csv", s.nightExport("csv"))
-		g.get("/night.json", s.nightExport("json"))
-		g.get("/night.ics", s.nightExport("ics"))
+		g.get("/tonight", s.heavy(s.tonightShow))
+		g.get("/tonight/body", s.heavy(s.tonightBody))
+		g.get("/night", s.heavy(s.nightShow))
+		g.get("/night/sheet", s.heavy(s.nightSheet))
+		g.get("/night.csv", s.heavy(s.nightExport("csv")))
+		g.get("/night.json", s.heavy(s.nightExport("json")))
+		g.get("/night.ics", s.heavy(s.nightExport("ics")))
 
 		// Targets and lists.
 		g.get("/targets", s.targetsList)
@@ -109,8 +109,8 @@ func (s *Server) router() chi.Router {
 		g.post("/lists/{id}", s.listUpdate)
 		g.post("/lists/{id}/delete", s.listDelete)
 		g.get("/lists/{id}/import", s.importForm)
-		g.post("/lists/{id}/import/preview", s.importPreview)
-		g.post("/lists/{id}/import", s.importCommit)
+		g.post("/lists/{id}/import/preview", s.heavy(s.importPreview))
+		g.post("/lists/{id}/import", s.heavy(s.importCommit))
 		g.get("/lists/{id}/export.csv", s.listExport(store.FormatCSV))
 		g.get("/lists/{id}/export.json", s.listExport(store.FormatJSON))
 		g.post("/lists/{id}/share", s.shareCreate)
@@ -129,10 +129,10 @@ func (s *Server) router() chi.Router {
 		g.get("/runs/{id}/plan.ics", s.runExport("ics"))
 
 		// Queue windows.
-		g.get("/windows", s.windowsShow)
-		g.get("/windows.csv", s.windowsExport("csv"))
-		g.get("/windows.json", s.windowsExport("json"))
-		g.get("/windows.ics", s.windowsExport("ics"))
+		g.get("/windows", s.heavy(s.windowsShow))
+		g.get("/windows.csv", s.heavy(s.windowsExport("csv")))
+		g.get("/windows.json", s.heavy(s.windowsExport("json")))
+		g.get("/windows.ics", s.heavy(s.windowsExport("ics")))
 
 		// Sites.
 		g.get("/sites", s.sitesList)
@@ -155,11 +155,11 @@ func (s *Server) router() chi.Router {
 		g.get("/targets/{id}", s.apiTargetGet)
 		g.put("/targets/{id}", s.apiTargetUpdate)
 		g.del("/targets/{id}", s.apiTargetDelete)
-		g.get("/night", s.apiNight)
-		g.get("/windows", s.apiWindows)
+		g.get("/night", s.heavy(s.apiNight))
+		g.get("/windows", s.heavy(s.apiWindows))
 		g.get("/runs", s.apiRuns)
 		g.get("/runs/{id}/plan", s.apiRunPlan)
-		g.post("/runs/{id}/plan", s.apiRunPlanCreate)
+		g.post("/runs/{id}/plan", s.heavy(s.apiRunPlanCreate))
 		g.get("/runs/{id}/coverage", s.apiRunCoverage)
 	})
 	return r

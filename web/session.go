@@ -42,7 +42,10 @@ func (s *Server) sessionUser(r *http.Request) (*user, bool) {
 		return nil, false
 	}
 	u := &user{actor: a}
-	want, _ := strconv.ParseInt(cookieValue(r, teamCookie), 10, 64)
+	want, err := strconv.ParseInt(cookieValue(r, teamCookie), 10, 64)
+	if err != nil {
+		want = 0 // no team cookie, or a garbled one: the user's first team
+	}
 	for _, m := range a.Teams {
 		if m.TeamID == want || u.team.TeamID == 0 {
 			u.team = m

@@ -144,7 +144,10 @@ func runRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 		}
 		return fromInputError(err, "not accepted", nil)
 	}
-	out := runOutput(rp, site, loc, acq)
+	out, err := runOutput(rp, site, loc, acq)
+	if err != nil {
+		return fromInputError(err, "not accepted", nil)
+	}
 	if err := checkRunFinite(out); err != nil {
 		return err
 	}
@@ -351,7 +354,7 @@ func partName(n planner.RunNight) string {
 	return string(n.Part)
 }
 
-func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq float64) runJSONOut {
+func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq float64) (runJSONOut, error) {
 	out := runJSONOut{Zone: loc.String(), Caution: planner.SafetyCaution,
 		Nights: []runNightJSON{}, Coverage: []runCoverageJSON{}, BestNights: []runBestJSON{}, Observed: []runObservedJSON{}}
 	for _, np := range rp.Nights {
@@ -367,7 +370,10 @@ func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq flo
 		out.Nights = append(out.Nights, nj)
 	}
 	if len(rp.Nights) > 0 && out.Constraints.Twilight == "" {
-		rc, _ := rp.Request.Constraints.Resolved()
+		rc, err := rp.Request.Constraints.Resolved()
+		if err != nil {
+			return out, err
+		}
 		out.Constraints = constraintsJSON{Twilight: string(rc.Twilight), SunAltMaxDeg: rc.SunAltMaxDeg, MaxAirmass: rc.MaxAirmass,
 			MinAltDeg: rc.MinAltDeg, MinMoonSepDeg: rc.MinMoonSepDeg, MaxMoonIllum: rc.MaxMoonIllum, ZenithExclDeg: rc.ZenithExclDeg,
 			SunAvoidDeg: rc.SunAvoidDeg, HorizonPoints: len(rc.Horizon), AcquireS: acq}
@@ -426,7 +432,7 @@ func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq flo
 		}
 	}
 	out.Objective = o
-	return out
+	return out, nil
 }
 
 // checkRunFinite makes sure no NaN reaches the output.
