@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"io"
 	"net/http"
 	"net/url"
 	"strings"
@@ -199,5 +200,97 @@ func TestAPIPutIdentityMembers(t *testing.T) {
 	ts, err := h.store.ListTargets(context.Background(), h.actor("owner"), other.ID)
 	if err != nil || len(ts) != 0 {
 		t.Errorf("the other list holds %d targets (%v)", len(ts), err)
+	}
+}
+
+// TestErrorPagesSignedIn: a signed-in user's 404, 400 and 422 pages carry
+// their header (name, team, sign-out), as every other page does; they used
+// to show the signed-out header.
+func TestErrorPagesSignedIn(t *testing.T) {
+	h := newHarness(t)
+	w := h.newAuthzWorld(t, 1)
+	c := h.client("editor")
+	cases := []struct {
+		name, path string
+		want       int
+	}{
+		{"NoRoute", "/no/such/page", http.StatusNotFound},
+		{"OtherTeamThing", "/targets/987654", http.StatusNotFound},
+		{"BadPlanParam", fmt.Sprintf("/runs/%d?plan=x", w.run), http.StatusUnprocessableEntity},
+		{"Malformed", "/night?site=abc", http.StatusBadRequest},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			resp, body := h.get(c, tc.path)
+			if resp.StatusCode != tc.want {
+				t.Fatalf("%s: %d, want %d", tc.path, resp.StatusCode, tc.want)
+			}
+			if !strings.Contains(body, `data-testid="whoami"`) || !strings.Contains(body, "Test editor") || !strings.Contains(body, `data-testid="logout"`) {
+				t.Errorf("%s: the error page lacks the signed-in header", tc.path)
+			}
+		})
+	}
+	resp, body := h.get(h.client(""), "/no/such/page")
+	if resp.StatusCode != http.StatusNotFound || strings.Contains(body, `data-testid="whoami"`) {
+		t.Errorf("signed out: %d, header of a user shown: %v", resp.StatusCode, strings.Contains(body, "whoami"))
+	}
+}
+
+// TestCrossOriginRefusalPage: a state-changing request from another site
+// is answered with the app's 403 page (or a JSON error under /api/), not
+// the standard library's bare text, and changes nothing.
+func TestCrossOriginRefusalPage(t *testing.T) {
+	h := newHarness(t)
+	w := h.newAuthzWorld(t, 1)
+	c := h.client("editor")
+	req, err := http.NewRequest(http.MethodPost, h.ts.URL+fmt.Sprintf("/lists/%d", w.list),
+		strings.NewReader(url.Values{"name": {"Hijacked"}, "version": {fmt.Sprint(w.listVersion)}}.Encode()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
+	req.Header.Set("Sec-Fetch-Site", "cross-site")
+	req.Header.Set("Origin", "https://evil.example")
+	resp, err := c.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := io.ReadAll(resp.Body)
+	resp.Body.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	body := string(b)
+	if resp.StatusCode != http.StatusForbidden || !strings.HasPrefix(resp.Header.Get("Content-Type"), "text/html") ||
+		!strings.Contains(body, `data-testid="error-heading"`) || !strings.Contains(body, "another site") || !strings.Contains(body, `data-testid="whoami"`) {
+		t.Errorf("cross-site POST: %d %s: %.300s", resp.StatusCode, resp.Header.Get("Content-Type"), body)
+	}
+	lists, err := h.store.ListLists(context.Background(), h.actor("owner"), h.teamID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, l := range lists {
+		if l.Name == "Hijacked" {
+			t.Error("the cross-site POST renamed the list")
+		}
+	}
+	token := h.token("editor")
+	req, err = http.NewRequest(http.MethodPost, h.ts.URL+"/api/v1/lists", strings.NewReader(`{"name":"Cross"}`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	req.Header.Set("Authorization", "Bearer "+token)
+	req.Header.Set("Sec-Fetch-Site", "cross-site")
+	resp, err = http.DefaultClient.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err = io.ReadAll(resp.Body)
+	resp.Body.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if resp.StatusCode != http.StatusForbidden || !strings.Contains(string(b), `"EFORBIDDEN"`) {
+		t.Errorf("cross-site API POST: %d %s", resp.StatusCode, b)
 	}
 }

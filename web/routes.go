@@ -1,6 +1,7 @@
 package web
 
 import (
+	"errors"
 	"net/http"
 	"strings"
 
@@ -37,7 +38,9 @@ func (g guarded) del(pattern string, h userHandler)  { g.r.Delete(pattern, g.gua
 // copies its URL parameters into the request's path values.
 func (s *Server) router() chi.Router {
 	r := chi.NewRouter()
-	r.Use(s.logRequests, s.recoverPanics, secureHeaders, http.NewCrossOriginProtection().Handler,
+	csrf := http.NewCrossOriginProtection()
+	csrf.SetDenyHandler(http.HandlerFunc(s.crossOriginDenied))
+	r.Use(s.logRequests, s.recoverPanics, secureHeaders, csrf.Handler,
 		middleware.GetHead) // a GET route answers HEAD too, as with net/http's ServeMux
 	// No 405s: an address without a route for the method is "not found",
 	// as a page or, under /api/, as a JSON error.
@@ -163,6 +166,19 @@ func (s *Server) router() chi.Router {
 		g.get("/runs/{id}/coverage", s.apiRunCoverage)
 	})
 	return r
+}
+
+// crossOriginDenied answers a state-changing request sent from another
+// site (http.CrossOriginProtection's refusal) with the app's 403 page, or
+// a JSON error under /api/.
+func (s *Server) crossOriginDenied(w http.ResponseWriter, r *http.Request) {
+	err := &codedError{code: codeForbidden, err: errors.New("cross-origin request refused"),
+		msg: "This request came from another site, so it was refused (protection against cross-site request forgery). Open the page on this site and send the form from there."}
+	if strings.HasPrefix(r.URL.Path, "/api/") {
+		s.apiError(w, r, err)
+		return
+	}
+	s.renderError(w, r, err)
 }
 
 // noRoute answers a request no route takes: a JSON error under /api/, the

@@ -1,6 +1,7 @@
 package web
 
 import (
+	"context"
 	"net/http"
 	"net/url"
 	"strconv"
@@ -65,6 +66,19 @@ func cookieValue(r *http.Request, name string) string {
 	return c.Value
 }
 
+// userKey is the request context key of the signed-in *user, so that an
+// error page shows the header of the user it refuses.
+type userKey struct{}
+
+// pageUser returns the signed-in user of r: the one signedIn found, or a
+// session lookup on routes without a guard (a page that does not exist).
+func (s *Server) pageUser(r *http.Request) (*user, bool) {
+	if u, ok := r.Context().Value(userKey{}).(*user); ok {
+		return u, true
+	}
+	return s.sessionUser(r)
+}
+
 // signedIn wraps a handler that needs a signed-in user; anyone else is sent
 // to the sign-in page (and back afterwards).
 func (s *Server) signedIn(h func(http.ResponseWriter, *http.Request, *user)) http.HandlerFunc {
@@ -80,7 +94,7 @@ func (s *Server) signedIn(h func(http.ResponseWriter, *http.Request, *user)) htt
 			http.Redirect(w, r, "/login?next="+url.QueryEscape(next), http.StatusSeeOther)
 			return
 		}
-		h(w, r, u)
+		h(w, r.WithContext(context.WithValue(r.Context(), userKey{}, u)), u)
 	}
 }
 
