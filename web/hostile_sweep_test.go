@@ -294,3 +294,32 @@ func TestCrossOriginRefusalPage(t *testing.T) {
 		t.Errorf("cross-site API POST: %d %s", resp.StatusCode, b)
 	}
 }
+
+// TestRunPlanObjectiveBounds: a saved plan's objective (API) is never
+// above its max_value, and states required_value, what meeting every
+// requirement exactly is worth; a plan saved by an older version, whose
+// max_value meant required_value, is read as such.
+func TestRunPlanObjectiveBounds(t *testing.T) {
+	h := newHarness(t)
+	w := h.newAuthzWorld(t, 1)
+	h.addAuthzPlan(t, &w)
+	status, body := h.apiCall(h.token("viewer"), http.MethodGet, fmt.Sprintf("/api/v1/runs/%d/plan", w.run), nil)
+	if status != http.StatusOK {
+		t.Fatalf("%d %v", status, body)
+	}
+	o, ok := body["objective"].(map[string]any)
+	if !ok {
+		t.Fatalf("no objective: %v", body)
+	}
+	v, req, most := o["value"].(float64), o["required_value"].(float64), o["max_value"].(float64)
+	if !(req > 0) || v > most || req > most {
+		t.Errorf("objective %v: want 0 < required_value ≤ max_value and value ≤ max_value", o)
+	}
+	old, err := loadDoc(store.SavedPlan{ID: 1, Output: []byte(`{"objective":{"value":445500000,"max_value":405000000}}`)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if old.Objective.RequiredValue != 405000000 || old.Objective.MaxValue != 0 {
+		t.Errorf("an older plan's objective read as %+v", old.Objective)
+	}
+}

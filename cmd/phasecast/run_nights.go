@@ -321,11 +321,14 @@ type runRankJSON struct {
 
 // runObjectiveJSON gives the run objective J (coverage notes of the
 // planner), as a fraction of what meeting every requirement exactly is
-// worth (above 1 with coverage beyond the requirements), and the raw
-// values in millionths.
+// worth (required_value; above 1 with coverage beyond the requirements,
+// which does not mean every requirement is met), the largest J the run's
+// nights allow (max_value, never below value), and the raw values in
+// millionths.
 type runObjectiveJSON struct {
 	Fraction         float64  `json:"fraction"`
 	Value            int64    `json:"value"`
+	RequiredValue    int64    `json:"required_value"`
 	MaxValue         int64    `json:"max_value"`
 	GreedyValue      int64    `json:"greedy_value"`
 	IndependentValue *int64   `json:"independent_value"`
@@ -419,15 +422,16 @@ func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq flo
 				ExposureS: e.ExposureS, Phase: e.Phase, Failed: e.Failed})
 		}
 	}
-	o := runObjectiveJSON{Value: rp.Value, MaxValue: rp.MaxValue, GreedyValue: rp.GreedyValue, Rounds: rp.Rounds, Solves: rp.Solves}
-	if rp.MaxValue > 0 {
-		o.Fraction = float64(rp.Value) / float64(rp.MaxValue)
+	o := runObjectiveJSON{Value: rp.Value, RequiredValue: rp.RequiredValue, MaxValue: rp.MaxValue, GreedyValue: rp.GreedyValue,
+		Rounds: rp.Rounds, Solves: rp.Solves}
+	if rp.RequiredValue > 0 {
+		o.Fraction = float64(rp.Value) / float64(rp.RequiredValue)
 	}
 	if rp.Request.CompareIndependent {
 		v := rp.IndependentValue
 		o.IndependentValue = &v
-		if rp.MaxValue > 0 {
-			f := float64(v) / float64(rp.MaxValue)
+		if rp.RequiredValue > 0 {
+			f := float64(v) / float64(rp.RequiredValue)
 			o.IndependentFrac = &f
 		}
 	}
@@ -475,8 +479,8 @@ func printRun(w io.Writer, rp *planner.RunPlan, out runJSONOut, loc *time.Locati
 	}
 	fmt.Fprintf(&b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
 	o := out.Objective
-	fmt.Fprintf(&b, "Coverage objective: %.1f%% of the requirements (J = %s of %s; greedy pass %s",
-		100*o.Fraction, fmtJ(o.Value), fmtJ(o.MaxValue), fmtJ(o.GreedyValue))
+	fmt.Fprintf(&b, "Coverage objective: J = %s, %.1f%% of the %s that meeting every requirement exactly is worth (at most %s; greedy pass %s",
+		fmtJ(o.Value), 100*o.Fraction, fmtJ(o.RequiredValue), fmtJ(o.MaxValue), fmtJ(o.GreedyValue))
 	if o.IndependentValue != nil {
 		fmt.Fprintf(&b, "; each night planned on its own: %s", fmtJ(*o.IndependentValue))
 	}
