@@ -7,8 +7,10 @@ import (
 	"io"
 	"net/http"
 	"net/url"
+	"runtime"
 	"strings"
 	"testing"
+	"time"
 
 	"phasecast/ephem"
 	"phasecast/planner"
@@ -321,5 +323,114 @@ func TestRunPlanObjectiveBounds(t *testing.T) {
 	}
 	if old.Objective.RequiredValue != 405000000 || old.Objective.MaxValue != 0 {
 		t.Errorf("an older plan's objective read as %+v", old.Objective)
+	}
+}
+
+// zeros is an endless reader of the byte 'a'; io.LimitReader bounds it.
+type zeros struct{}
+
+func (zeros) Read(p []byte) (int, error) {
+	for i := range p {
+		p[i] = 'a'
+	}
+	return len(p), nil
+}
+
+// bodiless are the state-changing routes that read no request body (a
+// button with no fields, or the id in the address and query): they answer
+// as usual and the server discards the body.
+var bodiless = map[string]bool{
+	"POST /theme": true, "POST /logout": true, "POST /login/link/{token}": true, "POST /account/tokens/{id}/revoke": true,
+	"POST /jobs/{id}/cancel": true, "POST /team/invitations/{id}/revoke": true, "POST /team/members/{id}/remove": true,
+	"POST /shares/{id}/revoke": true, "DELETE /api/v1/targets/{id}": true, "POST /api/v1/runs/{id}/plan": true,
+	// An invitation is refused to a member before its form is read.
+	"POST /invite/{token}": true,
+}
+
+// TestHugeBodyEveryRoute sends a 60 MB body to every state-changing route
+// (every POST, PUT and DELETE of authzTable) as the editor, signed in and
+// with an API token: no route answers 5xx, every route that reads a body
+// answers 413 naming its limit (the routes of bodiless answer as without
+// a body), and no request allocates more than 5 × the 16 MiB upload limit
+// (runtime.MemStats.TotalAlloc around each request, client included).
+func TestHugeBodyEveryRoute(t *testing.T) {
+	if testing.Short() {
+		t.Skip("60 MB bodies")
+	}
+	h := newHarness(t)
+	h.srv.logins = newLimiter(1_000_000, time.Millisecond)
+	token := h.token("editor")
+	const size = 60 << 20
+	var peak uint64
+	for n, row := range authzTable() {
+		if row.method == http.MethodGet {
+			continue
+		}
+		t.Run(strings.ReplaceAll(row.method+row.pattern, "/", "_"), func(t *testing.T) {
+			w := h.newAuthzWorld(t, n+1) // a fresh world and session: some rows delete or sign out
+			h.addAuthzPlan(t, &w)
+			c := h.client("editor")
+			path := strings.ReplaceAll(row.path(w), "VERSION", fmt.Sprint(w.targetVersion))
+			ctype := "application/x-www-form-urlencoded"
+			body := io.LimitReader(zeros{}, size)
+			if row.json != nil {
+				ctype = "application/json"
+			} else if strings.Contains(row.pattern, "/import") || strings.Contains(row.pattern, "/observed") {
+				// An upload form: a 60 MB file part.
+				ctype = "multipart/form-data; boundary=xyz"
+				body = io.MultiReader(strings.NewReader("--xyz\r\nContent-Disposition: form-data; name=\"file\"; filename=\"big.csv\"\r\n"+
+					"Content-Type: text/csv\r\n\r\n"), io.LimitReader(zeros{}, size), strings.NewReader("\r\n--xyz--\r\n"))
+			}
+			req, err := http.NewRequest(row.method, h.ts.URL+path, body)
+			if err != nil {
+				t.Fatal(err)
+			}
+			req.Header.Set("Content-Type", ctype)
+			req.Header.Set("Sec-Fetch-Site", "same-origin")
+			client := c
+			if strings.HasPrefix(row.pattern, "/api/") {
+				req.Header.Set("Authorization", "Bearer "+token)
+				client = http.DefaultClient
+			}
+			var before runtime.MemStats
+			runtime.ReadMemStats(&before)
+			resp, err := client.Do(req)
+			if err != nil {
+				// The server may close the connection once it has refused
+				// the body; the answer is then lost to this client.
+				t.Logf("%s %s: %v", row.method, path, err)
+				return
+			}
+			b, err := io.ReadAll(resp.Body)
+			resp.Body.Close()
+			if err != nil {
+				t.Fatal(err)
+			}
+			var m runtime.MemStats
+			runtime.ReadMemStats(&m)
+			alloc := m.TotalAlloc - before.TotalAlloc
+			peak = max(peak, alloc)
+			t.Logf("%s: %.1f MB allocated", row.pattern, float64(alloc)/1e6)
+			switch {
+			case resp.StatusCode >= 500:
+				t.Errorf("%s %s: %d %.300s", row.method, path, resp.StatusCode, b)
+			case resp.StatusCode == http.StatusRequestEntityTooLarge:
+				if !strings.Contains(string(b), "MiB") {
+					t.Errorf("%s %s: 413 without the limit: %.300s", row.method, path, b)
+				}
+			case bodiless[row.method+" "+row.pattern]:
+				t.Logf("%s %s: %d (the route reads no body)", row.method, path, resp.StatusCode)
+			default:
+				t.Errorf("%s %s: %d, want 413: %.300s", row.method, path, resp.StatusCode, b)
+			}
+		})
+	}
+	// The refusals read up to the route's limit (16 MiB for uploads), in
+	// growing buffers: what they allocate is bounded by the limit, not by
+	// the 60 MB sent.
+	const bound = 5 * maxImportForm
+	t.Logf("at most %.1f MB allocated for one 60 MB request", float64(peak)/1e6)
+	if peak > bound {
+		t.Errorf("one request allocated %d bytes, above %d (5 × the upload limit)", peak, bound)
 	}
 }
