@@ -17,9 +17,19 @@ import (
 	"phasecast/store"
 )
 
+// theirs are the ids of the outsider's team's things (otherTeamPlan).
+type theirs struct{ site, list, target, run, plan, timing int64 }
+
 // otherTeamPlan gives the outsider's team a site, a list with one target
-// and a run with a saved plan, and returns the run and plan ids.
+// (with a timing) and a run with a saved plan, and returns the run and
+// plan ids.
 func (h *harness) otherTeamPlan(tb testing.TB) (runID, planID int64) {
+	th := h.otherTeam(tb)
+	return th.run, th.plan
+}
+
+// otherTeam makes the outsider's team's things of otherTeamPlan.
+func (h *harness) otherTeam(tb testing.TB) theirs {
 	tb.Helper()
 	ctx := context.Background()
 	a := h.actor("outsider")
@@ -36,10 +46,15 @@ func (h *harness) otherTeamPlan(tb testing.TB) (runID, planID int64) {
 	if err != nil {
 		tb.Fatal(err)
 	}
-	if _, err := h.store.CreateTarget(ctx, a, list.ID, store.TargetInput{T0: t0, Target: planner.Target{Name: "FAR 01",
+	tg, err := h.store.CreateTarget(ctx, a, list.ID, store.TargetInput{T0: t0, Target: planner.Target{Name: "FAR 01",
 		RADeg: 160, DecDeg: 10, Priority: 1, AcquireS: 60,
 		Ephem: ephem.Ephemeris{PeriodDays: 0.09, T0ErrDays: 1e-5, PeriodErr: 1e-9, Convention: ephem.ConvInferiorConjunction},
-		Goals: []planner.Goal{{Center: 0.25, HalfWidth: 0.05, ExposureS: 60, OverheadS: 5}}}}); err != nil {
+		Goals: []planner.Goal{{Center: 0.25, HalfWidth: 0.05, ExposureS: 60, OverheadS: 5}}}})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	tms, err := h.store.AddTimings(ctx, a, tg.ID, []store.TimingInput{{T: t0, ErrDays: 1e-5}})
+	if err != nil {
 		tb.Fatal(err)
 	}
 	run, err := h.store.CreateRun(ctx, a, h.otherID, store.RunInput{Name: "Their run", SiteID: site.ID, ListID: list.ID,
@@ -58,7 +73,7 @@ func (h *harness) otherTeamPlan(tb testing.TB) (runID, planID int64) {
 	if err != nil || len(plans) != 1 {
 		tb.Fatalf("their plans: %v, %v", plans, err)
 	}
-	return run.ID, plans[0].ID
+	return theirs{site: site.ID, list: list.ID, target: tg.ID, run: run.ID, plan: plans[0].ID, timing: tms[0].ID}
 }
 
 // TestRunPlanParamRefused: ?plan= naming another team's plan, another run's
@@ -432,5 +447,208 @@ func TestHugeBodyEveryRoute(t *testing.T) {
 	t.Logf("at most %.1f MB allocated for one 60 MB request", float64(peak)/1e6)
 	if peak > bound {
 		t.Errorf("one request allocated %d bytes, above %d (5 × the upload limit)", peak, bound)
+	}
+}
+
+// Stored markup: every text field a user types, shown back.
+const (
+	hostileMarkup = `<script>alert("x")</script><img src=x onerror=alert(1)>=HYPERLINK("http://evil.example")`
+	// hostileLines adds line breaks that would start iCalendar properties
+	// or CSV records if written raw (multi-line fields accept them).
+	hostileLines = hostileMarkup + "\r\nSUMMARY:injected\r\nBEGIN:VEVENT\n@SUM(1)"
+)
+
+// TestHostileStoredMarkup stores markup, formulas and line breaks in every
+// text field of a site, a list, a target, a run and two share links, then
+// opens every page, share view, printable sheet and export showing them:
+// no page holds the markup unescaped, no CSV cell is a runnable formula,
+// no iCalendar line is an injected property.
+func TestHostileStoredMarkup(t *testing.T) {
+	h := newHarness(t)
+	ctx := context.Background()
+	owner := h.actor("owner")
+	site, err := h.store.CreateSite(ctx, owner, h.teamID, store.SiteInput{Name: "S " + hostileMarkup, Zone: "America/Phoenix",
+		Site: ephem.Site{LatDeg: 31.9, LonEastDeg: -111.6, ElevM: 2100}, Constraints: planner.DefaultConstraints()})
+	if err != nil {
+		t.Fatal(err)
+	}
+	list, err := h.store.CreateList(ctx, owner, h.teamID, store.ListInput{Name: "L " + hostileMarkup, Description: hostileLines})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t0, err := store.ParseEpoch("2460400.123457", ephem.StdBJDTDB, ephem.FormJD)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tg, err := h.store.CreateTarget(ctx, owner, list.ID, store.TargetInput{T0: t0, EphemNote: hostileLines, Target: planner.Target{
+		Name: hostileMarkup, RADeg: 150, DecDeg: 20, Priority: 1, AcquireS: 120, Notes: hostileLines, Tags: []string{"=cmd|' /C calc'!A0", "<b>t</b>"},
+		Ephem: ephem.Ephemeris{PeriodDays: 0.08, T0ErrDays: 1e-5, PeriodErr: 1e-9, Convention: ephem.ConvInferiorConjunction},
+		Goals: []planner.Goal{{Center: 0.25, HalfWidth: 0.05, ExposureS: 60, OverheadS: 5}}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	run, err := h.store.CreateRun(ctx, owner, h.teamID, store.RunInput{Name: "R " + hostileMarkup, SiteID: site.ID, ListID: list.ID,
+		Nights: []store.RunNight{{Date: "2026-03-14", Part: store.NightFull}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	in, err := h.srv.loadRun(ctx, owner, run.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := h.srv.planRunJob(ctx, owner, in, 0, &job{}); err != nil {
+		t.Fatal(err)
+	}
+	_, runTok, err := h.store.CreateShareLink(ctx, owner, store.ShareInput{RunID: run.ID, Label: "share " + hostileMarkup, TTL: 24 * time.Hour})
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, listTok, err := h.store.CreateShareLink(ctx, owner, store.ShareInput{ListID: list.ID, Label: "share " + hostileMarkup, TTL: 24 * time.Hour})
+	if err != nil {
+		t.Fatal(err)
+	}
+	night := fmt.Sprintf("?site=%d&list=%d&date=2026-03-14&fill=1", site.ID, list.ID)
+	win := fmt.Sprintf("?site=%d&list=%d&from=2026-03-14&to=2026-03-16", site.ID, list.ID)
+	pages := []string{fmt.Sprintf("/targets?list=%d", list.ID), fmt.Sprintf("/targets/%d", tg.ID), fmt.Sprintf("/targets/%d/edit", tg.ID),
+		"/night" + night, "/night/sheet" + night, fmt.Sprintf("/runs/%d", run.ID), "/runs", "/sites", fmt.Sprintf("/sites/%d", site.ID),
+		"/windows" + win, "/share/" + runTok, "/share/" + runTok + "/night?n=0", "/share/" + listTok, "/team", fmt.Sprintf("/lists/%d/import", list.ID)}
+	csvs := []string{"/night.csv" + night, "/windows.csv" + win, fmt.Sprintf("/runs/%d/plan.csv", run.ID), fmt.Sprintf("/lists/%d/export.csv", list.ID)}
+	icss := []string{"/night.ics" + night, "/windows.ics" + win, fmt.Sprintf("/runs/%d/plan.ics", run.ID)}
+	jsons := []string{"/night.json" + night, "/windows.json" + win, fmt.Sprintf("/runs/%d/plan.json", run.ID), fmt.Sprintf("/lists/%d/export.json", list.ID)}
+	c := h.client("viewer")
+	get := func(t *testing.T, path string) string {
+		t.Helper()
+		resp, body := h.get(c, path)
+		if resp.StatusCode != http.StatusOK {
+			t.Fatalf("%s: %d %.300s", path, resp.StatusCode, body)
+		}
+		return body
+	}
+	for _, path := range pages {
+		t.Run("Page"+strings.SplitN(path, "?", 2)[0], func(t *testing.T) {
+			body := get(t, path)
+			if strings.Contains(body, "<script>alert") || strings.Contains(body, "<img src=x") || strings.Contains(body, "<b>t</b>") {
+				t.Errorf("%s shows stored markup unescaped", path)
+			}
+		})
+	}
+	for _, path := range csvs {
+		t.Run("CSV"+strings.SplitN(path, "?", 2)[0], func(t *testing.T) {
+			body := get(t, path)
+			n, bad := hostileCSVCells(t, []byte(body))
+			if n < 2 {
+				t.Fatalf("%s has no rows: nothing checked", path)
+			}
+			if len(bad) > 0 {
+				t.Errorf("%s: %d runnable cells, e.g. %s", path, len(bad), bad[0])
+			}
+		})
+	}
+	for _, path := range icss {
+		t.Run("ICS"+strings.SplitN(path, "?", 2)[0], func(t *testing.T) {
+			body := get(t, path)
+			if !strings.Contains(body, "BEGIN:VEVENT") {
+				t.Fatalf("%s has no event: nothing checked", path)
+			}
+			for _, line := range strings.Split(body, "\r\n") {
+				if strings.HasPrefix(line, "SUMMARY:injected") || (strings.HasPrefix(line, "@SUM")) {
+					t.Errorf("%s: injected line %q", path, line)
+				}
+			}
+			if strings.Count(body, "BEGIN:VEVENT") != strings.Count(body, "END:VEVENT") {
+				t.Errorf("%s: unbalanced events", path)
+			}
+			if strings.Contains(strings.ReplaceAll(body, "\r\n", ""), "\n") {
+				t.Errorf("%s: a bare line feed in the calendar", path)
+			}
+		})
+	}
+	for _, path := range jsons {
+		t.Run("JSON"+strings.SplitN(path, "?", 2)[0], func(t *testing.T) {
+			body := get(t, path)
+			var v any
+			if err := json.Unmarshal([]byte(body), &v); err != nil {
+				t.Errorf("%s is not JSON: %v", path, err)
+			}
+		})
+	}
+}
+
+// TestCrossTeamIDsInBodies puts ids of another team's site, list, target,
+// timing, run and plan into the forms, queries and JSON bodies of this
+// team's routes, as an editor (who may change things of their own team):
+// every request is refused (404, or 422 naming the field) and nothing of
+// either team changes.
+func TestCrossTeamIDsInBodies(t *testing.T) {
+	h := newHarness(t)
+	w := h.newAuthzWorld(t, 1)
+	h.addAuthzPlan(t, &w)
+	th := h.otherTeam(t)
+	c := h.client("editor")
+	token := h.token("editor")
+	refused := func(status int) bool { return status == http.StatusNotFound || status == http.StatusUnprocessableEntity }
+	forms := []struct {
+		path string
+		form url.Values
+	}{
+		{"/runs", url.Values{"name": {"Stolen"}, "list": {fmt.Sprint(th.list)}, "site": {fmt.Sprint(w.site)}, "nights": {"2026-03-14"}}},
+		{"/runs", url.Values{"name": {"Stolen"}, "list": {fmt.Sprint(w.list)}, "site": {fmt.Sprint(th.site)}, "nights": {"2026-03-14"}}},
+		{"/targets", url.Values{"list": {fmt.Sprint(th.list)}, "name": {"Planted"}, "ra": {"10"}, "dec": {"10"}}},
+		{fmt.Sprintf("/runs/%d/mark", w.run), url.Values{"plan": {fmt.Sprint(th.plan)}, "night": {"0"}, "block": {"0"}, "status": {"done"}}},
+		{fmt.Sprintf("/timings/%d/delete", th.timing), url.Values{"target": {fmt.Sprint(w.target)}, "version": {fmt.Sprint(w.targetVersion)}}},
+		{"/team/select", url.Values{"team_id": {fmt.Sprint(h.otherID)}}},
+	}
+	for _, f := range forms {
+		resp, body := h.postBody(c, f.path, f.form)
+		if !refused(resp.StatusCode) {
+			t.Errorf("POST %s %v: %d, want 404 or 422: %.200s", f.path, f.form, resp.StatusCode, body)
+		}
+	}
+	gets := []string{
+		fmt.Sprintf("/night?site=%d&list=%d&date=2026-03-14", th.site, w.list),
+		fmt.Sprintf("/night?site=%d&list=%d&date=2026-03-14", w.site, th.list),
+		fmt.Sprintf("/night.csv?site=%d&list=%d&t=%d&date=2026-03-14", w.site, w.list, th.target),
+		fmt.Sprintf("/windows.json?site=%d&list=%d&from=2026-03-14&to=2026-03-15", th.site, th.list),
+		fmt.Sprintf("/targets?list=%d", th.list),
+		fmt.Sprintf("/runs/%d?plan=%d", w.run, th.plan),
+	}
+	for _, path := range gets {
+		if resp, body := h.get(c, path); !refused(resp.StatusCode) {
+			t.Errorf("GET %s: %d, want 404 or 422: %.200s", path, resp.StatusCode, body)
+		}
+	}
+	apis := []struct{ method, path, body string }{
+		{"GET", fmt.Sprintf("/api/v1/night?site=%d&list=%d&date=2026-03-14", th.site, th.list), ""},
+		{"GET", fmt.Sprintf("/api/v1/windows?site=%d&list=%d&from=2026-03-14&to=2026-03-15", th.site, w.list), ""},
+		{"GET", fmt.Sprintf("/api/v1/lists?team=%d", h.otherID), ""},
+		{"POST", fmt.Sprintf("/api/v1/lists?team=%d", h.otherID), `{"name":"Planted"}`},
+		{"POST", fmt.Sprintf("/api/v1/lists/%d/targets", th.list), hostileAPITarget},
+		{"GET", fmt.Sprintf("/api/v1/runs/%d/plan", th.run), ""},
+		{"POST", fmt.Sprintf("/api/v1/runs/%d/plan", th.run), ""},
+		{"PUT", fmt.Sprintf("/api/v1/targets/%d", w.target), strings.Replace(hostileAPITarget, `{"name"`, fmt.Sprintf(`{"version":%d,"list_id":%d,"name"`, w.targetVersion, th.list), 1)},
+	}
+	for _, a := range apis {
+		if status, body := hostileAPIRaw(t, h, token, a.method, a.path, []byte(a.body)); !refused(status) {
+			t.Errorf("%s %s: %d, want 404 or 422: %.200s", a.method, a.path, status, body)
+		}
+	}
+	ctx := context.Background()
+	if ts, err := h.store.ListTargets(ctx, h.actor("outsider"), th.list); err != nil || len(ts) != 1 {
+		t.Errorf("their list holds %d targets (%v), want 1", len(ts), err)
+	}
+	if tms, err := h.store.ListTimings(ctx, h.actor("outsider"), th.target); err != nil || len(tms) != 1 {
+		t.Errorf("their target has %d timings (%v), want 1", len(tms), err)
+	}
+	if ps, err := h.store.ListPlans(ctx, h.actor("outsider"), th.run); err != nil || len(ps) != 1 {
+		t.Errorf("their run has %d plans (%v), want 1", len(ps), err)
+	}
+	runs, err := h.store.ListRuns(ctx, h.actor("owner"), h.teamID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range runs {
+		if r.Name == "Stolen" {
+			t.Errorf("a run was made on another team's list or site: %+v", r)
+		}
 	}
 }

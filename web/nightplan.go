@@ -185,8 +185,15 @@ func (s *Server) loadNight(ctx context.Context, a store.Actor, teamID int64, q n
 	if len(n.sites) == 0 || len(n.lists) == 0 {
 		return n, errs, nil
 	}
-	n.site, n.q.siteID = pick(n.sites, q.siteID, func(r store.SiteRecord) int64 { return r.ID })
-	n.list, n.q.listID = pick(n.lists, q.listID, func(l store.TargetList) int64 { return l.ID })
+	var okSite, okList bool
+	n.site, n.q.siteID, okSite = pick(n.sites, q.siteID, func(r store.SiteRecord) int64 { return r.ID })
+	n.list, n.q.listID, okList = pick(n.lists, q.listID, func(l store.TargetList) int64 { return l.ID })
+	switch {
+	case !okSite:
+		return nil, nil, errNotFound(fmt.Sprintf("The team has no site %d.", q.siteID))
+	case !okList:
+		return nil, nil, errNotFound(fmt.Sprintf("The team has no list %d.", q.listID))
+	}
 	if n.loc, err = time.LoadLocation(n.site.Zone); err != nil {
 		n.loc = time.UTC
 	}
@@ -220,18 +227,24 @@ func (s *Server) loadNight(ctx context.Context, a store.Actor, teamID int64, q n
 				n.targets = append(n.targets, t)
 			}
 		}
+		for _, id := range q.targetIDs {
+			if !slices.ContainsFunc(n.targets, func(t store.StoredTarget) bool { return t.ID == id }) {
+				return nil, nil, errNotFound(fmt.Sprintf("Target %d is not on the list %s.", id, n.list.Name))
+			}
+		}
 	}
 	return n, errs, nil
 }
 
-// pick returns the element with id want, or the first one.
-func pick[T any](xs []T, want int64, id func(T) int64) (T, int64) {
+// pick returns the element with id want, or the first one when want is 0;
+// ok is false when want is not among xs.
+func pick[T any](xs []T, want int64, id func(T) int64) (x T, got int64, ok bool) {
 	for _, x := range xs {
 		if id(x) == want {
-			return x, want
+			return x, want, true
 		}
 	}
-	return xs[0], id(xs[0])
+	return xs[0], id(xs[0]), want == 0
 }
 
 // tonight is the local date of the evening of the night in progress or
