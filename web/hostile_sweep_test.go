@@ -586,7 +586,9 @@ func TestCrossTeamIDsInBodies(t *testing.T) {
 	th := h.otherTeam(t)
 	c := h.client("editor")
 	token := h.token("editor")
-	refused := func(status int) bool { return status == http.StatusNotFound || status == http.StatusUnprocessableEntity }
+	refused := func(status int) bool {
+		return status == http.StatusNotFound || status == http.StatusUnprocessableEntity
+	}
 	forms := []struct {
 		path string
 		form url.Values
