@@ -62,16 +62,9 @@ func (h *harness) otherTeam(tb testing.TB) theirs {
 	if err != nil {
 		tb.Fatal(err)
 	}
-	in, err := h.srv.loadRun(ctx, a, run.ID)
-	if err != nil {
-		tb.Fatal(err)
-	}
-	if _, err := h.srv.planRunJob(ctx, a, in, 0, &job{}); err != nil {
-		tb.Fatal(err)
-	}
-	plans, err := h.store.ListPlans(ctx, a, run.ID)
-	if err != nil || len(plans) != 1 {
-		tb.Fatalf("their plans: %v, %v", plans, err)
+	plans := h.planRun(tb, a, run.ID)
+	if len(plans) != 1 {
+		tb.Fatalf("their run has %d plans, want 1", len(plans))
 	}
 	return theirs{site: site.ID, list: list.ID, target: tg.ID, run: run.ID, plan: plans[0].ID, timing: tms[0].ID}
 }
@@ -492,13 +485,7 @@ func TestHostileStoredMarkup(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	in, err := h.srv.loadRun(ctx, owner, run.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if _, err := h.srv.planRunJob(ctx, owner, in, 0, &job{}); err != nil {
-		t.Fatal(err)
-	}
+	h.planRun(t, owner, run.ID)
 	_, runTok, err := h.store.CreateShareLink(ctx, owner, store.ShareInput{RunID: run.ID, Label: "share " + hostileMarkup, TTL: 24 * time.Hour})
 	if err != nil {
 		t.Fatal(err)

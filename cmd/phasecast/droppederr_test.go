@@ -1,9 +1,6 @@
 package main
 
 import (
-	"bytes"
-	"encoding/json"
-	"errors"
 	"fmt"
 	"go/ast"
 	"go/importer"
@@ -12,7 +9,6 @@ import (
 	"go/types"
 	"io"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"sort"
 	"strings"
@@ -114,27 +110,5 @@ type exportedPackage struct {
 // the compiler's export data (building them if needed).
 func listExported(t *testing.T) []exportedPackage {
 	t.Helper()
-	goTool, err := exec.LookPath("go")
-	if err != nil {
-		t.Fatalf("the go command is needed to type-check the module: %v", err)
-	}
-	cmd := exec.Command(goTool, "list", "-export", "-deps", "-json=ImportPath,Dir,Export,GoFiles,Standard", module+"/...")
-	var stderr bytes.Buffer
-	cmd.Stderr = &stderr
-	out, err := cmd.Output()
-	if err != nil {
-		t.Fatalf("go list -export: %v: %s", err, stderr.String())
-	}
-	var pkgs []exportedPackage
-	dec := json.NewDecoder(bytes.NewReader(out))
-	for {
-		var p exportedPackage
-		if err := dec.Decode(&p); errors.Is(err, io.EOF) {
-			break
-		} else if err != nil {
-			t.Fatalf("decoding go list output: %v", err)
-		}
-		pkgs = append(pkgs, p)
-	}
-	return pkgs
+	return goList[exportedPackage](t, "-export", "-deps", "-json=ImportPath,Dir,Export,GoFiles,Standard", module+"/...")
 }
