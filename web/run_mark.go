@@ -16,11 +16,15 @@ func (s *Server) runMark(w http.ResponseWriter, r *http.Request, u *user) {
 	if err == nil {
 		err = parseForm(w, r)
 	}
+	if err != nil {
+		s.renderError(w, r, err)
+		return
+	}
 	planID, perr := formInt64(r, "plan")
 	night, nerr := strconv.Atoi(r.PostFormValue("night"))
 	block, berr := strconv.Atoi(r.PostFormValue("block"))
 	status := r.PostFormValue("status")
-	if err != nil || perr != nil || nerr != nil || berr != nil || (status != "done" && status != "lost") {
+	if perr != nil || nerr != nil || berr != nil || (status != "done" && status != "lost") {
 		s.renderError(w, r, errMalformed)
 		return
 	}
