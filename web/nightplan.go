@@ -134,6 +134,7 @@ type night struct {
 	req     planner.NightRequest
 	plan    *planner.Plan
 	events  planner.NightEvents
+	source  string // Tonight: whose blocks are shown (a run's saved plan, or planned now)
 }
 
 // loadNight resolves the request's site, list and targets for the actor

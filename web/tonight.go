@@ -58,6 +58,11 @@ func (s *Server) tonightNight(ctx context.Context, u *user, q url.Values) (*nigh
 		if err := n.planIt(errs); err != nil {
 			return nil, nil, nil, err
 		}
+		if len(errs) == 0 {
+			if n.source, err = s.followSavedPlan(ctx, u.actor, n, run); err != nil {
+				return nil, nil, nil, err
+			}
+		}
 	}
 	return n, runs, run, nil
 }
@@ -84,6 +89,7 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 		v.NoPlan = "No plan could be made for tonight; open the Night page for details."
 		return v
 	}
+	v.Source = n.source
 	q := n.q
 	v.NightLink = "/night?" + q.encode()
 	zone, _ := now.In(n.loc).Zone()
