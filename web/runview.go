@@ -57,6 +57,7 @@ func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, 
 		}
 		v.Schedules = append(v.Schedules, ns)
 	}
+	v.Past = max(v.Past, doc.Past, leadingMarked(v.Schedules))
 	v.Objective = fmt.Sprintf("Run objective %.3f of %.3f when every requirement is met (greedy pass %.3f; nights planned on their own %.3f).",
 		float64(doc.Objective.Value)/1e6, float64(doc.Objective.MaxValue)/1e6, float64(doc.Objective.GreedyValue)/1e6,
 		float64(doc.Objective.IndependentValue)/1e6)
@@ -151,4 +152,23 @@ func loadDoc(p store.SavedPlan) (*runDoc, error) {
 		return nil, fmt.Errorf("saved plan %d: %w", p.ID, err)
 	}
 	return &d, nil
+}
+
+// leadingMarked counts the run's first nights whose every block has an
+// outcome (done or lost): those nights are over, so the replan form
+// proposes them as such. A night over in the plan counts as well.
+func leadingMarked(ns []page.NightSchedule) int {
+	k := 0
+	for _, n := range ns {
+		if !n.Past && len(n.Blocks) == 0 {
+			break
+		}
+		for _, b := range n.Blocks {
+			if b.State == "" {
+				return k
+			}
+		}
+		k++
+	}
+	return k
 }

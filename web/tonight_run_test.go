@@ -6,6 +6,7 @@ import (
 	"net/http"
 	"net/url"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -113,5 +114,63 @@ func TestTonightFollowsRunPlan(t *testing.T) {
 		if src := panel(body, "tonight-source", "</p>"); !strings.Contains(src, "1 block marked done or lost") {
 			t.Errorf("%s: the marked block is not mentioned: %q", path, src)
 		}
+	}
+}
+
+// TestReplanKeepsNightsOver: a whole night marked lost with one action
+// counts as over; after a replan the "Nights already over" box keeps the
+// count, so a second replan does not plan the lost night again.
+func TestReplanKeepsNightsOver(t *testing.T) {
+	h := newHarness(t)
+	f := h.addFixtures(t, 4)
+	c := h.client("editor")
+	run, err := h.store.CreateRun(context.Background(), h.actor("owner"), h.teamID, store.RunInput{Name: "Three nights", SiteID: f.siteID, ListID: f.listID,
+		Constraints: planner.DefaultConstraints(), Nights: []store.RunNight{{Date: "2026-03-14", Part: store.NightFull}, {Date: "2026-03-15", Part: store.NightFull}, {Date: "2026-03-16", Part: store.NightFull}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := "/runs/" + i64s(run.ID)
+	pastBox := func(body string) string {
+		m := regexp.MustCompile(`name="past"[^>]*value="(\d+)"`).FindStringSubmatch(body)
+		if m == nil {
+			t.Fatal("no Nights already over box")
+		}
+		return m[1]
+	}
+	doc, planID := h.planRunNow(t, c, run.ID, 0)
+	nb := len(doc.Nights[0].Blocks)
+	if nb < 2 {
+		t.Fatalf("night 1 has %d blocks, want 2 or more", nb)
+	}
+	_, body := h.get(c, path+"?plan="+planID)
+	if got := strings.Count(body, `data-testid="mark-night-lost"`); got != 3 {
+		t.Errorf("%d whole-night-lost buttons, want one per night (3)", got)
+	}
+	if resp := h.post(c, path+"/mark", url.Values{"plan": {planID}, "night": {"0"}, "block": {"all"}, "status": {"lost"}}); resp.StatusCode != http.StatusSeeOther {
+		t.Fatalf("mark the whole night lost = %d", resp.StatusCode)
+	}
+	_, body = h.get(c, path+"?plan="+planID)
+	if got := strings.Count(body, `data-testid="block-state">lost<`); got != nb {
+		t.Errorf("%d blocks show lost, want all %d of night 1", got, nb)
+	}
+	if got := pastBox(body); got != "1" {
+		t.Errorf("after losing night 1 the box says %s nights over, want 1", got)
+	}
+	if resp := h.post(c, path+"/mark", url.Values{"plan": {planID}, "night": {"0"}, "block": {"all"}, "status": {"done"}}); resp.StatusCode != http.StatusBadRequest {
+		t.Errorf("marking a whole night done = %d, want 400 (only lost)", resp.StatusCode)
+	}
+	doc, planID = h.planRunNow(t, c, run.ID, 1)
+	if !doc.Nights[0].Past || doc.Past != 1 {
+		t.Fatalf("the replan does not count night 1 over: past %d", doc.Past)
+	}
+	_, body = h.get(c, path+"?plan="+planID)
+	box := pastBox(body)
+	if box != "1" {
+		t.Errorf("after the replan the box says %s nights over, want 1", box)
+	}
+	n, _ := strconv.Atoi(box)
+	doc, _ = h.planRunNow(t, c, run.ID, n)
+	if !doc.Nights[0].Past || len(doc.Nights[0].Blocks) != 0 {
+		t.Errorf("the second replan plans the lost night again: past %v, %d blocks", doc.Nights[0].Past, len(doc.Nights[0].Blocks))
 	}
 }
