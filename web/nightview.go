@@ -62,12 +62,7 @@ func (n *night) view(now time.Time) (page.NightView, error) {
 	for _, b := range p.Blocks {
 		v.Blocks = append(v.Blocks, n.blockRow(b))
 	}
-	for _, w := range p.Warnings {
-		if w.Code == planner.WarnSunAvoidApplied || w.GoalIndex >= 0 && isBlockWarning(w) {
-			continue
-		}
-		v.Warnings = append(v.Warnings, warningText(w))
-	}
+	v.Warnings = warningGroups(p, n.loc)
 	for _, u := range p.Unscheduled {
 		v.Unscheduled = append(v.Unscheduled, page.UnschedRow{Target: u.Target, Goal: goalLabel(u.Goal), Reason: u.Detail})
 	}
@@ -137,6 +132,7 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 		Airmass:    fmt.Sprintf("%.2f–%.2f", b.AirmassMin, b.AirmassMax),
 		MoonSep:    fmt.Sprintf("%.0f°", b.MoonSepDeg),
 		Parallatic: fmt.Sprintf("%.0f°", b.Parallactic), HourAngle: fmt.Sprintf("%+.2f h", b.HourAngle),
+		LST:        planner.FormatHours(planner.LocalSiderealHours(n.site.Site, b.Start)),
 		SunAlt: fmt.Sprintf("%.1f°", b.SunAltStart), Acquire: num(b.AcquireS) + " s", Cycle: strconv.FormatInt(b.Cycle, 10)}
 	if !b.MoonUp {
 		r.MoonSep += " (down)"
@@ -145,9 +141,6 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 	r.ExpShort = fmt.Sprintf("%d×%s s", b.N, num(b.ExposureS))
 	if b.Filler {
 		r.Goal, r.GoalShort = "filler", "filler"
-	}
-	for _, w := range b.Warnings {
-		r.Warnings = append(r.Warnings, w.Message)
 	}
 	return r
 }

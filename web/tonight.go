@@ -81,7 +81,8 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 	if run != nil {
 		v.Heading = "Tonight: run " + run.Name + " at " + n.site.Name
 	}
-	v.Clock = now.In(n.loc).Format("15:04 MST") + " · " + now.UTC().Format("15:04 UTC") + " · night of " + n.q.date
+	v.Clock = now.In(n.loc).Format("15:04 MST") + " · " + now.UTC().Format("15:04 UTC") + " · LST " +
+		planner.FormatHours(planner.LocalSiderealHours(n.site.Site, now)) + " · night of " + n.q.date
 	if n.half() && n.plan != nil {
 		v.Clock += " · " + n.partNote()
 	}
