@@ -132,7 +132,7 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 		Airmass:    fmt.Sprintf("%.2f–%.2f", b.AirmassMin, b.AirmassMax),
 		MoonSep:    fmt.Sprintf("%.0f°", b.MoonSepDeg),
 		Parallatic: fmt.Sprintf("%.0f°", b.Parallactic), HourAngle: fmt.Sprintf("%+.2f h", b.HourAngle),
-		LST:        planner.FormatHours(planner.LocalSiderealHours(n.site.Site, b.Start)),
+		LST:    planner.FormatHours(planner.LocalSiderealHours(n.site.Site, b.Start)),
 		SunAlt: fmt.Sprintf("%.1f°", b.SunAltStart), Acquire: num(b.AcquireS) + " s", Cycle: strconv.FormatInt(b.Cycle, 10)}
 	if !b.MoonUp {
 		r.MoonSep += " (down)"
