@@ -119,6 +119,16 @@ func NightEventsOn(site Site, year int, month time.Month, day int, loc *time.Loc
 	return ephem.Night(site, year, month, day, loc)
 }
 
+// ParseTimeLayout is time.Parse in UTC that reads second 60 on a
+// leap-second day as the instant the leap second ends, and refuses it
+// elsewhere with an error wrapping ErrNotLeapSecond (ephem.ParseTimeLayout;
+// RFC 3339 §5.6, RFC 5545 §3.3.12).
+func ParseTimeLayout(layout, s string) (time.Time, error) { return ephem.ParseTimeLayout(layout, s) }
+
+// ErrNotLeapSecond is wrapped by the time parsers' error for a second 60
+// that is not a leap second.
+var ErrNotLeapSecond = ephem.ErrNotLeapSecond
+
 // LocalSiderealHours returns the local apparent sidereal time at site at
 // UTC instant t, in hours, 0 ≤ LST < 24 (Meeus ch. 12, via
 // ephem.Site.LASTHours; UT1 = UTC, at most 0.9 s off). The hour angle of a
