@@ -39,6 +39,7 @@ const (
 	StdBJDTDB                = ephem.StdBJDTDB
 	FormJD                   = ephem.FormJD
 	ConvInferiorConjunction  = ephem.ConvInferiorConjunction
+	ConvAscendingNode        = ephem.ConvAscendingNode
 	EventInferiorConjunction = ephem.EventInferiorConjunction
 )
 

@@ -51,12 +51,13 @@ func (n *night) form(errs page.Errs) page.NightForm {
 // view builds the Night page's result part from the plan.
 func (n *night) view(now time.Time) (page.NightView, error) {
 	p := n.plan
-	zone, _ := time.Now().In(n.loc).Zone()
+	at := n.whole.Start
 	if len(p.Blocks) > 0 {
-		zone, _ = p.Blocks[0].Start.In(n.loc).Zone()
+		at = p.Blocks[0].Start
 	} else if n.events.Sunset != nil {
-		zone, _ = n.events.Sunset.In(n.loc).Zone()
+		at = *n.events.Sunset
 	}
+	zone := zoneLabel(n.loc, at)
 	v := page.NightView{HasPlan: true, Title: n.title(), Zone: zone, Query: n.q.encode(), PartNote: n.partNote()}
 	v.Events = n.eventRows()
 	for _, b := range p.Blocks {

@@ -19,8 +19,7 @@ import (
 func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, now time.Time) page.RunView {
 	run := in.run
 	v := page.RunView{ID: run.ID, Name: run.Name, NightsN: len(in.nights), Past: in.nightsOver(now), PlanID: planID}
-	zone, _ := now.In(in.loc).Zone()
-	v.Zone = zone
+	v.Zone = zoneLabel(in.loc, now)
 	_, cons, _ := siteSummary(store.SiteRecord{Site: in.site.Site, Constraints: run.Constraints})
 	v.Summary = fmt.Sprintf("%d nights at %s, %d targets; %s.", len(in.nights), in.site.Name, len(in.targets), cons)
 	for _, p := range plans {

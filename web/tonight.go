@@ -81,7 +81,7 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 	if run != nil {
 		v.Heading = "Tonight: run " + run.Name + " at " + n.site.Name
 	}
-	v.Clock = now.In(n.loc).Format("15:04 MST") + " · " + now.UTC().Format("15:04 UTC") + " · LST " +
+	v.Clock = now.In(n.loc).Format("15:04") + " " + zoneLabel(n.loc, now) + " · " + now.UTC().Format("15:04 UTC") + " · LST " +
 		planner.FormatHours(planner.LocalSiderealHours(n.site.Site, now)) + " · night of " + n.q.date
 	if n.half() && n.plan != nil {
 		v.Clock += " · " + n.partNote()
@@ -93,7 +93,7 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 	v.Source = n.source
 	q := n.q
 	v.NightLink = "/night?" + q.encode()
-	zone, _ := now.In(n.loc).Zone()
+	zone := zoneLabel(n.loc, now)
 	for _, b := range n.plan.Blocks {
 		nb := &page.NowBlock{Target: b.Target, Goal: goalLabel(b.Goal), Exposures: fmt.Sprintf("%d × %s s", b.N, num(b.ExposureS)),
 			Span: b.Start.In(n.loc).Format("15:04") + "–" + b.End.In(n.loc).Format("15:04") + " " + zone}
@@ -126,12 +126,7 @@ func tonightRow(n *night, i int, t store.StoredTarget, now time.Time) page.Tonig
 	_, ph, phErr := planner.PhaseNow(n.site.Site, tg.Star(), tg.Ephem, now)
 	r.Phase, r.PhaseErr = fmt.Sprintf("%.3f", ph), "± "+fmtPhaseErr(phErr)
 	sky := planner.SkyAt(n.site.Site, tg.Star(), now)
-	r.Altitude = fmt.Sprintf("%.0f°", sky.AltRefractedDeg)
-	if sky.AirmassOK {
-		r.Altitude += fmt.Sprintf(" (airmass %.2f)", sky.Airmass)
-	} else {
-		r.Altitude += " (below the horizon)"
-	}
+	r.Altitude = altitudeText(sky)
 	goals, err := tg.ResolveGoals()
 	if err == nil {
 		best := time.Time{}
