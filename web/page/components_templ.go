@@ -304,7 +304,7 @@ func ErrSummary(lines []string) templ.Component {
 		ctx = templ.InitializeContext(ctx)
 		ctx = templ.ClearChildren(ctx)
 		if len(lines) > 0 {
-			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 21, "<div class=\"flash error\" role=\"alert\" data-testid=\"error-summary\"><p>Nothing was done: correct the fields below.</p><ul>")
+			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 21, "<div class=\"flash error summary\" role=\"alert\" data-testid=\"error-summary\"><p>Nothing was done: correct the fields below.</p><ul>")
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}
