@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"strconv"
-	"strings"
 	"time"
 
 	"phasecast/planner"
@@ -123,7 +122,7 @@ func (n *night) eventRows() []page.EventRow {
 
 // blockRow formats one block with every figure.
 func (n *night) blockRow(b planner.Block) page.BlockRow {
-	r := page.BlockRow{Target: b.Target, Goal: goalLabel(b.Goal), Priority: b.Priority, Filler: b.Filler,
+	r := page.BlockRow{Target: b.Target, Goal: goalLabelConv(b.Goal, n.convOf(b.TargetIndex)), Priority: b.Priority, Filler: b.Filler,
 		Local:     b.Start.In(n.loc).Format("15:04:05") + "–" + b.End.In(n.loc).Format("15:04:05"),
 		UTC:       b.Start.UTC().Format("15:04:05") + "–" + b.End.UTC().Format("15:04:05"),
 		Exposures: fmt.Sprintf("%d × %s s + %s s", b.N, num(b.ExposureS), num(b.OverheadS)),
@@ -147,12 +146,25 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 }
 
 // goalLabel names a goal: "φ 0.25 ± 0.05" or "quadrature (max recession) φ 0.25 ± 0.05".
-func goalLabel(g planner.Goal) string {
+func goalLabel(g planner.Goal) string { return goalLabelConv(g, "") }
+
+// goalLabelConv is goalLabel with the event named for the target's T0
+// convention: an ascending-node (pulsar-timing) ephemeris says whose
+// conjunction or quadrature it is (eventName).
+func goalLabelConv(g planner.Goal, conv planner.Convention) string {
 	s := fmt.Sprintf("φ %s ± %s", phaseNum(g.Center), phaseNum(g.HalfWidth))
 	if g.Event != "" {
-		s = strings.ReplaceAll(g.Event, "_", " ") + ", " + s
+		s = eventName(g.Event, conv) + ", " + s
 	}
 	return s
+}
+
+// convOf is the T0 convention of the night's target i ("" if unknown).
+func (n *night) convOf(i int) planner.Convention {
+	if i < 0 || i >= len(n.req.Targets) {
+		return ""
+	}
+	return n.req.Targets[i].Ephem.Convention
 }
 
 // phaseNum formats a phase: as typed when short ("0.25"), else to four

@@ -125,3 +125,13 @@ func TestHorizonHelpOneLine(t *testing.T) {
 		t.Errorf("the help is not one element: %s", body[i-200:i+50])
 	}
 }
+
+func TestGoalLabelConv(t *testing.T) {
+	g := planner.Goal{Center: 0.25, HalfWidth: 0.05, Event: "inferior_conjunction"}
+	if got, want := goalLabelConv(g, planner.ConvAscendingNode), "companion's inferior conjunction (companion in front of the pulsar), φ 0.25 ± 0.05"; got != want {
+		t.Errorf("pulsar goal = %q, want %q", got, want)
+	}
+	if got, want := goalLabel(g), "inferior conjunction, φ 0.25 ± 0.05"; got != want {
+		t.Errorf("goal = %q, want %q", got, want)
+	}
+}

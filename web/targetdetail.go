@@ -54,7 +54,7 @@ func (s *Server) targetDetail(ctx context.Context, u *user, id int64) (page.Targ
 		goals = tg.Goals
 	}
 	for _, g := range goals {
-		v.Goals = append(v.Goals, goalLabel(g)+fmt.Sprintf(": %s s exposures + %s s readout, %s", num(g.ExposureS), num(g.OverheadS), wantLabel(g.NExposures)))
+		v.Goals = append(v.Goals, goalLabelConv(g, t.Ephemeris.Ephem.Convention)+fmt.Sprintf(": %s s exposures + %s s readout, %s", num(g.ExposureS), num(g.OverheadS), wantLabel(g.NExposures)))
 	}
 	v.Sigma = sigmaChart(site, t, now)
 	v.Timings, v.OC = timingRows(t, timings)

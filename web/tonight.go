@@ -95,7 +95,7 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 	v.NightLink = "/night?" + q.encode()
 	zone := zoneLabel(n.loc, now)
 	for _, b := range n.plan.Blocks {
-		nb := &page.NowBlock{Target: b.Target, Goal: goalLabel(b.Goal), Exposures: fmt.Sprintf("%d × %s s", b.N, num(b.ExposureS)),
+		nb := &page.NowBlock{Target: b.Target, Goal: goalLabelConv(b.Goal, n.convOf(b.TargetIndex)), Exposures: fmt.Sprintf("%d × %s s", b.N, num(b.ExposureS)),
 			Span: b.Start.In(n.loc).Format("15:04") + "–" + b.End.In(n.loc).Format("15:04") + " " + zone}
 		if b.Filler {
 			nb.Goal = "filler"
@@ -135,7 +135,7 @@ func tonightRow(n *night, i int, t store.StoredTarget, now time.Time) page.Tonig
 			start := math.Mod(g.Center-g.HalfWidth+1, 1)
 			ts := planner.UpcomingEvents(n.site.Site, tg.Star(), tg.Ephem, start, now, now.Add(time.Duration(tg.Ephem.PeriodDays*24*float64(time.Hour))+time.Minute))
 			if len(ts) > 0 && (best.IsZero() || ts[0].Before(best)) {
-				best, label = ts[0], goalLabel(g)
+				best, label = ts[0], goalLabelConv(g, tg.Ephem.Convention)
 			}
 		}
 		if !best.IsZero() {
@@ -145,7 +145,7 @@ func tonightRow(n *night, i int, t store.StoredTarget, now time.Time) page.Tonig
 	}
 	for _, b := range n.plan.Blocks {
 		if b.TargetIndex == i && b.End.After(now) {
-			r.NextBlock = b.Start.In(n.loc).Format("15:04") + "–" + b.End.In(n.loc).Format("15:04") + ", " + goalLabel(b.Goal)
+			r.NextBlock = b.Start.In(n.loc).Format("15:04") + "–" + b.End.In(n.loc).Format("15:04") + ", " + goalLabelConv(b.Goal, tg.Ephem.Convention)
 			if b.Start.After(now) {
 				r.BlockAt, r.BlockIn = b.Start.UTC().Format(time.RFC3339), "in "+fmtDuration(b.Start.Sub(now))
 			} else {
