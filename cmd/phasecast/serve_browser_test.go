@@ -35,12 +35,7 @@ const e2eTargetsCSV = "name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth
 // README's images under docs/). Without Chromium it skips, except under
 // CI=true, where it fails.
 func TestBrowserEndToEnd(t *testing.T) {
-	if _, err := exec.LookPath(chromiumPath); err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("chromium not found at %s (CI installs it: apt-get install -y chromium)", chromiumPath)
-		}
-		t.Skipf("skipped: chromium not found at %s", chromiumPath)
-	}
+	needChromium(t)
 	shots := t.TempDir()
 	t0 := time.Now()
 	app := startServe(t, filepath.Join(t.TempDir(), "phasecast.db"))
@@ -183,6 +178,18 @@ func TestBrowserEndToEnd(t *testing.T) {
 	}
 	saveShot(t, anon, shots, "share.png")
 	t.Logf("screenshots in %s", shots)
+}
+
+// needChromium skips the test when Chromium is missing, except under
+// CI=true, where it fails.
+func needChromium(t *testing.T) {
+	t.Helper()
+	if _, err := exec.LookPath(chromiumPath); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("chromium not found at %s (CI installs it: apt-get install -y chromium)", chromiumPath)
+		}
+		t.Skipf("skipped: chromium not found at %s", chromiumPath)
+	}
 }
 
 // newBrowser starts a headless Chromium with its own profile and returns

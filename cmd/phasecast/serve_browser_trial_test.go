@@ -3,8 +3,6 @@ package main
 import (
 	"context"
 	"fmt"
-	"os"
-	"os/exec"
 	"path/filepath"
 	"regexp"
 	"strings"
@@ -21,12 +19,7 @@ import (
 // the run's saved plan with its marks, and a lost night stays over across
 // replans. Without Chromium it skips, except under CI=true.
 func TestBrowserObserverTrial(t *testing.T) {
-	if _, err := exec.LookPath(chromiumPath); err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("chromium not found at %s (CI installs it: apt-get install -y chromium)", chromiumPath)
-		}
-		t.Skipf("skipped: chromium not found at %s", chromiumPath)
-	}
+	needChromium(t)
 	shots := t.TempDir()
 	app := startServe(t, filepath.Join(t.TempDir(), "phasecast.db"))
 	defer func() {
