@@ -54,6 +54,25 @@ func (h *harness) planRunNow(t *testing.T, c *http.Client, runID int64, past int
 	}
 }
 
+// runNightsFrom is n full nights from tonight at the test clock, at the
+// fixtures' site (America/Phoenix).
+func runNightsFrom(t *testing.T, n int) []store.RunNight {
+	t.Helper()
+	loc, err := time.LoadLocation("America/Phoenix")
+	if err != nil {
+		t.Fatal(err)
+	}
+	first, err := time.Parse("2006-01-02", tonight(testNow, loc))
+	if err != nil {
+		t.Fatal(err)
+	}
+	out := make([]store.RunNight, n)
+	for i := range out {
+		out[i] = store.RunNight{Date: first.AddDate(0, 0, i).Format("2006-01-02"), Part: store.NightFull}
+	}
+	return out
+}
+
 // panel returns the text of the element with data-testid=id up to the
 // closing tag end.
 func panel(body, id, end string) string {
@@ -77,7 +96,7 @@ func TestTonightFollowsRunPlan(t *testing.T) {
 		t.Errorf("without a run, Tonight does not say it plans now: %q", panel(body, "tonight-source", "</p>"))
 	}
 	run, err := h.store.CreateRun(context.Background(), h.actor("owner"), h.teamID, store.RunInput{Name: "Spring run", SiteID: f.siteID, ListID: f.listID,
-		Constraints: planner.DefaultConstraints(), Nights: []store.RunNight{{Date: "2026-03-14", Part: store.NightFull}, {Date: "2026-03-15", Part: store.NightFull}}})
+		Constraints: planner.DefaultConstraints(), Nights: runNightsFrom(t, 2)})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -86,14 +105,20 @@ func TestTonightFollowsRunPlan(t *testing.T) {
 		t.Errorf("a run without a plan: source %q", src)
 	}
 	doc, planID := h.planRunNow(t, c, run.ID, 0)
-	if len(doc.Nights[0].Blocks) < 2 {
-		t.Fatalf("tonight's saved plan has %d blocks, want 2 or more", len(doc.Nights[0].Blocks))
+	var ahead []int // tonight's blocks still to start at the test's clock
+	for i, b := range doc.Nights[0].Blocks {
+		if time.Time(b.Start).After(testNow) {
+			ahead = append(ahead, i)
+		}
+	}
+	if len(ahead) < 2 {
+		t.Fatalf("tonight's saved plan has %d blocks after %s, want 2 or more", len(ahead), testNow)
 	}
 	span := func(b runBlockDoc) string {
 		loc, _ := time.LoadLocation("America/Phoenix")
 		return time.Time(b.Start).In(loc).Format("15:04") + "–" + time.Time(b.End).In(loc).Format("15:04")
 	}
-	b0, b1 := doc.Nights[0].Blocks[0], doc.Nights[0].Blocks[1]
+	b0, b1 := doc.Nights[0].Blocks[ahead[0]], doc.Nights[0].Blocks[ahead[1]]
 	_, body = h.get(c, "/tonight")
 	next := panel(body, "observe-next", "</div>")
 	if !strings.Contains(next, b0.Target) || !strings.Contains(next, span(b0)) {
@@ -102,7 +127,7 @@ func TestTonightFollowsRunPlan(t *testing.T) {
 	if src := panel(body, "tonight-source", "</p>"); !strings.Contains(src, "saved plan") || !strings.Contains(src, "Spring run") {
 		t.Errorf("Tonight does not say it follows the run's saved plan: %q", src)
 	}
-	if resp := h.post(c, "/runs/"+i64s(run.ID)+"/mark", url.Values{"plan": {planID}, "night": {"0"}, "block": {"0"}, "status": {"lost"}}); resp.StatusCode != http.StatusSeeOther {
+	if resp := h.post(c, "/runs/"+i64s(run.ID)+"/mark", url.Values{"plan": {planID}, "night": {"0"}, "block": {i64s(int64(ahead[0]))}, "status": {"lost"}}); resp.StatusCode != http.StatusSeeOther {
 		t.Fatalf("mark lost = %d", resp.StatusCode)
 	}
 	for _, path := range []string{"/tonight", "/tonight/body"} {
@@ -125,7 +150,7 @@ func TestReplanKeepsNightsOver(t *testing.T) {
 	f := h.addFixtures(t, 4)
 	c := h.client("editor")
 	run, err := h.store.CreateRun(context.Background(), h.actor("owner"), h.teamID, store.RunInput{Name: "Three nights", SiteID: f.siteID, ListID: f.listID,
-		Constraints: planner.DefaultConstraints(), Nights: []store.RunNight{{Date: "2026-03-14", Part: store.NightFull}, {Date: "2026-03-15", Part: store.NightFull}, {Date: "2026-03-16", Part: store.NightFull}}})
+		Constraints: planner.DefaultConstraints(), Nights: runNightsFrom(t, 3)})
 	if err != nil {
 		t.Fatal(err)
 	}
