@@ -1,11 +1,10 @@
 package web
 
 import (
-	"phasecast/planner/export"
-
 	"net/http"
 	"strconv"
 
+	"phasecast/planner/export"
 	"phasecast/store"
 )
 
@@ -18,8 +17,11 @@ func (s *Server) apiRunPlan(w http.ResponseWriter, r *http.Request, u *user) {
 		s.apiError(w, r, err)
 		return
 	}
-	want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
-	_, doc, _, err := s.runPlanDoc(r.Context(), u.actor, id, want)
+	want, err := queryID(r.URL.Query(), "plan")
+	var doc *export.Run
+	if err == nil {
+		_, doc, _, err = s.runPlanDoc(r.Context(), u.actor, id, want)
+	}
 	if err == nil && doc == nil {
 		err = errNotFound("the run has no saved plan yet: POST /api/v1/runs/{id}/plan makes one")
 	}
@@ -42,8 +44,13 @@ func (s *Server) apiRunCoverage(w http.ResponseWriter, r *http.Request, u *user)
 		s.apiError(w, r, err)
 		return
 	}
-	want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
-	plans, doc, planID, err := s.runPlanDoc(r.Context(), u.actor, id, want)
+	want, err := queryID(r.URL.Query(), "plan")
+	var doc *export.Run
+	var plans []store.SavedPlan
+	var planID int64
+	if err == nil {
+		plans, doc, planID, err = s.runPlanDoc(r.Context(), u.actor, id, want)
+	}
 	if err == nil && doc == nil {
 		err = errNotFound("the run has no saved plan yet: POST /api/v1/runs/{id}/plan makes one")
 	}

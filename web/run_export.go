@@ -2,7 +2,6 @@ package web
 
 import (
 	"net/http"
-	"strconv"
 	"time"
 
 	"phasecast/planner/export"
@@ -18,7 +17,11 @@ func (s *Server) runExport(ext string) func(http.ResponseWriter, *http.Request, 
 			s.renderError(w, r, err)
 			return
 		}
-		want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
+		want, err := queryID(r.URL.Query(), "plan")
+		if err != nil {
+			s.renderError(w, r, err)
+			return
+		}
 		plans, doc, planID, err := s.runPlanDoc(r.Context(), u.actor, id, want)
 		if err == nil && doc == nil {
 			err = errNotFound("This run has no saved plan yet.")

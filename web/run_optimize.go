@@ -44,6 +44,9 @@ func (s *Server) runOptimize(w http.ResponseWriter, r *http.Request, u *user) {
 		return s.planRunJob(ctx, actor, in, past, j)
 	})
 	if err != nil {
+		if code, _ := errorCode(err); code == codeBusy || code == codeTooMany {
+			w.Header().Set("Retry-After", strconv.Itoa(heavyRetryAfterS))
+		}
 		s.renderError(w, r, err)
 		return
 	}
@@ -58,7 +61,10 @@ func (s *Server) planRunJob(ctx context.Context, a store.Actor, in *runInputs, p
 	if err != nil {
 		return "", err
 	}
-	doc := newRunDoc(in, rp)
+	doc, err := newRunDoc(in, rp)
+	if err != nil {
+		return "", err
+	}
 	out, err := json.Marshal(doc)
 	if err != nil {
 		return "", err

@@ -11,7 +11,7 @@ const engineVersion = "phasecast planner.PlanRun (web)"
 // newRunDoc is the document of a planned run (export.Run), as the web saves
 // it (store.SavedPlan.Output) and exports it; blocks and targets carry the
 // targets' ids.
-func newRunDoc(in *runInputs, rp *planner.RunPlan) export.Run {
+func newRunDoc(in *runInputs, rp *planner.RunPlan) (export.Run, error) {
 	ids := make([]int64, len(in.targets))
 	for i, t := range in.targets {
 		ids[i] = t.ID

@@ -122,7 +122,7 @@ func (w *windows) parseGoal() string {
 
 // encode writes the request as a query string.
 func (w *windows) encode() string {
-	q, _ := url.ParseQuery(w.req.nightQuery.encode())
+	q := w.req.nightQuery.values()
 	q.Del("date")
 	q.Set("from", w.req.from)
 	q.Set("to", w.req.to)
@@ -157,7 +157,7 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 	if w.req.goalN > 0 {
 		v.Title = fmt.Sprintf("Windows of %s, goal %d, at %s, %s to %s", n.targets[0].Target.Name, w.req.goalN, n.site.Name, w.req.from, w.req.to)
 	}
-	v.Zone, _ = w.from.In(n.loc).Zone()
+	v.Zone = zoneLabel(n.loc, w.from)
 	for _, g := range w.groups {
 		grp := page.WindowGroup{Target: g.Target, Goal: export.GoalLabel(g.Goal)}
 		for _, qw := range g.Windows {

@@ -157,7 +157,10 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 	for i := range ids {
 		ids[i] = int64(i + 1)
 	}
-	out := export.NewRun(export.RunInput{Name: name.value, Site: export.NewSite(siteName.value, site), Loc: loc, AcquireS: acq, TargetIDs: ids}, rp)
+	out, err := export.NewRun(export.RunInput{Name: name.value, Site: export.NewSite(siteName.value, site), Loc: loc, AcquireS: acq, TargetIDs: ids}, rp)
+	if err != nil {
+		return fromInputError(err, "not accepted", nil)
+	}
 	if err := checkRunFinite(out); err != nil {
 		return err
 	}
@@ -298,8 +301,8 @@ func printRun(w io.Writer, rp *planner.RunPlan, out export.Run, loc *time.Locati
 	}
 	fmt.Fprintf(&b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
 	o := out.Objective
-	fmt.Fprintf(&b, "Coverage objective: %.1f%% of the requirements (J = %s of %s; greedy pass %s",
-		100*o.Fraction, fmtJ(o.Value), fmtJ(o.MaxValue), fmtJ(o.GreedyValue))
+	fmt.Fprintf(&b, "Coverage objective: J = %s, %.1f%% of the %s that meeting every requirement exactly is worth (at most %s; greedy pass %s",
+		fmtJ(o.Value), 100*o.Fraction, fmtJ(o.RequiredValue), fmtJ(o.MaxValue), fmtJ(o.GreedyValue))
 	if o.IndependentValue != nil {
 		fmt.Fprintf(&b, "; each night planned on its own: %s", fmtJ(*o.IndependentValue))
 	}

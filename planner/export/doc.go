@@ -59,10 +59,14 @@ func JSON(doc any) ([]byte, error) {
 
 // GoalLabel names a goal: "φ 0.25 ± 0.05" or, for an event goal,
 // "max recession, φ 0.25 ± 0.05".
-func GoalLabel(g planner.Goal) string {
+func GoalLabel(g planner.Goal) string { return GoalLabelNamed(g, EventText(g.Event)) }
+
+// GoalLabelNamed is GoalLabel with the goal's event called event (the
+// pages name an event for the target's T0 convention).
+func GoalLabelNamed(g planner.Goal, event string) string {
 	s := fmt.Sprintf("φ %s ± %s", PhaseText(g.Center), PhaseText(g.HalfWidth))
 	if g.Event != "" {
-		s = EventText(g.Event) + ", " + s
+		s = event + ", " + s
 	}
 	return s
 }

@@ -2,6 +2,7 @@ package export
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"time"
 
@@ -197,7 +198,10 @@ func parseDocTime(b []byte) (time.Time, error) {
 	if err := json.Unmarshal(b, &s); err != nil {
 		return time.Time{}, fmt.Errorf("time %s: not a JSON string; want RFC 3339", planner.ClipValue(string(b)))
 	}
-	u, err := time.Parse(time.RFC3339Nano, s)
+	u, err := planner.ParseTimeLayout(time.RFC3339Nano, s)
+	if errors.Is(err, planner.ErrNotLeapSecond) {
+		return time.Time{}, fmt.Errorf("time %q: %w", planner.ClipValue(s), err)
+	}
 	if err != nil {
 		return time.Time{}, fmt.Errorf("time %q: not RFC 3339 (e.g. 2026-12-01T23:18:56Z)", planner.ClipValue(s))
 	}

@@ -145,13 +145,15 @@ type RunBin struct {
 }
 
 // RunObjective is the run objective J (planner.RunPlan), as a fraction of
-// what meeting every requirement exactly is worth (above 1 with coverage
-// beyond the requirements), and the raw values in millionths;
-// IndependentValue (each night planned on its own) is null when it was
-// not computed.
+// what meeting every requirement exactly is worth (RequiredValue; above 1
+// with coverage beyond the requirements, which does not mean every
+// requirement is met), the largest J the run's nights allow (MaxValue,
+// never below Value), and the raw values in millionths; IndependentValue
+// (each night planned on its own) is null when it was not computed.
 type RunObjective struct {
 	Fraction         float64  `json:"fraction"`
 	Value            int64    `json:"value"`
+	RequiredValue    int64    `json:"required_value"`
 	MaxValue         int64    `json:"max_value"`
 	GreedyValue      int64    `json:"greedy_value"`
 	IndependentValue *int64   `json:"independent_value"`
@@ -188,15 +190,19 @@ func nightDate(n planner.RunNight) string {
 	return fmt.Sprintf("%04d-%02d-%02d", n.Year, int(n.Month), n.Day)
 }
 
-// NewRun is the document of the run plan rp.
-func NewRun(in RunInput, rp *planner.RunPlan) Run {
+// NewRun is the document of the run plan rp; the error is the request's
+// constraints' (planner.Constraints.Resolved).
+func NewRun(in RunInput, rp *planner.RunPlan) (Run, error) {
 	id := func(ti int) int64 {
 		if ti < len(in.TargetIDs) {
 			return in.TargetIDs[ti]
 		}
 		return 0
 	}
-	rc, _ := rp.Request.Constraints.Resolved()
+	rc, err := rp.Request.Constraints.Resolved()
+	if err != nil {
+		return Run{}, err
+	}
 	d := Run{Run: in.Name, Site: in.Site, Zone: in.Loc.String(), Past: rp.Request.Past, Nights: []RunNight{}, Targets: []RunTarget{},
 		Constraints: NewConstraintsDoc(rc, in.AcquireS), Observed: []RunObserved{}, Caution: Caution}
 	for _, np := range rp.Nights {
@@ -273,20 +279,21 @@ func NewRun(in RunInput, rp *planner.RunPlan) Run {
 			td.Observed = append(td.Observed, e.Phase)
 		}
 	}
-	o := RunObjective{Value: rp.Value, MaxValue: rp.MaxValue, GreedyValue: rp.GreedyValue, Rounds: rp.Rounds, Solves: rp.Solves}
-	if rp.MaxValue > 0 {
-		o.Fraction = float64(rp.Value) / float64(rp.MaxValue)
+	o := RunObjective{Value: rp.Value, RequiredValue: rp.RequiredValue, MaxValue: rp.MaxValue, GreedyValue: rp.GreedyValue,
+		Rounds: rp.Rounds, Solves: rp.Solves}
+	if rp.RequiredValue > 0 {
+		o.Fraction = float64(rp.Value) / float64(rp.RequiredValue)
 	}
 	if rp.Request.CompareIndependent {
 		v := rp.IndependentValue
 		o.IndependentValue = &v
-		if rp.MaxValue > 0 {
-			f := float64(v) / float64(rp.MaxValue)
+		if rp.RequiredValue > 0 {
+			f := float64(v) / float64(rp.RequiredValue)
 			o.IndependentFrac = &f
 		}
 	}
 	d.Objective = o
-	return d
+	return d, nil
 }
 
 // RunCSVHeader is the header of the run CSV: the night and its part, then

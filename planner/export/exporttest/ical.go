@@ -7,8 +7,8 @@ import (
 	"fmt"
 	"io"
 	"strings"
-	"time"
 
+	"phasecast/planner"
 	"phasecast/planner/export"
 )
 
@@ -87,11 +87,11 @@ func ParseICal(r io.Reader) (export.Calendar, error) {
 		case "UID":
 			ev.UID = unescapeText(value)
 		case "DTSTAMP":
-			ev.Stamp, perr = time.Parse(icalUTC, value)
+			ev.Stamp, perr = planner.ParseTimeLayout(icalUTC, value)
 		case "DTSTART":
-			ev.Start, perr = time.Parse(icalUTC, value)
+			ev.Start, perr = planner.ParseTimeLayout(icalUTC, value)
 		case "DTEND":
-			ev.End, perr = time.Parse(icalUTC, value)
+			ev.End, perr = planner.ParseTimeLayout(icalUTC, value)
 		case "SUMMARY":
 			ev.Summary = unescapeText(value)
 		case "DESCRIPTION":
@@ -102,6 +102,9 @@ func ParseICal(r io.Reader) (export.Calendar, error) {
 			for _, p := range splitUnescaped(value) {
 				ev.Categories = append(ev.Categories, unescapeText(p))
 			}
+		}
+		if errors.Is(perr, planner.ErrNotLeapSecond) {
+			return export.Calendar{}, fmt.Errorf("iCalendar: content line %d: %s %q: %w", i+1, name, value, perr)
 		}
 		if perr != nil {
 			return export.Calendar{}, fmt.Errorf("iCalendar: content line %d: %s %q is not a UTC date-time like 20260314T213000Z", i+1, name, value)
