@@ -35,102 +35,146 @@ so the same command gives the same file). The documents are described in
 docs/formats.md.`
 
 func runWindows(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
+	wf := addWindowsFlags()
+	if help, err := wf.fl.parse(args, stdout); help || err != nil {
+		return err
+	}
+	job, err := wf.read()
+	if err != nil {
+		return err
+	}
+	got, err := job.compute(ctx)
+	if err != nil {
+		return err
+	}
+	return job.write(stdout, got)
+}
+
+// windowsFlags are the windows command's flags, as typed.
+type windowsFlags struct {
+	fl                                   *flags
+	sf                                   siteFlags
+	cf                                   constraintFlags
+	tz, targets, target, goal, halfWidth *textValue
+	from, to, minExp, step, format       *textValue
+	stamp, siteName                      *textValue
+	asJSON                               *bool
+}
+
+func addWindowsFlags() windowsFlags {
 	fl := newFlags("windows", windowsSynopsis)
-	sf := addSiteFlags(fl)
-	tz := fl.text("tz", "ZONE", "UTC", "IANA time zone for dates and local times, e.g. America/Santiago")
-	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, as for plan); required")
-	target := fl.text("target", "NAME", "all", "the target, by its name in the file")
-	goal := fl.text("goal", "PHASE|EVENT", "the CSV's phases", "the goal: a phase 0..1 or an event name")
-	halfWidth := fl.text("halfwidth", "W", "the CSV's", "half-width of the --goal window in phase, 0 < w < 0.5")
-	from := fl.text("from", "DATE|TIME", "", "start of the range: YYYY-MM-DD (local midnight) or RFC 3339; required")
-	to := fl.text("to", "DATE|TIME", "", "end of the range, at most 366 days after --from; required")
-	cf := addConstraintFlags(fl)
-	minExp := fl.text("min-exposures", "N", "0", "list only windows that hold at least N whole exposures (0 = every window)")
-	step := fl.text("step-s", "S", "60", "constraint scan step, seconds 1..900 (edges are refined to 1 ms)")
-	format := fl.text("format", "text|json|csv|ics", "text", "output format")
-	stamp := fl.text("stamp", "TIME", "--from", "DTSTAMP of the iCalendar events (RFC 3339)")
-	siteName := addSiteNameFlag(fl)
-	asJSON := fl.boolean("json", "print one JSON object (the same as --format json)")
-	if help, err := fl.parse(args, stdout); help || err != nil {
-		return err
+	wf := windowsFlags{fl: fl, sf: addSiteFlags(fl)}
+	wf.tz = fl.text("tz", "ZONE", "UTC", "IANA time zone for dates and local times, e.g. America/Santiago")
+	wf.targets = fl.text("targets", "FILE.csv", "", "targets file (CSV, as for plan); required")
+	wf.target = fl.text("target", "NAME", "all", "the target, by its name in the file")
+	wf.goal = fl.text("goal", "PHASE|EVENT", "the CSV's phases", "the goal: a phase 0..1 or an event name")
+	wf.halfWidth = fl.text("halfwidth", "W", "the CSV's", "half-width of the --goal window in phase, 0 < w < 0.5")
+	wf.from = fl.text("from", "DATE|TIME", "", "start of the range: YYYY-MM-DD (local midnight) or RFC 3339; required")
+	wf.to = fl.text("to", "DATE|TIME", "", "end of the range, at most 366 days after --from; required")
+	wf.cf = addConstraintFlags(fl)
+	wf.minExp = fl.text("min-exposures", "N", "0", "list only windows that hold at least N whole exposures (0 = every window)")
+	wf.step = fl.text("step-s", "S", "60", "constraint scan step, seconds 1..900 (edges are refined to 1 ms)")
+	wf.format = fl.text("format", "text|json|csv|ics", "text", "output format")
+	wf.stamp = fl.text("stamp", "TIME", "--from", "DTSTAMP of the iCalendar events (RFC 3339)")
+	wf.siteName = addSiteNameFlag(fl)
+	wf.asJSON = fl.boolean("json", "print one JSON object (the same as --format json)")
+	return wf
+}
+
+// windowsJob is a parsed windows command: what to compute and how to write
+// it.
+type windowsJob struct {
+	site     ephem.Site
+	siteName string
+	loc      *time.Location
+	t0, t1   time.Time
+	c        planner.Constraints
+	nMin     int
+	stepS    float64
+	stamp    time.Time
+	targets  []planner.Target
+	format   string
+}
+
+// read parses and checks the flags (the targets file included).
+func (wf windowsFlags) read() (windowsJob, error) {
+	j := windowsJob{loc: time.UTC, siteName: wf.siteName.value}
+	var err error
+	if j.site, err = wf.sf.site(); err != nil {
+		return j, err
 	}
-	site, err := sf.site()
-	if err != nil {
-		return err
-	}
-	loc := time.UTC
-	if tz.set {
-		if loc, err = zone(tz); err != nil {
-			return err
+	if wf.tz.set {
+		if j.loc, err = zone(wf.tz); err != nil {
+			return j, err
 		}
 	}
-	fmtName, err := outputFormat(format, *asJSON)
-	if err != nil {
-		return err
+	if j.format, err = outputFormat(wf.format, *wf.asJSON); err != nil {
+		return j, err
 	}
-	t0, err := rangeEnd(from, loc)
-	if err != nil {
-		return err
+	if j.t0, err = rangeEnd(wf.from, j.loc); err != nil {
+		return j, err
 	}
-	t1, err := rangeEnd(to, loc)
-	if err != nil {
-		return err
+	if j.t1, err = rangeEnd(wf.to, j.loc); err != nil {
+		return j, err
 	}
-	if !t1.After(t0) || t1.Sub(t0) > planner.MaxWindowDays*24*time.Hour {
-		return fieldError(to, "out of range", fmt.Sprintf("an instant after --from, at most %d days later", planner.MaxWindowDays))
+	if !j.t1.After(j.t0) || j.t1.Sub(j.t0) > planner.MaxWindowDays*24*time.Hour {
+		return j, fieldError(wf.to, "out of range", fmt.Sprintf("an instant after --from, at most %d days later", planner.MaxWindowDays))
 	}
-	c, err := cf.constraints()
-	if err != nil {
-		return err
+	if j.c, err = wf.cf.constraints(); err != nil {
+		return j, err
 	}
-	nMin, err := wholeNumber(minExp, 0, 0, 10000, "a whole number 0..10000")
-	if err != nil {
-		return err
+	if j.nMin, err = wholeNumber(wf.minExp, 0, 0, 10000, "a whole number 0..10000"); err != nil {
+		return j, err
 	}
-	stepS, err := number(step, false, 60, 1, 900, "seconds 1..900")
-	if err != nil {
-		return err
+	if j.stepS, err = number(wf.step, false, 60, 1, 900, "seconds 1..900"); err != nil {
+		return j, err
 	}
-	dtstamp := t0
-	if stamp.set {
-		if dtstamp, err = ephem.ParseTime(stamp.value); err != nil {
-			return fromInputError(err, "not a time", map[string]*textValue{"time": stamp})
+	j.stamp = j.t0
+	if wf.stamp.set {
+		if j.stamp, err = ephem.ParseTime(wf.stamp.value); err != nil {
+			return j, fromInputError(err, "not a time", map[string]*textValue{"time": wf.stamp})
 		}
 	}
-	list, err := readTargets(targets)
+	list, err := readTargets(wf.targets)
 	if err != nil {
-		return err
+		return j, err
 	}
-	if list, err = pickTargets(list, target, goal, halfWidth); err != nil {
-		return err
-	}
-	got, err := planner.QueueWindows(ctx, planner.WindowRequest{Site: site, From: t0, To: t1, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS}}, nil)
+	j.targets, err = pickTargets(list, wf.target, wf.goal, wf.halfWidth)
+	return j, err
+}
+
+// compute lists the windows, keeping those that hold at least nMin whole
+// exposures.
+func (j windowsJob) compute(ctx context.Context) ([]planner.GoalWindows, error) {
+	got, err := planner.QueueWindows(ctx, planner.WindowRequest{Site: j.site, From: j.t0, To: j.t1, Targets: j.targets, Constraints: j.c,
+		Options: planner.Options{StepS: j.stepS}}, nil)
 	if err != nil {
-		return fromInputError(err, "not accepted", nil)
+		return nil, fromInputError(err, "not accepted", nil)
 	}
 	for i := range got {
 		kept := got[i].Windows[:0]
 		for _, w := range got[i].Windows {
-			if w.Exposures >= nMin {
+			if w.Exposures >= j.nMin {
 				kept = append(kept, w)
 			}
 		}
 		got[i].Windows = kept
 	}
-	if err := checkWindowsFinite(got); err != nil {
-		return err
-	}
-	doc := export.NewWindows(siteName.value, loc.String(), t0, t1, 0, got)
-	switch fmtName {
+	return got, checkWindowsFinite(got)
+}
+
+// write prints the windows in the chosen format.
+func (j windowsJob) write(w io.Writer, got []planner.GoalWindows) error {
+	doc := export.NewWindows(j.siteName, j.loc.String(), j.t0, j.t1, 0, got)
+	switch j.format {
 	case "json":
-		return writeJSON(stdout, doc)
+		return writeJSON(w, doc)
 	case "csv":
-		return writeBytes(stdout, func() ([]byte, error) { return export.WindowsCSV(doc) })
+		return writeBytes(w, func() ([]byte, error) { return export.WindowsCSV(doc) })
 	case "ics":
-		return writeBytes(stdout, func() ([]byte, error) { return export.WindowsICS(doc, dtstamp) })
+		return writeBytes(w, func() ([]byte, error) { return export.WindowsICS(doc, j.stamp) })
 	}
-	return printWindows(stdout, got, site, loc, t0, t1, c)
+	return printWindows(w, got, j.site, j.loc, j.t0, j.t1, j.c)
 }
 
 // rangeEnd parses --from or --to: a date (local midnight in loc) or an
