@@ -45,140 +45,193 @@ and nothing is read. The nights up to the last one in the log are over (or give
 what is still missing.`
 
 func runRun(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
+	rf := addRunFlags()
+	if help, err := rf.fl.parse(args, stdout); help || err != nil {
+		return err
+	}
+	job, err := rf.read()
+	if err != nil {
+		return err
+	}
+	rp, out, err := job.compute(ctx)
+	if err != nil {
+		return err
+	}
+	return job.write(stdout, rp, out)
+}
+
+// runFlags are the run command's flags, as typed.
+type runFlags struct {
+	fl                                          *flags
+	sf                                          siteFlags
+	cf                                          constraintFlags
+	tz, from, nNights, dates, targets, observed *textValue
+	past, acquire, nExp, minNights, bins, step  *textValue
+	rounds, siteName, name, format, stamp       *textValue
+	binGoals, fill, compare, asJSON             *bool
+}
+
+func addRunFlags() runFlags {
 	fl := newFlags("run", runSynopsis)
-	sf := addSiteFlags(fl)
-	tz := fl.text("tz", "ZONE", "", "IANA time zone of the site, e.g. America/Santiago or UTC; required")
-	from := fl.text("from", "YYYY-MM-DD", "", "local date of the first night's evening; with --nights")
-	nNights := fl.text("nights", "N", "", "number of consecutive full nights from --from, 1..366")
-	dates := fl.text("dates", "LIST", "", "allocated nights: dates YYYY-MM-DD[:first|:second], comma-separated, in order")
-	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, as for plan); required")
-	observed := fl.text("observed", "LOG.csv", "", "log of exposures already taken (CSV, columns above)")
-	past := fl.text("past", "N", "the nights the log reaches", "nights already over, 0..number of nights")
-	cf := addConstraintFlags(fl)
-	acquire := fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
-	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal and night (0 = as many as fit)")
-	minNights := fl.text("min-nights", "M", "1", "nights each goal wants its exposures on, 1..366")
-	bins := fl.text("bins", "N", "0", "also count the coverage in N phase bins, 2..100 (0 = none)")
-	binGoals := fl.boolean("bin-goals", "plan for the --bins phase bins instead of the CSV's phases (a light curve)")
-	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
-	rounds := fl.text("rounds", "N", "2", "improvement rounds after the greedy pass, 0..100")
-	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
-	compare := fl.boolean("compare", "also plan every night on its own (as plan does) and show that objective")
-	siteName := addSiteNameFlag(fl)
-	name := fl.text("name", "NAME", "none", "the run's name, written into the JSON, CSV and iCalendar documents")
-	format := fl.text("format", "text|json|csv|ics", "text", "output format (the run document, docs/formats.md)")
-	stamp := fl.text("stamp", "TIME", "the first night's start", "DTSTAMP of the iCalendar events (RFC 3339)")
-	asJSON := fl.boolean("json", "print one JSON object (the same as --format json)")
-	if help, err := fl.parse(args, stdout); help || err != nil {
-		return err
+	rf := runFlags{fl: fl, sf: addSiteFlags(fl)}
+	rf.tz = fl.text("tz", "ZONE", "", "IANA time zone of the site, e.g. America/Santiago or UTC; required")
+	rf.from = fl.text("from", "YYYY-MM-DD", "", "local date of the first night's evening; with --nights")
+	rf.nNights = fl.text("nights", "N", "", "number of consecutive full nights from --from, 1..366")
+	rf.dates = fl.text("dates", "LIST", "", "allocated nights: dates YYYY-MM-DD[:first|:second], comma-separated, in order")
+	rf.targets = fl.text("targets", "FILE.csv", "", "targets file (CSV, as for plan); required")
+	rf.observed = fl.text("observed", "LOG.csv", "", "log of exposures already taken (CSV, columns above)")
+	rf.past = fl.text("past", "N", "the nights the log reaches", "nights already over, 0..number of nights")
+	rf.cf = addConstraintFlags(fl)
+	rf.acquire = fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
+	rf.nExp = fl.text("n-exposures", "N", "0", "exposures wanted per goal and night (0 = as many as fit)")
+	rf.minNights = fl.text("min-nights", "M", "1", "nights each goal wants its exposures on, 1..366")
+	rf.bins = fl.text("bins", "N", "0", "also count the coverage in N phase bins, 2..100 (0 = none)")
+	rf.binGoals = fl.boolean("bin-goals", "plan for the --bins phase bins instead of the CSV's phases (a light curve)")
+	rf.step = fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
+	rf.rounds = fl.text("rounds", "N", "2", "improvement rounds after the greedy pass, 0..100")
+	rf.fill = fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
+	rf.compare = fl.boolean("compare", "also plan every night on its own (as plan does) and show that objective")
+	rf.siteName = addSiteNameFlag(fl)
+	rf.name = fl.text("name", "NAME", "none", "the run's name, written into the JSON, CSV and iCalendar documents")
+	rf.format = fl.text("format", "text|json|csv|ics", "text", "output format (the run document, docs/formats.md)")
+	rf.stamp = fl.text("stamp", "TIME", "the first night's start", "DTSTAMP of the iCalendar events (RFC 3339)")
+	rf.asJSON = fl.boolean("json", "print one JSON object (the same as --format json)")
+	return rf
+}
+
+// runJob is a parsed run command: the request to plan and how to write
+// the plan.
+type runJob struct {
+	req            planner.RunRequest
+	acq            float64
+	name, siteName string
+	format         string
+	stamp          *time.Time // nil: the first night's start
+	observed       string     // the --observed file, for its errors
+}
+
+// read parses and checks the flags (the targets file and the observed log
+// included) into the run request.
+func (rf runFlags) read() (runJob, error) {
+	j := runJob{name: rf.name.value, siteName: rf.siteName.value, observed: rf.observed.value}
+	var err error
+	if j.format, err = outputFormat(rf.format, *rf.asJSON); err != nil {
+		return j, err
 	}
-	fmtName, err := outputFormat(format, *asJSON)
+	site, err := rf.sf.site()
 	if err != nil {
-		return err
+		return j, err
 	}
-	site, err := sf.site()
+	loc, err := zone(rf.tz)
 	if err != nil {
-		return err
+		return j, err
 	}
-	loc, err := zone(tz)
+	nights, err := runNightFlags(rf.from, rf.nNights, rf.dates)
 	if err != nil {
-		return err
+		return j, err
 	}
-	nights, err := runNightFlags(from, nNights, dates)
+	c, err := rf.cf.constraints()
 	if err != nil {
-		return err
+		return j, err
 	}
-	c, err := cf.constraints()
+	if j.acq, err = number(rf.acquire, false, 120, 0, 3600, "seconds 0..3600"); err != nil {
+		return j, err
+	}
+	n, err := wholeNumber(rf.nExp, 0, 0, 10000, "a whole number 0..10000 (0 = as many as fit)")
 	if err != nil {
-		return err
+		return j, err
 	}
-	acq, err := number(acquire, false, 120, 0, 3600, "seconds 0..3600")
+	m, err := wholeNumber(rf.minNights, 1, 1, planner.MaxRunNights, "a whole number 1..366")
 	if err != nil {
-		return err
+		return j, err
 	}
-	n, err := wholeNumber(nExp, 0, 0, 10000, "a whole number 0..10000 (0 = as many as fit)")
-	if err != nil {
-		return err
-	}
-	m, err := wholeNumber(minNights, 1, 1, planner.MaxRunNights, "a whole number 1..366")
-	if err != nil {
-		return err
-	}
-	nb, err := wholeNumber(bins, 0, 0, planner.MaxBins, "0 (none) or a whole number 2..100")
+	nb, err := wholeNumber(rf.bins, 0, 0, planner.MaxBins, "0 (none) or a whole number 2..100")
 	if err == nil && nb == 1 {
-		err = fieldError(bins, "out of range", "0 (none) or a whole number 2..100")
+		err = fieldError(rf.bins, "out of range", "0 (none) or a whole number 2..100")
 	}
 	if err != nil {
-		return err
+		return j, err
 	}
-	if *binGoals && nb == 0 {
-		return usageErrorf("--bin-goals needs --bins N (2..100): the number of phase bins to plan for")
+	if *rf.binGoals && nb == 0 {
+		return j, usageErrorf("--bin-goals needs --bins N (2..100): the number of phase bins to plan for")
 	}
-	stepS, err := number(step, false, 60, 1, 900, "seconds 1..900")
+	stepS, err := number(rf.step, false, 60, 1, 900, "seconds 1..900")
 	if err != nil {
-		return err
+		return j, err
 	}
-	nr, err := wholeNumber(rounds, 2, 0, 100, "a whole number 0..100")
+	nr, err := wholeNumber(rf.rounds, 2, 0, 100, "a whole number 0..100")
 	if err != nil {
-		return err
+		return j, err
 	}
-	list, err := readTargets(targets)
+	if rf.stamp.set {
+		t, err := ephem.ParseTime(rf.stamp.value)
+		if err != nil {
+			return j, fromInputError(err, "not a time", map[string]*textValue{"time": rf.stamp})
+		}
+		j.stamp = &t
+	}
+	list, err := readTargets(rf.targets)
 	if err != nil {
-		return err
+		return j, err
 	}
 	for i := range list {
-		list[i].AcquireS = acq
+		list[i].AcquireS = j.acq
 		for k := range list[i].Goals {
 			list[i].Goals[k].NExposures, list[i].Goals[k].MinNights = n, m
 		}
-		if *binGoals {
+		if *rf.binGoals {
 			if list[i].Goals, err = planner.PhaseBinGoals(nb, list[i].Goals[0]); err != nil {
-				return err
+				return j, err
 			}
 		}
 	}
-	req := planner.RunRequest{Site: site, Zone: loc, Nights: nights, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *fill}, Bins: nb, Rounds: nr, CompareIndependent: *compare}
+	j.req = planner.RunRequest{Site: site, Zone: loc, Nights: nights, Targets: list, Constraints: c,
+		Options: planner.Options{StepS: stepS, Fill: *rf.fill}, Bins: nb, Rounds: nr, CompareIndependent: *rf.compare}
 	if nr == 0 {
-		req.Rounds = -1
+		j.req.Rounds = -1
 	}
-	if req.Observed, req.Past, err = runObserved(observed, past, site, loc, c, nights); err != nil {
-		return err
-	}
-	rp, err := planner.PlanRun(ctx, req, nil)
+	j.req.Observed, j.req.Past, err = runObserved(rf.observed, rf.past, site, loc, c, nights)
+	return j, err
+}
+
+// compute plans the run and makes its document; a target's id in the
+// document is its row in the targets file, from 1.
+func (j runJob) compute(ctx context.Context) (*planner.RunPlan, export.Run, error) {
+	rp, err := planner.PlanRun(ctx, j.req, nil)
 	if err != nil {
 		var te *planner.TableError
 		if errors.As(err, &te) {
-			return usageErrorf("--observed %s: %s", shown(observed.value), te.Error())
+			return nil, export.Run{}, usageErrorf("--observed %s: %s", shown(j.observed), te.Error())
 		}
-		return fromInputError(err, "not accepted", nil)
+		return nil, export.Run{}, fromInputError(err, "not accepted", nil)
 	}
-	ids := make([]int64, len(list)) // a target's id is its row in the file, from 1
+	ids := make([]int64, len(j.req.Targets))
 	for i := range ids {
 		ids[i] = int64(i + 1)
 	}
-	out, err := export.NewRun(export.RunInput{Name: name.value, Site: export.NewSite(siteName.value, site), Loc: loc, AcquireS: acq, TargetIDs: ids}, rp)
+	out, err := export.NewRun(export.RunInput{Name: j.name, Site: export.NewSite(j.siteName, j.req.Site), Loc: j.req.Zone, AcquireS: j.acq,
+		TargetIDs: ids}, rp)
 	if err != nil {
-		return fromInputError(err, "not accepted", nil)
+		return nil, export.Run{}, fromInputError(err, "not accepted", nil)
 	}
-	if err := checkRunFinite(out); err != nil {
-		return err
-	}
-	switch fmtName {
+	return rp, out, checkRunFinite(out)
+}
+
+// write prints the plan in the chosen format.
+func (j runJob) write(w io.Writer, rp *planner.RunPlan, out export.Run) error {
+	switch j.format {
 	case "json":
-		return writeJSON(stdout, out)
+		return writeJSON(w, out)
 	case "csv":
-		return writeBytes(stdout, func() ([]byte, error) { return export.RunCSV(out, loc) })
+		return writeBytes(w, func() ([]byte, error) { return export.RunCSV(out, j.req.Zone) })
 	case "ics":
-		dtstamp := rp.Nights[0].From
-		if stamp.set {
-			if dtstamp, err = ephem.ParseTime(stamp.value); err != nil {
-				return fromInputError(err, "not a time", map[string]*textValue{"time": stamp})
-			}
+		stamp := rp.Nights[0].From
+		if j.stamp != nil {
+			stamp = *j.stamp
 		}
-		return writeBytes(stdout, func() ([]byte, error) { return export.RunICS(out, name.value, dtstamp) })
+		return writeBytes(w, func() ([]byte, error) { return export.RunICS(out, j.name, stamp) })
 	}
-	return printRun(stdout, rp, out, loc, acq)
+	return printRun(w, rp, out, j.req.Zone, j.acq)
 }
 
 // wholeNumber parses a whole number flag in lo..hi.
