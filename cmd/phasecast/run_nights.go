@@ -344,69 +344,92 @@ func checkRunFinite(out export.Run) error {
 // blocks, the coverage table and the best nights.
 func printRun(w io.Writer, rp *planner.RunPlan, out export.Run, loc *time.Location, acq float64) error {
 	var b strings.Builder
-	req := rp.Request
-	first, last := rp.Nights[0].Night, rp.Nights[len(rp.Nights)-1].Night
-	fmt.Fprintf(&b, "Run of %d night(s), %s to %s (%s), site %s\n", len(rp.Nights), first, last, loc, siteLine(req.Site))
-	c := out.Constraints
-	fmt.Fprintf(&b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
-	if c.MinMoonSepDeg > 0 {
-		fmt.Fprintf(&b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
-	}
-	fmt.Fprintf(&b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
-	o := out.Objective
-	fmt.Fprintf(&b, "Coverage objective: J = %s, %.1f%% of the %s that meeting every requirement exactly is worth (at most %s; greedy pass %s",
-		fmtJ(o.Value), 100*o.Fraction, fmtJ(o.RequiredValue), fmtJ(o.MaxValue), fmtJ(o.GreedyValue))
-	if o.IndependentValue != nil {
-		fmt.Fprintf(&b, "; each night planned on its own: %s", fmtJ(*o.IndependentValue))
-	}
-	fmt.Fprintf(&b, "), %d night schedules solved, %d improvement round(s)\n", o.Solves, o.Rounds)
-	lt := func(t time.Time) string { return t.In(loc).Format("15:04") }
-	ut := func(t time.Time) string { return t.UTC().Format("15:04") }
-	for k, np := range rp.Nights {
-		nt := np.Night
-		label := time.Date(nt.Year, nt.Month, nt.Day, 12, 0, 0, 0, loc).Format("Mon 2006-01-02")
-		part := map[string]string{"full": "full night", "first": "first half", "second": "second half"}[partName(nt)]
-		fmt.Fprintf(&b, "\nNight %d: %s, %s", k+1, label, part)
-		switch partName(nt) {
-		case "first":
-			fmt.Fprintf(&b, " (until %s local, %s UTC)", lt(np.To), ut(np.To))
-		case "second":
-			fmt.Fprintf(&b, " (from %s local, %s UTC)", lt(np.From), ut(np.From))
-		}
-		if np.Past {
-			n := 0
-			for _, e := range rp.Exposures {
-				if !e.Planned && e.Night == k && !e.Failed {
-					n++
-				}
-			}
-			fmt.Fprintf(&b, ": over, %d exposure(s) observed\n", n)
-			continue
-		}
-		b.WriteString("\n")
-		for _, dk := range np.Plan.Dark {
-			fmt.Fprintf(&b, "  Dark time %s–%s local (%s–%s UTC)\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End))
-		}
-		tb := newTable(&b)
-		tb.row("  Start", "(UTC)", "End", "(UTC)", "Target", "Goal", "Exposures", "Phase", "Airmass")
-		for _, bl := range np.Plan.Blocks {
-			goal := "filler"
-			if !bl.Filler {
-				goal = fmt.Sprintf("%.3f", bl.Goal.Center)
-			}
-			tb.row("  "+bl.Start.In(loc).Format("15:04:05"), bl.Start.UTC().Format("15:04:05"), bl.End.In(loc).Format("15:04:05"), bl.End.UTC().Format("15:04:05"),
-				bl.Target, goal, fmt.Sprintf("%d×%ss+%ss", bl.N, fmtG(bl.ExposureS), fmtG(bl.OverheadS)),
-				fmt.Sprintf("%.3f→%.3f", bl.PhaseStart, bl.PhaseEnd), fmt.Sprintf("%.2f–%.2f", bl.AirmassMin, bl.AirmassMax))
-		}
-		if len(np.Plan.Blocks) == 0 {
-			tb.row("  (no block)", "", "", "", "", "", "", "", "")
-		}
-		if err := tb.flush(); err != nil {
+	printRunHeader(&b, rp, out, loc, acq)
+	for k := range rp.Nights {
+		if err := printRunNight(&b, rp, k, loc); err != nil {
 			return err
 		}
 	}
+	if err := printRunCoverage(&b, rp); err != nil {
+		return err
+	}
+	printRunBestNights(&b, rp)
+	b.WriteString(planner.SafetyCaution + "\n")
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// printRunHeader writes the nights, site, limits and objective.
+func printRunHeader(b *strings.Builder, rp *planner.RunPlan, out export.Run, loc *time.Location, acq float64) {
+	first, last := rp.Nights[0].Night, rp.Nights[len(rp.Nights)-1].Night
+	fmt.Fprintf(b, "Run of %d night(s), %s to %s (%s), site %s\n", len(rp.Nights), first, last, loc, siteLine(rp.Request.Site))
+	c := out.Constraints
+	fmt.Fprintf(b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
+	if c.MinMoonSepDeg > 0 {
+		fmt.Fprintf(b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
+	}
+	fmt.Fprintf(b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
+	o := out.Objective
+	fmt.Fprintf(b, "Coverage objective: J = %s, %.1f%% of the %s that meeting every requirement exactly is worth (at most %s; greedy pass %s",
+		fmtJ(o.Value), 100*o.Fraction, fmtJ(o.RequiredValue), fmtJ(o.MaxValue), fmtJ(o.GreedyValue))
+	if o.IndependentValue != nil {
+		fmt.Fprintf(b, "; each night planned on its own: %s", fmtJ(*o.IndependentValue))
+	}
+	fmt.Fprintf(b, "), %d night schedules solved, %d improvement round(s)\n", o.Solves, o.Rounds)
+}
+
+// printRunNight writes night k: its heading, and its dark time and blocks
+// or, for a night over, what was observed.
+func printRunNight(b *strings.Builder, rp *planner.RunPlan, k int, loc *time.Location) error {
+	lt := func(t time.Time) string { return t.In(loc).Format("15:04") }
+	ut := func(t time.Time) string { return t.UTC().Format("15:04") }
+	np := rp.Nights[k]
+	nt := np.Night
+	label := time.Date(nt.Year, nt.Month, nt.Day, 12, 0, 0, 0, loc).Format("Mon 2006-01-02")
+	part := map[string]string{"full": "full night", "first": "first half", "second": "second half"}[partName(nt)]
+	fmt.Fprintf(b, "\nNight %d: %s, %s", k+1, label, part)
+	switch partName(nt) {
+	case "first":
+		fmt.Fprintf(b, " (until %s local, %s UTC)", lt(np.To), ut(np.To))
+	case "second":
+		fmt.Fprintf(b, " (from %s local, %s UTC)", lt(np.From), ut(np.From))
+	}
+	if np.Past {
+		n := 0
+		for _, e := range rp.Exposures {
+			if !e.Planned && e.Night == k && !e.Failed {
+				n++
+			}
+		}
+		fmt.Fprintf(b, ": over, %d exposure(s) observed\n", n)
+		return nil
+	}
+	b.WriteString("\n")
+	for _, dk := range np.Plan.Dark {
+		fmt.Fprintf(b, "  Dark time %s–%s local (%s–%s UTC)\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End))
+	}
+	tb := newTable(b)
+	tb.row("  Start", "(UTC)", "End", "(UTC)", "Target", "Goal", "Exposures", "Phase", "Airmass")
+	for _, bl := range np.Plan.Blocks {
+		goal := "filler"
+		if !bl.Filler {
+			goal = fmt.Sprintf("%.3f", bl.Goal.Center)
+		}
+		tb.row("  "+bl.Start.In(loc).Format("15:04:05"), bl.Start.UTC().Format("15:04:05"), bl.End.In(loc).Format("15:04:05"), bl.End.UTC().Format("15:04:05"),
+			bl.Target, goal, fmt.Sprintf("%d×%ss+%ss", bl.N, fmtG(bl.ExposureS), fmtG(bl.OverheadS)),
+			fmt.Sprintf("%.3f→%.3f", bl.PhaseStart, bl.PhaseEnd), fmt.Sprintf("%.2f–%.2f", bl.AirmassMin, bl.AirmassMax))
+	}
+	if len(np.Plan.Blocks) == 0 {
+		tb.row("  (no block)", "", "", "", "", "", "", "", "")
+	}
+	return tb.flush()
+}
+
+// printRunCoverage writes the coverage table, night by night, and the
+// phase bins when asked for.
+func printRunCoverage(b *strings.Builder, rp *planner.RunPlan) error {
 	b.WriteString("\nCoverage: exposures in each goal window, night by night (observed+planned):\n")
-	tb := newTable(&b)
+	tb := newTable(b)
 	head := []string{"  Target", "Goal", "Wants"}
 	for k := range rp.Nights {
 		head = append(head, fmt.Sprintf("N%d", k+1))
@@ -416,16 +439,7 @@ func printRun(w io.Writer, rp *planner.RunPlan, out export.Run, loc *time.Locati
 		for _, gc := range tc.Goals {
 			row := []string{"  " + tc.Target, fmt.Sprintf("%.3f", gc.Goal.Center), fmt.Sprintf("%d×%d", gc.NeedExposures, gc.NeedNights)}
 			for _, nc := range gc.PerNight {
-				switch {
-				case nc.Observed > 0 && nc.Planned > 0:
-					row = append(row, fmt.Sprintf("%d+%d", nc.Observed, nc.Planned))
-				case nc.Observed > 0:
-					row = append(row, fmt.Sprintf("%d obs", nc.Observed))
-				case nc.Planned > 0:
-					row = append(row, fmt.Sprint(nc.Planned))
-				default:
-					row = append(row, "·")
-				}
+				row = append(row, nightCount(nc))
 			}
 			tb.row(append(row, string(gc.Status), fmt.Sprint(gc.ReachableNights))...)
 		}
@@ -433,21 +447,41 @@ func printRun(w io.Writer, rp *planner.RunPlan, out export.Run, loc *time.Locati
 	if err := tb.flush(); err != nil {
 		return err
 	}
-	if req.Bins > 0 {
-		fmt.Fprintf(&b, "\nPhase bins (%d, exposures per bin from phase 0):\n", req.Bins)
+	if rp.Request.Bins > 0 {
+		fmt.Fprintf(b, "\nPhase bins (%d, exposures per bin from phase 0):\n", rp.Request.Bins)
 		for _, tc := range rp.Coverage {
 			var cells []string
 			for _, bc := range tc.Bins {
 				cells = append(cells, fmt.Sprint(bc.Observed+bc.Planned))
 			}
-			fmt.Fprintf(&b, "  %s: %s\n", tc.Target, strings.Join(cells, " "))
+			fmt.Fprintf(b, "  %s: %s\n", tc.Target, strings.Join(cells, " "))
 		}
 	}
+	return nil
+}
+
+// nightCount is a coverage cell: "2+1" observed and planned, "2 obs",
+// "1", or "·" for none.
+func nightCount(nc planner.NightCount) string {
+	switch {
+	case nc.Observed > 0 && nc.Planned > 0:
+		return fmt.Sprintf("%d+%d", nc.Observed, nc.Planned)
+	case nc.Observed > 0:
+		return fmt.Sprintf("%d obs", nc.Observed)
+	case nc.Planned > 0:
+		return fmt.Sprint(nc.Planned)
+	}
+	return "·"
+}
+
+// printRunBestNights writes, per goal, the first four nights it can be
+// reached on.
+func printRunBestNights(b *strings.Builder, rp *planner.RunPlan) {
 	b.WriteString("\nBest nights per goal (most exposures one block can hold; airmass over the windows):\n")
 	for _, tr := range rp.Reach {
 		for _, gr := range tr.Goals {
 			if len(gr.Nights) == 0 {
-				fmt.Fprintf(&b, "  %s %.3f: none — %s\n", tr.Target, gr.Goal.Center, gr.Unreachable)
+				fmt.Fprintf(b, "  %s %.3f: none — %s\n", tr.Target, gr.Goal.Center, gr.Unreachable)
 				continue
 			}
 			var parts []string
@@ -458,12 +492,9 @@ func printRun(w io.Writer, rp *planner.RunPlan, out export.Run, loc *time.Locati
 				}
 				parts = append(parts, fmt.Sprintf("%s (%d, %.0f min, X %.2f–%.2f)", rp.Nights[gn.Night].Night, gn.Capacity, gn.Duration.Minutes(), gn.AirmassMin, gn.AirmassMax))
 			}
-			fmt.Fprintf(&b, "  %s %.3f: %s\n", tr.Target, gr.Goal.Center, strings.Join(parts, ", "))
+			fmt.Fprintf(b, "  %s %.3f: %s\n", tr.Target, gr.Goal.Center, strings.Join(parts, ", "))
 		}
 	}
-	b.WriteString(planner.SafetyCaution + "\n")
-	_, err := io.WriteString(w, b.String())
-	return err
 }
 
 // fmtJ formats an objective value (millionths) in units.
