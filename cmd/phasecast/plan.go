@@ -241,37 +241,51 @@ func checkPlanFinite(out export.PlanDoc) error {
 
 // printPlan writes the human night sheet.
 func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Location, y int, m time.Month, d int, acq float64) error {
-	evening := time.Date(y, m, d, 12, 0, 0, 0, loc)
+	var b strings.Builder
+	printPlanHeader(&b, p, ev, loc, time.Date(y, m, d, 12, 0, 0, 0, loc), acq)
+	if _, err := io.WriteString(w, b.String()); err != nil {
+		return err
+	}
+	if err := printPlanBlocks(w, p, loc); err != nil {
+		return err
+	}
+	b.Reset()
+	printPlanNotes(&b, p)
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// printPlanHeader writes the night, site, limits, dark time and Moon.
+func printPlanHeader(b *strings.Builder, p *planner.Plan, ev ephem.NightEvents, loc *time.Location, evening time.Time, acq float64) {
 	lt := func(t time.Time) string { return t.In(loc).Format("15:04") }
 	ut := func(t time.Time) string { return t.UTC().Format("15:04") }
-	var b strings.Builder
-	fmt.Fprintf(&b, "Night plan for %s (%s), site %s\n", evening.Format("Monday 2006-01-02"), loc, siteLine(p.Site))
+	fmt.Fprintf(b, "Night plan for %s (%s), site %s\n", evening.Format("Monday 2006-01-02"), loc, siteLine(p.Site))
 	c := p.Constraints
-	fmt.Fprintf(&b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
+	fmt.Fprintf(b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
 	if c.MinAltDeg != 0 {
-		fmt.Fprintf(&b, ", altitude ≥ %s°", fmtG(c.MinAltDeg))
+		fmt.Fprintf(b, ", altitude ≥ %s°", fmtG(c.MinAltDeg))
 	}
 	if c.MinMoonSepDeg > 0 {
-		fmt.Fprintf(&b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
+		fmt.Fprintf(b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
 	}
 	if c.MaxMoonIllum > 0 {
-		fmt.Fprintf(&b, ", Moon ≤ %s%% lit when up", fmtG(100*c.MaxMoonIllum))
+		fmt.Fprintf(b, ", Moon ≤ %s%% lit when up", fmtG(100*c.MaxMoonIllum))
 	}
 	if c.HAMinHours != 0 || c.HAMaxHours != 0 {
-		fmt.Fprintf(&b, ", hour angle %s..%s h", fmtG(c.HAMinHours), fmtG(c.HAMaxHours))
+		fmt.Fprintf(b, ", hour angle %s..%s h", fmtG(c.HAMinHours), fmtG(c.HAMaxHours))
 	}
 	if c.ZenithExclDeg > 0 {
-		fmt.Fprintf(&b, ", zenith exclusion %s°", fmtG(c.ZenithExclDeg))
+		fmt.Fprintf(b, ", zenith exclusion %s°", fmtG(c.ZenithExclDeg))
 	}
 	if len(c.Horizon) > 0 {
-		fmt.Fprintf(&b, ", horizon mask (%d points)", len(c.Horizon))
+		fmt.Fprintf(b, ", horizon mask (%d points)", len(c.Horizon))
 	}
-	fmt.Fprintf(&b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
+	fmt.Fprintf(b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
 	if len(p.Dark) == 0 {
-		fmt.Fprintf(&b, "Dark time: none (the Sun stays above %s°)\n", fmtG(c.SunAltMaxDeg))
+		fmt.Fprintf(b, "Dark time: none (the Sun stays above %s°)\n", fmtG(c.SunAltMaxDeg))
 	}
 	for _, dk := range p.Dark {
-		fmt.Fprintf(&b, "Dark time: %s–%s local (%s–%s UTC), %.1f h\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End), dk.End.Sub(dk.Start).Hours())
+		fmt.Fprintf(b, "Dark time: %s–%s local (%s–%s UTC), %.1f h\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End), dk.End.Sub(dk.Start).Hours())
 	}
 	moon := fmt.Sprintf("Moon: %.0f%% illuminated at midnight", 100*ev.MoonIlluminated)
 	if ev.Moonrise != nil {
@@ -281,10 +295,10 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 		moon += ", sets " + lt(*ev.Moonset) + " local"
 	}
 	b.WriteString(moon + "\n\n")
-	if _, err := io.WriteString(w, b.String()); err != nil {
-		return err
-	}
-	b.Reset()
+}
+
+// printPlanBlocks writes the table of blocks.
+func printPlanBlocks(w io.Writer, p *planner.Plan, loc *time.Location) error {
 	tb := newTable(w)
 	tb.row("start", "", "end", "", "target", "goal", "exposures", "phase start→end", "airmass", "Moon", "par.angle", "notes")
 	tb.row("local", "UTC", "local", "UTC", "", "", "", "", "", "", "", "")
@@ -295,7 +309,7 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 		}
 		notes := []string{}
 		if bl.AcquireS > 0 {
-			notes = append(notes, fmt.Sprintf("acquire from %s", lt(bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))))))
+			notes = append(notes, fmt.Sprintf("acquire from %s", bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))).In(loc).Format("15:04")))
 		}
 		for _, wn := range bl.Warnings {
 			notes = append(notes, string(wn.Code))
@@ -309,13 +323,16 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 	if len(p.Blocks) == 0 {
 		tb.row("(no block can be scheduled)", "", "", "", "", "", "", "", "", "", "", "")
 	}
-	if err := tb.flush(); err != nil {
-		return err
-	}
+	return tb.flush()
+}
+
+// printPlanNotes writes the goals left out, the warnings (each once), the
+// schedule's value and the caution.
+func printPlanNotes(b *strings.Builder, p *planner.Plan) {
 	if len(p.Unscheduled) > 0 {
 		b.WriteString("\nNot scheduled:\n")
 		for _, u := range p.Unscheduled {
-			fmt.Fprintf(&b, "  %s, phase %.3f: %s\n", u.Target, u.Goal.Center, u.Detail)
+			fmt.Fprintf(b, "  %s, phase %.3f: %s\n", u.Target, u.Goal.Center, u.Detail)
 		}
 	}
 	var notes []string
@@ -343,10 +360,8 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 	if !p.Optimal {
 		state = "best found, not proven optimal"
 	}
-	fmt.Fprintf(&b, "\nSchedule value %d (%s; greedy first-fit would give %d), %d candidate blocks.\n", p.Value, state, p.GreedyValue, p.Candidates)
+	fmt.Fprintf(b, "\nSchedule value %d (%s; greedy first-fit would give %d), %d candidate blocks.\n", p.Value, state, p.GreedyValue, p.Candidates)
 	b.WriteString(planner.SafetyCaution + "\n")
-	_, err := io.WriteString(w, b.String())
-	return err
 }
 
 // fmtG formats a number without trailing zeros.
