@@ -202,7 +202,8 @@ func firstDiff(a, b []byte) string {
 // TestDocumentsByteIdentical plans the same night, queue windows and run of
 // nights at the same site for the same targets through the CLI (run()),
 // the web pages' downloads and the JSON API (httptest), and checks that
-// each document is the same bytes everywhere.
+// each document is the same bytes everywhere: the night as JSON and CSV,
+// the windows as JSON, CSV and iCalendar, the run as JSON and CSV.
 func TestDocumentsByteIdentical(t *testing.T) {
 	d := newDocsWeb(t)
 	targets := writeFile(t, "targets.csv", docsTargets)
@@ -216,6 +217,11 @@ func TestDocumentsByteIdentical(t *testing.T) {
 			"/api/v1/night":         d.api(t, http.MethodGet, "/api/v1/night?"+q+"&date="+date),
 		}
 		sameDoc(t, "night JSON", docs, "phasecast plan --json")
+		csvDocs := map[string][]byte{
+			"phasecast plan --format csv": cli(t, targets, "plan", "--date", date, "--acquire-s", "0", "--format", "csv"),
+			"/night.csv":                  d.page(t, "/night.csv?"+q+"&date="+date),
+		}
+		sameDoc(t, "night CSV", csvDocs, "phasecast plan --format csv")
 	})
 
 	t.Run("Windows", func(t *testing.T) {

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -61,14 +62,19 @@ func writeBytes(w io.Writer, make func() ([]byte, error)) error {
 // outputFormat reads --format (text, json, csv or ics; default text) and
 // --json (the same as --format json).
 func outputFormat(format *textValue, asJSON bool) (string, error) {
+	return outputFormatOf(format, asJSON, "text", "json", "csv", "ics")
+}
+
+// outputFormatOf is outputFormat for a command that writes the formats
+// accepted only (text first).
+func outputFormatOf(format *textValue, asJSON bool, accepted ...string) (string, error) {
 	name := strings.ToLower(strings.TrimSpace(format.value))
 	if !format.set {
 		name = "text"
 	}
-	switch name {
-	case "text", "json", "csv", "ics":
-	default:
-		return "", fieldError(format, "not a format", "text, json, csv or ics")
+	if !slices.Contains(accepted, name) {
+		last := len(accepted) - 1
+		return "", fieldError(format, "not a format", strings.Join(accepted[:last], ", ")+" or "+accepted[last])
 	}
 	if asJSON {
 		if format.set && name != "json" {

@@ -41,8 +41,13 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
 	siteName := addSiteNameFlag(fl)
-	asJSON := fl.boolean("json", "print one JSON object (the night document, docs/formats.md)")
+	format := fl.text("format", "text|json|csv", "text", "output format: the sheet, or the night document (docs/formats.md)")
+	asJSON := fl.boolean("json", "print one JSON object (the night document; the same as --format json)")
 	if help, err := fl.parse(args, stdout); help || err != nil {
+		return err
+	}
+	fmtName, err := outputFormatOf(format, *asJSON, "text", "json", "csv")
+	if err != nil {
 		return err
 	}
 	site, err := sf.site()
@@ -101,8 +106,11 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	if err := checkPlanFinite(out.PlanDoc); err != nil {
 		return err
 	}
-	if *asJSON {
+	switch fmtName {
+	case "json":
 		return writeJSON(stdout, out)
+	case "csv":
+		return writeBytes(stdout, func() ([]byte, error) { return export.NightCSV(out, loc) })
 	}
 	return printPlan(stdout, p, ev, loc, y, m, d, acq)
 }
