@@ -52,8 +52,8 @@ func checkRefusal(tb testing.TB, status int, retry string, body []byte) {
 
 // TestHeavyGateRefusesExcess fills every heavy slot of the server, then
 // sends 50 concurrent year-long queue-window requests from one viewer's
-// token: beyond the caller's two, they are refused at once with 429, and
-// the two that queue are refused with 503 when their wait runs out;
+// token: beyond the caller's perCaller, they are refused at once with 429,
+// and those that queue are refused with 503 when their wait runs out;
 // /healthz answers meanwhile. Once the slots are free, the same request
 // is answered.
 func TestHeavyGateRefusesExcess(t *testing.T) {
