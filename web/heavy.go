@@ -44,7 +44,12 @@ type heavyGate struct {
 	holders map[string]int // running or waiting, by caller
 	active  int            // running or waiting, in all
 	freeing atomic.Bool    // a FreeOSMemory is under way
+	freed   time.Time      // when memory was last handed back (g.mu)
 }
+
+// freeEvery is the least time between two hand-backs of memory to the
+// system: each is a full garbage collection.
+const freeEvery = 10 * time.Second
 
 // newHeavyGate returns a gate of n slots (at least 1), a queue of 16 per
 // slot, a 2-second wait and 4 requests per caller (a browser's page and its
@@ -112,12 +117,14 @@ func errBusy() error {
 }
 
 // leave forgets one request of caller; g.mu is held. When the last heavy
-// request has gone, the memory it used is handed back to the system.
+// request has gone, the memory it used is handed back to the system (at
+// most once every freeEvery).
 func (g *heavyGate) leave(caller string) {
 	if g.holders[caller]--; g.holders[caller] <= 0 {
 		delete(g.holders, caller)
 	}
-	if g.active--; g.active == 0 && g.freeing.CompareAndSwap(false, true) {
+	if g.active--; g.active == 0 && time.Since(g.freed) >= freeEvery && g.freeing.CompareAndSwap(false, true) { // elapsed
+		g.freed = time.Now() // elapsed
 		go func() {
 			defer g.freeing.Store(false)
 			debug.FreeOSMemory()
