@@ -641,3 +641,29 @@ func TestCrossTeamIDsInBodies(t *testing.T) {
 		}
 	}
 }
+
+// TestJobOfAnotherUser: a background computation's page, progress and
+// cancel button answer only the user who started it: the team's owner
+// and another team's member get 404, and their cancel does not stop it.
+func TestJobOfAnotherUser(t *testing.T) {
+	h := newHarness(t)
+	w := h.newAuthzWorld(t, 1)
+	editor := h.client("editor")
+	resp := h.post(editor, fmt.Sprintf("/runs/%d/optimize", w.run), url.Values{"past": {"0"}})
+	job := resp.Header.Get("Location")
+	if resp.StatusCode != http.StatusSeeOther || !strings.HasPrefix(job, "/jobs/") {
+		t.Fatalf("optimize: %d to %q", resp.StatusCode, job)
+	}
+	for _, name := range []string{"owner", "outsider"} {
+		c := h.client(name)
+		for _, path := range []string{job, job + "/progress"} {
+			if resp, _ := h.get(c, path); resp.StatusCode != http.StatusNotFound {
+				t.Errorf("%s GET %s: %d, want 404", name, path, resp.StatusCode)
+			}
+		}
+		if resp := h.post(c, job+"/cancel", nil); resp.StatusCode != http.StatusNotFound {
+			t.Errorf("%s POST %s/cancel: %d, want 404", name, job, resp.StatusCode)
+		}
+	}
+	followJob(t, h, editor, resp) // the editor's job ran to its end: a saved plan
+}
