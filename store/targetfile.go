@@ -115,11 +115,24 @@ func parseFile(b []byte, f FileFormat) (parsedFile, error) {
 	return parsedFile{}, errInvalid("format: %q is not accepted; accepted: csv, plan_csv, json (or empty to detect)", f)
 }
 
-// tableErr wraps a TableError as EINVALID with a short message.
+// MaxFileProblems is the most problems a refused file lists one by one;
+// the rest are counted in a last entry ("… and N more problems"), so that
+// a file bad on every line does not make a message per line to send.
+const MaxFileProblems = 100
+
+// tableErr wraps a TableError as EINVALID with a short message, keeping
+// the first MaxFileProblems problems and a last entry counting the rest.
 func tableErr(te *planner.TableError) error {
-	msg := fmt.Sprintf("%d problem(s) in the file; nothing was imported", len(te.Cells))
-	if len(te.Cells) > 0 {
+	total := len(te.Cells)
+	msg := fmt.Sprintf("%d problem(s) in the file; nothing was imported", total)
+	if total > 0 {
 		msg += "; first: " + te.Cells[0].String()
+	}
+	if total > MaxFileProblems {
+		rest := te.Cells[MaxFileProblems]
+		te.Cells = append(te.Cells[:MaxFileProblems:MaxFileProblems], planner.CellError{Line: rest.Line,
+			Reason: fmt.Sprintf("… and %d more problems from this line on (the first %d are listed); fix these and import again",
+				total-MaxFileProblems, MaxFileProblems)})
 	}
 	return &Error{Code: EINVALID, Message: msg, Err: te}
 }

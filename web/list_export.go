@@ -62,5 +62,5 @@ func download(w http.ResponseWriter, ctype, name string, body []byte) {
 	w.Header().Set("Content-Type", ctype)
 	w.Header().Set("Content-Disposition", `attachment; filename="`+name+`"`)
 	w.Header().Set("Cache-Control", "no-store")
-	_, _ = w.Write(body)
+	_, _ = w.Write(body) // dropped: the status is sent; a client that has gone cannot be told more
 }

@@ -16,6 +16,10 @@ func (s *Server) runMark(w http.ResponseWriter, r *http.Request, u *user) {
 	if err == nil {
 		err = parseForm(w, r)
 	}
+	if err != nil {
+		s.renderError(w, r, err)
+		return
+	}
 	planID, perr := formInt64(r, "plan")
 	night, nerr := strconv.Atoi(r.PostFormValue("night"))
 	status := r.PostFormValue("status")
@@ -26,7 +30,7 @@ func (s *Server) runMark(w http.ResponseWriter, r *http.Request, u *user) {
 	if whole {
 		berr = nil
 	}
-	if err != nil || perr != nil || nerr != nil || berr != nil || (status != "done" && status != "lost") {
+	if perr != nil || nerr != nil || berr != nil || (status != "done" && status != "lost") {
 		s.renderError(w, r, errMalformed)
 		return
 	}

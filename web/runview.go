@@ -57,9 +57,13 @@ func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, 
 		v.Schedules = append(v.Schedules, ns)
 	}
 	v.Past = max(v.Past, doc.Past, leadingMarked(v.Schedules))
-	v.Objective = fmt.Sprintf("Run objective %.3f of %.3f when every requirement is met (greedy pass %.3f; nights planned on their own %.3f).",
-		float64(doc.Objective.Value)/1e6, float64(doc.Objective.MaxValue)/1e6, float64(doc.Objective.GreedyValue)/1e6,
-		float64(doc.Objective.IndependentValue)/1e6)
+	o := doc.Objective
+	most := ""
+	if o.MaxValue > 0 {
+		most = fmt.Sprintf(", at most %.3f in all", float64(o.MaxValue)/1e6)
+	}
+	v.Objective = fmt.Sprintf("Run objective %.3f; meeting every requirement exactly is worth %.3f, coverage beyond the requirements adds to it%s (greedy pass %.3f; nights planned on their own %.3f).",
+		float64(o.Value)/1e6, float64(o.RequiredValue)/1e6, most, float64(o.GreedyValue)/1e6, float64(o.IndependentValue)/1e6)
 	return v
 }
 
@@ -149,6 +153,11 @@ func loadDoc(p store.SavedPlan) (*runDoc, error) {
 	var d runDoc
 	if err := json.Unmarshal(p.Output, &d); err != nil {
 		return nil, fmt.Errorf("saved plan %d: %w", p.ID, err)
+	}
+	if o := &d.Objective; o.RequiredValue == 0 && o.MaxValue > 0 {
+		// A plan saved before required_value: its max_value was what
+		// meeting every requirement is worth; its true maximum is unknown.
+		o.RequiredValue, o.MaxValue = o.MaxValue, 0
 	}
 	return &d, nil
 }

@@ -170,7 +170,10 @@ func (p *targetFormIn) storeErrs(err error) (page.Errs, int, bool) {
 	out := page.Errs{}
 	for k, msg := range errs {
 		if m := goalFieldRE.FindStringSubmatch(k); m != nil {
-			n, _ := strconv.Atoi(m[1])
+			n, err := strconv.Atoi(m[1])
+			if err != nil {
+				n = len(p.goalRow) // digits too many for an int: no such goal row
+			}
 			field := m[2]
 			if field == "event" {
 				field = "center"

@@ -35,8 +35,9 @@ func (s *Server) tonightNight(ctx context.Context, u *user, q url.Values) (*nigh
 	if run == nil && want == 0 {
 		for i, r := range runs {
 			if st, err := s.store.GetSite(ctx, u.actor, r.SiteID); err == nil {
-				loc, _ := time.LoadLocation(st.Zone)
-				if loc == nil {
+				loc, err := time.LoadLocation(st.Zone)
+				if err != nil { // a zone this binary cannot load: the site's date in UTC
+					s.log.Warn("tonight: site zone", "site", st.ID, "zone", st.Zone, "err", err)
 					loc = time.UTC
 				}
 				today := tonight(s.now(), loc)
