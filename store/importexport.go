@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"sort"
 
 	"phasecast/planner"
@@ -65,6 +66,9 @@ type cellKey struct {
 // add records a problem with a row's field, once per line and column.
 func (c *fileCheck) add(line int, field, value, reason string) {
 	col, n := c.pf.column(field)
+	if n == 0 && c.pf.Format == FormatCSV && slices.Contains(csvColumns, col) {
+		value, reason = missingColumn(field, col, reason)
+	}
 	if c.seen[cellKey{line, col}] { // already reported while reading
 		return
 	}

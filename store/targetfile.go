@@ -274,15 +274,26 @@ func parseTeamCSV(b []byte) (parsedFile, error) {
 	pf.Cells = te.Cells
 	pf.column = func(field string) (string, int) {
 		c := goalSubfield(field)
-		if strings.HasPrefix(c, "goals") || (strings.HasPrefix(field, "goals") && !hasKey(col, c)) {
+		if strings.HasPrefix(c, "goals") || (strings.HasPrefix(field, "goals") && !hasKey(col, c) && !slices.Contains(csvColumns, c)) {
 			c = "goals"
 		}
 		if i, ok := col[c]; ok {
 			return c, i + 1
 		}
-		return c, 0
+		return c, 0 // a column the header lacks: see missingColumn
 	}
 	return pf, nil
+}
+
+// missingColumn rewords a check on a value the team CSV never gave: the
+// header lacks its column, so the value is the default and the message
+// says the column is missing (and, for a goal's setting, that the goals
+// cell gave none either).
+func missingColumn(field, col, accepted string) (value, reason string) {
+	if strings.HasPrefix(field, "goals[") {
+		return "", fmt.Sprintf("the file has no %s column and the goals cell gives none for this goal; accepted: %s", col, accepted)
+	}
+	return "", fmt.Sprintf("the file has no %s column; accepted: %s", col, accepted)
 }
 
 func hasKey(m map[string]int, k string) bool { _, ok := m[k]; return ok }

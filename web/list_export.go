@@ -41,10 +41,13 @@ func (s *Server) listExport(format store.FileFormat) func(http.ResponseWriter, *
 
 var unsafeName = regexp.MustCompile(`[^A-Za-z0-9._-]+`)
 
+// dashes is a run of dashes, written as one in file names.
+var dashes = regexp.MustCompile(`-{2,}`)
+
 // fileName makes a download name such as "my-list-targets.csv" from
 // free text, keeping only safe characters.
 func fileName(base, what, ext string) string {
-	b := strings.Trim(unsafeName.ReplaceAllString(strings.ToLower(base), "-"), "-.")
+	b := strings.Trim(dashes.ReplaceAllString(unsafeName.ReplaceAllString(strings.ToLower(base), "-"), "-"), "-.")
 	if b == "" {
 		b = "phasecast"
 	}

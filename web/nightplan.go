@@ -155,6 +155,7 @@ type night struct {
 	req     planner.NightRequest
 	plan    *planner.Plan
 	events  planner.NightEvents
+	source  string // Tonight: whose blocks are shown (a run's saved plan, or planned now)
 }
 
 // loadNight resolves the request's site, list and targets for the actor
@@ -288,7 +289,40 @@ func (n *night) constraints(errs page.Errs) planner.Constraints {
 		}
 		*o.dst = v
 	}
+	n.checkEach(c, errs)
 	return c
+}
+
+// checkEach puts the planner's message on every override it refuses, not
+// only the first: each typed value is checked alone on the site's
+// constraints.
+func (n *night) checkEach(c planner.Constraints, errs page.Errs) {
+	base := n.site.PlanConstraints()
+	if n.base != nil {
+		base = *n.base
+		base.Horizon = n.site.Horizon
+	}
+	for _, o := range []struct {
+		field, text string
+		set         func(*planner.Constraints)
+	}{{"max_airmass", n.q.maxAirmass, func(b *planner.Constraints) { b.MaxAirmass = c.MaxAirmass }},
+		{"min_alt", n.q.minAlt, func(b *planner.Constraints) { b.MinAltDeg = c.MinAltDeg }},
+		{"min_moon_sep", n.q.minMoonSep, func(b *planner.Constraints) { b.MinMoonSepDeg = c.MinMoonSepDeg }},
+		{"max_moon_illum", n.q.maxMoonIllum, func(b *planner.Constraints) { b.MaxMoonIllum = c.MaxMoonIllum }},
+		{"sun_avoid", n.q.sunAvoid, func(b *planner.Constraints) { b.SunAvoidDeg = c.SunAvoidDeg }}} {
+		if o.text == "" || errs.Has(o.field) {
+			continue
+		}
+		one := base
+		o.set(&one)
+		if _, err := one.Resolved(); err != nil {
+			if fe, _, ok := formErrs(err); ok {
+				if msg, ok := fe[o.field]; ok {
+					errs[o.field] = msg
+				}
+			}
+		}
+	}
 }
 
 // planIt plans the night. Constraint values the planner refuses become

@@ -19,8 +19,7 @@ import (
 func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, now time.Time) page.RunView {
 	run := in.run
 	v := page.RunView{ID: run.ID, Name: run.Name, NightsN: len(in.nights), Past: in.nightsOver(now), PlanID: planID}
-	zone, _ := now.In(in.loc).Zone()
-	v.Zone = zone
+	v.Zone = zoneLabel(in.loc, now)
 	_, cons, _ := siteSummary(store.SiteRecord{Site: in.site.Site, Constraints: run.Constraints})
 	v.Summary = fmt.Sprintf("%d nights at %s, %d targets; %s.", len(in.nights), in.site.Name, len(in.targets), cons)
 	for _, p := range plans {
@@ -57,6 +56,7 @@ func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, 
 		}
 		v.Schedules = append(v.Schedules, ns)
 	}
+	v.Past = max(v.Past, doc.Past, leadingMarked(v.Schedules))
 	o := doc.Objective
 	most := ""
 	if o.MaxValue > 0 {
@@ -160,4 +160,23 @@ func loadDoc(p store.SavedPlan) (*runDoc, error) {
 		o.RequiredValue, o.MaxValue = o.MaxValue, 0
 	}
 	return &d, nil
+}
+
+// leadingMarked counts the run's first nights whose every block has an
+// outcome (done or lost): those nights are over, so the replan form
+// proposes them as such. A night over in the plan counts as well.
+func leadingMarked(ns []page.NightSchedule) int {
+	k := 0
+	for _, n := range ns {
+		if !n.Past && len(n.Blocks) == 0 {
+			break
+		}
+		for _, b := range n.Blocks {
+			if b.State == "" {
+				return k
+			}
+		}
+		k++
+	}
+	return k
 }

@@ -162,7 +162,7 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 	if w.req.goalN > 0 {
 		v.Title = fmt.Sprintf("Windows of %s, goal %d, at %s, %s to %s", n.targets[0].Target.Name, w.req.goalN, n.site.Name, w.req.from, w.req.to)
 	}
-	v.Zone, _ = w.from.In(n.loc).Zone()
+	v.Zone = zoneLabel(n.loc, w.from)
 	for _, g := range w.groups {
 		grp := page.WindowGroup{Target: g.Target, Goal: goalLabel(g.Goal)}
 		for _, qw := range g.Windows {

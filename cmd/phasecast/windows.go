@@ -153,7 +153,7 @@ func rangeEnd(v *textValue, loc *time.Location) (time.Time, error) {
 		if err != nil {
 			return time.Time{}, fieldError(v, "not a date", "a date YYYY-MM-DD (local midnight) or an instant in RFC 3339")
 		}
-		return time.Date(y, m, d, 0, 0, 0, 0, loc).UTC(), nil
+		return ephem.LocalDayStart(y, m, d, loc), nil
 	}
 	t, err := ephem.ParseTime(s)
 	if err != nil {
