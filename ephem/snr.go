@@ -3,6 +3,7 @@ package ephem
 import (
 	"math"
 	"strconv"
+	"time"
 )
 
 // Detector is a telescope and CCD in one passband: what the CCD equation
@@ -185,4 +186,39 @@ func (r CCDRates) ExposureForSNR(snr float64) (float64, error) {
 	// Both terms of the numerator are positive, so the root loses no
 	// precision to cancellation.
 	return (s2*a + math.Sqrt(s2*s2*a*a+4*r2*c)) / (2 * r2), nil
+}
+
+// Exposure is everything known about one exposure of a target at one
+// instant: the geometry, the sky and the CCD count rates.
+type Exposure struct {
+	Point      SkyPoint      // the target, Sun and Moon (Observe)
+	Conditions SkyConditions // the sky model's inputs
+	Sky        Sky           // the sky brightness in the detector's band
+	Rates      CCDRates      // the CCD equation's rates
+}
+
+// ExposureAt computes the sky and the count rates for a star of magnitude
+// mag (in d.Band) at instant t (UTC) from site, with extinction k
+// (mag/airmass) and dark-sky zenith brightness darkZenithMag (mag/arcsec²) in
+// that band. The star's light is extinguished by k times the Kasten & Young
+// airmass of the refracted altitude (Airmass); the sky model uses its own
+// X (KSAirmass). It fails with an *InputError when the target is below the
+// horizon, the Sun above it, or any input is out of range.
+func ExposureAt(site Site, st Star, t time.Time, d Detector, k, darkZenithMag, mag float64) (Exposure, error) {
+	if err := d.Validate(); err != nil {
+		return Exposure{}, err
+	}
+	c, p := SkyConditionsAt(site, st, t, d.Band, k, darkZenithMag)
+	if !p.AirmassOK {
+		return Exposure{}, &InputError{"altitude", strconv.FormatFloat(p.AltDeg, 'f', 2, 64) + "°", "a target above the horizon at that instant"}
+	}
+	s, err := SkyBrightness(c)
+	if err != nil {
+		return Exposure{}, err
+	}
+	r, err := d.Rates(mag, p.Airmass, k, s.Mag)
+	if err != nil {
+		return Exposure{}, err
+	}
+	return Exposure{Point: p, Conditions: c, Sky: s, Rates: r}, nil
 }

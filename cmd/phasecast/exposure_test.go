@@ -1,0 +1,139 @@
+package main
+
+import (
+	"math"
+	"strings"
+	"testing"
+	"time"
+
+	"phasecast/ephem"
+)
+
+// exposureArgs is an invented site, target and instrument at an instant with
+// a nearly full Moon up.
+var exposureArgs = []string{"exposure", "--lat", "-31.27", "--lon", "149.07", "--elev", "1150",
+	"--ra", "05:41:20", "--dec", "-20:15:00", "--at", "2026-12-24T14:00:00Z",
+	"--mag", "16.5", "--band", "V", "--aperture-m", "2.0", "--throughput", "0.35", "--pixel-scale", "0.4", "--seeing", "1.3"}
+
+var exposureKeys = []string{"instant", "band", "mag", "airmass", "alt_deg", "sun_alt_deg", "moon_alt_deg", "moon_illuminated",
+	"moon_phase_angle_deg", "moon_sep_deg", "extinction", "sky_mag_arcsec2", "sky_dark_mag_arcsec2", "sky_moon_mag_arcsec2",
+	"sky_twilight_mag_arcsec2", "moon_brightening_mag", "zero_point_e_per_s", "enclosed_fraction", "pixels", "source_e_per_s",
+	"sky_e_per_s_per_pixel", "dark_e_per_s_per_pixel", "read_noise_e", "exposure_s", "snr", "period_days", "smear_phase"}
+
+// TestExposureJSON checks the flag plumbing against ephem for the same
+// inputs, and that --snr and --exposure-s are inverse.
+func TestExposureJSON(t *testing.T) {
+	m := runJSON(t, append(exposureArgs, "--snr", "50", "--period", "0.185")...)
+	hasKeys(t, m, exposureKeys...)
+
+	site := ephem.Site{LatDeg: -31.27, LonEastDeg: 149.07, ElevM: 1150}
+	star := ephem.Star{RADeg: (5 + 41.0/60 + 20.0/3600) * 15, DecDeg: -(20 + 15.0/60)}
+	det := ephem.Detector{Band: ephem.BandV, ApertureM: 2, Throughput: 0.35, ReadNoiseE: 5, DarkEPerSPix: 0.002,
+		PixelArcsec: 0.4, RadiusArcsec: 1.3, SeeingArcsec: 1.3}
+	e, err := ephem.ExposureAt(site, star, time.Date(2026, 12, 24, 14, 0, 0, 0, time.UTC), det, 0.15, 21.6, 16.5)
+	if err != nil {
+		t.Fatal(err)
+	}
+	wantT, err := e.Rates.ExposureForSNR(50)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		key  string
+		want float64
+	}{
+		{"airmass", e.Point.Airmass}, {"sky_mag_arcsec2", e.Sky.Mag}, {"sky_dark_mag_arcsec2", e.Sky.DarkMag},
+		{"source_e_per_s", e.Rates.SourceEPerS}, {"pixels", e.Rates.Pixels}, {"exposure_s", wantT}, {"snr", 50},
+		{"smear_phase", wantT / (0.185 * 86400)}, {"moon_sep_deg", e.Point.MoonSepDeg},
+	} {
+		if got := num(t, m, c.key); math.Abs(got-c.want) > 1e-9*math.Max(1, math.Abs(c.want)) {
+			t.Errorf("%s = %v, ephem gives %v", c.key, got, c.want)
+		}
+	}
+	if m["sky_twilight_mag_arcsec2"] != nil {
+		t.Errorf("twilight at Sun altitude %v: %v", m["sun_alt_deg"], m["sky_twilight_mag_arcsec2"])
+	}
+
+	back := runJSON(t, append(exposureArgs, "--exposure-s", strings.TrimSpace(f(wantT, 9)))...)
+	if got := num(t, back, "snr"); math.Abs(got-50) > 1e-6 {
+		t.Errorf("S/N of the solved exposure = %v, want 50", got)
+	}
+	if back["smear_phase"] != nil {
+		t.Errorf("smear without --period: %v", back["smear_phase"])
+	}
+}
+
+// TestExposureText checks the human report's lines.
+func TestExposureText(t *testing.T) {
+	stdout, stderr, code := runCmd(t, append(exposureArgs, "--snr", "50", "--period", "0.185")...)
+	if code != 0 || stderr != "" {
+		t.Fatalf("exit %d, stderr %q", code, stderr)
+	}
+	for _, want := range []string{"sky (V)", "mag/arcsec²", "phase angle", "exposure", "s for S/N 50.0", "smear", "of the orbit", safetyNote} {
+		if !strings.Contains(stdout, want) {
+			t.Errorf("report lacks %q:\n%s", want, stdout)
+		}
+	}
+}
+
+func TestExposureBadInput(t *testing.T) {
+	replace := func(flag, value string) []string {
+		out := append([]string(nil), exposureArgs...)
+		for i := range out {
+			if out[i] == flag {
+				out[i+1] = value
+				return out
+			}
+		}
+		return append(out, flag, value)
+	}
+	cases := []struct {
+		name string
+		argv []string
+		want []string
+	}{
+		{"negative snr", replace("--snr", "-5"), []string{"--snr -5", "0 < S/N"}},
+		{"zero aperture", append(replace("--aperture-m", "0"), "--snr", "50"), []string{"--aperture-m 0", "0 < aperture ≤ 50"}},
+		{"bright magnitude", append(replace("--mag", "-3"), "--snr", "50"), []string{"--mag -3", "−2..30"}},
+		{"faint magnitude", append(replace("--mag", "31"), "--snr", "50"), []string{"--mag 31", "−2..30"}},
+		{"unknown band", append(replace("--band", "Q"), "--snr", "50"), []string{"--band Q", "U, B, V, R, I, g, r, i or z"}},
+		{"both modes", append(replace("--snr", "50"), "--exposure-s", "60"), []string{"exactly one of --snr"}},
+		{"neither mode", exposureArgs, []string{"exactly one of --snr"}},
+		{"daytime", append(replace("--at", "2026-12-24T08:00:00Z"), "--snr", "50"), []string{"sun altitude", "daytime"}},
+		{"no efficiency", append(removeFlag(exposureArgs, "--throughput"), "--snr", "50"), []string{"missing --zero-point"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			stdout, stderr, code := runCmd(t, c.argv...)
+			if code != exitUsage || stdout != "" {
+				t.Fatalf("exit %d, stdout %q, stderr %q; want exit %d", code, stdout, stderr, exitUsage)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(stderr, w) {
+					t.Errorf("stderr %q lacks %q", stderr, w)
+				}
+			}
+		})
+	}
+}
+
+// removeFlag returns argv without flag and its value.
+func removeFlag(argv []string, flag string) []string {
+	var out []string
+	for i := 0; i < len(argv); i++ {
+		if argv[i] == flag {
+			i++
+			continue
+		}
+		out = append(out, argv[i])
+	}
+	return out
+}
+
+func TestExposureBelowHorizon(t *testing.T) {
+	argv := append(removeFlag(exposureArgs, "--at"), "--at", "2026-12-24T03:00:00Z", "--snr", "50")
+	_, stderr, code := runCmd(t, argv...)
+	if code != exitUsage || !strings.Contains(stderr, "altitude -34.66°") || !strings.Contains(stderr, "above the horizon") {
+		t.Errorf("exit %d, stderr %q", code, stderr)
+	}
+}
