@@ -263,7 +263,7 @@ func printExposure(w io.Writer, site ephem.Site, star ephem.Star, o exposureJSON
 		tb.row("S/N", f(o.SNR, 1)+" in "+f(o.ExposureS, 1)+" s")
 	}
 	if o.SmearPhase != nil {
-		tb.row("smear", f(*o.SmearPhase, 4)+" of the orbit (period "+f(*o.PeriodDays, 6)+" d)")
+		tb.row("smear", f(*o.SmearPhase, 4)+" of the orbit (period "+f(*o.PeriodDays, -1)+" d)")
 	}
 	if err := tb.flush(); err != nil {
 		return err
