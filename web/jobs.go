@@ -48,7 +48,7 @@ func (j *job) state() (fraction float64, msg string, finished bool, next string)
 	case j.finished:
 		msg, fraction = "Finished.", 1
 	default:
-		msg = fmt.Sprintf("Working: %d of %d steps, %s elapsed.", j.done, j.total, time.Since(j.started).Round(time.Second))
+		msg = fmt.Sprintf("Working: %d of %d steps, %s elapsed.", j.done, j.total, time.Since(j.started).Round(time.Second)) // elapsed
 	}
 	return fraction, msg, j.finished, j.next
 }
@@ -74,7 +74,7 @@ func (js *jobs) start(userID int64, title, back string, work func(ctx context.Co
 	running := 0
 	for id, j := range js.m {
 		_, _, finished, _ := j.state()
-		if finished && time.Since(j.started) > time.Hour {
+		if finished && time.Since(j.started) > time.Hour { // elapsed
 			delete(js.m, id)
 		} else if !finished {
 			running++
@@ -91,7 +91,7 @@ func (js *jobs) start(userID int64, title, back string, work func(ctx context.Co
 		return nil, err
 	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Minute)
-	j := &job{id: hex.EncodeToString(b), userID: userID, back: back, title: title, cancel: cancel, started: time.Now()}
+	j := &job{id: hex.EncodeToString(b), userID: userID, back: back, title: title, cancel: cancel, started: time.Now()} // elapsed
 	js.m[j.id] = j
 	go func() {
 		defer cancel()

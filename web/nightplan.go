@@ -116,6 +116,7 @@ func (n nightQuery) encode() string {
 // night is a planned night with what the pages and exports show.
 type night struct {
 	cache   *planCache
+	now     func() time.Time // the server's clock: the plan cache's ages
 	q       nightQuery
 	base    *planner.Constraints // a run's constraints, replacing the site's defaults
 	site    store.SiteRecord
@@ -140,7 +141,7 @@ type night struct {
 // and fills in defaults. It plans nothing yet. errs holds messages for
 // form fields the user must fix.
 func (s *Server) loadNight(ctx context.Context, a store.Actor, teamID int64, q nightQuery) (*night, page.Errs, error) {
-	n := &night{q: q, cache: &s.plans}
+	n := &night{q: q, cache: &s.plans, now: s.now}
 	errs := page.Errs{}
 	var err error
 	if q.runID != 0 {
@@ -284,7 +285,7 @@ func (n *night) planIt(errs page.Errs) error {
 		n.req.Targets = append(n.req.Targets, t.Target)
 	}
 	key := n.key()
-	if c, ok := n.cache.get(key, time.Now()); ok {
+	if c, ok := n.cache.get(key, n.now()); ok {
 		n.plan, n.events = c.plan, c.events
 		return nil
 	}
@@ -305,7 +306,7 @@ func (n *night) planIt(errs page.Errs) error {
 	}
 	n.plan = plan
 	n.events = planner.NightEventsOn(n.site.Site, n.y, n.m, n.d, n.loc)
-	n.cache.put(key, cachedPlan{plan: plan, events: n.events, at: time.Now()})
+	n.cache.put(key, cachedPlan{plan: plan, events: n.events, at: n.now()})
 	return nil
 }
 

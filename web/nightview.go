@@ -51,7 +51,7 @@ func (n *night) form(errs page.Errs) page.NightForm {
 // view builds the Night page's result part from the plan.
 func (n *night) view(now time.Time) (page.NightView, error) {
 	p := n.plan
-	zone, _ := time.Now().In(n.loc).Zone()
+	zone, _ := now.In(n.loc).Zone()
 	if len(p.Blocks) > 0 {
 		zone, _ = p.Blocks[0].Start.In(n.loc).Zone()
 	} else if n.events.Sunset != nil {

@@ -16,7 +16,7 @@ import (
 func demoTargetNames(t *testing.T, path, token string, listID int64) []string {
 	t.Helper()
 	ctx := context.Background()
-	st, err := store.Open(ctx, path)
+	st, err := store.Open(ctx, path, testClock(t))
 	if err != nil {
 		t.Fatalf("open %s: %v", path, err)
 	}
@@ -44,11 +44,13 @@ func TestBackupRestore(t *testing.T) {
 	ctx := context.Background()
 	dir := t.TempDir()
 	db := filepath.Join(dir, "live.db")
-	st, err := store.Open(ctx, db)
+	// The store, the seed and the commands share one pinned clock, so the
+	// demo's one-time links are valid whatever the date the suite runs on.
+	st, err := store.Open(ctx, db, testClock(t))
 	if err != nil {
 		t.Fatal(err)
 	}
-	info, err := st.SeedDemo(ctx, time.Date(2026, 12, 1, 12, 0, 0, 0, time.UTC))
+	info, err := st.SeedDemo(ctx, testNow)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -25,14 +25,14 @@ UTC scale) and BJD_TDB (light time to the solar-system barycentre, TDB scale,
 the recommended standard), for a target seen from a site. The Rømer delay uses
 the site's position; the Shapiro delay (≤ 0.1 ms) is neglected.`
 
-func runBJD(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runBJD(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("bjd", bjdSynopsis)
 	sg := addSightingFlags(fl, "instant of observation, RFC 3339; UTC unless an offset is given")
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	site, star, t, err := sg.read(time.Now)
+	site, star, t, err := sg.read(now)
 	if err != nil {
 		return err
 	}

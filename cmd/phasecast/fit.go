@@ -12,6 +12,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"time"
 
 	"phasecast/ephem"
 )
@@ -72,7 +73,7 @@ type fitJSON struct {
 	Timings       []fitTimingJSON `json:"timings"`
 }
 
-func runFit(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runFit(ctx context.Context, _ func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("fit", fitSynopsis)
 	file := fl.text("timings", "FILE.csv", "", "CSV file of measured event times (see above); required")
 	ef := addEphemFlags(fl)

@@ -22,7 +22,7 @@ into BJD_TDB for the target and site, then cycle = floor((BJD_TDB − T0)/P) and
 phase = the fraction of the cycle since T0 (0 ≤ phase < 1), with its 1σ
 uncertainty propagated from those of T0 and P. Phase 0 is the event T0 marks.`
 
-func runPhase(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runPhase(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("phase", phaseSynopsis)
 	sg := addSightingFlags(fl, "instant of observation, RFC 3339; UTC unless an offset is given")
 	ef := addEphemFlags(fl)
@@ -30,7 +30,7 @@ func runPhase(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	site, star, t, err := sg.read(time.Now)
+	site, star, t, err := sg.read(now)
 	if err != nil {
 		return err
 	}

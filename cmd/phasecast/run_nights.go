@@ -43,7 +43,7 @@ and nothing is read. The nights up to the last one in the log are over (or give
 --past N): they are not planned again, and the remaining nights are planned for
 what is still missing.`
 
-func runRun(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runRun(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("run", runSynopsis)
 	sf := addSiteFlags(fl)
 	tz := fl.text("tz", "ZONE", "", "IANA time zone of the site, e.g. America/Santiago or UTC; required")

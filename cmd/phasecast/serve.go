@@ -39,13 +39,13 @@ type serveConfig struct {
 }
 
 // runServe is the serve command.
-func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runServe(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	cfg, help, err := parseServe(args, stdout)
 	if help || err != nil {
 		return err
 	}
 	logger := newLogger(stderr, cfg.jsonLogs)
-	st, err := store.Open(ctx, cfg.db)
+	st, err := store.Open(ctx, cfg.db, now)
 	if err != nil {
 		return fmt.Errorf("open database %s: %w", cfg.db, err)
 	}
@@ -59,11 +59,11 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if base == "" {
 		base = "http://" + displayAddr(ln.Addr())
 	}
-	if err := firstStart(ctx, st, cfg, base, stdout); err != nil {
+	if err := firstStart(ctx, st, cfg, base, now, stdout); err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "phasecast: serving %s (database %s)\n", base, st.Path())
-	srv, err := web.New(web.Config{Store: st, Logger: logger, BaseURL: cfg.baseURL})
+	srv, err := web.New(web.Config{Store: st, Logger: logger, BaseURL: cfg.baseURL, Now: now})
 	if err != nil {
 		return err
 	}
@@ -114,7 +114,7 @@ func parseServe(args []string, stdout io.Writer) (serveConfig, bool, error) {
 // firstStart seeds the demo scenario into an empty database and prints
 // the owner's one-time sign-in link; on later starts it prints a link only
 // when --signin-link asks for one.
-func firstStart(ctx context.Context, st *store.Store, cfg serveConfig, base string, stdout io.Writer) error {
+func firstStart(ctx context.Context, st *store.Store, cfg serveConfig, base string, now func() time.Time, stdout io.Writer) error {
 	if cfg.linkFor != "" {
 		tok, err := st.CreateSignInLink(ctx, cfg.linkFor, time.Hour)
 		if err != nil {
@@ -131,7 +131,7 @@ func firstStart(ctx context.Context, st *store.Store, cfg serveConfig, base stri
 		fmt.Fprintln(stdout, "phasecast: the database is empty and --demo no was given; run with --demo yes to seed the demo scenario.")
 		return nil
 	}
-	info, err := st.SeedDemo(ctx, time.Now().UTC())
+	info, err := st.SeedDemo(ctx, now().UTC())
 	if err != nil {
 		return fmt.Errorf("seed the demo scenario: %w", err)
 	}

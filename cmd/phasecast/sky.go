@@ -32,14 +32,14 @@ sidereal time, hour angle, altitude (airless and refracted), azimuth (0 = north,
 90 = east), airmass, parallactic angle, and the Moon's altitude, phase and
 distance from the target. UT1 is taken equal to UTC.`
 
-func runSky(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runSky(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("sky", skySynopsis)
 	sg := addSightingFlags(fl, "instant, RFC 3339 (2026-12-01T03:00:00Z); UTC unless an offset is given")
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	site, star, t, err := sg.read(time.Now)
+	site, star, t, err := sg.read(now)
 	if err != nil {
 		return err
 	}

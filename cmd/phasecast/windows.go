@@ -33,7 +33,7 @@ uncertain,airmass_min,airmass_max,exposures), or ics (iCalendar, RFC 5545: one
 event per window, UTC times, stable UIDs; DTSTAMP is --stamp, default --from, so
 the same command gives the same file).`
 
-func runWindows(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runWindows(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("windows", windowsSynopsis)
 	sf := addSiteFlags(fl)
 	tz := fl.text("tz", "ZONE", "UTC", "IANA time zone for dates and local times, e.g. America/Santiago")
