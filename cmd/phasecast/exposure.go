@@ -142,7 +142,7 @@ func (fl instrumentFlags) read() (ephem.Detector, float64, float64, error) {
 	return d, k, dark, nil
 }
 
-func runExposure(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runExposure(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("exposure", exposureSynopsis)
 	sg := addSightingFlags(fl, "instant of the exposure, RFC 3339 (2026-12-01T03:00:00Z); UTC unless an offset is given")
 	mag := fl.text("mag", "MAG", "", "target magnitude in --band (−2..30); required")
@@ -154,7 +154,7 @@ func runExposure(ctx context.Context, args []string, stdout, stderr io.Writer) e
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	site, star, t, err := sg.read(time.Now)
+	site, star, t, err := sg.read(now)
 	if err != nil {
 		return err
 	}
