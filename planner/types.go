@@ -14,13 +14,17 @@ type Target struct {
 	DecDeg     float64 // ICRS declination, degrees, −90..90
 	PMRAmasyr  float64 // proper motion in RA × cos δ, mas/yr
 	PMDecmasyr float64 // proper motion in Dec, mas/yr
-	Mag        float64 // brightness for the observer's reference (0 = unknown)
-	Ephem      ephem.Ephemeris
-	Goals      []Goal
-	Priority   int     // 1 (highest) to 5
-	AcquireS   float64 // acquisition overhead per visit (slew, centring), s
-	Tags       []string
-	Notes      string
+	Mag        float64 // brightness, magnitudes in Band (0 = unknown when Band is empty)
+	// Band is the photometric band of Mag ("U" "B" "V" "R" "I" "g" "r"
+	// "i" "z"; "" = no brightness known). With an Instrument in the
+	// request, goals with an SNR size their exposures from it.
+	Band     string
+	Ephem    ephem.Ephemeris
+	Goals    []Goal
+	Priority int     // 1 (highest) to 5
+	AcquireS float64 // acquisition overhead per visit (slew, centring), s
+	Tags     []string
+	Notes    string
 }
 
 // Star returns the target's catalogue place for the ephem package.
@@ -45,6 +49,14 @@ type Goal struct {
 	// EclipseDurDays is the eclipse's full duration (first to last
 	// contact), days, for the events eclipse_ingress and eclipse_egress.
 	EclipseDurDays float64
+	// SNR, when positive, is the wanted signal-to-noise per exposure: with
+	// an Instrument in the request and a Band on the target, each block's
+	// exposure is sized for its own sky (SizeExposure) and ExposureS is
+	// used only without an instrument. 0..100000.
+	SNR float64
+	// MaxSmear is the most of the orbit one S/N-sized exposure may span,
+	// phase, 0 ≤ s < 0.5 (0: DefaultMaxSmear).
+	MaxSmear float64
 }
 
 // Twilight names the Sun altitude that closes the dark time.

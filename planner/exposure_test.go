@@ -1,0 +1,192 @@
+package planner
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+	"testing"
+	"time"
+
+	"phasecast/ephem"
+)
+
+// testInstrument is an invented 1.5 m telescope with a CCD.
+func testInstrument() *Instrument {
+	return &Instrument{
+		Name: "1.5 m imager", ApertureM: 1.5, Throughput: 0.3, ZeroPoints: map[string]float64{"R": 2.1e10},
+		ReadNoiseE: 5, DarkEPerSPix: 0.002, PixelArcsec: 0.35, SeeingArcsec: 1.1,
+	}
+}
+
+// snrNight is an invented site and an invented 88-minute binary on a night
+// with the target up all the dark time; each goal sizes its exposures for
+// S/N 40 in V.
+func snrNight(mag, snr float64) NightRequest {
+	site := ephem.Site{LatDeg: -27.85, LonEastDeg: -69.12, ElevM: 2650}
+	loc := time.FixedZone("local", -4*3600)
+	from, to := NightWindow(2026, 12, 1, loc)
+	t := Target{
+		Name: "SNR-1", RADeg: 63.14125, DecDeg: -12.80194, Priority: 1, AcquireS: 120, Band: "V", Mag: mag,
+		Ephem: ephem.Ephemeris{T0: ephem.NewJD2(2460500.4321987), PeriodDays: 0.0612345678, Convention: ephem.ConvInferiorConjunction},
+		Goals: []Goal{
+			{Center: 0.25, HalfWidth: 0.06, ExposureS: 60, OverheadS: 20, SNR: snr},
+			{Center: 0.75, HalfWidth: 0.06, ExposureS: 60, OverheadS: 20, SNR: snr},
+		},
+	}
+	return NightRequest{Site: site, From: from, To: to, Targets: []Target{t}, Constraints: DefaultConstraints(), Instrument: testInstrument()}
+}
+
+// TestPlanSizesExposuresBySNR: each block's exposure is sized for its own
+// window's sky, stays within the smear limit, and the block reports the S/N
+// per exposure and sky brightness at its middle as ephem computes them.
+func TestPlanSizesExposuresBySNR(t *testing.T) {
+	req := snrNight(17.5, 40)
+	p, err := PlanNight(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkPlanRules(t, req, p)
+	tg := req.Targets[0]
+	limit := DefaultMaxSmear * tg.Ephem.PeriodDays * 86400
+	distinct := map[float64]bool{}
+	det, k, dark, err := req.Instrument.detector(ephem.BandV)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, b := range p.Blocks {
+		if !b.SizedBySNR || !b.SNROK {
+			t.Fatalf("block at %s not sized by S/N: %+v", b.Start.Format(time.RFC3339), b)
+		}
+		if b.ExposureS > limit+1e-9 || b.ExposureS == 60 {
+			t.Errorf("block at %s: exposure %g s (smear limit %g s; the typed 60 s must not be used)", b.Start.Format(time.RFC3339), b.ExposureS, limit)
+		}
+		mid := b.Start.Add(b.End.Sub(b.Start) / 2)
+		e, err := ephem.ExposureAt(req.Site, tg.Star(), mid, det, k, dark, tg.Mag)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got, want := b.SNR, e.Rates.SNR(b.ExposureS); math.Abs(got-want) > 1e-9*want {
+			t.Errorf("block S/N %g, ephem gives %g", got, want)
+		}
+		if b.SkyMag != e.Sky.Mag {
+			t.Errorf("block sky %g, ephem gives %g", b.SkyMag, e.Sky.Mag)
+		}
+		// Sized within the same window, the S/N at the block's middle
+		// stays near the goal (the sky and airmass change little over a
+		// 10-minute window of this orbit).
+		if math.Abs(b.SNR-40) > 4 {
+			t.Errorf("block at %s: S/N %.2f per exposure, goal 40", b.Start.Format(time.RFC3339), b.SNR)
+		}
+		distinct[math.Round(b.ExposureS*100)] = true
+	}
+	if len(p.Blocks) < 3 || len(distinct) < 3 {
+		t.Errorf("%d blocks with %d distinct exposures: want exposures that vary through the night", len(p.Blocks), len(distinct))
+	}
+}
+
+// TestPlanSNRUnreachable: a goal whose S/N needs more than the smear limit
+// everywhere is listed with that reason and the best S/N reachable.
+func TestPlanSNRUnreachable(t *testing.T) {
+	req := snrNight(23, 100)
+	p, err := PlanNight(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(p.Blocks) != 0 || len(p.Unscheduled) != 2 {
+		t.Fatalf("%d blocks, %d unscheduled; want 0 and 2", len(p.Blocks), len(p.Unscheduled))
+	}
+	for _, u := range p.Unscheduled {
+		if u.Reason != UnschedSNRUnreachable || !strings.Contains(u.Detail, "best S/N reachable is") || !strings.Contains(u.Detail, "smear limit of 0.02") {
+			t.Errorf("unscheduled %+v", u)
+		}
+	}
+	// The best S/N quoted is what the smear-limited exposure gives under
+	// the best sky of the night: below the goal, and above what the worst
+	// occurrence would give.
+	sh := p.Unscheduled[0].Detail
+	i := strings.LastIndex(sh, " ")
+	var best float64
+	if _, err := fmt.Sscan(sh[i+1:], &best); err != nil || best <= 0 || best >= 100 {
+		t.Errorf("best S/N %q (%v) not in 0..100", sh[i+1:], err)
+	}
+}
+
+// TestPlanWithoutInstrumentUnchanged: an S/N goal without an instrument uses
+// its typed exposure, and a band without an S/N goal keeps the typed
+// exposure but gains the S/N figure.
+func TestPlanWithoutInstrumentUnchanged(t *testing.T) {
+	req := snrNight(17.5, 40)
+	req.Instrument = nil
+	p, err := PlanNight(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, b := range p.Blocks {
+		if b.ExposureS != 60 || b.SizedBySNR || b.SNROK {
+			t.Fatalf("without an instrument: %+v", b)
+		}
+	}
+	req = snrNight(17.5, 0)
+	p, err = PlanNight(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(p.Blocks) == 0 {
+		t.Fatal("no blocks")
+	}
+	for _, b := range p.Blocks {
+		if b.ExposureS != 60 || b.SizedBySNR || !b.SNROK || b.SNR <= 0 {
+			t.Fatalf("typed exposure with an instrument: %+v", b)
+		}
+	}
+}
+
+func TestSizeExposureCapsAtSmear(t *testing.T) {
+	req := snrNight(17.5, 40)
+	tg := req.Targets[0]
+	at := time.Date(2026, 12, 2, 4, 30, 0, 0, time.UTC)
+	s, err := SizeExposure(req.Site, tg, tg.Goals[0], *req.Instrument, at)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !s.Reached || math.Abs(s.SNR-40) > 1e-9 || s.ExposureS != s.NeededS {
+		t.Errorf("reachable goal: %+v", s)
+	}
+	g := tg.Goals[0]
+	g.MaxSmear = 0.5 * s.ExposureS / (tg.Ephem.PeriodDays * 86400)
+	c, err := SizeExposure(req.Site, tg, g, *req.Instrument, at)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.Reached || math.Abs(c.ExposureS-0.5*s.ExposureS) > 1e-9 || c.SNR >= 40 || math.Abs(c.NeededS-s.NeededS) > 1e-9 {
+		t.Errorf("capped at half: %+v (uncapped %+v)", c, s)
+	}
+}
+
+func TestSNRInputErrors(t *testing.T) {
+	cases := []struct {
+		name  string
+		edit  func(*NightRequest)
+		field string
+	}{
+		{"unknown band", func(r *NightRequest) { r.Targets[0].Band = "H" }, `targets[0] "SNR-1".band`},
+		{"magnitude too faint", func(r *NightRequest) { r.Targets[0].Mag = 31 }, `targets[0] "SNR-1".mag`},
+		{"negative snr", func(r *NightRequest) { r.Targets[0].Goals[1].SNR = -3 }, `targets[0] "SNR-1".goals[1].snr`},
+		{"snr without band", func(r *NightRequest) { r.Targets[0].Band = "" }, `targets[0] "SNR-1".goals[0].snr`},
+		{"smear too large", func(r *NightRequest) { r.Targets[0].Goals[0].MaxSmear = 0.5 }, `targets[0] "SNR-1".goals[0].max_smear`},
+		{"zero aperture", func(r *NightRequest) { r.Instrument.ApertureM = 0 }, "instrument.aperture"},
+		{"instrument band", func(r *NightRequest) { r.Instrument.Extinction = map[string]float64{"Q": 0.1} }, "instrument.band"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			req := snrNight(17.5, 40)
+			c.edit(&req)
+			_, err := PlanNight(req)
+			var ie *ephem.InputError
+			if !errors.As(err, &ie) || ie.Field != c.field || ie.Value == "" || ie.Accepted == "" {
+				t.Fatalf("err = %v, want an InputError on %s", err, c.field)
+			}
+		})
+	}
+}
