@@ -14,7 +14,10 @@ type Target struct {
 	DecDeg     float64 // ICRS declination, degrees, −90..90
 	PMRAmasyr  float64 // proper motion in RA × cos δ, mas/yr
 	PMDecmasyr float64 // proper motion in Dec, mas/yr
-	Mag        float64 // brightness, magnitudes in Band (0 = unknown when Band is empty)
+	// CoordEpochJY is the Julian epoch of RADeg and DecDeg (2016.0 for
+	// J2016.0); 0 means J2000.0. Proper motion is applied from it.
+	CoordEpochJY float64
+	Mag          float64 // brightness, magnitudes in Band (0 = unknown when Band is empty)
 	// Band is the photometric band of Mag ("U" "B" "V" "R" "I" "g" "r"
 	// "i" "z"; "" = no brightness known). With an Instrument in the
 	// request, goals with an SNR size their exposures from it.
@@ -29,7 +32,7 @@ type Target struct {
 
 // Star returns the target's catalogue place for the ephem package.
 func (t Target) Star() ephem.Star {
-	return ephem.Star{RADeg: t.RADeg, DecDeg: t.DecDeg, PMRAmasyr: t.PMRAmasyr, PMDecmasyr: t.PMDecmasyr}
+	return ephem.Star{RADeg: t.RADeg, DecDeg: t.DecDeg, PMRAmasyr: t.PMRAmasyr, PMDecmasyr: t.PMDecmasyr, EpochJY: t.CoordEpochJY}
 }
 
 // Goal is a wanted orbital-phase window for a target with its exposure setup.

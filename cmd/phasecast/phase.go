@@ -15,6 +15,8 @@ type phaseJSON struct {
 	Cycle    int64   `json:"cycle"`     // floor((BJD_TDB − T0)/P) for a linear ephemeris
 	Phase    float64 `json:"phase"`     // 0 ≤ phase < 1, from T0
 	PhaseErr float64 `json:"phase_err"` // 1σ, in phase
+	// TimeScaleNote: see skyJSON.
+	TimeScaleNote string `json:"time_scale_note,omitempty"`
 }
 
 const phaseSynopsis = `The orbital cycle and phase of a binary at an instant: the instant is turned
@@ -46,7 +48,7 @@ func runPhase(ctx context.Context, now func() time.Time, args []string, stdout, 
 	if err != nil {
 		return fromInputError(err, "has no orbital phase", map[string]*textValue{"bjd": sg.at})
 	}
-	out := phaseJSON{BJDTDB: jdValue(b.BJDTDB), Cycle: cycle, Phase: ph, PhaseErr: e.PhaseErr(b.BJDTDB)}
+	out := phaseJSON{BJDTDB: jdValue(b.BJDTDB), Cycle: cycle, Phase: ph, PhaseErr: e.PhaseErr(b.BJDTDB), TimeScaleNote: ephem.TimeScaleNote(t)}
 	if err := checkFinite([]string{"phase", "phase uncertainty"}, out.Phase, out.PhaseErr); err != nil {
 		return err
 	}
@@ -63,6 +65,9 @@ func runPhase(ctx context.Context, now func() time.Time, args []string, stdout, 
 	tb.row("cycle", fmt.Sprint(out.Cycle))
 	tb.row("phase", f(out.Phase, 5), fmt.Sprintf("± %.5f (1σ, %.1f s)", out.PhaseErr, out.PhaseErr*e.PeriodDays*86400))
 	if err := tb.flush(); err != nil {
+		return err
+	}
+	if err := printTimeScaleNote(stdout, out.TimeScaleNote); err != nil {
 		return err
 	}
 	_, err = fmt.Fprintln(stdout, safetyNote)

@@ -25,6 +25,10 @@ type skyJSON struct {
 	MoonAltDeg      float64  `json:"moon_alt_deg"`
 	MoonIlluminated float64  `json:"moon_illuminated"`
 	MoonSepDeg      float64  `json:"moon_sep_deg"`
+	// TimeScaleNote is ephem.TimeScaleNote: present only when TT − UTC rests
+	// on an assumption beyond the tables (after the leap-second table's end,
+	// before 1960).
+	TimeScaleNote string `json:"time_scale_note,omitempty"`
 }
 
 const skySynopsis = `Where a target, the Sun and the Moon stand, seen from a site at one instant:
@@ -59,6 +63,7 @@ func runSky(ctx context.Context, now func() time.Time, args []string, stdout, st
 		ParallacticDeg: p.ParallacticDeg,
 		SunAltDeg:      p.SunAltDeg, MoonAltDeg: p.MoonAltDeg,
 		MoonIlluminated: p.MoonIlluminated, MoonSepDeg: p.MoonSepDeg,
+		TimeScaleNote: ephem.TimeScaleNote(t),
 	}
 	if p.AirmassOK && finite(p.Airmass) {
 		am := p.Airmass
@@ -92,6 +97,9 @@ func printSky(w io.Writer, site ephem.Site, star ephem.Star, t time.Time, o skyJ
 	tb.row("Moon illuminated", f(o.MoonIlluminated*100, 1)+" %")
 	tb.row("Moon–target", f(o.MoonSepDeg, 2)+"°")
 	if err := tb.flush(); err != nil {
+		return err
+	}
+	if err := printTimeScaleNote(w, o.TimeScaleNote); err != nil {
 		return err
 	}
 	_, err := fmt.Fprintln(w, safetyNote)
