@@ -190,3 +190,43 @@ func TestSNRInputErrors(t *testing.T) {
 		})
 	}
 }
+
+func TestTargetsCSVBrightnessColumns(t *testing.T) {
+	const head = "name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority,band,mag,snr,max_smear\n"
+	good := head +
+		"SNR-1,04:12:33.9,-12:48:07,2460500.4321987,0.0612345678,0.25;0.75,0.06,60,20,1,V,17.5,40,0.015\n" +
+		"SNR-2,04:20:00,-10:00:00,2460500.1,0.2,0.5,0.05,120,20,2,,,,\n"
+	ts, err := ParseTargetsCSV(strings.NewReader(good))
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, b := ts[0], ts[1]
+	if a.Band != "V" || a.Mag != 17.5 || len(a.Goals) != 2 || a.Goals[1].SNR != 40 || a.Goals[1].MaxSmear != 0.015 {
+		t.Errorf("row 1 = %+v", a)
+	}
+	if b.Band != "" || b.Mag != 0 || b.Goals[0].SNR != 0 || b.Goals[0].MaxSmear != 0 {
+		t.Errorf("row 2 (empty optional cells) = %+v", b)
+	}
+	bad := head +
+		"B-1,04:12:33.9,-12:48:07,2460500.4321987,0.06,0.25,0.06,60,20,1,H,17.5,,\n" +
+		"B-2,04:12:33.9,-12:48:07,2460500.4321987,0.06,0.25,0.06,60,20,1,V,31,,\n" +
+		"B-3,04:12:33.9,-12:48:07,2460500.4321987,0.06,0.25,0.06,60,20,1,,,50,\n" +
+		"B-4,04:12:33.9,-12:48:07,2460500.4321987,0.06,0.25,0.06,60,20,1,V,15,50,0.6\n"
+	_, err = ParseTargetsCSV(strings.NewReader(bad))
+	var te *TableError
+	if !errors.As(err, &te) {
+		t.Fatalf("err = %v, want a TableError", err)
+	}
+	want := map[string]int{"band": 2, "mag": 3, "snr": 4, "max_smear": 5}
+	for column, line := range want {
+		found := false
+		for _, c := range te.Cells {
+			if c.Column == column && c.Line == line && c.Reason != "" {
+				found = true
+			}
+		}
+		if !found {
+			t.Errorf("no error for %s on line %d in %v", column, line, te.Cells)
+		}
+	}
+}
