@@ -40,10 +40,10 @@ type Instrument struct {
 	DarkSky          map[string]float64 // dark-sky zenith brightness per band, mag/arcsec² (missing: ephem's default)
 }
 
-// detector returns the instrument in band b with that band's extinction
-// and dark-sky brightness, or an *ephem.InputError naming the instrument's
-// bad field.
-func (in Instrument) detector(b ephem.Band) (ephem.Detector, float64, float64, error) {
+// Detector returns the instrument in band b with that band's extinction
+// (mag/airmass) and dark-sky zenith brightness (mag/arcsec²), the defaults
+// filled in, or an *ephem.InputError naming the instrument's bad field.
+func (in Instrument) Detector(b ephem.Band) (ephem.Detector, float64, float64, error) {
 	d := ephem.Detector{
 		Band: b, ApertureM: in.ApertureM, ZeroPointEPerS: in.ZeroPoints[string(b)], Throughput: in.Throughput,
 		ReadNoiseE: in.ReadNoiseE, DarkEPerSPix: in.DarkEPerSPix, PixelArcsec: in.PixelArcsec,
@@ -98,7 +98,7 @@ func (in Instrument) Validate() error {
 	}
 	sort.Strings(bands)
 	for _, name := range bands {
-		if _, _, _, err := in.detector(ephem.Band(name)); err != nil {
+		if _, _, _, err := in.Detector(ephem.Band(name)); err != nil {
 			return err
 		}
 	}
@@ -144,15 +144,16 @@ type ExposureSizing struct {
 // SizeExposure computes the exposure goal g of target t needs at instant
 // at (UTC) from site with instrument in: the exposure that reaches g.SNR
 // under that instant's sky (ephem.ExposureAt, ephem.CCDRates.ExposureForSNR)
-// in the target's band, capped at g.MaxSmear (default DefaultMaxSmear) of
-// the orbital period. It fails with an *ephem.InputError when the target is
+// in the target's band, rounded up to a tenth of a second (as shutter times
+// are set; kept unrounded when the rounding would pass the limit) and capped
+// at g.MaxSmear (default DefaultMaxSmear) of the orbital period. It fails with an *ephem.InputError when the target is
 // below the horizon, the Sun up, or an input out of range.
 func SizeExposure(site ephem.Site, t Target, g Goal, in Instrument, at time.Time) (ExposureSizing, error) {
 	b, err := ephem.ParseBand(t.Band)
 	if err != nil {
 		return ExposureSizing{}, err
 	}
-	d, k, dark, err := in.detector(b)
+	d, k, dark, err := in.Detector(b)
 	if err != nil {
 		return ExposureSizing{}, err
 	}
@@ -168,6 +169,8 @@ func SizeExposure(site ephem.Site, t Target, g Goal, in Instrument, at time.Time
 	s := ExposureSizing{ExposureS: want, SkyMag: e.Sky.Mag, Airmass: e.Point.Airmass, Reached: true, LimitS: limit, NeededS: want}
 	if want > limit {
 		s.ExposureS, s.Reached = limit, false
+	} else if up := math.Ceil(want*10) / 10; up <= limit {
+		s.ExposureS = up // a shutter time in tenths of a second, never below the S/N
 	}
 	s.SNR = e.Rates.SNR(s.ExposureS)
 	return s, nil
@@ -185,7 +188,7 @@ func snrAt(site ephem.Site, t Target, in *Instrument, exposureS float64, at time
 	if err != nil {
 		return 0, 0, false
 	}
-	d, k, dark, err := in.detector(b)
+	d, k, dark, err := in.Detector(b)
 	if err != nil {
 		return 0, 0, false
 	}

@@ -50,7 +50,7 @@ func TestPlanSizesExposuresBySNR(t *testing.T) {
 	tg := req.Targets[0]
 	limit := DefaultMaxSmear * tg.Ephem.PeriodDays * 86400
 	distinct := map[float64]bool{}
-	det, k, dark, err := req.Instrument.detector(ephem.BandV)
+	det, k, dark, err := req.Instrument.Detector(ephem.BandV)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -150,7 +150,7 @@ func TestSizeExposureCapsAtSmear(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !s.Reached || math.Abs(s.SNR-40) > 1e-9 || s.ExposureS != s.NeededS {
+	if !s.Reached || s.SNR < 40 || s.SNR > 40.5 || s.ExposureS < s.NeededS || s.ExposureS-s.NeededS >= 0.1 || math.Abs(s.ExposureS*10-math.Round(s.ExposureS*10)) > 1e-9 {
 		t.Errorf("reachable goal: %+v", s)
 	}
 	g := tg.Goals[0]
@@ -159,7 +159,7 @@ func TestSizeExposureCapsAtSmear(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if c.Reached || math.Abs(c.ExposureS-0.5*s.ExposureS) > 1e-9 || c.SNR >= 40 || math.Abs(c.NeededS-s.NeededS) > 1e-9 {
+	if c.Reached || math.Abs(c.ExposureS-c.LimitS) > 1e-9 || c.SNR >= 40 || math.Abs(c.NeededS-s.NeededS) > 1e-9 {
 		t.Errorf("capped at half: %+v (uncapped %+v)", c, s)
 	}
 }

@@ -4,9 +4,11 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"strings"
 	"time"
 
 	"phasecast/ephem"
+	"phasecast/planner"
 )
 
 // exposureJSON is the `exposure --json` contract (docs/exposure.md). A sky
@@ -48,57 +50,46 @@ The sky is the dark sky rising with airmass plus scattered moonlight (Krisciunas
 Schaefer 1991) plus twilight (Schaefer 1998); S/N is the CCD equation (Howell 2006).
 Defaults marked "common practice" are typical values, not your site's: give your own.`
 
-// instrumentFlags are the telescope, detector and sky flags of exposure.
-type instrumentFlags struct {
-	band, aperture, zeroPoint, throughput, readNoise, dark, pixel, radius, slitWidth, slitLength, seeing, extinction, darkSky *textValue
+// opticsFlags are the band-independent telescope and detector flags, shared
+// by exposure and plan.
+type opticsFlags struct {
+	aperture, throughput, readNoise, dark, pixel, radius, slitWidth, slitLength, seeing *textValue
 }
 
-func addInstrumentFlags(fl *flags) instrumentFlags {
-	return instrumentFlags{
-		band:       fl.text("band", "BAND", "V", "photometric band of --mag: "+ephem.BandNames+" (UBVRI Vega, griz AB)"),
-		aperture:   fl.text("aperture-m", "M", "", "telescope clear aperture diameter, metres (0 < D ≤ 50); required"),
-		zeroPoint:  fl.text("zero-point", "E/S", "", "detected e⁻/s from a 0-mag star above the atmosphere in the band, all its light; or give --throughput"),
-		throughput: fl.text("throughput", "FRACTION", "", "total efficiency of telescope, instrument and detector, 0..1, used without --zero-point"),
+func addOpticsFlags(fl *flags, apertureUsage string) opticsFlags {
+	return opticsFlags{
+		aperture:   fl.text("aperture-m", "M", "", apertureUsage),
+		throughput: fl.text("throughput", "FRACTION", "", "total efficiency of telescope, instrument and detector, 0..1, for bands without a zero point"),
 		readNoise:  fl.text("read-noise", "E", "5", "read noise, e⁻ rms per pixel (common practice for a scientific CCD)"),
 		dark:       fl.text("dark", "E/S", "0.002", "dark current, e⁻/s per pixel (common practice for a cooled CCD)"),
-		pixel:      fl.text("pixel-scale", "ARCSEC", "", "pixel scale, arcsec per pixel (0.01..100); required"),
+		pixel:      fl.text("pixel-scale", "ARCSEC", "", "pixel scale, arcsec per pixel (0.01..100); required with --aperture-m"),
 		radius:     fl.text("radius", "ARCSEC", "seeing FWHM", "radius of the circular extraction aperture, arcsec (common practice: ≈ FWHM, 94% of a Gaussian star)"),
 		slitWidth:  fl.text("slit-width", "ARCSEC", "", "slit width, arcsec: extract a slit instead of a circle"),
 		slitLength: fl.text("slit-length", "ARCSEC", "2 × FWHM", "length extracted along the slit, arcsec"),
 		seeing:     fl.text("seeing", "ARCSEC", "1.0", "seeing FWHM, arcsec (0.1..20; common practice for a good site)"),
-		extinction: fl.text("extinction", "MAG", "band's", "extinction coefficient in the band, mag/airmass (common practice: U 0.55 B 0.25 V 0.15 R 0.10 I 0.07 g 0.20 r 0.12 i 0.08 z 0.06)"),
-		darkSky:    fl.text("sky-dark", "MAG", "band's", "dark-sky zenith brightness in the band, mag/arcsec² (defaults: UBVRI 22.3 22.6 21.6 20.9 19.7, Patat 2003; griz 22.0 21.1 20.3 19.0, common practice)"),
 	}
 }
 
-// read parses the instrument flags into a detector, the extinction and the
-// dark-sky zenith brightness.
-func (fl instrumentFlags) read() (ephem.Detector, float64, float64, error) {
-	var d ephem.Detector
-	band := "V"
-	if fl.band.set {
-		band = fl.band.value
+// given reports whether any of the flags was given.
+func (o opticsFlags) given() bool {
+	for _, v := range []*textValue{o.aperture, o.throughput, o.readNoise, o.dark, o.pixel, o.radius, o.slitWidth, o.slitLength, o.seeing} {
+		if v.set {
+			return true
+		}
 	}
-	b, err := ephem.ParseBand(band)
-	if err != nil {
-		return d, 0, 0, fromInputError(err, "unknown band", map[string]*textValue{"band": fl.band})
+	return false
+}
+
+// read parses the flags into an instrument without zero points, extinction
+// or dark-sky values (the caller adds those per band).
+func (o opticsFlags) read() (planner.Instrument, error) {
+	var in planner.Instrument
+	var err error
+	if in.ApertureM, err = number(o.aperture, true, 0, 1e-3, 50, "0 < aperture ≤ 50 metres"); err != nil {
+		return in, err
 	}
-	d.Band = b
-	if d.ApertureM, err = number(fl.aperture, true, 0, 1e-3, 50, "0 < aperture ≤ 50 metres"); err != nil {
-		return d, 0, 0, err
-	}
-	switch {
-	case fl.zeroPoint.set && fl.throughput.set:
-		return d, 0, 0, usageErrorf("--zero-point and --throughput: give one of them, not both")
-	case fl.zeroPoint.set:
-		d.ZeroPointEPerS, err = number(fl.zeroPoint, true, 0, 1e-6, 1e14, "0 < e⁻/s ≤ 1e14")
-	case fl.throughput.set:
-		d.Throughput, err = number(fl.throughput, true, 0, 1e-6, 1, "0 < throughput ≤ 1")
-	default:
-		return d, 0, 0, usageErrorf("missing --zero-point E/S or --throughput FRACTION: the detected e⁻/s of a 0-mag star, or the total efficiency")
-	}
-	if err != nil {
-		return d, 0, 0, err
+	if in.Throughput, err = number(o.throughput, false, 0, 1e-6, 1, "0 < throughput ≤ 1"); err != nil {
+		return in, err
 	}
 	steps := []struct {
 		v        *textValue
@@ -108,36 +99,94 @@ func (fl instrumentFlags) read() (ephem.Detector, float64, float64, error) {
 		lo, hi   float64
 		accepted string
 	}{
-		{fl.readNoise, &d.ReadNoiseE, false, 5, 0, 1000, "0..1000 e⁻ rms per pixel"},
-		{fl.dark, &d.DarkEPerSPix, false, 0.002, 0, 10000, "0..10000 e⁻/s per pixel"},
-		{fl.pixel, &d.PixelArcsec, true, 0, 0.01, 100, "0.01..100 arcsec per pixel"},
-		{fl.seeing, &d.SeeingArcsec, false, 1.0, 0.1, 20, "0.1..20 arcsec FWHM"},
+		{o.readNoise, &in.ReadNoiseE, false, 5, 0, 1000, "0..1000 e⁻ rms per pixel"},
+		{o.dark, &in.DarkEPerSPix, false, 0.002, 0, 10000, "0..10000 e⁻/s per pixel"},
+		{o.pixel, &in.PixelArcsec, true, 0, 0.01, 100, "0.01..100 arcsec per pixel"},
+		{o.seeing, &in.SeeingArcsec, false, 1.0, 0.1, 20, "0.1..20 arcsec FWHM"},
+		{o.radius, &in.RadiusArcsec, false, 0, 0.05, 600, "0.05..600 arcsec"},
+		{o.slitWidth, &in.SlitWidthArcsec, false, 0, 0.05, 600, "0.05..600 arcsec"},
+		{o.slitLength, &in.SlitLengthArcsec, false, 0, 0.05, 600, "0.05..600 arcsec"},
 	}
 	for _, s := range steps {
 		if *s.dst, err = number(s.v, s.required, s.def, s.lo, s.hi, s.accepted); err != nil {
-			return d, 0, 0, err
+			return in, err
 		}
 	}
-	if fl.slitWidth.set {
-		if fl.radius.set {
-			return d, 0, 0, usageErrorf("--radius and --slit-width: give a circular aperture or a slit, not both")
+	switch {
+	case o.slitWidth.set && o.radius.set:
+		return in, usageErrorf("--radius and --slit-width: give a circular aperture or a slit, not both")
+	case o.slitLength.set && !o.slitWidth.set:
+		return in, usageErrorf("--slit-length %s: a slit length needs --slit-width", shown(o.slitLength.value))
+	}
+	return in, nil
+}
+
+// instrumentFlags are exposure's instrument flags: the optics and, for its
+// one band, the zero point, extinction and dark sky.
+type instrumentFlags struct {
+	optics                               opticsFlags
+	band, zeroPoint, extinction, darkSky *textValue
+}
+
+func addInstrumentFlags(fl *flags) instrumentFlags {
+	return instrumentFlags{
+		band:       fl.text("band", "BAND", "V", "photometric band of --mag: "+ephem.BandNames+" (UBVRI Vega, griz AB)"),
+		optics:     addOpticsFlags(fl, "telescope clear aperture diameter, metres (0 < D ≤ 50); required"),
+		zeroPoint:  fl.text("zero-point", "E/S", "", "detected e⁻/s from a 0-mag star above the atmosphere in the band, all its light; or give --throughput"),
+		extinction: fl.text("extinction", "MAG", "band's", "extinction coefficient in the band, mag/airmass (common practice: "+defaultExtinctions()+")"),
+		darkSky:    fl.text("sky-dark", "MAG", "band's", "dark-sky zenith brightness in the band, mag/arcsec² (defaults: UBVRI 22.3 22.6 21.6 20.9 19.7, Patat 2003; griz 22.0 21.1 20.3 19.0, common practice)"),
+	}
+}
+
+// defaultExtinctions lists ephem's default extinction per band.
+func defaultExtinctions() string {
+	var parts []string
+	for _, b := range strings.Split("U B V R I g r i z", " ") {
+		parts = append(parts, b+" "+f(ephem.Band(b).DefaultExtinction(), 2))
+	}
+	return strings.Join(parts, " ")
+}
+
+// read parses the instrument flags into a detector, the extinction and the
+// dark-sky zenith brightness in the band.
+func (fl instrumentFlags) read() (ephem.Detector, float64, float64, error) {
+	band := "V"
+	if fl.band.set {
+		band = fl.band.value
+	}
+	b, err := ephem.ParseBand(band)
+	if err != nil {
+		return ephem.Detector{}, 0, 0, fromInputError(err, "unknown band", map[string]*textValue{"band": fl.band})
+	}
+	in, err := fl.optics.read()
+	if err != nil {
+		return ephem.Detector{}, 0, 0, err
+	}
+	switch {
+	case fl.zeroPoint.set && fl.optics.throughput.set:
+		return ephem.Detector{}, 0, 0, usageErrorf("--zero-point and --throughput: give one of them, not both")
+	case fl.zeroPoint.set:
+		zp, err := number(fl.zeroPoint, true, 0, 1e-6, 1e14, "0 < e⁻/s ≤ 1e14")
+		if err != nil {
+			return ephem.Detector{}, 0, 0, err
 		}
-		if d.SlitWidthArcsec, err = number(fl.slitWidth, true, 0, 0.05, 600, "0.05..600 arcsec"); err != nil {
-			return d, 0, 0, err
-		}
-		if d.SlitLengthArcsec, err = number(fl.slitLength, false, 2*d.SeeingArcsec, 0.05, 600, "0.05..600 arcsec"); err != nil {
-			return d, 0, 0, err
-		}
-	} else if d.RadiusArcsec, err = number(fl.radius, false, d.SeeingArcsec, 0.05, 600, "0.05..600 arcsec"); err != nil {
-		return d, 0, 0, err
+		in.ZeroPoints = map[string]float64{string(b): zp}
+	case !fl.optics.throughput.set:
+		return ephem.Detector{}, 0, 0, usageErrorf("missing --zero-point E/S or --throughput FRACTION: the detected e⁻/s of a 0-mag star, or the total efficiency")
 	}
 	k, err := number(fl.extinction, false, b.DefaultExtinction(), 1e-6, 2, "0 < k ≤ 2 mag/airmass")
 	if err != nil {
-		return d, 0, 0, err
+		return ephem.Detector{}, 0, 0, err
 	}
 	dark, err := number(fl.darkSky, false, b.DefaultDarkZenithMag(), 10, 25, "10..25 mag/arcsec²")
 	if err != nil {
-		return d, 0, 0, err
+		return ephem.Detector{}, 0, 0, err
+	}
+	in.Extinction = map[string]float64{string(b): k}
+	in.DarkSky = map[string]float64{string(b): dark}
+	d, k, dark, err := in.Detector(b)
+	if err != nil {
+		return ephem.Detector{}, 0, 0, fromInputError(err, "not accepted", nil)
 	}
 	return d, k, dark, nil
 }
@@ -274,3 +323,82 @@ func printExposure(w io.Writer, site ephem.Site, star ephem.Star, o exposureJSON
 
 // g4 formats a positive rate with 4 significant digits.
 func g4(x float64) string { return fmt.Sprintf("%.4g", x) }
+
+// planInstrumentFlags are plan's instrument flags: the optics and, per band,
+// zero points, extinction and dark sky as BAND=VALUE lists.
+type planInstrumentFlags struct {
+	optics                          opticsFlags
+	zeroPoints, extinction, darkSky *textValue
+}
+
+func addPlanInstrumentFlags(fl *flags) planInstrumentFlags {
+	return planInstrumentFlags{
+		optics:     addOpticsFlags(fl, "telescope clear aperture diameter, metres (0 < D ≤ 50): with it, goals with an snr get exposures sized by S/N (docs/exposure.md)"),
+		zeroPoints: fl.text("zero-point", "BAND=E/S,…", "", "detected e⁻/s from a 0-mag star above the atmosphere, per band (V=4.7e9,R=5.2e9); bands without one use --throughput"),
+		extinction: fl.text("extinction", "BAND=MAG,…", "band's", "extinction coefficients per band, mag/airmass (common practice: "+defaultExtinctions()+")"),
+		darkSky:    fl.text("sky-dark", "BAND=MAG,…", "band's", "dark-sky zenith brightness per band, mag/arcsec² (defaults in docs/exposure.md)"),
+	}
+}
+
+// read returns the instrument, or nil when none of its flags was given.
+func (fl planInstrumentFlags) read() (*planner.Instrument, error) {
+	if !fl.optics.given() && !fl.zeroPoints.set && !fl.extinction.set && !fl.darkSky.set {
+		return nil, nil
+	}
+	if !fl.optics.aperture.set {
+		return nil, missing(fl.optics.aperture)
+	}
+	in, err := fl.optics.read()
+	if err != nil {
+		return nil, err
+	}
+	lists := []struct {
+		v        *textValue
+		dst      *map[string]float64
+		lo, hi   float64
+		accepted string
+	}{
+		{fl.zeroPoints, &in.ZeroPoints, 1e-6, 1e14, "BAND=E/S pairs separated by commas, 0 < E/S ≤ 1e14, bands " + ephem.BandNames},
+		{fl.extinction, &in.Extinction, 1e-6, 2, "BAND=MAG pairs separated by commas, 0 < k ≤ 2, bands " + ephem.BandNames},
+		{fl.darkSky, &in.DarkSky, 10, 25, "BAND=MAG pairs separated by commas, 10..25 mag/arcsec², bands " + ephem.BandNames},
+	}
+	for _, l := range lists {
+		if !l.v.set {
+			continue
+		}
+		m, ok := bandValues(l.v.value, l.lo, l.hi)
+		if !ok {
+			return nil, fieldError(l.v, "not accepted", l.accepted)
+		}
+		*l.dst = m
+	}
+	if len(in.ZeroPoints) == 0 && in.Throughput == 0 {
+		return nil, usageErrorf("missing --zero-point BAND=E/S,… or --throughput FRACTION: the detected e⁻/s of a 0-mag star, or the total efficiency")
+	}
+	if err := in.Validate(); err != nil {
+		return nil, fromInputError(err, "not accepted", nil)
+	}
+	return &in, nil
+}
+
+// bandValues parses "V=4.7e9,R=5.2e9": known bands, each once, values in
+// lo..hi.
+func bandValues(s string, lo, hi float64) (map[string]float64, bool) {
+	out := map[string]float64{}
+	for _, part := range strings.Split(s, ",") {
+		name, val, ok := strings.Cut(strings.TrimSpace(part), "=")
+		if !ok {
+			return nil, false
+		}
+		b, err := ephem.ParseBand(name)
+		if err != nil {
+			return nil, false
+		}
+		x, ok := parseNumber(val)
+		if _, dup := out[string(b)]; !ok || dup || x < lo || x > hi {
+			return nil, false
+		}
+		out[string(b)] = x
+	}
+	return out, true
+}

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/json"
 	"math"
 	"strings"
 	"testing"
@@ -135,5 +136,86 @@ func TestExposureBelowHorizon(t *testing.T) {
 	_, stderr, code := runCmd(t, argv...)
 	if code != exitUsage || !strings.Contains(stderr, "altitude -34.66°") || !strings.Contains(stderr, "above the horizon") {
 		t.Errorf("exit %d, stderr %q", code, stderr)
+	}
+}
+
+// snrPlanCSV is an invented 88-minute binary with an S/N goal and a second,
+// faint one whose S/N the smear limit never allows.
+const snrPlanCSV = `name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority,band,mag,snr,max_smear
+SNR-A,04:12:33.9,-12:48:07,2460500.4321987,0.0612345678,0.25;0.75,0.06,60,20,1,V,17.5,40,
+SNR-B,04:20:00,-10:00:00,2460500.1,0.0612345678,0.5,0.05,60,20,2,V,23,100,0.02
+`
+
+var planInstrumentArgs = []string{"--aperture-m", "1.5", "--throughput", "0.3", "--pixel-scale", "0.35", "--seeing", "1.1"}
+
+// TestPlanSizesBySNR: with an instrument, plan sizes the S/N goal's blocks,
+// shows their S/N and sky, and lists the unreachable goal with its reason.
+func TestPlanSizesBySNR(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", snrPlanCSV)
+	argv := args([]string{"plan"}, siteArgs, planArgs, []string{"--targets", csvPath}, planInstrumentArgs)
+	m := runJSON(t, argv...)
+	blocks, _ := m["blocks"].([]any)
+	if len(blocks) == 0 {
+		t.Fatalf("no blocks: %v", m)
+	}
+	exposures := map[string]bool{}
+	for _, bv := range blocks {
+		b := bv.(map[string]any)
+		if b["sized_by_snr"] != true || b["snr"] == nil || b["sky_mag_arcsec2"] == nil {
+			t.Fatalf("block not sized: %v", b)
+		}
+		if snr := num(t, b, "snr"); snr < 36 || snr > 44 {
+			t.Errorf("block S/N %v, goal 40", snr)
+		}
+		exposures[b["exposure_s"].(json.Number).String()] = true
+	}
+	if len(exposures) < 2 {
+		t.Errorf("exposures %v: want them to vary through the night", exposures)
+	}
+	unsched, _ := m["unscheduled"].([]any)
+	found := false
+	for _, uv := range unsched {
+		u := uv.(map[string]any)
+		if u["target"] == "SNR-B" && u["reason_code"] == "snr_unreachable" && strings.Contains(u["reason"].(string), "best S/N reachable is") {
+			found = true
+		}
+	}
+	if !found {
+		t.Errorf("SNR-B not listed as snr_unreachable: %v", unsched)
+	}
+	stdout, stderr, code := runCmd(t, argv...)
+	if code != 0 || stderr != "" || !strings.Contains(stdout, "S/N 4") || !strings.Contains(stdout, "(sized)") {
+		t.Errorf("text plan: exit %d, stderr %q\n%s", code, stderr, stdout)
+	}
+	// Without the instrument the typed 60 s exposures are used.
+	plain := runJSON(t, args([]string{"plan"}, siteArgs, planArgs, []string{"--targets", csvPath})...)
+	for _, bv := range plain["blocks"].([]any) {
+		b := bv.(map[string]any)
+		if num(t, b, "exposure_s") != 60 || b["snr"] != nil {
+			t.Errorf("without an instrument: %v", b)
+		}
+	}
+}
+
+func TestPlanInstrumentBadInput(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", snrPlanCSV)
+	base := args([]string{"plan"}, siteArgs, planArgs, []string{"--targets", csvPath})
+	cases := []struct {
+		name string
+		argv []string
+		want string
+	}{
+		{"no aperture", append(append([]string(nil), base...), "--throughput", "0.3"), "missing --aperture-m"},
+		{"no efficiency", append(append([]string(nil), base...), "--aperture-m", "1.5", "--pixel-scale", "0.35"), "missing --zero-point"},
+		{"bad list", append(append([]string(nil), base...), "--aperture-m", "1.5", "--pixel-scale", "0.35", "--zero-point", "H=1e9"), "--zero-point H=1e9"},
+		{"zero aperture", append(append([]string(nil), base...), "--aperture-m", "0", "--pixel-scale", "0.35", "--throughput", "0.3"), "--aperture-m 0"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, stderr, code := runCmd(t, c.argv...)
+			if code != exitUsage || !strings.Contains(stderr, c.want) {
+				t.Errorf("exit %d, stderr %q; want %q", code, stderr, c.want)
+			}
+		})
 	}
 }
