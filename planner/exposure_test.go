@@ -230,3 +230,49 @@ func TestTargetsCSVBrightnessColumns(t *testing.T) {
 		}
 	}
 }
+
+// TestQueueWindowsSizeBySNR: with an instrument, each queue window of an S/N
+// goal carries the exposure sized at its middle and counts exposures of that
+// length; a goal the smear limit stops short has windows with no exposures
+// and the best S/N reachable.
+func TestQueueWindowsSizeBySNR(t *testing.T) {
+	night := snrNight(17.5, 40)
+	faint := night.Targets[0]
+	faint.Name, faint.Mag, faint.Goals = "SNR-2", 23, faint.Goals[:1]
+	faint.Goals[0].SNR = 100
+	req := WindowRequest{Site: night.Site, From: night.From, To: night.From.Add(72 * time.Hour),
+		Targets: []Target{night.Targets[0], faint}, Constraints: night.Constraints, Instrument: night.Instrument}
+	lists, err := QueueWindows(t.Context(), req, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := 0
+	for _, gw := range lists {
+		tg := req.Targets[gw.TargetIndex]
+		for _, w := range gw.Windows {
+			if w.Sizing == nil {
+				t.Fatalf("%s window at %s not sized", gw.Target, w.Start.Format(time.RFC3339))
+			}
+			mid := w.Start.Add(w.End.Sub(w.Start) / 2)
+			want, err := SizeExposure(req.Site, tg, gw.Goal, *req.Instrument, mid)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if *w.Sizing != want {
+				t.Errorf("window sizing %+v, SizeExposure at its middle gives %+v", *w.Sizing, want)
+			}
+			d := w.End.Sub(w.Start).Seconds()
+			n := int(math.Floor((d + gw.Goal.OverheadS) / (want.ExposureS + gw.Goal.OverheadS)))
+			switch {
+			case gw.Target == "SNR-2" && (w.Sizing.Reached || w.Exposures != 0 || w.Sizing.SNR >= 100):
+				t.Errorf("faint target's window %+v", w)
+			case gw.Target == "SNR-1" && (!w.Sizing.Reached || (d >= want.ExposureS && w.Exposures != n)):
+				t.Errorf("window of %g s: %d exposures of %g s, want %d", d, w.Exposures, want.ExposureS, n)
+			}
+			seen++
+		}
+	}
+	if seen < 10 {
+		t.Errorf("only %d windows in three nights", seen)
+	}
+}
