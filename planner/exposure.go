@@ -238,25 +238,74 @@ func (s snrShortfall) detail(g Goal, p float64) string {
 		fmtNum(s.want), s.needS, fmtNum(g.maxSmear()), fmtNum(p), s.limitS, s.best)
 }
 
-// sizeOccurrence sizes goal g of ts for occurrence oc: at the middle of the
-// part of the window the target is observable in (the longest such part);
-// ok is false when no part is observable.
-func (en *engine) sizeOccurrence(ts *targetState, g Goal, oc occurrence) (ExposureSizing, bool, error) {
-	best, bestLen := 0.0, 0.0
-	for _, v := range ts.vis {
-		lo, hi := math.Max(v.lo+guardS, oc.lo), math.Min(v.hi-guardS, oc.hi)
-		if hi-lo > bestLen {
-			best, bestLen = 0.5*(lo+hi), hi-lo
-		}
+// occKey names one occurrence (by its cycle) of goal goal of target target.
+type occKey struct {
+	target, goal int
+	cycle        int64
+}
+
+// sizeOccurrence sizes goal gi (g) of ts for occurrence oc: the exposure
+// the run's reach sized for it when there is one (en.presized), else at the
+// middle of the longest part of the window the target is observable in; ok
+// is false when no part is observable.
+func (en *engine) sizeOccurrence(ts *targetState, gi int, g Goal, oc occurrence) (ExposureSizing, bool, error) {
+	if sz, ok := en.presized[occKey{ts.idx, gi, oc.cycle}]; ok {
+		return sz, true, nil
 	}
-	if bestLen <= 0 {
+	var parts []span
+	for _, v := range ts.vis {
+		parts = append(parts, span{math.Max(v.lo+guardS, oc.lo), math.Min(v.hi-guardS, oc.hi)})
+	}
+	at, ok := longestMiddle(parts)
+	if !ok {
 		return ExposureSizing{}, false, nil
 	}
-	s, err := SizeExposure(en.site, ts.t, g, *en.instrument, timeOf(best))
+	s, err := SizeExposure(en.site, ts.t, g, *en.instrument, timeOf(at))
 	if err != nil {
 		return ExposureSizing{}, false, err
 	}
 	return s, true, nil
+}
+
+// longestMiddle returns the middle of the longest non-empty span.
+func longestMiddle(parts []span) (float64, bool) {
+	best, bestLen := 0.0, 0.0
+	for _, p := range parts {
+		if p.hi-p.lo > bestLen {
+			best, bestLen = 0.5*(p.lo+p.hi), p.hi-p.lo
+		}
+	}
+	return best, bestLen > 0
+}
+
+// sizeReach sizes, for a run night, every occurrence of goal gi of ts among
+// its reach spans rs with the night planner's rule (the middle of the
+// occurrence's longest observable part, guardS inside the interval), so that
+// the night's model and the reach's capacity use the same exposure.
+func sizeReach(site ephem.Site, in *Instrument, ts *targetState, gi int, rs []reachSpan, out map[occKey]ExposureSizing) {
+	g := ts.goals[gi]
+	if in == nil || !SizesBySNR(ts.t, g) {
+		return
+	}
+	byCycle := map[int64][]span{}
+	var cycles []int64
+	for _, r := range rs {
+		if _, seen := byCycle[r.occ.cycle]; !seen {
+			cycles = append(cycles, r.occ.cycle)
+		}
+		byCycle[r.occ.cycle] = append(byCycle[r.occ.cycle], span{math.Max(r.vis.lo+guardS, r.occ.lo), math.Min(r.vis.hi-guardS, r.occ.hi)})
+	}
+	for _, c := range cycles {
+		at, ok := longestMiddle(byCycle[c])
+		if !ok {
+			continue
+		}
+		// An instant inside an observable interval: only an unmodelled sky
+		// fails, and the occurrence is then sized by the night itself.
+		if sz, err := SizeExposure(site, ts.t, g, *in, timeOf(at)); err == nil {
+			out[occKey{ts.idx, gi, c}] = sz
+		}
+	}
 }
 
 // noteShortfall keeps the best S/N of an occurrence of goal gi of target ti

@@ -97,6 +97,8 @@ type NightRequest struct {
 	// targets with a Band (see SizeExposure) and gives every block of a
 	// target with a Band its S/N per exposure and sky brightness.
 	Instrument *Instrument
+	// presized holds exposures a run's reach already sized, by occurrence.
+	presized map[occKey]ExposureSizing
 }
 
 // Block is a run of consecutive exposures of one target serving one goal
@@ -271,6 +273,7 @@ type engine struct {
 	envGrid    []env       // Sun and Moon on the StepS grid in dark time (see envAt)
 	envK0      int         // grid index of envGrid[0]
 	instrument *Instrument // sizes S/N goals' exposures; nil = none
+	presized   map[occKey]ExposureSizing
 	// short holds, per target and goal, the best S/N of the occurrences
 	// whose smear limit stopped the exposure short of the goal's S/N.
 	short map[[2]int]snrShortfall
@@ -358,7 +361,7 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 		}
 	}
 	en := &engine{site: req.Site, c: c, opt: opt, mask: newHorizonMask(c.Horizon), from: from, to: to,
-		instrument: req.Instrument, short: map[[2]int]snrShortfall{}}
+		instrument: req.Instrument, presized: req.presized, short: map[[2]int]snrShortfall{}}
 	if c.MaxAirmass > 0 {
 		en.altAirmass = altForAirmass(c.MaxAirmass)
 	}
@@ -433,7 +436,7 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 			for _, oc := range ts.clock.occurrences(g.Center, g.HalfWidth, lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences) {
 				og := g
 				if sizing {
-					sz, ok, err := en.sizeOccurrence(ts, g, oc)
+					sz, ok, err := en.sizeOccurrence(ts, gi, g, oc)
 					if err != nil || !ok {
 						continue // not observable in this window: no candidates either way
 					}
