@@ -259,3 +259,18 @@ func TestWindowsSizeBySNR(t *testing.T) {
 		t.Errorf("csv: exit %d, stderr %q\n%.300s", code, stderr, stdout)
 	}
 }
+
+// TestRunSizesBySNR: run passes the instrument to every night, whose blocks
+// then carry their S/N sizing in the JSON.
+func TestRunSizesBySNR(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", snrPlanCSV)
+	argv := args([]string{"run"}, siteArgs, []string{"--tz", "America/Santiago", "--dates", "2026-12-01,2026-12-02",
+		"--targets", csvPath, "--json"}, planInstrumentArgs)
+	stdout, stderr, code := runCmd(t, argv...)
+	if code != 0 || stderr != "" {
+		t.Fatalf("exit %d, stderr %q", code, stderr)
+	}
+	if n := strings.Count(stdout, `"sized_by_snr": true`); n < 4 {
+		t.Errorf("%d sized blocks in the run's JSON", n)
+	}
+}
