@@ -149,15 +149,7 @@ type ExposureSizing struct {
 // at g.MaxSmear (default DefaultMaxSmear) of the orbital period. It fails with an *ephem.InputError when the target is
 // below the horizon, the Sun up, or an input out of range.
 func SizeExposure(site ephem.Site, t Target, g Goal, in Instrument, at time.Time) (ExposureSizing, error) {
-	b, err := ephem.ParseBand(t.Band)
-	if err != nil {
-		return ExposureSizing{}, err
-	}
-	d, k, dark, err := in.Detector(b)
-	if err != nil {
-		return ExposureSizing{}, err
-	}
-	e, err := ephem.ExposureAt(site, t.Star(), at, d, k, dark, t.Mag)
+	e, err := exposureAt(site, t, in, at)
 	if err != nil {
 		return ExposureSizing{}, err
 	}
@@ -184,19 +176,25 @@ func snrAt(site ephem.Site, t Target, in *Instrument, exposureS float64, at time
 	if in == nil || t.Band == "" {
 		return 0, 0, false
 	}
-	b, err := ephem.ParseBand(t.Band)
-	if err != nil {
-		return 0, 0, false
-	}
-	d, k, dark, err := in.Detector(b)
-	if err != nil {
-		return 0, 0, false
-	}
-	e, err := ephem.ExposureAt(site, t.Star(), at, d, k, dark, t.Mag)
+	e, err := exposureAt(site, t, *in, at)
 	if err != nil {
 		return 0, 0, false
 	}
 	return e.Rates.SNR(exposureS), e.Sky.Mag, true
+}
+
+// exposureAt is ephem.ExposureAt for target t in its band with instrument
+// in.
+func exposureAt(site ephem.Site, t Target, in Instrument, at time.Time) (ephem.Exposure, error) {
+	b, err := ephem.ParseBand(t.Band)
+	if err != nil {
+		return ephem.Exposure{}, err
+	}
+	d, k, dark, err := in.Detector(b)
+	if err != nil {
+		return ephem.Exposure{}, err
+	}
+	return ephem.ExposureAt(site, t.Star(), at, d, k, dark, t.Mag)
 }
 
 // validateBrightness checks a target's band and magnitude and its goals'
