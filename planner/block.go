@@ -57,7 +57,7 @@ func (en *engine) block(ts *targetState, gi int, exposureS float64, sized bool, 
 	b.Parallactic, b.HourAngle = h.ParallacticDeg, h.HourAngleHours
 	b.SunAltStart = en.site.SunAltDeg(timeOf(s))
 	b.SizedBySNR = sized
-	b.SNR, b.SkyMag, b.SNROK = snrAt(en.site, ts.t, en.instrument, E, tm)
+	b.SNR, b.SkyMag, b.SNROK = snrAt(en.site, ts.t, en.instrument, E, tm, b.PhaseMid)
 	b.Warnings = en.blockWarnings(b)
 	return b
 }

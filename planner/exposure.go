@@ -144,12 +144,13 @@ type ExposureSizing struct {
 // SizeExposure computes the exposure goal g of target t needs at instant
 // at (UTC) from site with instrument in: the exposure that reaches g.SNR
 // under that instant's sky (ephem.ExposureAt, ephem.CCDRates.ExposureForSNR)
-// in the target's band, rounded up to a tenth of a second (as shutter times
+// in the target's band (at its magnitude at the goal's centre phase,
+// MagAtPhase), rounded up to a tenth of a second (as shutter times
 // are set; kept unrounded when the rounding would pass the limit) and capped
 // at g.MaxSmear (default DefaultMaxSmear) of the orbital period. It fails with an *ephem.InputError when the target is
 // below the horizon, the Sun up, or an input out of range.
 func SizeExposure(site ephem.Site, t Target, g Goal, in Instrument, at time.Time) (ExposureSizing, error) {
-	e, err := exposureAt(site, t, in, at)
+	e, err := exposureAt(site, t, in, at, g.Center)
 	if err != nil {
 		return ExposureSizing{}, err
 	}
@@ -172,20 +173,40 @@ func SizeExposure(site ephem.Site, t Target, g Goal, in Instrument, at time.Time
 // for target t at instant at, when the request has an instrument and the
 // target a band; ok is false otherwise (or when the instant is not
 // observable, which a scheduled block's middle always is).
-func snrAt(site ephem.Site, t Target, in *Instrument, exposureS float64, at time.Time) (snr, skyMag float64, ok bool) {
+func snrAt(site ephem.Site, t Target, in *Instrument, exposureS float64, at time.Time, phi float64) (snr, skyMag float64, ok bool) {
 	if in == nil || t.Band == "" {
 		return 0, 0, false
 	}
-	e, err := exposureAt(site, t, *in, at)
+	e, err := exposureAt(site, t, *in, at, phi)
 	if err != nil {
 		return 0, 0, false
 	}
 	return e.Rates.SNR(exposureS), e.Sky.Mag, true
 }
 
+// Variable reports whether the target has faint and bright magnitudes.
+func (t Target) Variable() bool { return t.FaintMag != 0 || t.BrightMag != 0 }
+
+// MagAtPhase returns the target's magnitude in its band at orbital phase
+// phi: Mag, or for a variable the magnitude linear in phase between its
+// bright and faint points, along both arcs of the orbit between them (a
+// first estimate, common practice without a light curve).
+func (t Target) MagAtPhase(phi float64) float64 {
+	if !t.Variable() {
+		return t.Mag
+	}
+	frac := func(x float64) float64 { return x - math.Floor(x) }
+	span := frac(t.FaintPhase - t.BrightPhase) // bright → faint, forward
+	u := frac(phi - t.BrightPhase)
+	if u <= span {
+		return t.BrightMag + (t.FaintMag-t.BrightMag)*u/span
+	}
+	return t.FaintMag + (t.BrightMag-t.FaintMag)*(u-span)/(1-span)
+}
+
 // exposureAt is ephem.ExposureAt for target t in its band with instrument
-// in.
-func exposureAt(site ephem.Site, t Target, in Instrument, at time.Time) (ephem.Exposure, error) {
+// in, at the target's magnitude at phase phi (MagAtPhase).
+func exposureAt(site ephem.Site, t Target, in Instrument, at time.Time, phi float64) (ephem.Exposure, error) {
 	b, err := ephem.ParseBand(t.Band)
 	if err != nil {
 		return ephem.Exposure{}, err
@@ -194,7 +215,7 @@ func exposureAt(site ephem.Site, t Target, in Instrument, at time.Time) (ephem.E
 	if err != nil {
 		return ephem.Exposure{}, err
 	}
-	return ephem.ExposureAt(site, t.Star(), at, d, k, dark, t.Mag)
+	return ephem.ExposureAt(site, t.Star(), at, d, k, dark, t.MagAtPhase(phi))
 }
 
 // validateBrightness checks a target's band and magnitude and its goals'
@@ -211,6 +232,22 @@ func validateBrightness(pre string, t Target) error {
 			return bad("mag", fmtNum(t.Mag), "−2..30 mag in the target's band")
 		}
 	}
+	if t.Variable() {
+		switch {
+		case t.Band == "":
+			return bad("faint_mag", fmtNum(t.FaintMag), "faint and bright magnitudes on a target with a band")
+		case t.FaintMag == 0 || t.BrightMag == 0:
+			return bad("faint_mag", fmtNum(t.FaintMag)+", "+fmtNum(t.BrightMag), "both faint_mag and bright_mag, or neither")
+		case ephem.ValidateMagnitude("faint_mag", t.FaintMag) != nil:
+			return bad("faint_mag", fmtNum(t.FaintMag), "−2..30 mag in the target's band")
+		case ephem.ValidateMagnitude("bright_mag", t.BrightMag) != nil || t.BrightMag > t.FaintMag:
+			return bad("bright_mag", fmtNum(t.BrightMag), "−2..30 mag, not fainter than faint_mag")
+		case !finite(t.FaintPhase) || t.FaintPhase < 0 || t.FaintPhase >= 1:
+			return bad("faint_phase", fmtNum(t.FaintPhase), "0 ≤ phase < 1")
+		case !finite(t.BrightPhase) || t.BrightPhase < 0 || t.BrightPhase >= 1 || t.BrightPhase == t.FaintPhase:
+			return bad("bright_phase", fmtNum(t.BrightPhase), "0 ≤ phase < 1, not the faint phase")
+		}
+	}
 	for k, g := range t.Goals {
 		gp := fmt.Sprintf("goals[%d].", k)
 		switch {
@@ -218,6 +255,8 @@ func validateBrightness(pre string, t Target) error {
 			return bad(gp+"snr", fmtNum(g.SNR), "0 (exposure as given) or a wanted S/N per exposure, up to 100000")
 		case g.SNR > 0 && t.Band == "":
 			return bad(gp+"snr", fmtNum(g.SNR), "an S/N goal on a target with a band and magnitude")
+		case g.SNR > 0 && t.Mag == 0 && !t.Variable():
+			return bad(gp+"snr", fmtNum(g.SNR), "an S/N goal on a target with a known magnitude (mag 0 means unknown)")
 		case !finite(g.MaxSmear) || g.MaxSmear < 0 || g.MaxSmear >= 0.5:
 			return bad(gp+"max_smear", fmtNum(g.MaxSmear), fmt.Sprintf("0 (the default %g) or the most phase one exposure may span, below 0.5", DefaultMaxSmear))
 		}

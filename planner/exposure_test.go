@@ -276,3 +276,74 @@ func TestQueueWindowsSizeBySNR(t *testing.T) {
 		t.Errorf("only %d windows in three nights", seen)
 	}
 }
+
+// TestMagAtPhase checks the variable's magnitude: the extremes at their
+// phases, linear between them along both arcs.
+func TestMagAtPhase(t *testing.T) {
+	v := Target{Band: "V", Mag: 17, FaintMag: 18, FaintPhase: 0, BrightMag: 16, BrightPhase: 0.25}
+	cases := []struct{ phi, want float64 }{
+		{0, 18}, {0.25, 16}, {0.125, 17}, // the short arc
+		{0.625, 17}, {0.5, 16 + 2.0/3}, {0.99, 18 - 2*0.01/0.75}, // the long arc
+	}
+	for _, c := range cases {
+		if got := v.MagAtPhase(c.phi); math.Abs(got-c.want) > 1e-12 {
+			t.Errorf("MagAtPhase(%g) = %.12g, want %.12g", c.phi, got, c.want)
+		}
+	}
+	if got := (Target{Mag: 15.5}).MagAtPhase(0.3); got != 15.5 {
+		t.Errorf("constant star: %g", got)
+	}
+}
+
+// TestSizeExposureVariable: a goal at the faint phase needs a longer
+// exposure than one at the bright phase, each by its own magnitude.
+func TestSizeExposureVariable(t *testing.T) {
+	req := snrNight(17.5, 40)
+	tg := req.Targets[0]
+	tg.FaintMag, tg.FaintPhase, tg.BrightMag, tg.BrightPhase = 18.5, 0.75, 17.0, 0.25
+	at := time.Date(2026, 12, 2, 4, 30, 0, 0, time.UTC)
+	bright, err := SizeExposure(req.Site, tg, tg.Goals[0], *req.Instrument, at)
+	if err != nil {
+		t.Fatal(err)
+	}
+	faint, err := SizeExposure(req.Site, tg, tg.Goals[1], *req.Instrument, at)
+	if err != nil {
+		t.Fatal(err)
+	}
+	steady := tg
+	steady.FaintMag, steady.BrightMag, steady.Mag = 0, 0, 18.5
+	want, err := SizeExposure(req.Site, steady, tg.Goals[1], *req.Instrument, at)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !(faint.NeededS > bright.NeededS) || faint.NeededS != want.NeededS {
+		t.Errorf("bright phase %g s, faint phase %g s (a steady 18.5 mag star: %g s)", bright.NeededS, faint.NeededS, want.NeededS)
+	}
+	bad := tg
+	bad.BrightMag = 19
+	req.Targets = []Target{bad}
+	_, err = PlanNight(req)
+	var ie *ephem.InputError
+	if !errors.As(err, &ie) || !strings.HasSuffix(ie.Field, ".bright_mag") {
+		t.Errorf("bright fainter than faint: %v", err)
+	}
+}
+
+func TestTargetsCSVVariableColumns(t *testing.T) {
+	const head = "name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority,band,snr,faint_mag,faint_phase,bright_mag,bright_phase\n"
+	ts, err := ParseTargetsCSV(strings.NewReader(head +
+		"V-1,04:12:33.9,-12:48:07,2460500.4321987,0.0612345678,0.25,0.06,60,20,1,V,40,18.5,0.0,17.2,0.5\n"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if v := ts[0]; !v.Variable() || v.FaintMag != 18.5 || v.BrightPhase != 0.5 || v.MagAtPhase(0.25) != (18.5+17.2)/2 {
+		t.Errorf("variable row = %+v", v)
+	}
+	_, err = ParseTargetsCSV(strings.NewReader(head +
+		"V-2,04:12:33.9,-12:48:07,2460500.4321987,0.06,0.25,0.06,60,20,1,V,40,18.5,0.0,,\n" +
+		"V-3,04:12:33.9,-12:48:07,2460500.4321987,0.06,0.25,0.06,60,20,1,V,40,17,0.0,18,0.5\n"))
+	var te *TableError
+	if !errors.As(err, &te) || len(te.Cells) != 2 || te.Cells[0].Line != 2 || te.Cells[1].Line != 3 {
+		t.Fatalf("err = %v, want one error on each of lines 2 and 3", err)
+	}
+}

@@ -22,10 +22,11 @@ var PlanCSVHeader = []string{
 }
 
 // PlanCSVOptional are the targets file's optional columns, in their
-// documented order: the target's brightness (band, mag) and the wanted S/N
-// per exposure with its smear limit (snr, max_smear). A file without them
-// reads as before; an empty cell means "not given".
-var PlanCSVOptional = []string{"band", "mag", "snr", "max_smear"}
+// documented order: the target's brightness (band, mag), the wanted S/N
+// per exposure with its smear limit (snr, max_smear), and a variable's faint
+// and bright magnitudes with their phases. A file without them reads as
+// before; an empty cell means "not given".
+var PlanCSVOptional = []string{"band", "mag", "snr", "max_smear", "faint_mag", "faint_phase", "bright_mag", "bright_phase"}
 
 // CellError is one rejected cell of a table file: the 1-based line of the
 // file, the 1-based column number and the column's header name (both 0 and ""
@@ -147,6 +148,9 @@ const (
 //     used only without one.
 //   - max_smear: the most phase one S/N-sized exposure may span,
 //     0 < s < 0.5 (empty: DefaultMaxSmear).
+//   - faint_mag, faint_phase, bright_mag, bright_phase: a variable's
+//     extremes in band (−2..30, bright not fainter than faint) and their
+//     phases (0 ≤ φ < 1); all four or none (Target.MagAtPhase).
 //
 // The file has no convention column: T0 is recorded as the companion's
 // inferior conjunction (ephem.ConvInferiorConjunction), and the phases are
@@ -426,10 +430,40 @@ func parseBrightnessCells(t *Target, get func(string) string, col map[string]int
 		if !ok || x <= 0 || x > 100000 {
 			bad("snr", v, "a wanted S/N per exposure, 0 < S/N ≤ 100000")
 		}
-		if cell("band") == "" || cell("mag") == "" {
-			bad("snr", v, "an S/N goal needs the target's band and mag")
+		if cell("band") == "" || (cell("mag") == "" && cell("faint_mag") == "") {
+			bad("snr", v, "an S/N goal needs the target's band and mag (or faint and bright magnitudes)")
 		}
 		snr = x
+	}
+	variable := []struct {
+		name   string
+		dst    *float64
+		lo, hi float64
+		accept string
+	}{
+		{"faint_mag", &t.FaintMag, -2, 30, "a magnitude −2..30 in the band"},
+		{"faint_phase", &t.FaintPhase, 0, 0.999999999, "a phase 0 ≤ φ < 1"},
+		{"bright_mag", &t.BrightMag, -2, 30, "a magnitude −2..30 in the band"},
+		{"bright_phase", &t.BrightPhase, 0, 0.999999999, "a phase 0 ≤ φ < 1"},
+	}
+	given := 0
+	for _, f := range variable {
+		if v := cell(f.name); v != "" {
+			x, ok := parseFinite(v)
+			if !ok || x < f.lo || x > f.hi {
+				bad(f.name, v, f.accept)
+			}
+			*f.dst = x
+			given++
+		}
+	}
+	switch {
+	case given != 0 && given != len(variable):
+		bad("faint_mag", cell("faint_mag"), "all of faint_mag, faint_phase, bright_mag and bright_phase, or none")
+	case given != 0 && cell("band") == "":
+		bad("faint_mag", cell("faint_mag"), "a variable's magnitudes need the band column")
+	case given != 0 && (t.BrightMag > t.FaintMag || t.BrightPhase == t.FaintPhase):
+		bad("bright_mag", cell("bright_mag"), "not fainter than faint_mag, at a phase other than faint_phase")
 	}
 	if v := cell("max_smear"); v != "" {
 		x, ok := parseFinite(v)

@@ -21,13 +21,19 @@ type Target struct {
 	// Band is the photometric band of Mag ("U" "B" "V" "R" "I" "g" "r"
 	// "i" "z"; "" = no brightness known). With an Instrument in the
 	// request, goals with an SNR size their exposures from it.
-	Band     string
-	Ephem    ephem.Ephemeris
-	Goals    []Goal
-	Priority int     // 1 (highest) to 5
-	AcquireS float64 // acquisition overhead per visit (slew, centring), s
-	Tags     []string
-	Notes    string
+	Band string
+	// FaintMag and BrightMag, when given (both non-zero), make the target a
+	// variable: its magnitude in Band is FaintMag at phase FaintPhase and
+	// BrightMag at BrightPhase (0 ≤ φ < 1, in the ephemeris' convention),
+	// linear in phase between them (MagAtPhase).
+	FaintMag, FaintPhase   float64
+	BrightMag, BrightPhase float64
+	Ephem                  ephem.Ephemeris
+	Goals                  []Goal
+	Priority               int     // 1 (highest) to 5
+	AcquireS               float64 // acquisition overhead per visit (slew, centring), s
+	Tags                   []string
+	Notes                  string
 }
 
 // Star returns the target's catalogue place for the ephem package.
