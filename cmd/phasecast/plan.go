@@ -35,9 +35,10 @@ every goal left out listed with its reason.
 
 Targets file (CSV), header:
   name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority
-optionally with band,mag,snr,max_smear: with an instrument (--aperture-m and the
-flags after it), goals with an snr get each block's exposure sized for its sky,
-capped at max_smear of the orbit (default 0.02); see docs/exposure.md.
+optionally with band,mag,snr,max_smear (and a variable's faint_mag,faint_phase,
+bright_mag,bright_phase): with an instrument (--aperture-m and the flags after it),
+goals with an snr get each block's exposure sized for its sky, capped at max_smear
+of the orbit (default 0.02); see docs/exposure.md.
 phases are goal centres separated by ';' in the convention of T0 (inferior
 conjunction of the companion); each goal takes as many exposures as fit in its
 window. --twilight takes civil, nautical, astronomical, or a Sun altitude in
