@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"strconv"
 	"testing"
+	"time"
 
 	"phasecast/ephem"
 )
@@ -182,4 +183,19 @@ func TestSNRBadInput(t *testing.T) {
 		_, err := d.Rates(15, 1, 0.15, 21)
 		check(t, err, "throughput")
 	})
+}
+
+// BenchmarkExposureAt is the cost of one sizing: the geometry (Observe), the
+// sky model and the CCD rates at one instant.
+func BenchmarkExposureAt(b *testing.B) {
+	site := ephem.Site{LatDeg: -27.85, LonEastDeg: -69.12, ElevM: 2650}
+	st := ephem.Star{RADeg: 63.14125, DecDeg: -12.80194}
+	at := time.Date(2026, 12, 24, 4, 0, 0, 0, time.UTC)
+	d := testDetector()
+	for b.Loop() {
+		e, err := ephem.ExposureAt(site, st, at, d, 0.15, 21.6, 17.5)
+		if err != nil || e.Rates.SourceEPerS <= 0 {
+			b.Fatal(err)
+		}
+	}
 }

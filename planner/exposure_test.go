@@ -347,3 +347,25 @@ func TestTargetsCSVVariableColumns(t *testing.T) {
 		t.Fatalf("err = %v, want one error on each of lines 2 and 3", err)
 	}
 }
+
+// BenchmarkPlanNightSNR plans the S/N night of TestPlanSizesExposuresBySNR;
+// compare with BenchmarkPlanNightTyped (the same night, typed exposures).
+func BenchmarkPlanNightSNR(b *testing.B) {
+	req := snrNight(17.5, 40)
+	for b.Loop() {
+		if _, err := PlanNight(req); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkPlanNightTyped is BenchmarkPlanNightSNR without the instrument.
+func BenchmarkPlanNightTyped(b *testing.B) {
+	req := snrNight(17.5, 40)
+	req.Instrument = nil
+	for b.Loop() {
+		if _, err := PlanNight(req); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
