@@ -28,7 +28,8 @@ const (
 // bandInfo holds what the models need of one passband.
 type bandInfo struct {
 	// sunMinusV is the Sun's colour (band − V), mag: the colour given to
-	// scattered moonlight and twilight, which are sunlight. UBVRI: Patat,
+	// scattered moonlight and twilight, which are sunlight (the journals'
+	// volume and page numbers in this table are from memory). UBVRI: Patat,
 	// Ugolnikov & Postylyakov (2006, A&A 455, 385), caption of Fig. 8 (U−B
 	// 0.13, B−V 0.65, V−R 0.52, V−I 0.81). g r i z: the Sun's absolute AB
 	// magnitudes of Willmer (2018, ApJS 236, 47), M_V 4.81, g 5.11, r 4.65,
