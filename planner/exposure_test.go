@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"strings"
 	"testing"
 	"time"
@@ -368,4 +369,63 @@ func BenchmarkPlanNightTyped(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
+}
+
+// TestPlanSNRProperties plans seeded random nights (randomNight) with an
+// instrument and S/N goals on half the targets, and checks every rule of
+// the plan against the full path (checkPlanRules) with the sized exposures,
+// plus the sizing's own: within the smear limit, and an unscheduled
+// snr_unreachable goal only where no window could reach the S/N.
+func TestPlanSNRProperties(t *testing.T) {
+	r := rand.New(rand.NewPCG(15, 15))
+	nights := 16
+	if testing.Short() {
+		nights = 6
+	}
+	bands := []string{"U", "B", "V", "R", "I", "g", "r", "i", "z"}
+	sized, short := 0, 0
+	for n := range nights {
+		req := randomNight(r, 5)
+		req.Instrument = testInstrument()
+		for i := range req.Targets {
+			if r.IntN(2) == 0 {
+				continue
+			}
+			tg := &req.Targets[i]
+			tg.Band, tg.Mag = bands[r.IntN(len(bands))], 12+8*r.Float64()
+			for k := range tg.Goals {
+				tg.Goals[k].SNR = 10 + 90*r.Float64()
+			}
+		}
+		p, err := PlanNight(req)
+		if err != nil {
+			t.Fatalf("night %d: %v", n, err)
+		}
+		checkPlanRules(t, req, p)
+		for _, b := range p.Blocks {
+			if !b.SizedBySNR {
+				continue
+			}
+			sized++
+			tg := req.Targets[b.TargetIndex]
+			if limit := b.Goal.maxSmear() * tg.Ephem.PeriodDays * 86400; b.ExposureS > limit+1e-9 || !b.SNROK {
+				t.Errorf("night %d %s: exposure %g s over the smear limit %g s (or no S/N)", n, b.Target, b.ExposureS, limit)
+			}
+		}
+		for _, u := range p.Unscheduled {
+			if u.Reason == UnschedSNRUnreachable {
+				short++
+				if !SizesBySNR(req.Targets[u.TargetIndex], u.Goal) {
+					t.Errorf("night %d %s: snr_unreachable for a goal without an S/N", n, u.Target)
+				}
+			}
+		}
+		if t.Failed() {
+			t.Fatalf("night %d (site %+v, %s) failed", n, req.Site, req.From.Format(time.DateOnly))
+		}
+	}
+	if sized == 0 {
+		t.Fatal("no sized block in any random night: the test checks nothing")
+	}
+	t.Logf("%d random nights: %d sized blocks, %d goals short of their S/N", nights, sized, short)
 }
