@@ -85,6 +85,9 @@ func validateTarget(i int, t Target) error {
 	if err := t.Ephem.Validate(); err != nil {
 		return fmt.Errorf("%s: %w", pre, err)
 	}
+	if err := validateBrightness(pre, t); err != nil {
+		return err
+	}
 	if len(ps) > 0 {
 		return bad(ps[0].Field, ps[0].Value, ps[0].Accepted)
 	}

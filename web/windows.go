@@ -180,7 +180,7 @@ func (w *windows) doc() export.Windows {
 
 func (w *windows) exportJSON() ([]byte, error) { return export.JSON(w.doc()) }
 
-func (w *windows) exportCSV() ([]byte, error) { return export.WindowsCSV(w.doc()) }
+func (w *windows) exportCSV() ([]byte, error) { return export.WindowsCSV(w.doc(), false) }
 
 // exportICS writes the windows as events; DTSTAMP is the inputs' last
 // change.

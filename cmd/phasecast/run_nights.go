@@ -69,6 +69,7 @@ type runFlags struct {
 	past, acquire, nExp, minNights, bins, step  *textValue
 	rounds, siteName, name, format, stamp       *textValue
 	binGoals, fill, compare, asJSON             *bool
+	inf                                         planInstrumentFlags
 }
 
 func addRunFlags() runFlags {
@@ -91,6 +92,7 @@ func addRunFlags() runFlags {
 	rf.rounds = fl.text("rounds", "N", "2", "improvement rounds after the greedy pass, 0..100")
 	rf.fill = fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
 	rf.compare = fl.boolean("compare", "also plan every night on its own (as plan does) and show that objective")
+	rf.inf = addPlanInstrumentFlags(fl)
 	rf.siteName = addSiteNameFlag(fl)
 	rf.name = fl.text("name", "NAME", "none", "the run's name, written into the JSON, CSV and iCalendar documents")
 	rf.format = fl.text("format", "text|json|csv|ics", "text", "output format (the run document, docs/formats.md)")
@@ -170,6 +172,10 @@ func (rf runFlags) read() (runJob, error) {
 		}
 		j.stamp = &t
 	}
+	inst, err := rf.inf.read()
+	if err != nil {
+		return j, err
+	}
 	list, err := readTargets(rf.targets)
 	if err != nil {
 		return j, err
@@ -186,7 +192,7 @@ func (rf runFlags) read() (runJob, error) {
 		}
 	}
 	j.req = planner.RunRequest{Site: site, Zone: loc, Nights: nights, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *rf.fill}, Bins: nb, Rounds: nr, CompareIndependent: *rf.compare}
+		Options: planner.Options{StepS: stepS, Fill: *rf.fill}, Bins: nb, Rounds: nr, CompareIndependent: *rf.compare, Instrument: inst}
 	if nr == 0 {
 		j.req.Rounds = -1
 	}

@@ -59,6 +59,7 @@ type windowsFlags struct {
 	from, to, minExp, step, format       *textValue
 	stamp, siteName                      *textValue
 	asJSON                               *bool
+	inf                                  planInstrumentFlags
 }
 
 func addWindowsFlags() windowsFlags {
@@ -76,6 +77,7 @@ func addWindowsFlags() windowsFlags {
 	wf.step = fl.text("step-s", "S", "60", "constraint scan step, seconds 1..900 (edges are refined to 1 ms)")
 	wf.format = fl.text("format", "text|json|csv|ics", "text", "output format")
 	wf.stamp = fl.text("stamp", "TIME", "--from", "DTSTAMP of the iCalendar events (RFC 3339)")
+	wf.inf = addPlanInstrumentFlags(fl)
 	wf.siteName = addSiteNameFlag(fl)
 	wf.asJSON = fl.boolean("json", "print one JSON object (the same as --format json)")
 	return wf
@@ -92,6 +94,7 @@ type windowsJob struct {
 	nMin     int
 	stepS    float64
 	stamp    time.Time
+	inst     *planner.Instrument // nil: no exposure sizing
 	targets  []planner.Target
 	format   string
 }
@@ -135,6 +138,9 @@ func (wf windowsFlags) read() (windowsJob, error) {
 			return j, fromInputError(err, "not a time", map[string]*textValue{"time": wf.stamp})
 		}
 	}
+	if j.inst, err = wf.inf.read(); err != nil {
+		return j, err
+	}
 	list, err := readTargets(wf.targets)
 	if err != nil {
 		return j, err
@@ -147,7 +153,7 @@ func (wf windowsFlags) read() (windowsJob, error) {
 // exposures.
 func (j windowsJob) compute(ctx context.Context) ([]planner.GoalWindows, error) {
 	got, err := planner.QueueWindows(ctx, planner.WindowRequest{Site: j.site, From: j.t0, To: j.t1, Targets: j.targets, Constraints: j.c,
-		Options: planner.Options{StepS: j.stepS}}, nil)
+		Options: planner.Options{StepS: j.stepS}, Instrument: j.inst}, nil)
 	if err != nil {
 		return nil, fromInputError(err, "not accepted", nil)
 	}
@@ -170,7 +176,7 @@ func (j windowsJob) write(w io.Writer, got []planner.GoalWindows) error {
 	case "json":
 		return writeJSON(w, doc)
 	case "csv":
-		return writeBytes(w, func() ([]byte, error) { return export.WindowsCSV(doc) })
+		return writeBytes(w, func() ([]byte, error) { return export.WindowsCSV(doc, j.inst != nil) })
 	case "ics":
 		return writeBytes(w, func() ([]byte, error) { return export.WindowsICS(doc, j.stamp) })
 	}
@@ -298,7 +304,7 @@ func printWindows(w io.Writer, got []planner.GoalWindows, site ephem.Site, loc *
 			}
 			tb.row("  "+win.Start.UTC().Format("2006-01-02 15:04:05"), win.End.UTC().Format("15:04:05"), win.Start.In(loc).Format("01-02 15:04"),
 				f(win.Duration().Minutes(), 1), strconv.FormatInt(win.Cycle, 10), f(win.PhaseErr, 4)+mark,
-				fmt.Sprintf("%.2f–%.2f", win.AirmassMin, win.AirmassMax), strconv.Itoa(win.Exposures))
+				fmt.Sprintf("%.2f–%.2f", win.AirmassMin, win.AirmassMax), strconv.Itoa(win.Exposures)+sizingNote(win.Sizing))
 		}
 		if err := tb.flush(); err != nil {
 			return err
@@ -321,4 +327,16 @@ func anyUncertain(got []planner.GoalWindows) bool {
 		}
 	}
 	return false
+}
+
+// sizingNote is the text sheet's note of a window's S/N sizing: the exposure
+// and its S/N, or the best S/N when the smear limit stops it short.
+func sizingNote(sz *planner.ExposureSizing) string {
+	switch {
+	case sz == nil:
+		return ""
+	case sz.Reached:
+		return fmt.Sprintf(" × %ss (S/N %.1f, sky %.2f)", fmtG(sz.ExposureS), sz.SNR, sz.SkyMag)
+	}
+	return fmt.Sprintf(" (S/N at most %.1f in %ss: smear limit)", sz.SNR, fmtG(sz.ExposureS))
 }

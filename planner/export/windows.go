@@ -47,6 +47,20 @@ type Window struct {
 	Exposures      int     `json:"whole_exposures"`
 	ExposureS      float64 `json:"exposure_s"`
 	OverheadS      float64 `json:"overhead_s"`
+	// Sizing is the exposure sized for the goal's S/N at the window's
+	// middle (only with an instrument and an S/N goal).
+	Sizing *WindowSizing `json:"sizing,omitempty"`
+}
+
+// WindowSizing is a window's exposure sized for its goal's S/N: the
+// exposure in seconds, the S/N it reaches per exposure, the sky brightness
+// used (mag/arcsec² in the target's band) and whether the S/N was reached
+// (false: the smear limit stopped the exposure short).
+type WindowSizing struct {
+	ExposureS float64 `json:"exposure_s"`
+	SNR       float64 `json:"snr"`
+	SkyMag    float64 `json:"sky_mag_arcsec2"`
+	Reached   bool    `json:"snr_reached"`
 }
 
 // NewWindows is the document of the windows got, searched over [from, to]
@@ -59,25 +73,50 @@ func NewWindows(site, zone string, from, to time.Time, goal int, got []planner.G
 			d.Windows = append(d.Windows, Window{Target: g.Target, PhaseGoal: g.Goal.Center, PhaseHalfWidth: g.Goal.HalfWidth, Event: g.Goal.Event,
 				Start: DocTime(w.Start), End: DocTime(w.End), DurationMin: w.Duration().Minutes(), Cycle: w.Cycle, AirmassMin: w.AirmassMin,
 				AirmassMax: w.AirmassMax, PhaseErr: w.PhaseErr, Uncertain: w.Uncertain, Exposures: w.Exposures, ExposureS: g.Goal.ExposureS,
-				OverheadS: g.Goal.OverheadS})
+				OverheadS: g.Goal.OverheadS, Sizing: windowSizing(w.Sizing)})
 		}
 	}
 	return d
+}
+
+// windowSizing converts a window's sizing (nil stays nil).
+func windowSizing(sz *planner.ExposureSizing) *WindowSizing {
+	if sz == nil {
+		return nil
+	}
+	return &WindowSizing{ExposureS: sz.ExposureS, SNR: sz.SNR, SkyMag: sz.SkyMag, Reached: sz.Reached}
 }
 
 // WindowsCSVHeader is the header of the queue-windows CSV (docs/formats.md).
 var WindowsCSVHeader = []string{"target", "phase_goal", "phase_halfwidth", "start_utc", "end_utc", "duration_min", "cycle",
 	"phase_err", "uncertain", "airmass_min", "airmass_max", "exposures", "event"}
 
-// WindowsCSV is the windows as CSV, one window per row (WindowsCSVHeader).
-func WindowsCSV(d Windows) ([]byte, error) {
+// WindowsCSVSizing are the columns WindowsCSV adds when the windows were
+// sized for an instrument: a window's S/N sizing (empty cells for goals
+// without an S/N).
+var WindowsCSVSizing = []string{"sized_exposure_s", "snr", "sky_mag_arcsec2", "snr_reached"}
+
+// WindowsCSV is the windows as CSV, one window per row (WindowsCSVHeader,
+// then WindowsCSVSizing when sized).
+func WindowsCSV(d Windows, sized bool) ([]byte, error) {
+	header := WindowsCSVHeader
+	if sized {
+		header = append(append([]string(nil), header...), WindowsCSVSizing...)
+	}
 	var rows [][]string
 	for _, w := range d.Windows {
-		rows = append(rows, []string{SafeCSVCell(w.Target), fixed(w.PhaseGoal, 4), fixed(w.PhaseHalfWidth, 4), w.Start.String(), w.End.String(),
+		row := []string{SafeCSVCell(w.Target), fixed(w.PhaseGoal, 4), fixed(w.PhaseHalfWidth, 4), w.Start.String(), w.End.String(),
 			fixed(w.DurationMin, 2), strconv.FormatInt(w.Cycle, 10), fixed(w.PhaseErr, 5), strconv.FormatBool(w.Uncertain),
-			fixed(w.AirmassMin, 3), fixed(w.AirmassMax, 3), strconv.Itoa(w.Exposures), SafeCSVCell(w.Event)})
+			fixed(w.AirmassMin, 3), fixed(w.AirmassMax, 3), strconv.Itoa(w.Exposures), SafeCSVCell(w.Event)}
+		switch sz := w.Sizing; {
+		case sized && sz != nil:
+			row = append(row, num(sz.ExposureS), fixed(sz.SNR, 2), fixed(sz.SkyMag, 3), strconv.FormatBool(sz.Reached))
+		case sized:
+			row = append(row, "", "", "", "")
+		}
+		rows = append(rows, row)
 	}
-	return writeCSV(WindowsCSVHeader, rows)
+	return writeCSV(header, rows)
 }
 
 // windowUID is a window's stable iCalendar UID: the same target, goal and
