@@ -248,7 +248,8 @@ type engine struct {
 	c          Constraints
 	opt        Options
 	mask       *horizonMask
-	altAirmass float64 // refracted altitude of the airmass limit, 0 = none
+	altAirmass float64         // refracted altitude of the airmass limit, 0 = none
+	air        *ephem.AirTable // the site's refraction table (sample)
 	sky        *nightSky
 	from, to   float64
 	dark       []span
@@ -331,7 +332,7 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 		}
 		names[t.Name] = i
 	}
-	en := &engine{site: req.Site, c: c, opt: opt, mask: newHorizonMask(c.Horizon), from: from, to: to}
+	en := &engine{site: req.Site, c: c, opt: opt, mask: newHorizonMask(c.Horizon), air: req.Site.AirTable(), from: from, to: to}
 	if c.MaxAirmass > 0 {
 		en.altAirmass = altForAirmass(c.MaxAirmass)
 	}

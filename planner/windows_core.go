@@ -69,7 +69,7 @@ func newLeanBase(site ephem.Site, c Constraints, opt Options) (*leanBase, error)
 // night returns the engine of one night [from, to] (Unix seconds): the Sun
 // and the Moon and the dark spans, as newEngine computes them.
 func (b *leanBase) night(from, to float64) *engine {
-	en := &engine{site: b.site, c: b.c, opt: b.opt, mask: b.mask, altAirmass: b.altAirmass, from: from, to: to}
+	en := &engine{site: b.site, c: b.c, opt: b.opt, mask: b.mask, altAirmass: b.altAirmass, air: b.site.AirTable(), from: from, to: to}
 	en.sky = newNightSky(b.site, from, to)
 	en.dark, en.day = scan(from, to, b.opt.StepS, func(u float64) (float64, reasonBits) {
 		m := b.c.SunAltMaxDeg - en.sky.sunAlt(u)
@@ -78,6 +78,10 @@ func (b *leanBase) night(from, to float64) *engine {
 		}
 		return m, 0
 	})
+	// Every target's scan samples the Sun and the Moon on the same grid:
+	// compute them once per night for all (the values are those en.sky.at
+	// gives, so nothing changes but the time).
+	en.fillEnvCache()
 	return en
 }
 
