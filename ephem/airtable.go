@@ -16,7 +16,8 @@ import (
 // RefractionDeg and the airmass X(h) = Airmass(h + R(h)) continued below the
 // refracted horizon by the same formula, with their exact derivatives
 // (differentiated by hand from Saemundsson's formula, Meeus (16.4), and
-// Kasten & Young (1989), eq. 3). Cubic Hermite interpolation between knots
+// Kasten & Young (1989), eq. 3), each interval's two cubics kept as
+// polynomial coefficients. Cubic Hermite interpolation between knots
 // d apart errs by at most d⁴/384 · max|y⁗|: with d = 1/32° that is below
 // 1e-9° (3e-6″) in refraction and below 1e-7 in airmass (the airmass's
 // fourth derivative is largest on the horizon, about 22 per degree⁴ at
@@ -30,12 +31,26 @@ type AirTable struct {
 	h0    float64 // first knot, airless degrees
 	inv   float64 // knots per degree
 	n     int     // knots
-	// per knot: refraction, degrees, and its change over one knot step;
-	// airmass and its change over one knot step (derivative × step)
+	// per interval between knots: the cubic Hermite interpolants of the
+	// refraction (degrees) and of the airmass as polynomials in the position
+	// t (0..1) inside the interval
 	knots []airKnot
 }
 
-type airKnot struct{ r, dr, x, dx float64 }
+// airKnot is one interval's two cubics, y(t) = c0 + c1·t + c2·t² + c3·t³.
+type airKnot struct{ r, x [4]float64 }
+
+// hermiteCubic returns the coefficients of the cubic Hermite interpolant on
+// t ∈ [0, 1] between values y0, y1 with changes m0, m1 over the interval
+// (derivatives times the interval's length).
+func hermiteCubic(y0, m0, y1, m1 float64) [4]float64 {
+	return [4]float64{y0, m0, 3*(y1-y0) - 2*m0 - m1, 2*(y0-y1) + m0 + m1}
+}
+
+// horner evaluates cubic c at t.
+func horner(c *[4]float64, t float64) float64 {
+	return c[0] + t*(c[1]+t*(c[2]+t*c[3]))
+}
 
 // airKnotsPerDeg is the table's resolution, knots per degree.
 const airKnotsPerDeg = 32
@@ -60,11 +75,16 @@ func (s Site) AirTable() *AirTable {
 func newAirTable(scale float64) *AirTable {
 	h0 := refractionFloorDeg
 	n := int(math.Ceil((90-h0)*airKnotsPerDeg)) + 2
-	a := &AirTable{scale: scale, h0: h0, inv: airKnotsPerDeg, n: n, knots: make([]airKnot, n)}
+	a := &AirTable{scale: scale, h0: h0, inv: airKnotsPerDeg, n: n, knots: make([]airKnot, n-1)}
 	const step = 1.0 / airKnotsPerDeg
+	r0, dr0, x0, dx0 := airExact(h0, scale)
 	for i := range a.knots {
-		r, dr, x, dx := airExact(h0+float64(i)*step, scale)
-		a.knots[i] = airKnot{r, dr * step, x, dx * step}
+		r1, dr1, x1, dx1 := airExact(h0+float64(i+1)*step, scale)
+		a.knots[i] = airKnot{
+			r: hermiteCubic(r0, dr0*step, r1, dr1*step),
+			x: hermiteCubic(x0, dx0*step, x1, dx1*step),
+		}
+		r0, dr0, x0, dx0 = r1, dr1, x1, dx1
 	}
 	return a
 }
@@ -105,14 +125,6 @@ func (a *AirTable) lookup(h float64) (i int, t float64, ok bool) {
 	return i, p - float64(i), true
 }
 
-// hermite is the cubic Hermite interpolant at t (0..1) between values y0,
-// y1 with changes m0, m1 over the interval.
-func hermite(t, y0, m0, y1, m1 float64) float64 {
-	t2 := t * t
-	t3 := t2 * t
-	return (2*t3-3*t2+1)*y0 + (t3-2*t2+t)*m0 + (3*t2-2*t3)*y1 + (t3-t2)*m1
-}
-
 // RefractedAltDeg returns the apparent altitude, degrees, of a body at
 // airless altitude altAirlessDeg: Site.RefractedAltDeg of the table's
 // atmosphere, to within 1e-9° (the full computation outside the table).
@@ -121,8 +133,7 @@ func (a *AirTable) RefractedAltDeg(altAirlessDeg float64) float64 {
 	if !ok {
 		return altAirlessDeg + refractionScaled(altAirlessDeg, a.scale)
 	}
-	k0, k1 := &a.knots[i], &a.knots[i+1]
-	return altAirlessDeg + hermite(t, k0.r, k0.dr, k1.r, k1.dr)
+	return altAirlessDeg + horner(&a.knots[i].r, t)
 }
 
 // RefractedAirmass returns the apparent altitude (degrees) of a body at
@@ -137,10 +148,10 @@ func (a *AirTable) RefractedAirmass(altAirlessDeg float64) (altRefrDeg, x float6
 		x, ok = Airmass(altRefrDeg)
 		return altRefrDeg, x, ok
 	}
-	k0, k1 := &a.knots[i], &a.knots[i+1]
-	altRefrDeg = altAirlessDeg + hermite(t, k0.r, k0.dr, k1.r, k1.dr)
+	k := &a.knots[i]
+	altRefrDeg = altAirlessDeg + horner(&k.r, t)
 	if !(altRefrDeg >= 0 && altRefrDeg <= 90) {
 		return altRefrDeg, 0, false
 	}
-	return altRefrDeg, hermite(t, k0.x, k0.dx, k1.x, k1.dx), true
+	return altRefrDeg, horner(&k.x, t), true
 }
