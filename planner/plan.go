@@ -1,6 +1,7 @@
 package planner
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"time"
@@ -347,10 +348,13 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 	en.fillEnvCache()
 	frame := ephem.NewSkyFrame(req.Site, req.From, req.To)
 	targets := make([]*targetState, len(req.Targets))
-	for i, t := range req.Targets {
+	// The targets are independent: set them up on all cores (the engine is
+	// read-only here; each target's state is its own).
+	err = forEach(context.Background(), len(req.Targets), func(i int) error {
+		t := req.Targets[i]
 		goals, err := t.ResolveGoals()
 		if err != nil {
-			return nil, nil, err
+			return err
 		}
 		ts := &targetState{idx: i, t: t, goals: goals, star: t.Star(), amGrid: make([]float64, int((to-from)/opt.StepS)+2)}
 		ts.track = frame.Track(ts.star)
@@ -368,6 +372,10 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 			ts.phaseErr = t.Ephem.PhaseErr(ts.clock.bjd(mid))
 		}
 		targets[i] = ts
+		return nil
+	}, nil)
+	if err != nil {
+		return nil, nil, err
 	}
 	return en, targets, nil
 }
@@ -395,12 +403,19 @@ const guardS = 1.0
 // buildProblem lists every goal occurrence in dark time and its candidate
 // blocks.
 func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
-	pr := &problem{nTargets: len(targets), cands: make([]candidate, 0, 4096)}
-	var occs []occMeta
-	for _, ts := range targets {
+	// Targets on all cores, each with its own occurrences numbered from 0,
+	// then put together in target order (renumbered), as one loop would.
+	type part struct {
+		occs  []occMeta
+		cands []candidate
+	}
+	parts := make([]part, len(targets))
+	forAll(len(targets), func(i int) {
+		ts := targets[i]
 		if !ts.hasClock || ts.phaseErr > en.opt.MaxPhaseErr {
-			continue
+			return
 		}
+		p := &parts[i]
 		for gi, g := range ts.goals {
 			lo, hi := en.dark[0].lo, en.dark[len(en.dark)-1].hi
 			for _, oc := range ts.clock.occurrences(g.Center, g.HalfWidth, lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences) {
@@ -409,10 +424,24 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 				if wanted == 0 {
 					wanted = int(math.Floor((oc.hi-oc.lo)/L)) + 1
 				}
-				k := len(occs)
-				occs = append(occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted})
-				pr.cands = en.appendCandidates(pr.cands, ts, g, oc, k, wanted)
+				k := len(p.occs)
+				p.occs = append(p.occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted})
+				p.cands = en.appendCandidates(p.cands, ts, g, oc, k, wanted)
 			}
+		}
+	})
+	n := 0
+	for _, p := range parts {
+		n += len(p.cands)
+	}
+	pr := &problem{nTargets: len(targets), cands: make([]candidate, 0, n)}
+	var occs []occMeta
+	for _, p := range parts {
+		base := len(occs)
+		occs = append(occs, p.occs...)
+		for _, c := range p.cands {
+			c.occ += base
+			pr.cands = append(pr.cands, c)
 		}
 	}
 	pr.nOcc = len(occs)

@@ -379,6 +379,24 @@ func forEach(ctx context.Context, n int, fn func(i int) error, tick func()) erro
 	return firstErr
 }
 
+// forAll runs fn(i) for i in 0..n−1 on a bounded pool of workers
+// (GOMAXPROCS, at most n), for work that cannot fail or be cancelled.
+func forAll(n int, fn func(i int)) {
+	workers := min(runtime.GOMAXPROCS(0), n)
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := int(next.Add(1) - 1); i < n; i = int(next.Add(1) - 1) {
+				fn(i)
+			}
+		}()
+	}
+	wg.Wait()
+}
+
 // progressCounter calls progress(done, total) as items complete.
 type progressCounter struct {
 	done, total int
