@@ -136,8 +136,13 @@ func runRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 	if req.Observed, req.Past, err = runObserved(observed, past, site, loc, c, nights); err != nil {
 		return err
 	}
-	rp, err := planner.PlanRun(ctx, req, nil)
+	prog := newProgress(stderr, "run")
+	rp, err := planner.PlanRun(ctx, req, prog.callback())
+	prog.finish()
 	if err != nil {
+		if ctx.Err() != nil {
+			return interrupted(err, "run")
+		}
 		var te *planner.TableError
 		if errors.As(err, &te) {
 			return usageErrorf("--observed %s: %s", shown(observed.value), te.Error())

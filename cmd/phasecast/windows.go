@@ -113,9 +113,14 @@ func runWindows(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if list, err = pickTargets(list, target, goal, halfWidth); err != nil {
 		return err
 	}
+	prog := newProgress(stderr, "windows")
 	got, err := planner.QueueWindows(ctx, planner.WindowRequest{Site: site, From: t0, To: t1, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS}}, nil)
+		Options: planner.Options{StepS: stepS}}, prog.callback())
+	prog.finish()
 	if err != nil {
+		if ctx.Err() != nil {
+			return interrupted(err, "windows")
+		}
 		return fromInputError(err, "not accepted", nil)
 	}
 	for i := range got {
