@@ -370,15 +370,24 @@ func (en *engine) marginAt(ts *targetState, u float64, ev env) (float64, reasonB
 		ha := ts.track.HourAngleHours(timeOf(u))
 		add(15*math.Min(ha-c.HAMinHours, c.HAMaxHours-ha), bitHourAngle)
 	}
+	// The angle between two directions is at least the difference of their
+	// altitudes, so a separation margin is at least lb = |h − h_body| − limit.
+	// When lb is at least the smallest margin so far and not negative, the
+	// separation can set neither the minimum nor a reason: it is skipped,
+	// and the result is the same (1e-9° spares the rounding of sepDeg).
+	sepNeeded := func(bodyAlt, limit float64) bool {
+		lb := math.Abs(s.altAirless-bodyAlt) - limit - 1e-9
+		return lb < m || lb < 0
+	}
 	if ev.moonUp() {
-		if c.MinMoonSepDeg > 0 {
+		if c.MinMoonSepDeg > 0 && sepNeeded(ev.moonAlt, c.MinMoonSepDeg) {
 			add(sepDeg(s.dir, ev.moon)-c.MinMoonSepDeg, bitMoonSep)
 		}
 		if c.MaxMoonIllum > 0 {
 			add(100*(c.MaxMoonIllum-ev.illum), bitMoonIllum)
 		}
 	}
-	if c.SunAvoidDeg > 0 {
+	if c.SunAvoidDeg > 0 && sepNeeded(ev.sunAlt, c.SunAvoidDeg) {
 		add(sepDeg(s.dir, ev.sun)-c.SunAvoidDeg, bitSunAvoid)
 	}
 	if why&bitBelowHorizon != 0 {
