@@ -3,6 +3,7 @@ package ephem_test
 import (
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"testing"
 	"time"
 
@@ -92,12 +93,28 @@ func benchTrackSample(b *testing.B, finish func(site ephem.Site, alt float64) fl
 	u0 := float64(from.Unix())
 	var sink float64
 	i := 0
+	runtime.LockOSThread()
+	defer runtime.UnlockOSThread()
+	c0, ok0 := threadCPU()
 	for b.Loop() {
 		alt, az := tr.AltAzUnix(u0 + float64(i%1440)*60)
-		sink += alt + az + finish(site, alt)
+		sink += alt
+		if finish != nil {
+			sink += az + finish(site, alt)
+		}
 		i++
 	}
+	// cpu-ns/op: the thread's CPU time per sample (see threadCPU).
+	if c1, ok1 := threadCPU(); ok0 && ok1 && b.N > 0 {
+		b.ReportMetric(float64(c1-c0)/float64(b.N), "cpu-ns/op")
+	}
 	_ = sink
+}
+
+// BenchmarkTrackSampleAltAz is the fast-path sample alone (AltAzUnix), timed
+// like the two below, for the ratio.
+func BenchmarkTrackSampleAltAz(b *testing.B) {
+	benchTrackSample(b, func(ephem.Site, float64) float64 { return 0 })
 }
 
 // BenchmarkTrackSampleAirTable is one fast-path sample with refraction and
