@@ -28,12 +28,17 @@ func (s *Server) render(w http.ResponseWriter, r *http.Request, status int, c te
 // renderError shows the short safe message for err and logs the details.
 func (s *Server) renderError(w http.ResponseWriter, r *http.Request, err error) {
 	status, msg := statusFor(err)
-	if status >= 500 {
+	if code, _ := errorCode(err); code == codeBusy {
+		s.log.Warn("request refused: busy", "path", redactPath(r.URL.Path), "err", err)
+	} else if status >= 500 {
 		s.log.Error("request failed", "path", redactPath(r.URL.Path), "err", err)
 	} else {
 		s.log.Info("request refused", "path", redactPath(r.URL.Path), "status", status, "err", err)
 	}
 	c := s.chrome(r, http.StatusText(status), "")
+	if u, ok := s.pageUser(r); ok {
+		c = s.chromeFor(r, u, http.StatusText(status), "")
+	}
 	s.render(w, r, status, page.ErrorPage(c, page.ErrorView{Status: status, Heading: http.StatusText(status), Message: msg}))
 }
 
