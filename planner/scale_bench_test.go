@@ -135,7 +135,7 @@ func scaleCase(b *testing.B, kind, list string, nt, nn int) {
 		op = func() error {
 			rp, err := planner.PlanRun(context.Background(), req, nil)
 			if err == nil {
-				b.ReportMetric(100*float64(rp.Value)/float64(rp.MaxValue), "%J")
+				b.ReportMetric(100*float64(rp.Value)/float64(rp.RequiredValue), "%J")
 				b.ReportMetric(float64(rp.Value)/1e6, "J")
 			}
 			return err

@@ -34,7 +34,7 @@ func TestLongCommandsProgress(t *testing.T) {
 		t.Run(name, func(t *testing.T) {
 			var plain, plainErr bytes.Buffer
 			fakeTerminal(t, false)
-			if err := run(context.Background(), argv, &plain, &plainErr); err != nil {
+			if err := run(context.Background(), testClock(t), argv, &plain, &plainErr); err != nil {
 				t.Fatalf("not a terminal: %v", err)
 			}
 			if plainErr.Len() != 0 {
@@ -42,7 +42,7 @@ func TestLongCommandsProgress(t *testing.T) {
 			}
 			fakeTerminal(t, true)
 			var out, errOut bytes.Buffer
-			if err := run(context.Background(), argv, &out, &errOut); err != nil {
+			if err := run(context.Background(), testClock(t), argv, &out, &errOut); err != nil {
 				t.Fatalf("terminal: %v", err)
 			}
 			line := errOut.String()
@@ -66,7 +66,7 @@ func TestLongCommandsCancelled(t *testing.T) {
 			ctx, cancel := context.WithCancel(context.Background())
 			cancel()
 			var out, errOut bytes.Buffer
-			err := run(ctx, argv, &out, &errOut)
+			err := run(ctx, testClock(t), argv, &out, &errOut)
 			if err == nil || exitCode(err) != exitFailure {
 				t.Fatalf("err %v (exit %d), want an interruption, exit %d", err, exitCode(err), exitFailure)
 			}
