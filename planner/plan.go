@@ -203,7 +203,11 @@ type Plan struct {
 	// counted); GreedyValue the greedy baseline's on the same candidates.
 	Value       int64
 	GreedyValue int64
-	Optimal     bool
+	// Objective and GreedyObjective are Value and GreedyValue by priority,
+	// as the optimiser compares them (Objective.Less). The run planner's
+	// nights put every goal on the first level.
+	Objective, GreedyObjective Objective
+	Optimal                    bool
 	// Rounds is the number of DSSR rounds, States the most optimiser
 	// states alive at once, Candidates the number of candidate blocks.
 	Rounds     int
@@ -220,6 +224,9 @@ func PriorityWeight(p int) int64 {
 	}
 	return w
 }
+
+// priorityLevel is the objective's level of priority p (1..5): 0..4.
+func priorityLevel(p int) int { return min(max(p, 1), levels) - 1 }
 
 // goalValue is v(goal, n) in millionths: ½ + ½·min(n, N)/N (see the notes in
 // schedule.go), N the exposures wanted or the window's capacity.
@@ -261,7 +268,7 @@ type engine struct {
 type occMeta struct {
 	target, goal int
 	occ          occurrence
-	wanted       int // N, or the window's capacity
+	wanted       int // N (Goal.Wanted)
 }
 
 // PlanNight plans one night: the observable intervals of every target, the
@@ -298,6 +305,7 @@ func PlanNight(req NightRequest) (*Plan, error) {
 		return nil, err
 	}
 	m := buildNightModel(req, en, targets)
+	m.strict = true
 	return m.plan(m.solve(m.priorityWeights())), nil
 }
 
@@ -402,12 +410,8 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 		}
 		for gi, g := range ts.goals {
 			lo, hi := en.dark[0].lo, en.dark[len(en.dark)-1].hi
+			wanted := g.Wanted(ts.t.Ephem.PeriodDays)
 			for _, oc := range ts.clock.occurrences(g.Center, g.HalfWidth, lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences) {
-				L := g.ExposureS + g.OverheadS
-				wanted := g.NExposures
-				if wanted == 0 {
-					wanted = int(math.Floor((oc.hi-oc.lo)/L)) + 1
-				}
 				k := len(occs)
 				occs = append(occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted})
 				pr.cands = en.appendCandidates(pr.cands, ts, g, oc, k, wanted)
@@ -472,12 +476,13 @@ func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc o
 		nmax := func(s float64) int {
 			return min(wanted, int(math.Floor((oc.hi-E/2-s)/L))+1, int(math.Floor((vhi-s)/L)))
 		}
+		lv := priorityLevel(ts.t.Priority)
 		add := func(s float64, n int) {
 			x := en.airmassTie(ts, s+0.5*float64(n)*L)
+			tie := -int64(math.Round(1000 * float64(n) * (x - 1)))
 			cs = append(cs, candidate{
 				start: s, end: s + float64(n)*L, acq: ts.t.AcquireS, acqFloor: floor,
-				target: ts.idx, occ: occID, n: n,
-				val: score{main: w * goalValue(n, wanted), tie: -int64(math.Round(1000 * float64(n) * (x - 1)))},
+				target: ts.idx, occ: occID, n: n, val: at(lv, w*goalValue(n, wanted), tie),
 			})
 		}
 		onGrid := func(s float64) bool { return math.Mod(s, step) == 0 }

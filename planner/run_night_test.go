@@ -70,6 +70,7 @@ func TestNightModelWeights(t *testing.T) {
 			}
 
 			const k = 7
+			m.strict = true
 			w := m.priorityWeights()
 			for ti := range w {
 				for gi := range w[ti] {
@@ -100,7 +101,17 @@ func TestNightModelWeights(t *testing.T) {
 			if tg < 0 {
 				t.Skip("every goal with a candidate is served: no conflict to resolve")
 			}
+			// The run planner's nights: one level, weights alone rank.
 			conflicts++
+			m.strict = false
+			want = m.plan(m.solve(m.priorityWeights()))
+			served = map[[2]int]bool{}
+			for _, b := range want.Blocks {
+				served[[2]int{b.TargetIndex, b.GoalIndex}] = true
+			}
+			if served[[2]int{tg, gg}] {
+				t.Skipf("goal %d of %s is served on one level", gg, req.Targets[tg].Name)
+			}
 			w = m.priorityWeights()
 			w[tg][gg] = 1_000_000
 			heavy := m.plan(m.solve(w))

@@ -53,15 +53,96 @@ import (
 // stops pathological cases with the best feasible schedule found (Optimal
 // false, with a warning).
 
-// score is an objective value: main (priority-weighted goal value) compared
-// first, tie second. Both are integers so that sums are exact and the same
-// input always compares the same way.
-type score struct{ main, tie int64 }
+// levels is the number of priority levels of the objective (priorities 1..5).
+const levels = 5
 
-func (a score) plus(b score) score { return score{a.main + b.main, a.tie + b.tie} }
+// score is an objective value, compared lexicographically: the value of the
+// priority-1 blocks first, then their airmass tie-breaker, then priority 2's
+// value and tie-breaker, and so on (main[l] and tie[l] hold level l,
+// priority l+1). All are integers so that sums are exact and the same input
+// always compares the same way. Scores form an ordered abelian group
+// (componentwise sum, lexicographic order), which is all the dynamic
+// programme needs to be exact.
+type score struct{ main, tie [levels]int64 }
+
+func (a score) plus(b score) score {
+	for l := range levels {
+		a.main[l] += b.main[l]
+		a.tie[l] += b.tie[l]
+	}
+	return a
+}
+
+func (a score) minus(b score) score {
+	for l := range levels {
+		a.main[l] -= b.main[l]
+		a.tie[l] -= b.tie[l]
+	}
+	return a
+}
 
 func (a score) less(b score) bool {
-	return a.main < b.main || (a.main == b.main && a.tie < b.tie)
+	for l := range levels {
+		switch {
+		case a.main[l] != b.main[l]:
+			return a.main[l] < b.main[l]
+		case a.tie[l] != b.tie[l]:
+			return a.tie[l] < b.tie[l]
+		}
+	}
+	return false
+}
+
+// total is the sum of the levels' main values (each already weighted by
+// its priority weight): the single figure Plan.Value reports.
+func (a score) total() int64 {
+	var s int64
+	for _, v := range a.main {
+		s += v
+	}
+	return s
+}
+
+// leading returns the first level whose main value is not zero, and that
+// value (−1, 0 for none): how a gap between two scores is reported.
+func (a score) leading() (int, int64) {
+	for l, v := range a.main {
+		if v != 0 {
+			return l, v
+		}
+	}
+	return -1, 0
+}
+
+// tieLevel returns the level holding a candidate's tie-breaker (its only
+// non-zero level; 0 when all are zero).
+func (a score) tieLevel() int {
+	for l := range levels {
+		if a.main[l] != 0 || a.tie[l] != 0 {
+			return l
+		}
+	}
+	return 0
+}
+
+// Objective is a night plan's objective value by priority: Value[p−1] the
+// priority-weighted goal value of the priority-p blocks (millionths), Tie[p−1]
+// their airmass tie-breaker (−Σ 1000·(X−1) over their exposures). Plans
+// compare with Less: Value[0], then Tie[0], then Value[1], and so on.
+type Objective struct{ Value, Tie [levels]int64 }
+
+// Less reports whether o ranks below b in that order.
+func (o Objective) Less(b Objective) bool {
+	return score{o.Value, o.Tie}.less(score{b.Value, b.Tie})
+}
+
+func (a score) objective() Objective { return Objective{a.main, a.tie} }
+
+// at returns a score with main value v and tie-breaker tie at level l.
+func at(l int, v, tie int64) score {
+	var s score
+	s.main[l], s.tie[l] = v, tie
+	return s
 }
 
 // candidate is one possible exposure block on the planner's time axis (Unix

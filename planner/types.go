@@ -37,7 +37,9 @@ type Goal struct {
 	HalfWidth float64 // half-width of the window in phase, 0 < w < 0.5
 	ExposureS float64 // one exposure, s (> 0)
 	OverheadS float64 // readout after each exposure, s (≥ 0)
-	// NExposures wanted; 0 means as many as fit.
+	// NExposures wanted per night: 1..10000, 0 for enough to cover the
+	// window once (Goal.CoverOnce), NAsManyAsFit (−1) for as many as one
+	// window holds (Goal.Capacity). See Goal.Wanted.
 	NExposures int
 	// MinNights asks for the goal to be covered on at least this many
 	// different nights over a run (0 or 1: one night is enough).
