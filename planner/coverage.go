@@ -18,8 +18,9 @@ import (
 // b = ⌊φ·B⌋. Phases are computed on the full path (ephem.PhaseAtUTC:
 // BJD_TDB, then the ephemeris). Failed exposures are not counted.
 //
-// Requirement. A goal wants N exposures (Goal.NExposures; "as many as fit",
-// N = 0, counts as 1) on each of M different nights (Goal.MinNights, at
+// Requirement. A goal wants N exposures (Goal.Wanted: NExposures, by default
+// the exposures that cover its window once, for "as many as fit" the
+// window's capacity) on each of M different nights (Goal.MinNights, at
 // least 1). A night's credit for the goal, from its n exposures in the
 // window that night, is
 //
@@ -75,13 +76,13 @@ func goalUtility(credits []float64, M int) float64 {
 type runGoal struct {
 	ti, gi int
 	g      Goal
-	N, M   int   // exposures per night (0: as many as fit) and nights wanted
+	N, M   int   // exposures per night (Goal.Wanted, ≥ 1) and nights wanted
 	w      int64 // PriorityWeight of the target
 	tolPh  float64
 }
 
 func newRunGoal(ti, gi int, t Target, g Goal) runGoal {
-	return runGoal{ti: ti, gi: gi, g: g, N: g.NExposures, M: max(g.MinNights, 1), w: PriorityWeight(t.Priority),
+	return runGoal{ti: ti, gi: gi, g: g, N: g.Wanted(t.Ephem.PeriodDays), M: max(g.MinNights, 1), w: PriorityWeight(t.Priority),
 		tolPh: coverageTolS / (t.Ephem.PeriodDays * 86400)}
 }
 
@@ -131,7 +132,7 @@ type NightCount struct {
 type GoalCoverage struct {
 	GoalIndex     int  // index in the target's ResolveGoals
 	Goal          Goal // resolved
-	NeedExposures int  // per night (Goal.NExposures; 1 for "as many as fit")
+	NeedExposures int  // per night (Goal.Wanted)
 	NeedNights    int  // Goal.MinNights, at least 1
 	// PerNight has one entry per night of the run.
 	PerNight []NightCount

@@ -275,18 +275,28 @@ type occMeta struct {
 // optimal schedule of exposure blocks on the goal windows, blocks' details
 // and warnings, the reason for every goal left out, and optional fillers.
 //
-// The schedule maximises Σ w(priority) × v(goal, n) over its blocks, with
-// w(p) = 3^(5−p) and v = ½ + ½ × (exposures, capped at N wanted)/N, or n/C
-// for "as many as fit" (C the window's capacity): half for reaching a goal
-// window, half for its exposures. Blocks do not overlap, an acquisition
-// overhead precedes every change of target (and the first block) inside dark
-// time, each goal occurrence gets at most one block, and every block meets
-// every constraint from start to end with every exposure's mid-time phase in
-// its window. It is solved exactly (decremental state-space relaxation; see
-// the notes in schedule.go and sweep.go), not greedily: Plan.GreedyValue is
-// what first-fit by priority would reach on the same candidates. (The
-// run planner solves the same problem with its own weight per goal in place
-// of w(priority): see nightModel.)
+// Objective, exactly. Priorities are strict levels: the schedule maximises
+// first V_1, the value of the priority-1 blocks, then their airmass
+// tie-breaker T_1, then V_2 and T_2, and so on to priority 5, where
+//
+//	V_p = Σ over priority-p blocks of w(p) × v(goal, n),   w(p) = 3^(5−p)
+//	v(goal, n) = ½ + ½ × min(n, N)/N
+//	T_p = −Σ 1000·(X − 1) over their exposures (X at each block's middle)
+//
+// with n the block's exposures and N the goal's wanted count per window
+// (Goal.Wanted: NExposures; by default the exposures that cover the window
+// once; NAsManyAsFit for the window's capacity): half for reaching a goal
+// window, half for its exposures. So no amount of lower-priority value buys
+// time from a higher priority, on any night. Blocks do not overlap, an
+// acquisition overhead precedes every change of target (and the first
+// block) inside dark time, each goal occurrence gets at most one block, and
+// every block meets every constraint from start to end with every
+// exposure's mid-time phase in its window. It is solved exactly (decremental
+// state-space relaxation over the ordered vectors; see the notes in
+// schedule.go and sweep.go), not greedily: Plan.GreedyObjective is what
+// first-fit by priority reaches on the same candidates, Plan.Objective the
+// optimum, Plan.Value the sum of its V_p. (The run planner solves the same
+// problem on one level with its own weight per goal: see nightModel.)
 //
 // A block never starts with the Sun above the chosen twilight altitude (the
 // whole block is in dark time); a block that starts while the Sun is above

@@ -2,14 +2,16 @@ package planner
 
 // The night planner's exact scheduler, shared by PlanNight and the run
 // planner. PlanNight values a block as PriorityWeight(target) × v(goal, n)
-// (see the notes in schedule.go); the run optimizer needs the same scheduler
+// on its priority's level of the objective (strict, see the notes in
+// schedule.go); the run optimizer needs the same scheduler
 // with its own weight per goal (what covering the goal tonight is worth to
 // the run). nightModel builds a night's engine and candidate blocks once
 // (newEngine, buildProblem: every rule of the night planner), and solves it
 // for any weights by rescaling the candidates' values:
 // value(b) = W(target, goal) × v(goal, n), W an integer ≥ 1 so that sums
-// stay exact. PlanNight is solve with W = PriorityWeight (priorityWeights)
-// followed by plan.
+// stay exact, all on one level (the run's J ranks goals by weight alone).
+// PlanNight is solve with W = PriorityWeight (priorityWeights) and strict
+// levels, followed by plan.
 
 import (
 	"fmt"

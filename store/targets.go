@@ -254,8 +254,8 @@ func validateGoals(v *ValidationError, t planner.Target, resolve bool) {
 		if !finite(g.OverheadS) || g.OverheadS < 0 || g.OverheadS > planner.MaxExposureS {
 			v.add(f+"overhead_s", num(g.OverheadS), fmt.Sprintf("readout per exposure, 0 ≤ t ≤ %g seconds", planner.MaxExposureS))
 		}
-		if g.NExposures < 0 || g.NExposures > 10000 {
-			v.add(f+"n_exposures", strconv.Itoa(g.NExposures), "0 (as many as fit) to 10000")
+		if g.NExposures < planner.NAsManyAsFit || g.NExposures > 10000 {
+			v.add(f+"n_exposures", strconv.Itoa(g.NExposures), planner.NExposuresAccepted)
 		}
 		if g.MinNights < 0 || g.MinNights > 366 {
 			v.add(f+"min_nights", strconv.Itoa(g.MinNights), "0 to 366 nights")

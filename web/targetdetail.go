@@ -68,12 +68,7 @@ func (s *Server) targetDetail(ctx context.Context, u *user, id int64) (page.Targ
 	return v, nil
 }
 
-func wantLabel(n int) string {
-	if n == 0 {
-		return "as many as fit"
-	}
-	return strconv.Itoa(n) + " wanted"
-}
+func wantLabel(n int) string { return planner.Goal{NExposures: n}.WantedLabel() }
 
 // targetFacts lists a target's position and settings.
 func targetFacts(t store.StoredTarget) []page.KV {

@@ -50,7 +50,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, header above); required")
 	cf := addConstraintFlags(fl)
 	acquire := fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
-	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = as many as fit)")
+	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = cover the window once, -1 = as many as fit)")
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
 	asJSON := fl.boolean("json", "print one JSON object")
@@ -79,9 +79,9 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err != nil {
 		return err
 	}
-	n, err := number(nExp, false, 0, 0, 10000, "a whole number 0..10000 (0 = as many as fit)")
+	n, err := number(nExp, false, 0, planner.NAsManyAsFit, 10000, "a whole number -1..10000 (0 = cover the window once, -1 = as many as fit)")
 	if err == nil && n != math.Trunc(n) {
-		err = fieldError(nExp, "not a whole number", "a whole number 0..10000 (0 = as many as fit)")
+		err = fieldError(nExp, "not a whole number", "a whole number -1..10000 (0 = cover the window once, -1 = as many as fit)")
 	}
 	if err != nil {
 		return err

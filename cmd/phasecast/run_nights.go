@@ -29,7 +29,8 @@ At most 366 nights, within 366 days. Each night runs from local noon to local no
 
 Targets: the CSV of the plan command (header
   name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority).
-Every goal wants --n-exposures exposures (0 = as many as fit) on each of
+Every goal wants --n-exposures exposures (0 = enough to cover its window
+once, -1 = as many as fit) on each of
 --min-nights nights. --bins N reports the coverage in N phase bins too; with
 --bin-goals the targets' goals become those N bins (a light curve).
 
@@ -55,7 +56,7 @@ func runRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 	past := fl.text("past", "N", "the nights the log reaches", "nights already over, 0..number of nights")
 	cf := addConstraintFlags(fl)
 	acquire := fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
-	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal and night (0 = as many as fit)")
+	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal and night (0 = cover the window once, -1 = as many as fit)")
 	minNights := fl.text("min-nights", "M", "1", "nights each goal wants its exposures on, 1..366")
 	bins := fl.text("bins", "N", "0", "also count the coverage in N phase bins, 2..100 (0 = none)")
 	binGoals := fl.boolean("bin-goals", "plan for the --bins phase bins instead of the CSV's phases (a light curve)")
@@ -87,7 +88,7 @@ func runRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 	if err != nil {
 		return err
 	}
-	n, err := wholeNumber(nExp, 0, 0, 10000, "a whole number 0..10000 (0 = as many as fit)")
+	n, err := wholeNumber(nExp, 0, planner.NAsManyAsFit, 10000, "a whole number -1..10000 (0 = cover the window once, -1 = as many as fit)")
 	if err != nil {
 		return err
 	}
