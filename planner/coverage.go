@@ -149,6 +149,34 @@ type GoalCoverage struct {
 	// ReachableNights counts the nights still to be planned on which the
 	// best-night search finds room for at least one exposure.
 	ReachableNights int
+	// Shortfall says in numbers why a goal not met falls short ("" when
+	// met): see coverageShortfall.
+	Shortfall string
+}
+
+// coverageShortfall explains, in numbers, why a goal's requirement is not
+// met: the window too short for N exposures ((N − 1) × L of mid-times
+// against the window W), no night holding N in one block (bestCap, the
+// most the best-night search finds on a night still to plan, from
+// GoalNight.Capacity), or the nights that can hold N taken by goals worth
+// more.
+func coverageShortfall(gc GoalCoverage, periodDays float64, bestCap, fullNights int) string {
+	if gc.Status == CoverageMet {
+		return ""
+	}
+	g, N := gc.Goal, gc.NeedExposures
+	L := g.ExposureS + g.OverheadS
+	need := fmt.Sprintf("%d exposures of %s s + %s s readout have mid-times over %s s", N, fmtNum(g.ExposureS), fmtNum(g.OverheadS), fmtSeconds(float64(N-1)*L))
+	switch W := g.WindowS(periodDays); {
+	case gc.Status == CoverageUnreachable:
+		return "no night of the run can reach the window"
+	case float64(N-1)*L > W:
+		return fmt.Sprintf("%s; the window is %s s (±%s in phase): at most %d fit one window", need, fmtSeconds(W), fmtNum(g.HalfWidth), g.Capacity(periodDays))
+	case bestCap < N:
+		return fmt.Sprintf("%s; the window is %s s, but on the nights still to plan at most %d fit in its observable part", need, fmtSeconds(W), bestCap)
+	}
+	return fmt.Sprintf("%d of the %d nights wanted hold %d exposures; %d nights still to plan could hold them: their time went to goals worth more",
+		gc.NightsMet, gc.NeedNights, N, fullNights)
 }
 
 // BinCoverage is one phase bin of a target's orbit: [Lo, Hi) in phase.

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 	"time"
 
@@ -186,4 +187,71 @@ func TestPlanNightExhaustive(t *testing.T) {
 		t.Fatalf("only %d small nights: the check barely ran", tried)
 	}
 	t.Logf("%d small nights: PlanNight's objective = exhaustive search", tried)
+}
+
+// TestShortfallInNumbers: the redback asked for 3 spectra of 900 + 45 s in
+// a ±0.03 window of its 5.85-hour orbit (1,264 s) gets 2 per block, and the
+// plan says why in numbers: their mid-times would span 1,890 s.
+func TestShortfallInNumbers(t *testing.T) {
+	req := scenarioNight(false)
+	for k := range req.Targets[0].Goals {
+		req.Targets[0].Goals[k].NExposures = 3
+	}
+	p, err := PlanNight(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := 0
+	for _, w := range p.Warnings {
+		if w.Code != WarnShortfall {
+			continue
+		}
+		n++
+		for _, want := range []string{"2 of 3 exposures wanted", "span 1,890 s", "the window is 1,264 s", "too short"} {
+			if !strings.Contains(w.Message, want) {
+				t.Errorf("shortfall %q lacks %q", w.Message, want)
+			}
+		}
+	}
+	if n != 4 {
+		t.Errorf("%d shortfall warnings, want one per goal (4)", n)
+	}
+	if got := fmtSeconds(1263.6); got != "1,264" {
+		t.Errorf("fmtSeconds(1263.6) = %q, want 1,264", got)
+	}
+}
+
+// TestCoverageShortfall: a run goal short of its requirement says why in
+// numbers, for each of the three causes.
+func TestCoverageShortfall(t *testing.T) {
+	P := 5.85 / 24
+	g := Goal{Center: 0.25, HalfWidth: 0.03, ExposureS: 900, OverheadS: 45, NExposures: 3}
+	gc := GoalCoverage{Goal: g, NeedExposures: g.Wanted(P), NeedNights: 2, NightsMet: 1, Status: CoveragePartial}
+	tests := []struct {
+		name          string
+		goal          Goal
+		bestCap, full int
+		want          []string
+	}{
+		{"WindowTooShort", g, 2, 0, []string{"3 exposures of 900 s + 45 s readout have mid-times over 1,890 s", "the window is 1,264 s", "at most 2 fit one window"}},
+		{"SkyTooShort", Goal{Center: 0.25, HalfWidth: 0.1, ExposureS: 900, OverheadS: 45, NExposures: 3}, 2, 0, []string{"the window is 4,212 s", "at most 2 fit in its observable part"}},
+		{"LostToOthers", Goal{Center: 0.25, HalfWidth: 0.1, ExposureS: 900, OverheadS: 45, NExposures: 3}, 4, 3, []string{"1 of the 2 nights wanted hold 3 exposures", "3 nights still to plan could hold them"}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			c := gc
+			c.Goal = tc.goal
+			got := coverageShortfall(c, P, tc.bestCap, tc.full)
+			for _, w := range tc.want {
+				if !strings.Contains(got, w) {
+					t.Errorf("%q lacks %q", got, w)
+				}
+			}
+		})
+	}
+	met := gc
+	met.Status = CoverageMet
+	if s := coverageShortfall(met, P, 2, 0); s != "" {
+		t.Errorf("a met goal has a shortfall: %q", s)
+	}
 }

@@ -175,6 +175,7 @@ const (
 	WarnTwilightStart   WarningCode = "twilight_start"    // block starts before astronomical darkness
 	WarnNotOptimal      WarningCode = "not_optimal"       // search stopped at Options.MaxStates
 	WarnSunAvoidApplied WarningCode = "sun_avoid_caution" // the Sun-avoidance angle excluded time
+	WarnShortfall       WarningCode = "shortfall"         // a goal's blocks hold fewer exposures than it wants, with the numbers
 )
 
 // Warning is something the observer should know, about a block, a goal or

@@ -162,6 +162,7 @@ func (m *nightModel) plan(ns nightSolution) *Plan {
 		prev = c
 	}
 	p.Unscheduled, p.Warnings = en.explain(targets, occs, pr, sol.chosen, p.Warnings)
+	p.Warnings = append(p.Warnings, en.shortfalls(targets, occs, p.Blocks)...)
 	if en.opt.Fill {
 		p.Blocks = en.fill(targets, p.Blocks)
 	}

@@ -282,14 +282,20 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 	for ti := range out.Coverage {
 		for gi := range out.Coverage[ti].Goals {
 			gc := &out.Coverage[ti].Goals[gi]
+			bestCap, full := 0, 0
 			for _, gn := range out.Reach[ti].Goals[gi].Nights {
 				if gn.Night >= r.past {
 					gc.ReachableNights++
+					bestCap = max(bestCap, gn.Capacity)
+					if gn.Capacity >= gc.NeedExposures {
+						full++
+					}
 				}
 			}
 			if gc.Status == CoverageNone && len(out.Reach[ti].Goals[gi].Nights) == 0 {
 				gc.Status = CoverageUnreachable
 			}
+			gc.Shortfall = coverageShortfall(*gc, r.targets[ti].t.Ephem.PeriodDays, bestCap, full)
 			out.Value += gc.Share
 			out.MaxValue += 1e6 * r.goals[ti][gi].w
 		}

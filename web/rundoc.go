@@ -68,6 +68,7 @@ type runGoalDoc struct {
 	PerNight        []runNightCount `json:"per_night"`
 	ReachableNights int             `json:"reachable_nights"`
 	Unreachable     string          `json:"unreachable,omitempty"`
+	Shortfall       string          `json:"shortfall,omitempty"`
 }
 
 type runNightCount struct {
@@ -124,7 +125,7 @@ func newRunDoc(in *runInputs, rp *planner.RunPlan, now time.Time) runDoc {
 		for _, g := range tc.Goals {
 			gd := runGoalDoc{PhaseGoal: g.Goal.Center, PhaseHalfWidth: g.Goal.HalfWidth, Event: g.Goal.Event, NeedExposures: g.NeedExposures,
 				NeedNights: g.NeedNights, Observed: g.Observed, Planned: g.Planned, NightsMet: g.NightsMet, Status: string(g.Status),
-				ReachableNights: g.ReachableNights}
+				ReachableNights: g.ReachableNights, Shortfall: g.Shortfall}
 			for _, pn := range g.PerNight {
 				gd.PerNight = append(gd.PerNight, runNightCount{pn.Observed, pn.Planned})
 			}

@@ -277,6 +277,7 @@ type runGoalJSON struct {
 	Status          string              `json:"status"`
 	Value           float64             `json:"value"`
 	ReachableNights int                 `json:"reachable_nights"`
+	Shortfall       string              `json:"shortfall,omitempty"`
 }
 
 type runBinJSON struct {
@@ -378,7 +379,7 @@ func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq flo
 		for _, gc := range tc.Goals {
 			gj := runGoalJSON{PhaseGoal: gc.Goal.Center, PhaseHalfWidth: gc.Goal.HalfWidth, NeedExposures: gc.NeedExposures, NeedNights: gc.NeedNights,
 				Observed: gc.Observed, Planned: gc.Planned, NightsMet: gc.NightsMet, Status: string(gc.Status), Value: gc.Value,
-				ReachableNights: gc.ReachableNights}
+				ReachableNights: gc.ReachableNights, Shortfall: gc.Shortfall}
 			for _, nc := range gc.PerNight {
 				gj.PerNight = append(gj.PerNight, runNightCountJSON{nc.Observed, nc.Planned})
 			}
@@ -548,6 +549,17 @@ func printRun(w io.Writer, rp *planner.RunPlan, out runJSONOut, loc *time.Locati
 	}
 	if err := tb.flush(); err != nil {
 		return err
+	}
+	var short []string
+	for _, tc := range rp.Coverage {
+		for _, gc := range tc.Goals {
+			if gc.Shortfall != "" && gc.Status != planner.CoverageUnreachable {
+				short = append(short, fmt.Sprintf("  %s, phase %.3f (%s): %s", tc.Target, gc.Goal.Center, gc.Status, gc.Shortfall))
+			}
+		}
+	}
+	if len(short) > 0 {
+		b.WriteString("\nShort of the requirement:\n" + strings.Join(short, "\n") + "\n")
 	}
 	if req.Bins > 0 {
 		fmt.Fprintf(&b, "\nPhase bins (%d, exposures per bin from phase 0):\n", req.Bins)
