@@ -12,6 +12,10 @@ import (
 const SafetyCaution = "Caution: never point a telescope or its finder near the Sun; blocks in twilight and the " +
 	"Sun-avoidance angle are planning aids only. Check times with your observatory's own tools and follow its safety rules."
 
+// DefaultMaxPhaseErr is Options.MaxPhaseErr's default: the 1σ phase
+// uncertainty above which a goal is refused (UncertaintyRule).
+const DefaultMaxPhaseErr = 0.25
+
 // Options tune the night planner. A zero field takes the default shown.
 type Options struct {
 	// StepS is the sampling step of the constraints and the grid of block
@@ -54,7 +58,7 @@ func (o Options) withDefaults() (Options, error) {
 	}
 	def(&o.StepS, 60)
 	def(&o.SmearFrac, 0.25)
-	def(&o.MaxPhaseErr, 0.25)
+	def(&o.MaxPhaseErr, DefaultMaxPhaseErr)
 	def(&o.MoonWarnSepDeg, 30)
 	def(&o.FillMinS, 600)
 	if o.MaxStates == 0 {
@@ -416,7 +420,7 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 	pr := &problem{nTargets: len(targets), cands: make([]candidate, 0, 4096)}
 	var occs []occMeta
 	for _, ts := range targets {
-		if !ts.hasClock || ts.phaseErr > en.opt.MaxPhaseErr {
+		if !ts.hasClock || UncertaintyRule(ts.phaseErr, 0, en.opt.MaxPhaseErr) >= PhaseRefused {
 			continue
 		}
 		for gi, g := range ts.goals {

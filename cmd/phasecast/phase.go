@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"phasecast/ephem"
+	"phasecast/planner"
 )
 
 // phaseJSON is the `phase --json` contract.
@@ -15,6 +16,19 @@ type phaseJSON struct {
 	Cycle    int64   `json:"cycle"`     // floor((BJD_TDB − T0)/P) for a linear ephemeris
 	Phase    float64 `json:"phase"`     // 0 ≤ phase < 1, from T0
 	PhaseErr float64 `json:"phase_err"` // 1σ, in phase
+	// Warning says in words when the uncertainty makes the phase
+	// meaningless or the planner would refuse it (planner.UncertaintyRule).
+	Warning string `json:"warning,omitempty"`
+}
+
+// uncertaintyWarning is the warning of phase and events for a 1σ phase
+// uncertainty sigma (cycles) of an orbit of periodDays: the planner's rule
+// at its default limit, with the timing error in seconds.
+func uncertaintyWarning(sigma, periodDays float64) string {
+	if planner.UncertaintyRule(sigma, 0, planner.DefaultMaxPhaseErr) < planner.PhaseRefused {
+		return ""
+	}
+	return fmt.Sprintf("%s (1σ of a predicted time: %.0f s, the period %.0f s)", planner.UncertaintyNote(sigma, 0, planner.DefaultMaxPhaseErr), sigma*periodDays*86400, periodDays*86400)
 }
 
 const phaseSynopsis = `The orbital cycle and phase of a binary at an instant: the instant is turned
@@ -50,6 +64,7 @@ func runPhase(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err := checkFinite([]string{"phase", "phase uncertainty"}, out.Phase, out.PhaseErr); err != nil {
 		return err
 	}
+	out.Warning = uncertaintyWarning(out.PhaseErr, e.PeriodDays)
 	if *asJSON {
 		return writeJSON(stdout, out)
 	}
@@ -64,6 +79,9 @@ func runPhase(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	tb.row("phase", f(out.Phase, 5), fmt.Sprintf("± %.5f (1σ, %.1f s)", out.PhaseErr, out.PhaseErr*e.PeriodDays*86400))
 	if err := tb.flush(); err != nil {
 		return err
+	}
+	if out.Warning != "" {
+		fmt.Fprintln(stdout, "Warning: "+out.Warning)
 	}
 	_, err = fmt.Fprintln(stdout, safetyNote)
 	return err
