@@ -170,6 +170,8 @@ func coverageShortfall(gc GoalCoverage, periodDays float64, bestCap, fullNights 
 	switch W := g.WindowS(periodDays); {
 	case gc.Status == CoverageUnreachable:
 		return "no night of the run can reach the window"
+	case bestCap == 0 && float64(N-1)*L <= W:
+		return "no night still to plan can reach the window (those that could are over, or none exists)"
 	case float64(N-1)*L > W:
 		return fmt.Sprintf("%s; the window is %s s (±%s in phase): at most %d fit one window", need, fmtSeconds(W), fmtNum(g.HalfWidth), g.Capacity(periodDays))
 	case bestCap < N:

@@ -36,8 +36,9 @@ func modelNight(seed uint64) NightRequest {
 // TestNightModelWeights checks the weights of the night scheduler that
 // PlanNight and the run planner share: the priority weights give PlanNight's
 // plan, scaling every weight by k scales the value by k and keeps the
-// blocks, and a heavy weight on a goal PlanNight left out puts it in the
-// schedule at the expense of a block PlanNight chose.
+// blocks, and on the run planner's single level (strict false) a heavy
+// weight on a goal left out puts it in the schedule at the expense of a
+// block chosen before.
 func TestNightModelWeights(t *testing.T) {
 	type key struct {
 		target, goal int

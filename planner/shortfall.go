@@ -44,8 +44,8 @@ func (en *engine) shortfalls(targets []*targetState, occs []occMeta, blocks []Bl
 					avail = math.Max(avail, hi-lo)
 				}
 			}
-			msg := fmt.Sprintf("%d of %d exposures wanted: the mid-times of %d exposures of %s s + %s s readout span %s s; the window is %s s (±%s in phase)",
-				n, N, N, fmtNum(E), fmtNum(g.OverheadS), fmtSeconds(needS), fmtSeconds(W), fmtNum(g.HalfWidth))
+			msg := fmt.Sprintf("goal at phase %.3f: %d of %d exposures wanted: the mid-times of %d exposures of %s s + %s s readout span %s s; the window is %s s (±%s in phase)",
+				g.Center, n, N, N, fmtNum(E), fmtNum(g.OverheadS), fmtSeconds(needS), fmtSeconds(W), fmtNum(g.HalfWidth))
 			switch {
 			case W < needS:
 				msg += ", too short for them"
