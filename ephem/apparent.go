@@ -92,7 +92,7 @@ func earthVelocityOverC(jdTT float64) vec3 {
 // apparent returns the unit vector of st's apparent place (true equator and
 // equinox of date).
 func (r *placeReducer) apparent(st Star) vec3 {
-	p := properMotion(st, r.years)
+	p := properMotion(st, r.years-(st.Epoch()-2000)) // from the coordinate epoch
 	p = aberrate(p, r.beta)
 	ra, dec := p.radec()
 	eq := coord.Equatorial{RA: unit.RA(ra), Dec: unit.Angle(dec)}
@@ -102,8 +102,8 @@ func (r *placeReducer) apparent(st Star) vec3 {
 	return unitVec(a.Rad(), d.Rad())
 }
 
-// properMotion returns the unit vector of st at years Julian years after
-// J2000.0: the star moves on the tangent plane at J2000.0 with its proper
+// properMotion returns the unit vector of st at years Julian years after its
+// coordinate epoch: the star moves on the tangent plane at that epoch with its proper
 // motion (μα·cos δ, μδ) and the result is renormalised. Without parallax and
 // radial velocity this is the usual space-motion model; it is well defined at
 // the poles, where a right-ascension rate is not.

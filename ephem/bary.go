@@ -410,9 +410,10 @@ func baryObservatory(s Site, u JD2) [3]float64 {
 
 // baryStarDirection returns the unit vector towards st in the mean equator
 // and equinox of TDB Julian date jde: ICRS position moved by proper motion
-// from J2000.0 and precessed, Meeus (21.2)–(21.4) via meeus precess.Position
+// from its coordinate epoch and precessed, Meeus (21.2)–(21.4) via meeus precess.Position
 // (epochs in Julian years).
 func baryStarDirection(st Star, jde float64) [3]float64 {
+	st = st.atJ2000() // coordinates at another epoch: moved to J2000.0 first
 	from := coord.Equatorial{RA: unit.RAFromDeg(st.RADeg), Dec: unit.AngleFromDeg(st.DecDeg)}
 	epoch := 2000 + (jde-J2000)/365.25
 	var mRA unit.HourAngle
@@ -438,6 +439,8 @@ func baryValidateStar(st Star) error {
 		return &InputError{"pm_ra", fmtNum(st.PMRAmasyr), "−100000..100000 mas/yr (μα cos δ)"}
 	case !finite(st.PMDecmasyr) || math.Abs(st.PMDecmasyr) > 1e5:
 		return &InputError{"pm_dec", fmtNum(st.PMDecmasyr), "−100000..100000 mas/yr"}
+	case !finite(st.EpochJY) || st.EpochJY != 0 && (st.EpochJY < 1800 || st.EpochJY > 2200):
+		return &InputError{"coord_epoch", fmtNum(st.EpochJY), "a Julian epoch J1800.0..J2200.0 (e.g. J2016.0), or empty for J2000.0"}
 	}
 	return nil
 }

@@ -39,6 +39,39 @@ const (
 // December 2025; TAI−UTC = 37 s since 2017-01-01.
 const LeapTableUpdated = "2025-07 (IERS Bulletin C 70)"
 
+// LeapTableKnownUntil is the last instant for which the leap-second table is
+// known to be complete. Leap seconds are inserted only at the end of June or
+// of December, each announced in a Bulletin C about six months before; the
+// bulletin of LeapTableUpdated settled the end of December 2025, so the next
+// possible insertion it leaves open is at the end of June 2026 (from memory).
+var LeapTableKnownUntil = time.Date(2026, 6, 30, 23, 59, 59, 0, time.UTC)
+
+// ΔT table 10.A of Meeus is accurate from 1620 to 2010 (the package's own
+// statement); earlier ΔT is extrapolated.
+var deltaTTableStart = time.Date(1620, 1, 1, 0, 0, 0, 0, time.UTC)
+
+// TimeScaleNote returns one sentence when TT − UTC at instant t rests on an
+// assumption beyond phasecast's tables, for printing beside results that
+// depend on it, and "" when the tables cover t:
+//   - after LeapTableKnownUntil: no leap second after the table's last entry
+//     is assumed (TT − UTC stays 69.184 s); a leap second announced later
+//     shifts TT, TDB and BJD_TDB by one second until the table is updated;
+//   - before 1960: UTC had no atomic definition, TT − UT is ΔT from Meeus
+//     table 10.A with UT = UTC;
+//   - before 1620: ΔT is extrapolated beyond that table, uncertain by minutes.
+func TimeScaleNote(t time.Time) string {
+	switch {
+	case t.After(LeapTableKnownUntil):
+		return "time scales: the leap-second table (checked against IERS Bulletin C 70) is known complete up to " +
+			LeapTableKnownUntil.Format("2006-01-02") + "; no leap second after that is assumed (TT − UTC = 69.184 s), and one announced since would shift TT and BJD_TDB by 1 s"
+	case t.Before(deltaTTableStart):
+		return "time scales: before 1620 ΔT is extrapolated beyond Meeus table 10.A and may be off by minutes; TT, TDB and BJD_TDB carry that error"
+	case t.Before(time.Date(1960, 1, 1, 0, 0, 0, 0, time.UTC)):
+		return "time scales: before 1960 UTC had no atomic definition; TT − UT is ΔT from Meeus table 10.A with UT taken equal to UTC"
+	}
+	return ""
+}
+
 // taiUTCStep is one line of the TAI−UTC table: from MJD Start (UTC) on,
 // TAI−UTC = Offset + (MJD − RefMJD) × Rate seconds. Between 1960 and 1972 UTC
 // was steered with frequency offsets ("rubber seconds"); since 1972 Rate is 0

@@ -14,18 +14,21 @@ type Target struct {
 	DecDeg     float64 // ICRS declination, degrees, −90..90
 	PMRAmasyr  float64 // proper motion in RA × cos δ, mas/yr
 	PMDecmasyr float64 // proper motion in Dec, mas/yr
-	Mag        float64 // brightness for the observer's reference (0 = unknown)
-	Ephem      ephem.Ephemeris
-	Goals      []Goal
-	Priority   int     // 1 (highest) to 5
-	AcquireS   float64 // acquisition overhead per visit (slew, centring), s
-	Tags       []string
-	Notes      string
+	// CoordEpochJY is the Julian epoch of RADeg and DecDeg (2016.0 for
+	// J2016.0); 0 means J2000.0. Proper motion is applied from it.
+	CoordEpochJY float64
+	Mag          float64 // brightness for the observer's reference (0 = unknown)
+	Ephem        ephem.Ephemeris
+	Goals        []Goal
+	Priority     int     // 1 (highest) to 5
+	AcquireS     float64 // acquisition overhead per visit (slew, centring), s
+	Tags         []string
+	Notes        string
 }
 
 // Star returns the target's catalogue place for the ephem package.
 func (t Target) Star() ephem.Star {
-	return ephem.Star{RADeg: t.RADeg, DecDeg: t.DecDeg, PMRAmasyr: t.PMRAmasyr, PMDecmasyr: t.PMDecmasyr}
+	return ephem.Star{RADeg: t.RADeg, DecDeg: t.DecDeg, PMRAmasyr: t.PMRAmasyr, PMDecmasyr: t.PMDecmasyr, EpochJY: t.CoordEpochJY}
 }
 
 // Goal is a wanted orbital-phase window for a target with its exposure setup.

@@ -5,6 +5,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"phasecast/ephem"
 	"phasecast/planner"
@@ -15,7 +16,7 @@ import (
 // leaves exactly one with the row after the change.
 func TestAuditInSameTransaction(t *testing.T) {
 	ctx := context.Background()
-	s, err := Open(ctx, filepath.Join(t.TempDir(), "a.db"), WithPasswordParams(PasswordParams{Time: 1, MemoryKiB: 1024, Threads: 1, SaltLen: 16, KeyLen: 32}))
+	s, err := Open(ctx, filepath.Join(t.TempDir(), "a.db"), func() time.Time { return time.Date(2026, 3, 14, 12, 0, 0, 0, time.UTC) }, WithPasswordParams(PasswordParams{Time: 1, MemoryKiB: 1024, Threads: 1, SaltLen: 16, KeyLen: 32}))
 	if err != nil {
 		t.Fatal(err)
 	}

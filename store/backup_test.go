@@ -81,7 +81,7 @@ func TestBackupAndRestore(t *testing.T) {
 	ctx := context.Background()
 	dir := t.TempDir()
 	path := filepath.Join(dir, "live.db")
-	s, err := store.Open(ctx, path, store.WithPasswordParams(fastPasswords))
+	s, err := store.Open(ctx, path, func() time.Time { return t0 }, store.WithPasswordParams(fastPasswords))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -166,7 +166,7 @@ func TestBackupAndRestore(t *testing.T) {
 		t.Errorf("old database not kept: %v", err)
 	}
 	sameDump(t, dump(t, path), want)
-	s2, err := store.Open(ctx, path)
+	s2, err := store.Open(ctx, path, func() time.Time { return t0 })
 	if err != nil {
 		t.Fatal(err)
 	}

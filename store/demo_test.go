@@ -12,8 +12,10 @@ import (
 
 func TestSeedDemo(t *testing.T) {
 	ctx := context.Background()
-	s, _ := newStore(t)
-	now := time.Date(2026, 10, 3, 21, 30, 0, 0, time.UTC)
+	// The demo is seeded at the store's own "now", as serve does on first
+	// start, so that its one-time link is valid when redeemed.
+	s, clk := newStore(t)
+	now := clk.now()
 	info, err := s.SeedDemo(ctx, now)
 	if err != nil {
 		t.Fatal(err)
@@ -123,7 +125,8 @@ func TestSeedDemo(t *testing.T) {
 	// The run covers the night before now and the next ones; exposures
 	// were taken on its first night.
 	r := info.Run
-	if len(r.Nights) != 4 || r.Nights[0].Date != "2026-10-02" {
+	local := now.In(loc)
+	if want := local.AddDate(0, 0, -1).Format("2006-01-02"); len(r.Nights) != 4 || r.Nights[0].Date != want {
 		t.Errorf("run nights = %+v", r.Nights)
 	}
 	obs, err := s.ListObservations(ctx, owner, store.ObservationFilter{RunID: r.ID})

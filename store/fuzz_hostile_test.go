@@ -45,7 +45,7 @@ func newHostileDB(tb testing.TB) *hostileDB {
 	tb.Helper()
 	ctx := context.Background()
 	s, err := store.Open(ctx, filepath.Join(tb.TempDir(), "hostile.db"),
-		store.WithClock(func() time.Time { return time.Date(2026, 3, 14, 12, 0, 0, 0, time.UTC) }),
+		func() time.Time { return t0 },
 		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 1024, Threads: 1, SaltLen: 16, KeyLen: 32}))
 	if err != nil {
 		tb.Fatalf("Open: %v", err)

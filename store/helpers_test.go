@@ -11,6 +11,7 @@ import (
 	"phasecast/ephem"
 	"phasecast/planner"
 	"phasecast/store"
+	"phasecast/store/testclock"
 )
 
 // fastPasswords keeps tests quick; production uses DefaultPasswordParams.
@@ -29,14 +30,16 @@ func (c *clock) add(d time.Duration) {
 	c.t = c.t.Add(d)
 }
 
-var t0 = time.Date(2026, 3, 14, 12, 0, 0, 0, time.UTC)
+// t0 is the store tests' clock at the start of each test: PHASECAST_TEST_NOW
+// when set, else a day in March 2026.
+var t0 = testclock.Or(time.Date(2026, 3, 14, 12, 0, 0, 0, time.UTC))
 
 // newStore opens a fresh database file under t.TempDir().
 func newStore(tb testing.TB) (*store.Store, *clock) {
 	tb.Helper()
 	c := &clock{t: t0}
 	s, err := store.Open(context.Background(), filepath.Join(tb.TempDir(), "phasecast.db"),
-		store.WithClock(c.now), store.WithPasswordParams(fastPasswords))
+		c.now, store.WithPasswordParams(fastPasswords))
 	if err != nil {
 		tb.Fatalf("Open: %v", err)
 	}

@@ -9,6 +9,7 @@ import (
 	"slices"
 	"strings"
 	"testing"
+	"time"
 
 	"phasecast/store"
 )
@@ -114,14 +115,14 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 func TestMigrateIsIdempotentAndRefusesNewer(t *testing.T) {
 	ctx := context.Background()
 	path := filepath.Join(t.TempDir(), "db.sqlite")
-	s, err := store.Open(ctx, path)
+	s, err := store.Open(ctx, path, func() time.Time { return t0 })
 	if err != nil {
 		t.Fatal(err)
 	}
 	if err := s.Close(); err != nil {
 		t.Fatal(err)
 	}
-	s, err = store.Open(ctx, path) // second open applies nothing
+	s, err = store.Open(ctx, path, func() time.Time { return t0 }) // second open applies nothing
 	if err != nil {
 		t.Fatalf("reopen: %v", err)
 	}
@@ -135,13 +136,13 @@ func TestMigrateIsIdempotentAndRefusesNewer(t *testing.T) {
 	if _, err := rawDB(t, path).Exec("INSERT INTO schema_migrations (version, name, applied_at) VALUES (99, 'future', 'x')"); err != nil {
 		t.Fatal(err)
 	}
-	if _, err := store.Open(ctx, path); err == nil || !strings.Contains(err.Error(), "newer") {
+	if _, err := store.Open(ctx, path, func() time.Time { return t0 }); err == nil || !strings.Contains(err.Error(), "newer") {
 		t.Errorf("Open of a newer schema: err = %v, want a 'newer' error", err)
 	}
 }
 
 func TestOpenRejectsMemory(t *testing.T) {
-	_, err := store.Open(context.Background(), ":memory:")
+	_, err := store.Open(context.Background(), ":memory:", func() time.Time { return t0 })
 	wantCode(t, err, store.EINVALID)
 }
 

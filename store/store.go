@@ -40,10 +40,6 @@ type Store struct {
 // Option changes how Open sets up a Store.
 type Option func(*Store)
 
-// WithClock sets the clock the store stamps rows with and checks expiry
-// against (default time.Now). Tests use it to move time.
-func WithClock(now func() time.Time) Option { return func(s *Store) { s.now = now } }
-
 // WithPasswordParams sets the argon2id parameters for NEW password hashes
 // (default DefaultPasswordParams). Existing hashes carry their own.
 func WithPasswordParams(p PasswordParams) Option { return func(s *Store) { s.pw = p } }
@@ -64,13 +60,19 @@ func dsn(path string, readOnly bool) string {
 }
 
 // Open opens (creating if needed) the database file at path and migrates it
-// to the latest schema. path must be a file path, not ":memory:".
-func Open(ctx context.Context, path string, opts ...Option) (*Store, error) {
+// to the latest schema. path must be a file path, not ":memory:". now is the
+// clock the store stamps rows with and checks expiries (sessions, sign-in
+// links, tokens, invitations, share links) against: the program's one clock,
+// handed down by cmd/phasecast; tests pass a pinned one.
+func Open(ctx context.Context, path string, now func() time.Time, opts ...Option) (*Store, error) {
 	const op = "store.Open"
 	if path == "" || strings.ContainsAny(path, "?#") || strings.HasPrefix(path, ":memory:") {
 		return nil, &Error{Code: EINVALID, Op: op, Message: fmt.Sprintf("database path %q is not accepted; accepted: a file path without '?' or '#'", path)}
 	}
-	s := &Store{path: path, now: time.Now, pw: DefaultPasswordParams, sessionTTL: 30 * 24 * time.Hour}
+	if now == nil {
+		return nil, &Error{Code: EINVALID, Op: op, Message: "no clock given; the caller hands the store its clock"}
+	}
+	s := &Store{path: path, now: now, pw: DefaultPasswordParams, sessionTTL: 30 * 24 * time.Hour}
 	for _, o := range opts {
 		o(s)
 	}

@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"phasecast/store"
+	"phasecast/store/testclock"
 )
 
 // demo is a server over the seeded demo scenario with a browser-like
@@ -28,18 +29,19 @@ type demo struct {
 func newDemo(t *testing.T) *demo {
 	t.Helper()
 	ctx := context.Background()
-	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "demo.db"),
+	clk := testclock.Start(t, time.Date(2026, 12, 1, 18, 0, 0, 0, time.UTC))
+	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "demo.db"), clk.Now,
 		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 64, Threads: 1, SaltLen: 16, KeyLen: 32}))
 	if err != nil {
 		t.Fatal(err)
 	}
 	t.Cleanup(func() { st.Close() })
-	now := time.Now().UTC()
+	now := clk.Now()
 	info, err := st.SeedDemo(ctx, now)
 	if err != nil {
 		t.Fatal(err)
 	}
-	srv, err := New(Config{Store: st, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	srv, err := New(Config{Store: st, Logger: slog.New(slog.NewTextHandler(io.Discard, nil)), Now: clk.Now})
 	if err != nil {
 		t.Fatal(err)
 	}

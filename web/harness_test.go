@@ -14,10 +14,11 @@ import (
 	"time"
 
 	"phasecast/store"
+	"phasecast/store/testclock"
 )
 
 // testNow is the fixed clock of the handler tests: an evening in March.
-var testNow = time.Date(2026, 3, 14, 20, 0, 0, 0, time.UTC)
+var testNow = testclock.Or(time.Date(2026, 3, 14, 20, 0, 0, 0, time.UTC))
 
 // harness is a server over a real SQLite file with a team (owner, editor,
 // viewer) and an outsider in another team.
@@ -36,7 +37,7 @@ const testPassword = "correct horse battery"
 func newHarness(t testing.TB) *harness {
 	t.Helper()
 	ctx := context.Background()
-	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "test.db"),
+	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "test.db"), func() time.Time { return testNow },
 		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 64, Threads: 1, SaltLen: 16, KeyLen: 32}))
 	if err != nil {
 		t.Fatal(err)

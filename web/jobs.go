@@ -48,7 +48,7 @@ func (j *job) state() (fraction float64, msg string, finished bool, next string)
 	case j.finished:
 		msg, fraction = "Finished.", 1
 	default:
-		msg = fmt.Sprintf("Working: %d of %d steps, %s elapsed.", j.done, j.total, time.Since(j.started).Round(time.Second))
+		msg = fmt.Sprintf("Working: %d of %d steps, %s elapsed.", j.done, j.total, time.Since(j.started).Round(time.Second)) // elapsed
 	}
 	return fraction, msg, j.finished, j.next
 }
@@ -63,6 +63,10 @@ type jobs struct {
 
 const maxJobs = 2
 
+// maxJobsPerUser is how many background computations one user may run at
+// once, so that one user cannot take every slot of maxJobs.
+const maxJobsPerUser = 1
+
 // start runs work in the background under a context that the job's cancel
 // button (or a 10-minute limit) ends.
 func (js *jobs) start(userID int64, title, back string, work func(ctx context.Context, j *job) (next string, err error)) (*job, error) {
@@ -71,27 +75,33 @@ func (js *jobs) start(userID int64, title, back string, work func(ctx context.Co
 	if js.m == nil {
 		js.m = map[string]*job{}
 	}
-	running := 0
+	running, mine := 0, 0
 	for id, j := range js.m {
 		_, _, finished, _ := j.state()
-		if finished && time.Since(j.started) > time.Hour {
+		if finished && time.Since(j.started) > time.Hour { // elapsed
 			delete(js.m, id)
 		} else if !finished {
 			running++
 			if j.userID == userID && j.back == back {
 				return j, nil // the same computation is already running
 			}
+			if j.userID == userID {
+				mine++
+			}
 		}
 	}
+	if mine >= maxJobsPerUser {
+		return nil, &codedError{code: codeTooMany, msg: "You already have a run being planned; wait for it to finish (or stop it), then try again."}
+	}
 	if running >= maxJobs {
-		return nil, errInvalid("The server is busy with other long computations; try again in a minute.")
+		return nil, errBusy()
 	}
 	b := make([]byte, 12)
 	if _, err := rand.Read(b); err != nil {
 		return nil, err
 	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Minute)
-	j := &job{id: hex.EncodeToString(b), userID: userID, back: back, title: title, cancel: cancel, started: time.Now()}
+	j := &job{id: hex.EncodeToString(b), userID: userID, back: back, title: title, cancel: cancel, started: time.Now()} // elapsed
 	js.m[j.id] = j
 	go func() {
 		defer cancel()

@@ -37,7 +37,7 @@ func secureHeaders(next http.Handler) http.Handler {
 // segments (sign-in, invitation and share tokens) are redacted.
 func (s *Server) logRequests(next http.Handler) http.Handler {
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
-		start := time.Now()
+		start := time.Now() // elapsed
 		ww := middleware.NewWrapResponseWriter(w, r.ProtoMajor)
 		next.ServeHTTP(ww, r)
 		status := ww.Status()
@@ -53,7 +53,7 @@ func (s *Server) logRequests(next http.Handler) http.Handler {
 			slog.String("path", redactPath(r.URL.Path)),
 			slog.Int("status", status),
 			slog.Int("bytes", ww.BytesWritten()),
-			slog.Duration("duration", time.Since(start)),
+			slog.Duration("duration", time.Since(start)), // elapsed
 			slog.String("remote", r.RemoteAddr),
 		)
 	})

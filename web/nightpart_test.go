@@ -17,6 +17,13 @@ import (
 // 2026-03-14 under the site's default constraints.
 func halfWindow(tb testing.TB, part planner.NightPart) planner.Interval {
 	tb.Helper()
+	return halfWindowOn(tb, part, 2026, time.March, 14)
+}
+
+// halfWindowOn is halfWindow for the night that begins on the evening of
+// y-m-d at the fixtures' site.
+func halfWindowOn(tb testing.TB, part planner.NightPart, y int, m time.Month, d int) planner.Interval {
+	tb.Helper()
 	loc, err := time.LoadLocation("America/Phoenix")
 	if err != nil {
 		tb.Fatal(err)
@@ -24,7 +31,7 @@ func halfWindow(tb testing.TB, part planner.NightPart) planner.Interval {
 	c := planner.DefaultConstraints()
 	c.Horizon = []planner.HorizonPoint{{AzDeg: 0, AltDeg: 5}, {AzDeg: 90, AltDeg: 12}, {AzDeg: 200, AltDeg: 8}}
 	ws, err := planner.RunNightWindows(ephem.Site{LatDeg: 31.9, LonEastDeg: -111.6, ElevM: 2100}, loc, c,
-		[]planner.RunNight{{Year: 2026, Month: time.March, Day: 14, Part: part}})
+		[]planner.RunNight{{Year: y, Month: m, Day: d, Part: part}})
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -152,8 +159,18 @@ func TestNightBadPart(t *testing.T) {
 func TestTonightUsesRunHalf(t *testing.T) {
 	h := newHarness(t)
 	f := h.addFixtures(t, 8)
+	// Tonight is the night in progress or coming at the server's clock: the
+	// evening of today's local date, or of yesterday's before local noon.
+	loc, err := time.LoadLocation("America/Phoenix")
+	if err != nil {
+		t.Fatal(err)
+	}
+	local := testNow.In(loc)
+	if local.Hour() < 12 {
+		local = local.AddDate(0, 0, -1)
+	}
 	run, err := h.store.CreateRun(context.Background(), h.actor("owner"), h.teamID, store.RunInput{Name: "Half run", SiteID: f.siteID, ListID: f.listID,
-		Constraints: planner.DefaultConstraints(), Nights: []store.RunNight{{Date: "2026-03-14", Part: store.NightFirstHalf}}})
+		Constraints: planner.DefaultConstraints(), Nights: []store.RunNight{{Date: local.Format("2006-01-02"), Part: store.NightFirstHalf}}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -165,7 +182,7 @@ func TestTonightUsesRunHalf(t *testing.T) {
 	if got == nil || got.ID != run.ID || n.plan == nil {
 		t.Fatalf("run %v, plan %v", got, n.plan)
 	}
-	w := halfWindow(t, planner.PartFirst)
+	w := halfWindowOn(t, planner.PartFirst, local.Year(), local.Month(), local.Day())
 	if !n.req.From.Equal(w.Start) || !n.req.To.Equal(w.End) {
 		t.Errorf("tonight planned %s–%s, want the first half %s–%s", n.req.From, n.req.To, w.Start, w.End)
 	}

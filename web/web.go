@@ -21,7 +21,9 @@ import (
 // Config is what the server needs from its caller.
 type Config struct {
 	Logger *slog.Logger
-	// Now is the clock; nil means time.Now. Tests pass a fixed instant.
+	// Now is the program's one clock (required): sessions, sign-in links,
+	// rate limits, jobs, share expiry, the Tonight page and default night
+	// dates read "now" from it. cmd/phasecast hands it down; tests pin it.
 	Now func() time.Time
 	// BaseURL is the externally visible address ("http://127.0.0.1:8080"),
 	// used to build sign-in, invitation and share links.
@@ -40,12 +42,16 @@ type Server struct {
 	logins  *limiter
 	jobs    jobs
 	plans   planCache
+	gate    *heavyGate
 }
 
 // New returns a Server for cfg.
 func New(cfg Config) (*Server, error) {
 	if cfg.Store == nil {
 		return nil, errors.New("web: Config.Store is required")
+	}
+	if cfg.Now == nil {
+		return nil, errors.New("web: Config.Now (the clock) is required")
 	}
 	s := &Server{
 		log:     cfg.Logger,
@@ -54,12 +60,10 @@ func New(cfg Config) (*Server, error) {
 		store:   cfg.Store,
 		ping:    cfg.Store.Ping,
 		logins:  newLimiter(10, 30*time.Second),
+		gate:    newHeavyGate(defaultHeavySlots()),
 	}
 	if s.log == nil {
 		s.log = slog.New(slog.DiscardHandler)
-	}
-	if s.now == nil {
-		s.now = time.Now
 	}
 	return s, nil
 }

@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"strings"
+	"time"
 
 	"phasecast/store"
 )
@@ -26,7 +27,7 @@ older backup is migrated forward on open. restore refuses to run when a
 copy of the old data.`
 
 // runBackup is the backup command.
-func runBackup(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runBackup(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("backup", backupSynopsis)
 	db := fl.text("db", "FILE", DefaultDBPath, "the live database file")
 	out := fl.text("out", "FILE", "", "the backup file to write (must not exist); required")
@@ -45,7 +46,12 @@ func runBackup(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err != nil {
 		return err
 	}
-	st, err := store.Open(ctx, dbPath)
+	// Opening a missing file would make an empty database at the mistyped
+	// path and back that up.
+	if fi, err := os.Stat(dbPath); err != nil || !fi.Mode().IsRegular() {
+		return fieldError(db, "no such database file", "the path of an existing phasecast database (the file serve uses)")
+	}
+	st, err := store.Open(ctx, dbPath, now)
 	if err != nil {
 		return fmt.Errorf("open database %s: %w", dbPath, err)
 	}
@@ -61,7 +67,7 @@ func runBackup(ctx context.Context, args []string, stdout, stderr io.Writer) err
 }
 
 // runRestore is the restore command.
-func runRestore(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runRestore(ctx context.Context, _ func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("restore", restoreSynopsis)
 	from := fl.text("from", "FILE", "", "the backup file to restore; required")
 	db := fl.text("db", "FILE", DefaultDBPath, "the database file to replace (the server must be stopped)")

@@ -16,7 +16,7 @@ import (
 func demoTargetNames(t *testing.T, path, token string, listID int64) []string {
 	t.Helper()
 	ctx := context.Background()
-	st, err := store.Open(ctx, path)
+	st, err := store.Open(ctx, path, testClock(t))
 	if err != nil {
 		t.Fatalf("open %s: %v", path, err)
 	}
@@ -44,11 +44,13 @@ func TestBackupRestore(t *testing.T) {
 	ctx := context.Background()
 	dir := t.TempDir()
 	db := filepath.Join(dir, "live.db")
-	st, err := store.Open(ctx, db)
+	// The store, the seed and the commands share one pinned clock, so the
+	// demo's one-time links are valid whatever the date the suite runs on.
+	st, err := store.Open(ctx, db, testClock(t))
 	if err != nil {
 		t.Fatal(err)
 	}
-	info, err := st.SeedDemo(ctx, time.Date(2026, 12, 1, 12, 0, 0, 0, time.UTC))
+	info, err := st.SeedDemo(ctx, testNow)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -99,6 +101,14 @@ func TestBackupBadInput(t *testing.T) {
 	if err := os.WriteFile(existing, []byte("x"), 0o600); err != nil {
 		t.Fatal(err)
 	}
+	live := filepath.Join(dir, "live.db")
+	st, err := store.Open(context.Background(), live, testClock(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := st.Close(); err != nil {
+		t.Fatal(err)
+	}
 	cases := []struct {
 		name string
 		argv []string
@@ -106,7 +116,9 @@ func TestBackupBadInput(t *testing.T) {
 	}{
 		{"MissingOut", []string{"backup", "--db", filepath.Join(dir, "a.db")}, "missing --out"},
 		{"EmptyOut", []string{"backup", "--out", " "}, "--out"},
-		{"OutExists", []string{"backup", "--db", filepath.Join(dir, "b.db"), "--out", existing}, "exists already"},
+		{"OutExists", []string{"backup", "--db", live, "--out", existing}, "exists already"},
+		// A mistyped --db used to make an empty database there and back it up.
+		{"MissingDB", []string{"backup", "--db", filepath.Join(dir, "nothere.db"), "--out", filepath.Join(dir, "copy.db")}, "--db"},
 		{"MissingFrom", []string{"restore", "--db", filepath.Join(dir, "c.db")}, "missing --from"},
 		{"FromNotADatabase", []string{"restore", "--from", existing, "--db", filepath.Join(dir, "d.db")}, "restore"},
 	}
@@ -120,5 +132,10 @@ func TestBackupBadInput(t *testing.T) {
 				t.Errorf("stderr %q: want one line containing %q", errOut, c.want)
 			}
 		})
+	}
+	for _, name := range []string{"nothere.db", "copy.db", "a.db", "c.db", "d.db"} {
+		if _, err := os.Stat(filepath.Join(dir, name)); !os.IsNotExist(err) {
+			t.Errorf("%s exists after a refused command (%v)", name, err)
+		}
 	}
 }

@@ -76,7 +76,7 @@ type eventPhase struct {
 	Phase float64 `json:"phase"`
 }
 
-func runEvents(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runEvents(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("events", eventsSynopsis)
 	sf := addSiteFlags(fl)
 	tf := addTargetFlags(fl)
@@ -112,7 +112,7 @@ func runEvents(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if e, err = orbitShape(e, conv, offset, ecc, omega, ef); err != nil {
 		return err
 	}
-	start, end, err := timeRange(from, to, days)
+	start, end, err := timeRange(from, to, days, now)
 	if err != nil {
 		return err
 	}
@@ -255,15 +255,15 @@ func orbitShape(e ephem.Ephemeris, conv, offset, ecc, omega *textValue, ef ephem
 }
 
 // timeRange reads --from and --to or --days.
-func timeRange(from, to, days *textValue) (start, end time.Time, err error) {
-	if start, err = instant(from, time.Now); err != nil {
+func timeRange(from, to, days *textValue, now func() time.Time) (start, end time.Time, err error) {
+	if start, err = instant(from, now); err != nil {
 		return
 	}
 	if to.set && days.set {
 		return start, end, usageErrorf("--to and --days exclude each other: give the end of the range or its length")
 	}
 	if to.set {
-		if end, err = instant(to, time.Now); err != nil {
+		if end, err = instant(to, now); err != nil {
 			return
 		}
 		if !end.After(start) || end.Sub(start) > 366*24*time.Hour {

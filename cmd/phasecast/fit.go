@@ -12,6 +12,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"time"
 
 	"phasecast/ephem"
 )
@@ -72,7 +73,7 @@ type fitJSON struct {
 	Timings       []fitTimingJSON `json:"timings"`
 }
 
-func runFit(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runFit(ctx context.Context, _ func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("fit", fitSynopsis)
 	file := fl.text("timings", "FILE.csv", "", "CSV file of measured event times (see above); required")
 	ef := addEphemFlags(fl)
@@ -308,7 +309,10 @@ func fitError(err error, file *textValue, rows []timingRow, ef ephemFlags) error
 	var ie *ephem.InputError
 	if errors.As(err, &ie) {
 		if m := timingField.FindStringSubmatch(ie.Field); m != nil {
-			i, _ := strconv.Atoi(m[1])
+			i, err := strconv.Atoi(m[1])
+			if err != nil {
+				return usageErrorf("--timings %s: %s %s not accepted; accepted: %s", shown(file.value), ie.Field, ie.Value, ie.Accepted)
+			}
 			return usageErrorf("%s: %s %s not accepted; accepted: %s", lineOf(i), strings.TrimPrefix(ie.Field, m[0]+"."), ie.Value, ie.Accepted)
 		}
 		if f, ok := strings.CutPrefix(ie.Field, "guess."); ok {

@@ -28,7 +28,7 @@ func hostileFit(tb testing.TB, text string) (stdout, stderr string, code int) {
 		tb.Fatal(err)
 	}
 	var out, errOut bytes.Buffer
-	err := run(context.Background(), []string{"fit", "--timings", file, "--t0", "2460500.432", "--period", "0.06123457",
+	err := run(context.Background(), testClock(tb), []string{"fit", "--timings", file, "--t0", "2460500.432", "--period", "0.06123457",
 		"--t0-err", "0.0002", "--period-err", "2e-8", "--ra", "04:12:33.9", "--dec", "-12:48:07", "--json"}, &out, &errOut)
 	return out.String(), errOut.String(), exitCode(err)
 }
@@ -180,7 +180,7 @@ func FuzzHostilePlanFiles(f *testing.F) {
 			argv = append(argv, "--horizon", hf)
 		}
 		var out, errOut bytes.Buffer
-		code := exitCode(run(context.Background(), argv, &out, &errOut))
+		code := exitCode(run(context.Background(), testClock(t), argv, &out, &errOut))
 		stdout, stderr := out.String(), errOut.String()
 		switch {
 		case code == exitInternal:

@@ -10,13 +10,16 @@ import (
 	"os"
 	"os/signal"
 	"syscall"
+	"time"
 
 	_ "time/tzdata" // time zones load on machines without zoneinfo
 )
 
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	code := exitCode(run(ctx, os.Args[1:], os.Stdout, os.Stderr))
+	// The wall clock is read here and nowhere else: every command, the store
+	// and the web server take "now" from this one clock.
+	code := exitCode(run(ctx, time.Now, os.Args[1:], os.Stdout, os.Stderr))
 	stop()
 	os.Exit(code)
 }

@@ -27,7 +27,7 @@ midnight. An event that does not happen that night is shown as absent (null).`
 // nightObject is the `night --json` object for a night's events.
 func nightObject(ev ephem.NightEvents) nightJSON { return planner.NewNightDoc(ev) }
 
-func runNight(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runNight(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("night", nightSynopsis)
 	sf := addSiteFlags(fl)
 	date := fl.text("date", "YYYY-MM-DD", "today in ZONE", "local calendar date of the evening the night begins")
@@ -44,7 +44,7 @@ func runNight(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err != nil {
 		return err
 	}
-	y, m, d := time.Now().In(loc).Date()
+	y, m, d := now().In(loc).Date()
 	if date.set {
 		if y, m, d, err = ephem.ParseDate(date.value); err != nil {
 			return fromInputError(err, "not a date", map[string]*textValue{"date": date})

@@ -119,3 +119,13 @@ func starLine(st ephem.Star) string {
 
 // safetyNote ends every human report that gives times or pointings.
 const safetyNote = "Computed values: check them against your observatory's own tools and rules; never point near the Sun."
+
+// printTimeScaleNote prints ephem.TimeScaleNote's sentence, when there is
+// one, as a line of its own beginning "note: ".
+func printTimeScaleNote(w io.Writer, note string) error {
+	if note == "" {
+		return nil
+	}
+	_, err := fmt.Fprintln(w, "note: "+note+".")
+	return err
+}

@@ -16,6 +16,8 @@ type phaseJSON struct {
 	Cycle    int64   `json:"cycle"`     // floor((BJD_TDB − T0)/P) for a linear ephemeris
 	Phase    float64 `json:"phase"`     // 0 ≤ phase < 1, from T0
 	PhaseErr float64 `json:"phase_err"` // 1σ, in phase
+	// TimeScaleNote: see skyJSON.
+	TimeScaleNote string `json:"time_scale_note,omitempty"`
 	// Warning says in words when the uncertainty makes the phase
 	// meaningless or the planner would refuse it (planner.UncertaintyRule).
 	Warning string `json:"warning,omitempty"`
@@ -36,7 +38,7 @@ into BJD_TDB for the target and site, then cycle = floor((BJD_TDB − T0)/P) and
 phase = the fraction of the cycle since T0 (0 ≤ phase < 1), with its 1σ
 uncertainty propagated from those of T0 and P. Phase 0 is the event T0 marks.`
 
-func runPhase(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runPhase(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("phase", phaseSynopsis)
 	sg := addSightingFlags(fl, "instant of observation, RFC 3339; UTC unless an offset is given")
 	ef := addEphemFlags(fl)
@@ -44,7 +46,7 @@ func runPhase(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	site, star, t, err := sg.read(time.Now)
+	site, star, t, err := sg.read(now)
 	if err != nil {
 		return err
 	}
@@ -60,7 +62,7 @@ func runPhase(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err != nil {
 		return fromInputError(err, "has no orbital phase", map[string]*textValue{"bjd": sg.at})
 	}
-	out := phaseJSON{BJDTDB: jdValue(b.BJDTDB), Cycle: cycle, Phase: ph, PhaseErr: e.PhaseErr(b.BJDTDB)}
+	out := phaseJSON{BJDTDB: jdValue(b.BJDTDB), Cycle: cycle, Phase: ph, PhaseErr: e.PhaseErr(b.BJDTDB), TimeScaleNote: ephem.TimeScaleNote(t)}
 	if err := checkFinite([]string{"phase", "phase uncertainty"}, out.Phase, out.PhaseErr); err != nil {
 		return err
 	}
@@ -82,6 +84,9 @@ func runPhase(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	if out.Warning != "" {
 		fmt.Fprintln(stdout, "Warning: "+out.Warning)
+	}
+	if err := printTimeScaleNote(stdout, out.TimeScaleNote); err != nil {
+		return err
 	}
 	_, err = fmt.Fprintln(stdout, safetyNote)
 	return err

@@ -42,7 +42,7 @@ degrees (e.g. -15). The horizon file (--horizon) has one "azimuth altitude" pair
 of degrees per line, azimuth from north through east; the mask is interpolated
 linearly between points, wrapping through north.`
 
-func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("plan", planSynopsis)
 	sf := addSiteFlags(fl)
 	tz := fl.text("tz", "ZONE", "", "IANA time zone of the site, e.g. America/Santiago or UTC; required")
@@ -65,7 +65,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err != nil {
 		return err
 	}
-	y, m, d := time.Now().In(loc).Date()
+	y, m, d := now().In(loc).Date()
 	if date.set {
 		if y, m, d, err = ephem.ParseDate(date.value); err != nil {
 			return fromInputError(err, "not a date", map[string]*textValue{"date": date})

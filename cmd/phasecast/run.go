@@ -7,12 +7,16 @@ import (
 	"io"
 	"strings"
 	"text/tabwriter"
+	"time"
 )
 
 // commandFunc runs one command with its own arguments (the command name
 // removed). It writes results to stdout; stderr is for logs of long-running
 // commands. It returns an error rather than printing one.
-type commandFunc func(ctx context.Context, args []string, stdout, stderr io.Writer) error
+//
+// now is the program's one clock, handed down from main: commands read "now"
+// from it (default dates, --at), never from time.Now.
+type commandFunc func(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error
 
 // command is one entry of the dispatch table.
 type command struct {
@@ -41,14 +45,15 @@ func commands() []command {
 }
 
 // run is the whole program: it dispatches args to a command and reports any
-// error on stderr as one line starting "phasecast: ".
-func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	return runWith(ctx, commands(), args, stdout, stderr)
+// error on stderr as one line starting "phasecast: ". now is the program's
+// clock (time.Now in main, a pinned instant in tests).
+func run(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
+	return runWith(ctx, now, commands(), args, stdout, stderr)
 }
 
 // runWith is run with a given dispatch table. A panic anywhere below is
 // turned into an error as a last resort, never shown as a stack trace.
-func runWith(ctx context.Context, cmds []command, args []string, stdout, stderr io.Writer) (err error) {
+func runWith(ctx context.Context, now func() time.Time, cmds []command, args []string, stdout, stderr io.Writer) (err error) {
 	defer func() {
 		if r := recover(); r != nil {
 			err = &internalError{fmt.Sprintf("internal error: %v; please report this with the command line", r)}
@@ -69,7 +74,7 @@ func runWith(ctx context.Context, cmds []command, args []string, stdout, stderr 
 	name := args[0]
 	for _, c := range cmds {
 		if c.name == name {
-			return c.run(ctx, args[1:], stdout, stderr)
+			return c.run(ctx, now, args[1:], stdout, stderr)
 		}
 	}
 	return usageErrorf("unknown command %q; accepted: %s (run phasecast without arguments for the overview)", name, commandNames(cmds))

@@ -5,8 +5,10 @@ import (
 	"context"
 	"encoding/json"
 	"io"
+	"phasecast/store/testclock"
 	"strings"
 	"testing"
+	"time"
 )
 
 // The invented site used throughout the tests: "Cerro Quilla Observatory",
@@ -28,7 +30,7 @@ func args(parts ...[]string) []string {
 func runCmd(tb testing.TB, argv ...string) (stdout, stderr string, code int) {
 	tb.Helper()
 	var out, errOut bytes.Buffer
-	err := run(context.Background(), argv, &out, &errOut)
+	err := run(context.Background(), testClock(tb), argv, &out, &errOut)
 	return out.String(), errOut.String(), exitCode(err)
 }
 
@@ -221,7 +223,7 @@ func TestPanicBecomesError(t *testing.T) {
 				t.Fatalf("panic escaped: %v", r)
 			}
 		}()
-		return runWith(context.Background(), []command{{"boom", "panics", func(context.Context, []string, io.Writer, io.Writer) error {
+		return runWith(context.Background(), testClock(t), []command{{"boom", "panics", func(context.Context, func() time.Time, []string, io.Writer, io.Writer) error {
 			panic("deliberate")
 		}}}, []string{"boom"}, &out, &errOut)
 	}()
@@ -240,4 +242,15 @@ func TestFlagsWithoutCommandAreServes(t *testing.T) {
 	if code != exitUsage || !strings.Contains(stderr, "--addr no-port-here") || !strings.Contains(stderr, "HOST:PORT") {
 		t.Errorf("exit %d, stderr %q; want serve's --addr message", code, stderr)
 	}
+}
+
+// testNow is the instant the command tests run at: PHASECAST_TEST_NOW when
+// set, else an afternoon in December 2026 (UTC). Commands read it only where
+// the user gave no date or instant.
+var testNow = testclock.Or(time.Date(2026, 12, 1, 18, 0, 0, 0, time.UTC))
+
+// testClock is the clock handed to run() in tests.
+func testClock(tb testing.TB) func() time.Time {
+	tb.Helper()
+	return func() time.Time { return testNow }
 }

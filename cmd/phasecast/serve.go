@@ -39,13 +39,13 @@ type serveConfig struct {
 }
 
 // runServe is the serve command.
-func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runServe(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	cfg, help, err := parseServe(args, stdout)
 	if help || err != nil {
 		return err
 	}
 	logger := newLogger(stderr, cfg.jsonLogs)
-	st, err := store.Open(ctx, cfg.db)
+	st, err := store.Open(ctx, cfg.db, now)
 	if err != nil {
 		return fmt.Errorf("open database %s: %w", cfg.db, err)
 	}
@@ -59,11 +59,11 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if base == "" {
 		base = "http://" + displayAddr(ln.Addr())
 	}
-	if err := firstStart(ctx, st, cfg, base, stdout); err != nil {
+	if err := firstStart(ctx, st, cfg, base, now, stdout); err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "phasecast: serving %s (database %s)\n", base, st.Path())
-	srv, err := web.New(web.Config{Store: st, Logger: logger, BaseURL: cfg.baseURL})
+	srv, err := web.New(web.Config{Store: st, Logger: logger, BaseURL: cfg.baseURL, Now: now})
 	if err != nil {
 		return err
 	}
@@ -114,7 +114,7 @@ func parseServe(args []string, stdout io.Writer) (serveConfig, bool, error) {
 // firstStart seeds the demo scenario into an empty database and prints
 // the owner's one-time sign-in link; on later starts it prints a link only
 // when --signin-link asks for one.
-func firstStart(ctx context.Context, st *store.Store, cfg serveConfig, base string, stdout io.Writer) error {
+func firstStart(ctx context.Context, st *store.Store, cfg serveConfig, base string, now func() time.Time, stdout io.Writer) error {
 	if cfg.linkFor != "" {
 		tok, err := st.CreateSignInLink(ctx, cfg.linkFor, time.Hour)
 		if err != nil {
@@ -131,7 +131,7 @@ func firstStart(ctx context.Context, st *store.Store, cfg serveConfig, base stri
 		fmt.Fprintln(stdout, "phasecast: the database is empty and --demo no was given; run with --demo yes to seed the demo scenario.")
 		return nil
 	}
-	info, err := st.SeedDemo(ctx, time.Now().UTC())
+	info, err := st.SeedDemo(ctx, now().UTC())
 	if err != nil {
 		return fmt.Errorf("seed the demo scenario: %w", err)
 	}
@@ -146,15 +146,7 @@ func firstStart(ctx context.Context, st *store.Store, cfg serveConfig, base stri
 // then shuts down gracefully, letting requests in flight finish for up to
 // 10 seconds.
 func serveUntilDone(ctx context.Context, ln net.Listener, h http.Handler, logger *slog.Logger) error {
-	hs := &http.Server{
-		Handler:           h,
-		ReadHeaderTimeout: 10 * time.Second,
-		ReadTimeout:       60 * time.Second,
-		WriteTimeout:      5 * time.Minute, // long plans and exports
-		IdleTimeout:       2 * time.Minute,
-		MaxHeaderBytes:    64 << 10,
-		ErrorLog:          slog.NewLogLogger(logger.Handler(), slog.LevelWarn),
-	}
+	hs := newHTTPServer(h, logger, defaultTimeouts)
 	errc := make(chan error, 1)
 	go func() { errc <- hs.Serve(ln) }()
 	select {
@@ -172,6 +164,33 @@ func serveUntilDone(ctx context.Context, ln net.Listener, h http.Handler, logger
 		return fmt.Errorf("serve: %w", err)
 	}
 	return nil
+}
+
+// serveTimeouts are the limits of one connection of the server: a client
+// that sends its headers, its body or reads its answer slower than this,
+// or keeps an idle connection longer, is cut off, so that slow clients
+// cannot hold the server's connections.
+type serveTimeouts struct {
+	readHeader, read, write, idle time.Duration
+}
+
+// defaultTimeouts are serve's: 10 s for the request headers, 60 s for the
+// whole request (a 16 MiB import on a slow line), 5 minutes to write the
+// answer (long plans and exports; heavy work is also bounded by the web
+// server's gate), 2 minutes idle between requests.
+var defaultTimeouts = serveTimeouts{readHeader: 10 * time.Second, read: 60 * time.Second, write: 5 * time.Minute, idle: 2 * time.Minute}
+
+// newHTTPServer returns the http.Server of serve for handler h.
+func newHTTPServer(h http.Handler, logger *slog.Logger, t serveTimeouts) *http.Server {
+	return &http.Server{
+		Handler:           h,
+		ReadHeaderTimeout: t.readHeader,
+		ReadTimeout:       t.read,
+		WriteTimeout:      t.write,
+		IdleTimeout:       t.idle,
+		MaxHeaderBytes:    64 << 10,
+		ErrorLog:          slog.NewLogLogger(logger.Handler(), slog.LevelWarn),
+	}
 }
 
 // newLogger returns the server's structured logger on w.

@@ -56,7 +56,7 @@ func startServe(tb testing.TB, db string, extra ...string) *servedApp {
 	app := &servedApp{stdout: &lockedBuffer{}}
 	done := make(chan error, 1)
 	go func() {
-		err := run(ctx, append([]string{"serve", "--addr", "127.0.0.1:0", "--db", db}, extra...), io.MultiWriter(pw, app.stdout), io.Discard)
+		err := run(ctx, testClock(tb), append([]string{"serve", "--addr", "127.0.0.1:0", "--db", db}, extra...), io.MultiWriter(pw, app.stdout), io.Discard)
 		pw.Close()
 		done <- err
 	}()
@@ -149,11 +149,11 @@ func TestServeFirstStart(t *testing.T) {
 
 func TestServeNoArgumentsIsServe(t *testing.T) {
 	called := false
-	cmds := []command{{"serve", "", func(_ context.Context, args []string, _, _ io.Writer) error {
+	cmds := []command{{"serve", "", func(_ context.Context, _ func() time.Time, args []string, _, _ io.Writer) error {
 		called = len(args) == 0
 		return nil
 	}}}
-	if err := runWith(context.Background(), cmds, nil, io.Discard, io.Discard); err != nil || !called {
+	if err := runWith(context.Background(), testClock(t), cmds, nil, io.Discard, io.Discard); err != nil || !called {
 		t.Errorf("phasecast without arguments: serve called %v, err %v", called, err)
 	}
 }

@@ -25,6 +25,10 @@ type skyJSON struct {
 	MoonAltDeg      float64  `json:"moon_alt_deg"`
 	MoonIlluminated float64  `json:"moon_illuminated"`
 	MoonSepDeg      float64  `json:"moon_sep_deg"`
+	// TimeScaleNote is ephem.TimeScaleNote: present only when TT − UTC rests
+	// on an assumption beyond the tables (after the leap-second table's end,
+	// before 1960).
+	TimeScaleNote string `json:"time_scale_note,omitempty"`
 }
 
 const skySynopsis = `Where a target, the Sun and the Moon stand, seen from a site at one instant:
@@ -32,14 +36,14 @@ sidereal time, hour angle, altitude (airless and refracted), azimuth (0 = north,
 90 = east), airmass, parallactic angle, and the Moon's altitude, phase and
 distance from the target. UT1 is taken equal to UTC.`
 
-func runSky(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+func runSky(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("sky", skySynopsis)
 	sg := addSightingFlags(fl, "instant, RFC 3339 (2026-12-01T03:00:00Z); UTC unless an offset is given")
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	site, star, t, err := sg.read(time.Now)
+	site, star, t, err := sg.read(now)
 	if err != nil {
 		return err
 	}
@@ -59,6 +63,7 @@ func runSky(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 		ParallacticDeg: p.ParallacticDeg,
 		SunAltDeg:      p.SunAltDeg, MoonAltDeg: p.MoonAltDeg,
 		MoonIlluminated: p.MoonIlluminated, MoonSepDeg: p.MoonSepDeg,
+		TimeScaleNote: ephem.TimeScaleNote(t),
 	}
 	if p.AirmassOK && finite(p.Airmass) {
 		am := p.Airmass
@@ -92,6 +97,9 @@ func printSky(w io.Writer, site ephem.Site, star ephem.Star, t time.Time, o skyJ
 	tb.row("Moon illuminated", f(o.MoonIlluminated*100, 1)+" %")
 	tb.row("Moon–target", f(o.MoonSepDeg, 2)+"°")
 	if err := tb.flush(); err != nil {
+		return err
+	}
+	if err := printTimeScaleNote(w, o.TimeScaleNote); err != nil {
 		return err
 	}
 	_, err := fmt.Fprintln(w, safetyNote)

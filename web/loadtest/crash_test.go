@@ -402,7 +402,7 @@ func TestCrashSafety(t *testing.T) {
 func apiToken(t *testing.T, db, session string) string {
 	t.Helper()
 	ctx := context.Background()
-	st, err := store.Open(ctx, db)
+	st, err := store.Open(ctx, db, time.Now) // the child server runs on the wall clock
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -435,7 +435,7 @@ func verify(t *testing.T, db, session string, list int64, l *ledger, when string
 	if integrity != "ok" || fk != 0 {
 		t.Fatalf("%s: integrity_check %q, %d foreign key problems", when, integrity, fk)
 	}
-	st, err := store.Open(ctx, db)
+	st, err := store.Open(ctx, db, time.Now) // the child server runs on the wall clock
 	if err != nil {
 		t.Fatalf("%s: open the store: %v", when, err)
 	}
