@@ -19,7 +19,7 @@ func (s *Server) nightSheet(w http.ResponseWriter, r *http.Request, u *user) {
 		return
 	}
 	v.Chart.Now = n.req.From.Add(-1) // a printed sheet has no "now"
-	switch rows := len(v.Blocks) + len(v.Unscheduled)/2; {
+	switch rows := len(v.Blocks) + (len(v.Unscheduled)+len(v.Warnings))/2; {
 	case rows > 34:
 		v.Density = "denser"
 	case rows > 20:
