@@ -47,6 +47,7 @@ func (t Target) ResolveGoals() ([]Goal, error) {
 			r := g
 			r.Event = string(ev)
 			r.Center = ph
+			r.ContainEvent = g.Event == EventEclipse || ev == ephem.EventEclipseIngress || ev == ephem.EventEclipseEgress
 			out = append(out, r)
 		}
 	}
@@ -160,6 +161,8 @@ func validateTarget(i int, t Target) error {
 			return bad(gp+"n_exposures", fmt.Sprint(g.NExposures), NExposuresAccepted)
 		case !finite(g.EclipseDurDays) || g.EclipseDurDays < 0:
 			return bad(gp+"eclipse_duration_days", fmtNum(g.EclipseDurDays), "a duration ≥ 0 days")
+		case !finite(g.MinBlockS) || g.MinBlockS < 0 || g.MinBlockS > 86400:
+			return bad(gp+"min_block_s", fmtNum(g.MinBlockS), "0 (none) to 86400 seconds")
 		}
 	}
 	return nil

@@ -255,3 +255,87 @@ func TestCoverageShortfall(t *testing.T) {
 		t.Errorf("a met goal has a shortfall: %q", s)
 	}
 }
+
+// cvNight is scenarioNight's site and night with an invented eclipsing CV
+// (P = 110 min) near the meridian, observed by 20 s exposures with 3 s
+// readout.
+func cvNight(g Goal) NightRequest {
+	req := scenarioNight(false)
+	rb := req.Targets[0]
+	req.Targets = []Target{{
+		Name: "CV-1", RADeg: rb.RADeg, DecDeg: -20, Priority: 1, AcquireS: 120,
+		Ephem: ephem.Ephemeris{T0: ephem.NewJD2(2461300.5123), PeriodDays: 110.0 / 1440, Convention: ephem.ConvInferiorConjunction},
+		Goals: []Goal{g},
+	}}
+	return req
+}
+
+// TestContinuousCoverageOverEclipse: a goal "cover phase 0.96 → 0.04
+// without gaps" over the eclipse yields, for every eclipse served, one
+// block whose exposures run from before the window opens to after it
+// closes with only the readout between them.
+func TestContinuousCoverageOverEclipse(t *testing.T) {
+	g := Goal{Center: 0, HalfWidth: 0.04, ExposureS: 20, OverheadS: 3, Continuous: true}
+	req := cvNight(g)
+	p, err := PlanNight(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !p.Optimal || len(p.Blocks) == 0 {
+		t.Fatalf("%d blocks, optimal %v: the case tests nothing", len(p.Blocks), p.Optimal)
+	}
+	perCycle := map[int64]int{}
+	P := req.Targets[0].Ephem.PeriodDays * 86400
+	for _, b := range p.Blocks {
+		perCycle[b.Cycle]++
+		if got := b.End.Sub(b.Start).Seconds(); math.Abs(got-float64(b.N)*(b.ExposureS+b.OverheadS)) > 1e-6 {
+			t.Errorf("block at %s lasts %.3f s for %d exposures: not back to back", b.Start, got, b.N)
+		}
+		// Phase distance from the window's opening (0.96) to the block's
+		// start, and from the last exposure's end to the close (0.04).
+		open := math.Mod(b.PhaseStart-(1-g.HalfWidth)+1.5, 1) - 0.5
+		lastEnd := b.End.Add(-time.Duration(b.OverheadS * float64(time.Second)))
+		_, phEnd, _ := ephem.PhaseAtUTC(req.Site, req.Targets[0].Star(), req.Targets[0].Ephem, lastEnd)
+		closeGap := math.Mod(phEnd-g.HalfWidth+1.5, 1) - 0.5
+		if open > 1e-6 || closeGap < -1e-6 {
+			t.Errorf("block %s–%s (phases %.4f→%.4f) does not span 0.96 → 0.04", b.Start.Format(time.TimeOnly), b.End.Format(time.TimeOnly), b.PhaseStart, phEnd)
+		}
+		if open < -(b.ExposureS+b.OverheadS+req.Options.StepS+60)/P {
+			t.Errorf("block starts %.0f s before the window: more than a step and an exposure", -open*P)
+		}
+	}
+	for c, n := range perCycle {
+		if n != 1 {
+			t.Errorf("eclipse of cycle %d covered by %d blocks, want one gap-free block", c, n)
+		}
+	}
+	t.Logf("%d eclipses, each in one block of %d exposures", len(perCycle), p.Blocks[0].N)
+}
+
+// TestEclipseEventNeedsTheInstant: an eclipse-egress goal gives no credit
+// to a block none of whose exposures contains the egress instant.
+func TestEclipseEventNeedsTheInstant(t *testing.T) {
+	g := Goal{Event: string(ephem.EventEclipseEgress), EclipseDurDays: 600.0 / 86400, HalfWidth: 0.01, ExposureS: 8, OverheadS: 20, NExposures: 1}
+	req := cvNight(g)
+	goals, err := req.Targets[0].ResolveGoals()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !goals[0].ContainEvent {
+		t.Fatal("an eclipse_egress goal does not ask for the instant")
+	}
+	p, err := PlanNight(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(p.Blocks) == 0 {
+		t.Fatal("no block: the case tests nothing")
+	}
+	for _, b := range p.Blocks {
+		first := b.PhaseFirstMid - 0.5*b.Smear
+		last := b.PhaseLastMid + 0.5*b.Smear
+		if d := math.Mod(goals[0].Center-first+1.5, 1) - 0.5; d < -1e-6 || math.Mod(last-goals[0].Center+1.5, 1)-0.5 < -1e-6 {
+			t.Errorf("block %s: exposure %.4f–%.4f misses egress at %.4f", b.Start.Format(time.TimeOnly), first, last, goals[0].Center)
+		}
+	}
+}

@@ -470,6 +470,9 @@ func (en *engine) checkOccurrences(targets []*targetState) error {
 // the starts depends on the constraints, so relaxing a constraint only adds
 // candidates (and never lowers the optimum).
 func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc occurrence, occID, wanted int) []candidate {
+	if g.Continuous {
+		return en.appendContinuous(cs, ts, g, oc, occID)
+	}
 	E, L := g.ExposureS, g.ExposureS+g.OverheadS
 	step := en.opt.StepS
 	w := PriorityWeight(ts.t.Priority)
@@ -493,6 +496,9 @@ func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc o
 		}
 		lv := priorityLevel(ts.t.Priority)
 		add := func(s float64, n int) {
+			if float64(n)*L < g.MinBlockS || (g.ContainEvent && !containsInstant(s, n, E, L, oc.mid)) {
+				return
+			}
 			x := en.airmassTie(ts, s+0.5*float64(n)*L)
 			tie := -int64(math.Round(1000 * float64(n) * (x - 1)))
 			cs = append(cs, candidate{
@@ -520,6 +526,49 @@ func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc o
 				continue
 			}
 			add(s, n)
+		}
+	}
+	return cs
+}
+
+// containsInstant reports whether one of n exposures of E seconds laid
+// every L seconds from s contains the instant u (all Unix seconds).
+func containsInstant(s float64, n int, E, L, u float64) bool {
+	j := math.Floor((u - s) / L)
+	return j >= 0 && int(j) < n && u-s-j*L <= E
+}
+
+// appendContinuous adds the candidate blocks of one occurrence of a
+// continuous goal: blocks whose exposures cover the whole window without
+// gaps (only the readout between them), from a start at or before the
+// window's opening (on the StepS grid within one exposure cycle of it, or
+// at the opening's whole second) to a last exposure ending at or after its
+// close, inside one observable interval. Each such block fills the goal
+// (v = 1); exposures before the opening or after the close are part of
+// the coverage, so mid-times may lie outside the window.
+func (en *engine) appendContinuous(cs []candidate, ts *targetState, g Goal, oc occurrence, occID int) []candidate {
+	E, L := g.ExposureS, g.ExposureS+g.OverheadS
+	step := en.opt.StepS
+	w := PriorityWeight(ts.t.Priority)
+	lv := priorityLevel(ts.t.Priority)
+	starts := []float64{math.Floor(oc.lo)}
+	for s := math.Ceil((oc.lo-L)/step) * step; s < math.Floor(oc.lo); s += step {
+		starts = append(starts, s)
+	}
+	for _, v := range ts.vis {
+		vlo, vhi := v.lo+guardS, v.hi-guardS
+		for _, s := range starts {
+			n := int(math.Ceil((oc.hi-E-s)/L-1e-9)) + 1
+			n = max(n, 1)
+			if s < vlo || s+float64(n)*L > vhi || float64(n)*L < g.MinBlockS {
+				continue
+			}
+			x := en.airmassTie(ts, s+0.5*float64(n)*L)
+			cs = append(cs, candidate{
+				start: s, end: s + float64(n)*L, acq: ts.t.AcquireS, acqFloor: en.darkStart(v.lo),
+				target: ts.idx, occ: occID, n: n,
+				val: at(lv, w*goalValue(1, 1), -int64(math.Round(1000*float64(n)*(x-1)))),
+			})
 		}
 	}
 	return cs

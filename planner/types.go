@@ -50,6 +50,18 @@ type Goal struct {
 	// EclipseDurDays is the eclipse's full duration (first to last
 	// contact), days, for the events eclipse_ingress and eclipse_egress.
 	EclipseDurDays float64
+	// Continuous asks for the whole window, Center ± HalfWidth, in one
+	// gap-free block (photometry): the first exposure starts at or before
+	// the window's opening, the last ends at or after its close, and the
+	// exposures follow each other with only the readout between them.
+	Continuous bool
+	// MinBlockS is the shortest block worth taking for the goal, seconds
+	// (0: no minimum).
+	MinBlockS float64
+	// ContainEvent, set by ResolveGoals for eclipse, eclipse_ingress and
+	// eclipse_egress goals, gives credit to a block only when one of its
+	// exposures contains the event's instant (the window's centre).
+	ContainEvent bool
 }
 
 // Twilight names the Sun altitude that closes the dark time.
