@@ -296,7 +296,10 @@ type occMeta struct {
 // acquisition overhead precedes every change of target (and the first
 // block) inside dark time, each goal occurrence gets at most one block, and
 // every block meets every constraint from start to end with every
-// exposure's mid-time phase in its window. It is solved exactly (decremental
+// exposure's mid-time phase in its window (a Continuous goal's block
+// instead covers its whole window without gaps; an eclipse, ingress or
+// egress goal's block has an exposure containing the event's instant,
+// Goal.ContainEvent; no block is shorter than Goal.MinBlockS). It is solved exactly (decremental
 // state-space relaxation over the ordered vectors; see the notes in
 // schedule.go and sweep.go), not greedily: Plan.GreedyObjective is what
 // first-fit by priority reaches on the same candidates, Plan.Objective the
