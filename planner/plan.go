@@ -48,6 +48,17 @@ type Options struct {
 	// MaxOccurrences bounds the goal windows considered per goal and night
 	// (default 2000; a 1-minute orbit has 1440 a day).
 	MaxOccurrences int
+	// PadSigma widens every goal window by k = PadSigma times the
+	// ephemeris' 1σ phase uncertainty on the night, on both sides (0..10,
+	// default 0: none), at most to a half-width of 0.49: the window then
+	// holds the event at k σ. Night plans and queue windows alike.
+	PadSigma float64
+}
+
+// halfWidth is a goal window's half-width for a 1σ phase uncertainty
+// sigma: hw + PadSigma·σ, at most 0.49 (phase).
+func (o Options) halfWidth(hw, sigma float64) float64 {
+	return math.Min(hw+o.PadSigma*sigma, 0.49)
 }
 
 func (o Options) withDefaults() (Options, error) {
@@ -85,6 +96,8 @@ func (o Options) withDefaults() (Options, error) {
 		return o, bad("max_states", float64(o.MaxStates), "≥ 1")
 	case o.MaxOccurrences < 1:
 		return o, bad("max_occurrences", float64(o.MaxOccurrences), "≥ 1")
+	case !finite(o.PadSigma) || o.PadSigma < 0 || o.PadSigma > 10:
+		return o, bad("pad_sigma", o.PadSigma, "0..10 (σ of the phase added to each window's half-width)")
 	}
 	return o, nil
 }
@@ -429,7 +442,7 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 		for gi, g := range ts.goals {
 			lo, hi := en.dark[0].lo, en.dark[len(en.dark)-1].hi
 			wanted := g.Wanted(ts.t.Ephem.PeriodDays)
-			for _, oc := range ts.clock.occurrences(g.Center, g.HalfWidth, lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences) {
+			for _, oc := range ts.clock.occurrences(g.Center, en.opt.halfWidth(g.HalfWidth, ts.phaseErr), lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences) {
 				k := len(occs)
 				occs = append(occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted})
 				pr.cands = en.appendCandidates(pr.cands, ts, g, oc, k, wanted)
@@ -454,7 +467,7 @@ func (en *engine) checkOccurrences(targets []*targetState) error {
 			continue
 		}
 		for gi, g := range ts.goals {
-			if n := len(ts.clock.occurrences(g.Center, g.HalfWidth, lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences+1)); n > en.opt.MaxOccurrences {
+			if n := len(ts.clock.occurrences(g.Center, en.opt.halfWidth(g.HalfWidth, ts.phaseErr), lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences+1)); n > en.opt.MaxOccurrences {
 				return &ephem.InputError{Field: fmt.Sprintf("targets[%d] %q.goals[%d]", ts.idx, ts.t.Name, gi),
 					Value:    fmt.Sprintf("more than %d windows in the night (period %g d)", en.opt.MaxOccurrences, ts.t.Ephem.PeriodDays),
 					Accepted: fmt.Sprintf("at most %d goal windows per night (Options.MaxOccurrences)", en.opt.MaxOccurrences)}

@@ -2,6 +2,7 @@ package planner
 
 import (
 	"context"
+	"math"
 	"strings"
 	"testing"
 
@@ -82,4 +83,50 @@ func TestQueueWindowsFollowThePlannersRule(t *testing.T) {
 	if flagged == 0 {
 		t.Error("no window with σφ 0.02: the flagged case tested nothing")
 	}
+}
+
+// TestPadSigmaWidensWindows: with PadSigma k the night's goal windows and
+// the queue windows grow by k σ of phase on each side, alike.
+func TestPadSigmaWidensWindows(t *testing.T) {
+	req := scenarioNight(false)
+	x := req.Targets[0]
+	mid := req.From.Add(req.To.Sub(req.From) / 2)
+	x.Ephem.T0ErrDays = 0.002 // σφ ≈ 0.008 at the night
+	sigma := x.Ephem.PhaseErr(ephem.BJDTDB(req.Site, x.Star(), mid))
+	req.Targets = []Target{x}
+	length := func(k float64) (night, queue float64) {
+		t.Helper()
+		r := req
+		r.Options.PadSigma = k
+		m, err := newNightModel(r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, o := range m.occs {
+			night = math.Max(night, o.occ.hi-o.occ.lo)
+		}
+		ws, err := QueueWindows(context.Background(), WindowRequest{Site: r.Site, From: r.From, To: r.To, Targets: r.Targets, Constraints: r.Constraints, Options: r.Options}, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, gw := range ws {
+			for _, w := range gw.Windows {
+				queue = math.Max(queue, w.End.Sub(w.Start).Seconds())
+			}
+		}
+		return night, queue
+	}
+	n0, q0 := length(0)
+	n3, q3 := length(3)
+	P := x.Ephem.PeriodDays * 86400
+	if want := 2 * 3 * sigma * P; math.Abs((n3-n0)-want) > 0.01*want {
+		t.Errorf("night windows grew by %.1f s with 3σ, want %.1f s", n3-n0, want)
+	}
+	if q3 <= q0 {
+		t.Errorf("queue windows did not grow: %.1f s → %.1f s", q0, q3)
+	}
+	if _, err := PlanNight(NightRequest{Site: req.Site, From: req.From, To: req.To, Targets: req.Targets, Constraints: req.Constraints, Options: Options{PadSigma: 11}}); err == nil || !strings.Contains(err.Error(), "pad_sigma") {
+		t.Errorf("PadSigma 11: error %v, want one naming pad_sigma", err)
+	}
+	t.Logf("σφ %.4f: longest night window %.0f → %.0f s, queue window %.0f → %.0f s", sigma, n0, n3, q0, q3)
 }
