@@ -75,6 +75,10 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	if err != nil {
 		return err
 	}
+	pad, err := cf.pad()
+	if err != nil {
+		return err
+	}
 	acq, err := number(acquire, false, 120, 0, 3600, "seconds 0..3600")
 	if err != nil {
 		return err
@@ -103,7 +107,7 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	from, to := planner.NightWindow(y, m, d, loc)
 	p, err := planner.PlanNight(planner.NightRequest{
 		Site: site, From: from, To: to, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *fill},
+		Options: planner.Options{StepS: stepS, Fill: *fill, PadSigma: pad},
 	})
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
@@ -123,6 +127,13 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 // windows.
 type constraintFlags struct {
 	twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum, haMin, haMax, zenith, sunAvoid, horizon *textValue
+	// padSigma widens the goal windows by k σ of phase (planner.Options.PadSigma).
+	padSigma *textValue
+}
+
+// pad reads --pad-sigma.
+func (cf constraintFlags) pad() (float64, error) {
+	return number(cf.padSigma, false, 0, 0, 10, "0..10 (σ of the phase added to each goal window's half-width)")
 }
 
 // addConstraintFlags registers the observing-limit flags on fl.
@@ -138,6 +149,7 @@ func addConstraintFlags(fl *flags) constraintFlags {
 		zenith:       fl.text("zenith-excl", "DEG", "0", "no tracking within this distance of the zenith (alt-az mounts), degrees 0..30"),
 		sunAvoid:     fl.text("sun-avoid", "DEG", "30", "never point closer than this to the Sun, degrees 0..90 (safety)"),
 		horizon:      fl.text("horizon", "FILE", "", "horizon mask file: lines of \"azimuth altitude\" in degrees"),
+		padSigma:     fl.text("pad-sigma", "K", "0", "widen every goal window by K times the ephemeris' 1σ phase uncertainty that night, 0..10"),
 	}
 }
 

@@ -84,6 +84,10 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 	if err != nil {
 		return err
 	}
+	pad, err := cf.pad()
+	if err != nil {
+		return err
+	}
 	acq, err := number(acquire, false, 120, 0, 3600, "seconds 0..3600")
 	if err != nil {
 		return err
@@ -130,7 +134,7 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 		}
 	}
 	req := planner.RunRequest{Site: site, Zone: loc, Nights: nights, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *fill}, Bins: nb, Rounds: nr, CompareIndependent: *compare}
+		Options: planner.Options{StepS: stepS, Fill: *fill, PadSigma: pad}, Bins: nb, Rounds: nr, CompareIndependent: *compare}
 	if nr == 0 {
 		req.Rounds = -1
 	}

@@ -92,6 +92,10 @@ func runWindows(ctx context.Context, now func() time.Time, args []string, stdout
 	if err != nil {
 		return err
 	}
+	pad, err := cf.pad()
+	if err != nil {
+		return err
+	}
 	nMin, err := wholeNumber(minExp, 0, 0, 10000, "a whole number 0..10000")
 	if err != nil {
 		return err
@@ -114,7 +118,7 @@ func runWindows(ctx context.Context, now func() time.Time, args []string, stdout
 		return err
 	}
 	got, err := planner.QueueWindows(ctx, planner.WindowRequest{Site: site, From: t0, To: t1, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS}}, nil)
+		Options: planner.Options{StepS: stepS, PadSigma: pad}}, nil)
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
 	}
