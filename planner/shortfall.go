@@ -12,7 +12,8 @@ import (
 // goal's window W (2 × half-width × P) and the longest stretch of its
 // windows tonight in which mid-times are observable (the exposure and its
 // readout inside an observable interval), so the observer sees whether the
-// window, the sky or the rest of the schedule stops it.
+// window, the sky or the rest of the schedule stops it. For a goal whose
+// exposure is sized for its S/N, the longest sized exposure is used.
 func (en *engine) shortfalls(targets []*targetState, occs []occMeta, blocks []Block) []Warning {
 	type key struct{ t, g int }
 	got := map[key]int{}
@@ -26,6 +27,13 @@ func (en *engine) shortfalls(targets []*targetState, occs []occMeta, blocks []Bl
 	for _, ts := range targets {
 		P := ts.t.Ephem.PeriodDays
 		for gi, g := range ts.goals {
+			// An S/N goal's exposure, and so its wanted count, is sized
+			// per window: the longest exposure is the one that fell short.
+			for _, m := range occs {
+				if m.target == ts.idx && m.goal == gi && m.sized {
+					g.ExposureS = math.Max(g.ExposureS, m.exposureS)
+				}
+			}
 			n, ok := got[key{ts.idx, gi}]
 			N := g.Wanted(P)
 			if !ok || n >= N {
