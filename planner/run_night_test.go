@@ -100,7 +100,11 @@ func TestNightModelWeights(t *testing.T) {
 				}
 			}
 			if tg < 0 {
-				t.Skip("every goal with a candidate is served: no conflict to resolve")
+				// The checks above passed; this night has no goal left out, so
+				// the heavy-weight check has nothing to displace here (the
+				// count below makes sure some night has one).
+				t.Log("every goal with a candidate is served: no conflict to resolve")
+				return
 			}
 			// The run planner's nights: one level, weights alone rank.
 			conflicts++
