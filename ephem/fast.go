@@ -199,6 +199,18 @@ func (tr Track) AltAzUnix(unixSec float64) (altDeg, azDeg float64) {
 	return altDeg, azDeg
 }
 
+// HourAngleDecUnix returns the target's hour angle (hours, [−12, 12),
+// positive west) and declination (degrees) at Unix time unixSec, in the
+// same apparent frame as AltAzUnix (diurnal aberration included); the zero
+// Track gives 0, −90.
+func (tr Track) HourAngleDecUnix(unixSec float64) (haHours, decDeg float64) {
+	x, y, z, ok := tr.hourAngleVec(unixSec)
+	if !ok {
+		return 0, -90
+	}
+	return wrapPi(math.Atan2(y, x)) * 12 / math.Pi, math.Atan2(z, math.Hypot(x, y)) * radToDeg
+}
+
 // HorizonUnix returns the target's airless altitude (degrees, −90..90) and
 // its direction as a unit vector in the horizon frame, (north, east,
 // zenith) = (cos h cos A, cos h sin A, sin h) with A the azimuth from north

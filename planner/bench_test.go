@@ -50,6 +50,32 @@ func BenchmarkPlan30Targets(b *testing.B) {
 	b.ReportMetric(float64(p.States), "states")
 }
 
+// benchTelescope is an invented alt-azimuth telescope for the benchmark
+// night: 3 °/s in azimuth and 2 °/s in altitude (1 °/s² both), a dome at
+// 2 °/s, 10 s of settling, 60 s of acquisition, 540° of cable wrap.
+var benchTelescope = Telescope{Mount: MountAltAz, Axis1: Axis{RateDegS: 3, AccelDegS2: 1}, Axis2: Axis{RateDegS: 2, AccelDegS2: 1},
+	Dome: Axis{RateDegS: 2, AccelDegS2: 0.5}, SettleS: 10, AcquireS: 60, WrapMinDeg: -270, WrapMaxDeg: 270}
+
+// BenchmarkPlan30TargetsTelescope is BenchmarkPlan30Targets with slews
+// (benchTelescope) in place of the fixed acquisition: compare the two side
+// by side (docs/benchmarks.md).
+func BenchmarkPlan30TargetsTelescope(b *testing.B) {
+	req := benchNight(30)
+	tel := benchTelescope
+	req.Options.Telescope = &tel
+	var p *Plan
+	for b.Loop() {
+		var err error
+		if p, err = PlanNight(req); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(len(p.Blocks)), "blocks")
+	b.ReportMetric(float64(p.Candidates), "candidates")
+	b.ReportMetric(float64(p.Rounds), "rounds")
+	b.ReportMetric(float64(p.States), "states")
+}
+
 func BenchmarkVisibility30Targets(b *testing.B) {
 	req := benchNight(30)
 	for b.Loop() {

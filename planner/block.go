@@ -307,7 +307,8 @@ func (en *engine) fill(targets []*targetState, blocks []Block) []Block {
 				}
 				if b, ok := en.bestFiller(targets, d, prev, next); ok {
 					if next != nil && next.TargetIndex != b.TargetIndex {
-						next.AcquireS = targets[next.TargetIndex].t.AcquireS
+						next.AcquireS = en.fixedAcq(targets[next.TargetIndex])
+						next.SlewS = 0
 					} else if next != nil {
 						next.AcquireS = 0
 					}
@@ -347,7 +348,7 @@ func (en *engine) bestFiller(targets []*targetState, d span, prev, next *Block) 
 		}
 		g := ts.goals[0]
 		L := g.ExposureS + g.OverheadS
-		acq := ts.t.AcquireS
+		acq := en.fixedAcq(ts)
 		var s0, e0 float64
 		switch {
 		case prev == nil:
@@ -363,7 +364,7 @@ func (en *engine) bestFiller(targets []*targetState, d span, prev, next *Block) 
 		case next.TargetIndex == ts.idx:
 			e0 = unixSec(next.Start)
 		default:
-			e0 = unixSec(next.Start) - targets[next.TargetIndex].t.AcquireS
+			e0 = unixSec(next.Start) - en.fixedAcq(targets[next.TargetIndex])
 		}
 		for _, v := range ts.vis {
 			lo := math.Ceil(math.Max(s0, v.lo+guardS))
@@ -381,9 +382,20 @@ func (en *engine) bestFiller(targets []*targetState, d span, prev, next *Block) 
 	if best == nil {
 		return Block{}, false
 	}
-	acq := best.ts.t.AcquireS
+	acq := en.fixedAcq(best.ts)
 	if prev != nil && prev.TargetIndex == best.ts.idx {
 		acq = 0
 	}
 	return en.block(best.ts, -1, best.ts.goals[0].ExposureS, false, best.start, best.n, acq, true), true
+}
+
+// fixedAcq is the acquisition charged around a filler block of ts: the
+// target's AcquireS, or with a telescope the longest slew it can make
+// (Telescope.maxSlewS), so that a filler never needs a move longer than
+// the time left for it.
+func (en *engine) fixedAcq(ts *targetState) float64 {
+	if tel := en.opt.Telescope; tel != nil {
+		return tel.maxSlewS()
+	}
+	return ts.t.AcquireS
 }

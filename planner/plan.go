@@ -55,6 +55,14 @@ type Options struct {
 	// default 0: none), at most to a half-width of 0.49: the window then
 	// holds the event at k σ. Night plans and queue windows alike.
 	PadSigma float64
+	// Telescope, when set, replaces the fixed acquisition time: a block
+	// after another target's block is charged the slew from that target
+	// (where it is at the previous block's end) to its own (at its start),
+	// SlewTime, and the first block of the night the telescope's settling
+	// and acquisition (the move from the park position is made before the
+	// dark interval). Fillers are charged the longest slew the telescope
+	// can make (maxSlewS). nil: each target's AcquireS, as before.
+	Telescope *Telescope
 }
 
 // halfWidth is a goal window's half-width for a 1σ phase uncertainty
@@ -98,6 +106,10 @@ func (o Options) withDefaults() (Options, error) {
 		return o, bad("max_states", float64(o.MaxStates), "≥ 1")
 	case o.MaxOccurrences < 1:
 		return o, bad("max_occurrences", float64(o.MaxOccurrences), "≥ 1")
+	case o.Telescope != nil:
+		if err := o.Telescope.Validate(); err != nil {
+			return o, err
+		}
 	case !finite(o.PadSigma) || o.PadSigma < 0 || o.PadSigma > 10:
 		return o, bad("pad_sigma", o.PadSigma, "0..10 (σ of the phase added to each window's half-width)")
 	}
@@ -135,8 +147,16 @@ type Block struct {
 	Cycle       int64 // the orbital cycle of the window's centre
 	Start, End  time.Time
 	// AcquireS is the acquisition time charged just before Start (0 when
-	// the previous block is of the same target).
-	AcquireS   float64
+	// the previous block is of the same target): with a telescope
+	// (Options.Telescope) the slew from the previous block's target with
+	// settling and acquisition.
+	AcquireS float64
+	// SlewS is the motion's part of AcquireS, s: the slowest axis or the
+	// dome (Slew.Seconds without settling and acquisition); 0 without a
+	// telescope, for the night's first block and after the same target.
+	SlewS float64
+	// PrevTarget names the previous block's target ("" for the first).
+	PrevTarget string
 	N          int
 	ExposureS  float64
 	OverheadS  float64
@@ -284,6 +304,10 @@ type targetState struct {
 	bad      []badSpan
 	phaseErr float64
 	amGrid   []float64 // airmass on the StepS grid from the window's start, 0 = not yet computed
+	// azGrid is the azimuth unwrapped along the track (no jump at 0°/360°)
+	// on the StepS grid from the window's start, degrees; set only with a
+	// telescope (slewEnds).
+	azGrid []float64
 }
 
 // engine holds one night's shared state.
@@ -526,6 +550,7 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 	}
 	pr.nOcc = len(occs)
 	sortCandidates(pr.cands)
+	setSlewBounds(pr.cands)
 	return occs, pr
 }
 
@@ -592,10 +617,13 @@ func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc o
 			}
 			x := en.airmassTie(ts, s+0.5*float64(n)*L)
 			tie := -int64(math.Round(1000 * float64(n) * (x - 1)))
-			cs = append(cs, candidate{
+			c := candidate{
 				start: s, end: s + float64(n)*L, acq: ts.t.AcquireS, acqFloor: floor,
 				target: ts.idx, occ: occID, n: n, val: at(lv, w*goalValue(n, wanted), tie),
-			})
+			}
+			if en.withSlew(ts, &c) {
+				cs = append(cs, c)
+			}
 		}
 		onGrid := func(s float64) bool { return math.Mod(s, step) == 0 }
 		if first >= sMin && !onGrid(first) {
@@ -655,11 +683,14 @@ func (en *engine) appendContinuous(cs []candidate, ts *targetState, g Goal, oc o
 				continue
 			}
 			x := en.airmassTie(ts, s+0.5*float64(n)*L)
-			cs = append(cs, candidate{
+			c := candidate{
 				start: s, end: s + float64(n)*L, acq: ts.t.AcquireS, acqFloor: en.darkStart(v.lo),
 				target: ts.idx, occ: occID, n: n,
 				val: at(lv, w*goalValue(1, 1), -int64(math.Round(1000*float64(n)*(x-1)))),
-			})
+			}
+			if en.withSlew(ts, &c) {
+				cs = append(cs, c)
+			}
 		}
 	}
 	return cs
@@ -702,4 +733,58 @@ func (en *engine) airmassAt(ts *targetState, u float64) float64 {
 		return x
 	}
 	return 40
+}
+
+// withSlew sets, on a night with a telescope, candidate c's acquisition to
+// the least a move can cost (settling and acquisition: the first block's
+// charge, and a lower bound of every other, which the bound pruning of
+// prune.go relies on) and its pointings at start
+// and end (slewEnds). The azimuth axis starts the block at the position
+// nearest the wrap's centre (Telescope.centreWrap) and follows the target
+// through the block; a block that would then run past the wrap's limit is
+// dropped (false). Without a telescope c is unchanged (true).
+func (en *engine) withSlew(ts *targetState, c *candidate) bool {
+	tel := en.opt.Telescope
+	if tel == nil {
+		return true
+	}
+	if ts.azGrid == nil {
+		ts.azGrid = make([]float64, len(ts.amGrid))
+		prev := 0.0
+		for k := range ts.azGrid {
+			_, az := ts.track.AltAzUnix(en.from + float64(k)*en.opt.StepS)
+			if k > 0 {
+				az = prev + wrap180(az-prev)
+			}
+			ts.azGrid[k], prev = az, az
+		}
+	}
+	c.acq = tel.minSlewS() // acqMax: setSlewBounds, once all are listed
+	pe := &slewEnds{tel: tel, start: en.pointing(ts, c.start), end: en.pointing(ts, c.end)}
+	pe.start.WrapDeg, pe.start.Wrapped = tel.centreWrap(pe.start.AzDeg), true
+	pe.end.WrapDeg, pe.end.Wrapped = pe.start.WrapDeg+en.unwrappedAz(ts, c.end)-en.unwrappedAz(ts, c.start), true
+	if tel.Mount == MountAltAz && tel.hasWrap() && (pe.end.WrapDeg < tel.WrapMinDeg || pe.end.WrapDeg > tel.WrapMaxDeg) {
+		return false
+	}
+	c.pt = pe
+	return true
+}
+
+// pointing returns target ts's pointing at Unix second u (airless
+// altitude and azimuth, hour angle and declination).
+func (en *engine) pointing(ts *targetState, u float64) Pointing {
+	alt, az := ts.track.AltAzUnix(u)
+	ha, dec := ts.track.HourAngleDecUnix(u)
+	return Pointing{AzDeg: az, AltDeg: alt, HAHours: ha, DecDeg: dec}
+}
+
+// unwrappedAz is the target's azimuth at u on the unwrapped grid azGrid,
+// interpolated linearly between StepS knots (exact at u itself up to the
+// grid's turn count: the fraction comes from the azimuth at u), degrees.
+func (en *engine) unwrappedAz(ts *targetState, u float64) float64 {
+	x := (u - en.from) / en.opt.StepS
+	i := min(max(int(math.Floor(x)), 0), len(ts.azGrid)-1)
+	_, az := ts.track.AltAzUnix(u)
+	base := ts.azGrid[i]
+	return base + wrap180(az-base)
 }

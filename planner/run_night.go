@@ -160,11 +160,15 @@ func (m *nightModel) plan(ns nightSolution) *Plan {
 		c := &pr.cands[i]
 		om := occs[c.occ]
 		ts := targets[c.target]
-		acq := 0.0
+		acq, slew := 0.0, 0.0
 		if prev == nil || prev.target != c.target {
-			acq = ts.t.AcquireS
+			acq = c.setupAfter(prev)
+			if c.pt != nil && prev != nil {
+				slew = acq - c.pt.tel.minSlewS()
+			}
 		}
 		b := en.block(ts, om.goal, om.exposureS, om.sized, c.start, c.n, acq, false)
+		b.SlewS = slew
 		b.Cycle = om.occ.cycle
 		b.Value = c.val.total()
 		p.Blocks = append(p.Blocks, b)
@@ -174,6 +178,9 @@ func (m *nightModel) plan(ns nightSolution) *Plan {
 	p.Warnings = append(p.Warnings, en.shortfalls(targets, occs, p.Blocks)...)
 	if en.opt.Fill {
 		p.Blocks = en.fill(targets, p.Blocks)
+	}
+	for i := 1; i < len(p.Blocks); i++ {
+		p.Blocks[i].PrevTarget = p.Blocks[i-1].Target
 	}
 	for _, b := range p.Blocks {
 		p.Warnings = append(p.Warnings, b.Warnings...)

@@ -159,8 +159,10 @@ func at(l int, v, tie int64) score {
 // seconds, UTC).
 type candidate struct {
 	start, end float64
-	acq        float64 // acquisition overhead charged before it after another target, s
-	acqFloor   float64 // earliest start of that acquisition (its dark interval's start)
+	acq        float64   // acquisition overhead charged before it after another target, s (with a telescope: the least a move costs)
+	acqFloor   float64   // earliest start of that acquisition (its dark interval's start)
+	acqMax     float64   // with a telescope: the most a move to it can cost, s
+	pt         *slewEnds // with a telescope: its pointings; nil without
 	target     int
 	occ        int
 	n          int
@@ -169,9 +171,92 @@ type candidate struct {
 
 // acqFits reports whether c's acquisition can be charged after an instant
 // prev (the end of a different target's block, or −Inf for none).
-func (c *candidate) acqFits(prev float64) bool {
+func (c *candidate) acqFits(prev float64) bool { return c.fitsAfter(prev, c.acq) }
+
+// slewEnds is a candidate's pointing at its start and at its end, on a
+// night with a telescope (engine.withSlew).
+type slewEnds struct {
+	tel        *Telescope
+	start, end Pointing
+}
+
+// setupAfter returns the time charged before c when it follows p, a block
+// of another target (nil: c is first), s: the slew from p's end to c's
+// start with a telescope, else c's acquisition.
+func (c *candidate) setupAfter(p *candidate) float64 {
+	if c.pt == nil || p == nil || p.pt == nil {
+		return c.acq
+	}
+	return slewSeconds(c.pt.tel, &p.pt.end, &c.pt.start)
+}
+
+// slewSeconds is SlewTime(*tel, *from, *to).Seconds for pointings whose
+// wrap positions are both set (the scheduler's, engine.withSlew), without
+// building the Slew: the scheduler's inner loop (TestSlewSolveMatchesBruteForce
+// checks it against SlewTime).
+func slewSeconds(tel *Telescope, from, to *Pointing) float64 {
+	var d1, d2 float64
+	if tel.Mount == MountEquatorial {
+		d1, d2 = math.Abs(wrap180((to.HAHours-from.HAHours)*15)), math.Abs(to.DecDeg-from.DecDeg)
+	} else {
+		if tel.hasWrap() {
+			d1 = math.Abs(to.WrapDeg - from.WrapDeg)
+		} else {
+			d1 = math.Abs(wrap180(to.AzDeg - from.AzDeg))
+		}
+		d2 = math.Abs(to.AltDeg - from.AltDeg)
+	}
+	t := max(moveTime(d1, tel.Axis1), moveTime(d2, tel.Axis2))
+	if tel.Dome.RateDegS > 0 {
+		t = max(t, moveTime(math.Abs(wrap180(to.AzDeg-from.AzDeg)), tel.Dome))
+	}
+	return t + tel.SettleS + tel.AcquireS
+}
+
+// setSlewBounds sets every candidate's acqMax (on a night with a
+// telescope): an upper bound of the slew from any candidate's end to its
+// start. Each axis moves at most from the candidate's own start to the
+// farthest end any candidate of the night has on that axis (the azimuth
+// axis' unwrapped position, the altitude, the declination; the hour angle
+// and the dome at most 180°), so the bound holds for every predecessor the
+// scheduler can give it; acqMax ≥ acq.
+func setSlewBounds(cs []candidate) {
+	if len(cs) == 0 || cs[0].pt == nil {
+		return
+	}
+	tel := *cs[0].pt.tel
+	lo := [3]float64{math.Inf(1), math.Inf(1), math.Inf(1)}
+	hi := [3]float64{math.Inf(-1), math.Inf(-1), math.Inf(-1)}
+	for i := range cs {
+		e := cs[i].pt.end
+		for k, v := range [3]float64{e.WrapDeg, e.AltDeg, e.DecDeg} {
+			lo[k], hi[k] = math.Min(lo[k], v), math.Max(hi[k], v)
+		}
+	}
+	far := func(k int, v float64) float64 { return math.Max(math.Abs(v-lo[k]), math.Abs(hi[k]-v)) }
+	for i := range cs {
+		c := &cs[i]
+		s := c.pt.start
+		d1, d2 := 180.0, far(2, s.DecDeg)
+		if tel.Mount == MountAltAz {
+			d2 = far(1, s.AltDeg)
+			if tel.hasWrap() {
+				d1 = far(0, s.WrapDeg)
+			}
+		}
+		t := max(moveTime(d1, tel.Axis1), moveTime(d2, tel.Axis2))
+		if tel.Dome.RateDegS > 0 {
+			t = max(t, moveTime(180, tel.Dome))
+		}
+		c.acqMax = t + tel.SettleS + tel.AcquireS
+	}
+}
+
+// fitsAfter reports whether setup seconds before c fit after an instant
+// prev and inside c's dark interval.
+func (c *candidate) fitsAfter(prev, setup float64) bool {
 	const eps = 1e-6
-	return c.start-c.acq >= math.Max(prev, c.acqFloor)-eps
+	return c.start-setup >= math.Max(prev, c.acqFloor)-eps
 }
 
 // follows reports whether c may come directly after p (p nil: c is first).
@@ -182,7 +267,7 @@ func (c *candidate) follows(p *candidate) bool {
 	if p.target == c.target {
 		return c.start >= p.end-1e-6
 	}
-	return c.acqFits(p.end)
+	return c.fitsAfter(p.end, c.setupAfter(p))
 }
 
 // problem is a night's scheduling problem: candidates sorted by end time

@@ -134,7 +134,9 @@ type Slew struct {
 // the short angle between the azimuths. An alt-azimuth azimuth axis with a
 // cable wrap turns to the position az + k·360° inside [WrapMinDeg,
 // WrapMaxDeg] nearest its current one: when the near way round would leave
-// the wrap, it unwinds the long way. The sky does not wait for the slew
+// the wrap, it unwinds the long way; a to with Wrapped set fixes the
+// arrival position instead (to.WrapDeg, which must lie in the wrap: the
+// night scheduler's convention, see centreWrap). The sky does not wait for the slew
 // (the target's position at the slew's end is what the caller passes); the
 // settle and acquisition times are fixed.
 func SlewTime(tel Telescope, from, to Pointing) Slew {
@@ -144,7 +146,9 @@ func SlewTime(tel Telescope, from, to Pointing) Slew {
 		s.Axis1Deg = math.Abs(wrap180((to.HAHours - from.HAHours) * 15))
 		s.Axis2Deg = math.Abs(to.DecDeg - from.DecDeg)
 	default:
-		s.To.WrapDeg, s.To.Wrapped = tel.wrapTarget(from, to.AzDeg), true
+		if !tel.hasWrap() || !to.Wrapped {
+			s.To.WrapDeg, s.To.Wrapped = tel.wrapTarget(from, to.AzDeg), true
+		}
 		if tel.hasWrap() {
 			s.Axis1Deg = math.Abs(s.To.WrapDeg - from.wrapOrAz(tel))
 		} else {
@@ -157,7 +161,7 @@ func SlewTime(tel Telescope, from, to Pointing) Slew {
 	if tel.Dome.RateDegS > 0 {
 		s.DomeS = moveTime(math.Abs(wrap180(to.AzDeg-from.AzDeg)), tel.Dome)
 	}
-	names := map[string][2]string{MountAltAz: {"azimuth", "altitude"}, MountEquatorial: {"hour angle", "declination"}}[tel.Mount]
+	names := axisNames[tel.Mount]
 	longest := s.Axis1S
 	s.Governs = names[0]
 	if s.Axis2S > longest {
@@ -169,6 +173,9 @@ func SlewTime(tel Telescope, from, to Pointing) Slew {
 	s.Seconds = longest + s.SettleS + s.AcquireS
 	return s
 }
+
+// axisNames names each mount's two axes, for Slew.Governs.
+var axisNames = map[string][2]string{MountAltAz: {"azimuth", "altitude"}, MountEquatorial: {"hour angle", "declination"}}
 
 // moveTime is the rest-to-rest time through d degrees on axis x (see
 // SlewTime for the profile).
@@ -230,4 +237,42 @@ func wrap180(d float64) float64 {
 		d += 360
 	}
 	return d
+}
+
+// maxSlewS is an upper bound of SlewTime(tel, a, b).Seconds over all
+// pointings above the horizon: each axis through its largest move (the
+// azimuth axis through its whole wrap, or 180° without one; altitude 90°;
+// hour angle 180°; declination 180°; dome 180°), then settling and
+// acquisition, seconds.
+func (tel Telescope) maxSlewS() float64 {
+	d1, d2 := 180.0, 180.0
+	if tel.Mount == MountAltAz {
+		d2 = 90
+		if tel.hasWrap() {
+			d1 = tel.WrapMaxDeg - tel.WrapMinDeg
+		}
+	}
+	t := max(moveTime(d1, tel.Axis1), moveTime(d2, tel.Axis2))
+	if tel.Dome.RateDegS > 0 {
+		t = max(t, moveTime(180, tel.Dome))
+	}
+	return t + tel.SettleS + tel.AcquireS
+}
+
+// minSlewS is the least SlewTime(tel, a, b).Seconds can be: settling and
+// acquisition, seconds.
+func (tel Telescope) minSlewS() float64 { return tel.SettleS + tel.AcquireS }
+
+// centreWrap returns the azimuth axis' position for azimuth az (degrees)
+// that the night scheduler assumes at the start of every block: the one
+// inside the wrap nearest the wrap's centre, with Wrapped set (az itself,
+// unwrapped, without a wrap or on an equatorial mount). Fixing it makes
+// each move's time depend on the two blocks alone, not on the night's
+// earlier moves, so the scheduler stays exact (see sweep.go); any such move
+// is one the mount can make, since both ends lie inside the wrap.
+func (tel Telescope) centreWrap(az float64) float64 {
+	if tel.Mount != MountAltAz || !tel.hasWrap() {
+		return az
+	}
+	return tel.nearestWrap(0.5*(tel.WrapMinDeg+tel.WrapMaxDeg), az)
 }

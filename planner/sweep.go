@@ -2,6 +2,7 @@ package planner
 
 import (
 	"cmp"
+	"math"
 	"slices"
 	"sort"
 	"strconv"
@@ -64,6 +65,13 @@ type bucket struct {
 	per    []prefixBest
 	merged *bucket           // non-nil once merged away
 	next   map[int32]*bucket // cache: the bucket of state ∪ {k}
+	// q is scratch of one recentPredecessors query (stamp: which one).
+	q struct {
+		stamp int32
+		val   score
+		pred  int32
+		found bool
+	}
 }
 
 // live follows merges to the bucket that now holds b's schedules.
@@ -79,6 +87,7 @@ type label struct {
 	cand int32
 	pred int32
 	val  score
+	bk   *bucket // the bucket it was put in (nil without a telescope); follow live()
 }
 
 // pending is, for one candidate, the best predecessor found in one bucket;
@@ -122,7 +131,12 @@ func (pr *problem) sweepStatic() *sweepStatic {
 			g = int32(len(groups))
 			groups[gk] = g
 			ev = append(ev, sweepEvent{c.start, evQuerySame, int32(i)})
-			if c.acqFits(-1e300) {
+			switch {
+			case c.pt != nil:
+				if c.fitsAfter(-1e300, c.acqMax) {
+					ev = append(ev, sweepEvent{c.start - c.acqMax, evQueryOther, int32(i)})
+				}
+			case c.acqFits(-1e300):
 				ev = append(ev, sweepEvent{c.start - c.acq, evQueryOther, int32(i)})
 			}
 		}
@@ -231,6 +245,15 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 		pool = append(pool, pending{from: from, val: val, pred: pred, next: head[g]})
 		head[g] = int32(len(pool) - 1)
 	}
+	var serial int32
+	current := func(g int32, from *bucket) (score, bool) {
+		for j := head[g]; j >= 0; j = pool[j].next {
+			if pool[j].from == from {
+				return pool[j].val, true
+			}
+		}
+		return score{}, false
+	}
 	for _, e := range st.events {
 		switch e.kind {
 		case evQueryOther, evQuerySame:
@@ -239,6 +262,10 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 			k := int32(c.occ)
 			if e.kind == evQueryOther {
 				addPending(g, nil, score{}, -1)
+			}
+			if e.kind == evQuerySame && c.pt != nil {
+				serial++
+				pr.recentPredecessors(c, g, labels, critical, serial, current, addPending)
 			}
 			for _, b := range buckets {
 				if critical[c.occ] && stateHas(b.state, k) {
@@ -285,6 +312,9 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 				v := p.val.plus(c.val)
 				id := int32(len(labels))
 				labels = append(labels, label{cand: e.idx, pred: p.pred, val: v})
+				if c.pt != nil {
+					labels[id].bk = b
+				}
 				b.all.add(topEntry{val: v, key: int32(c.target), cand: id, ok: true})
 				b.per[c.target].add(topEntry{val: v, key: int32(c.occ), cand: id, ok: true})
 			}
@@ -330,6 +360,63 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 	}
 	slices.Reverse(res.chosen)
 	return res
+}
+
+// recentPredecessors adds, on a night with a telescope, the pendings of
+// candidate c (group g) that the other-target query at c.start − c.acqMax
+// cannot see: in every bucket that c may extend, the best schedule whose
+// last block is of another target and ends after that instant (all
+// schedules when the query was not made: the longest slew would not fit the
+// dark interval), among those from whose end the exact slew to c's start
+// fits (candidate.follows); and c as the first block when its acquisition
+// fits and the query was not made. Schedules ending after c.start − c.acq
+// cannot precede c (no slew is shorter) and are not looked at. labels are
+// in order of their blocks' ends (they are made at the ends, in time
+// order); serial numbers the query (bucket.q).
+func (pr *problem) recentPredecessors(c *candidate, g int32, labels []label, critical []bool, serial int32,
+	current func(g int32, from *bucket) (score, bool), addPending func(g int32, from *bucket, val score, pred int32)) {
+	lo := math.Inf(-1)
+	if c.fitsAfter(-1e300, c.acqMax) {
+		lo = c.start - c.acqMax
+	} else if c.acqFits(-1e300) {
+		addPending(g, nil, score{}, -1)
+	}
+	hi := c.start - c.acq + 1e-6
+	k := int32(c.occ)
+	var touched []*bucket
+	i := sort.Search(len(labels), func(i int) bool { return pr.cands[labels[i].cand].end > lo })
+	for ; i < len(labels); i++ {
+		l := &labels[i]
+		p := &pr.cands[l.cand]
+		if p.end > hi {
+			break
+		}
+		if p.target == c.target {
+			continue
+		}
+		b := l.bk.live()
+		if b.q.stamp != serial {
+			if critical[c.occ] && stateHas(b.state, k) {
+				b.q.stamp, b.q.found, b.q.pred = serial, true, -2 // c may not extend b
+				b.q.val = score{}
+				continue
+			}
+			b.q.val, b.q.found = current(g, b)
+			b.q.stamp, b.q.pred = serial, -1
+			touched = append(touched, b)
+		}
+		// Only a schedule better than the bucket's best pending so far
+		// can change it: the slew is worked out for those alone.
+		if b.q.pred == -2 || (b.q.found && !b.q.val.less(l.val)) || !c.fitsAfter(p.end, c.setupAfter(p)) {
+			continue
+		}
+		b.q.val, b.q.found, b.q.pred = l.val, true, int32(i)
+	}
+	for _, b := range touched {
+		if b.q.pred >= 0 {
+			addPending(g, b, b.q.val, b.q.pred)
+		}
+	}
 }
 
 // sweepScratch holds buffers reused across rounds.
