@@ -81,6 +81,13 @@ func TestTrackMatchesFull(t *testing.T) {
 					dha := math.Abs(math.Remainder(tr.HourAngleHours(tm)-full.HourAngleHours, 24)) * 15 * 3600 *
 						math.Cos(dec*math.Pi/180)
 					worstHA = math.Max(worstHA, dha)
+					// HourAngleDecUnix: the same hour angle, and the apparent
+					// declination up to diurnal aberration (at most 0.32″,
+					// Meeus ch. 23's constant 0.3200″ × ρ cos φ′).
+					ha2, dec2 := tr.HourAngleDecUnix(float64(tm.Unix()))
+					if math.Abs(math.Remainder(ha2-tr.HourAngleHours(tm), 24))*54000 > 1e-6 || math.Abs(dec2-dec)*3600 > 0.33+tolArcsec {
+						t.Fatalf("star %d at %v: HourAngleDecUnix (%.7f h, %.7f°), want (%.7f h, %.7f°)", i, tm, ha2, dec2, tr.HourAngleHours(tm), dec)
+					}
 					// q is undefined at the zenith and at the pole: weigh its
 					// error by the distance from the nearer of the two.
 					dq := math.Abs(math.Remainder(tr.ParallacticDeg(tm)-full.ParallacticDeg, 360)) * 3600

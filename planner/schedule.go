@@ -40,7 +40,11 @@ import (
 // Subject to: blocks do not overlap; before a block whose predecessor is a
 // different target, or before the first block, the target's acquisition
 // overhead is charged, and it must lie in the block's dark interval; at most
-// one block per goal occurrence.
+// one block per goal occurrence. With a telescope (Options.Telescope) the
+// charge after another target is the slew from that target where it is at
+// the previous block's end to this one where it is at its start
+// (SlewTime), and before the first block the telescope's settling and
+// acquisition: a sequence-dependent setup time (see sweep.go, "Slews").
 //
 // Method. Vectors under componentwise addition and lexicographic order form
 // an ordered abelian group (a ≤ b implies a + c ≤ b + c), which is all that

@@ -1,6 +1,8 @@
 package planner
 
 import (
+	"bytes"
+	"encoding/json"
 	"fmt"
 	"math"
 
@@ -275,4 +277,75 @@ func (tel Telescope) centreWrap(az float64) float64 {
 		return az
 	}
 	return tel.nearestWrap(0.5*(tel.WrapMinDeg+tel.WrapMaxDeg), az)
+}
+
+// TelescopeJSON is the written form of a Telescope (the --telescope file of
+// the CLI, a site's stored telescope, the site API's "telescope" member):
+//
+//	{"mount": "altaz",
+//	 "axis1": {"rate_deg_s": 3, "accel_deg_s2": 1},
+//	 "axis2": {"rate_deg_s": 2, "accel_deg_s2": 1},
+//	 "dome": {"rate_deg_s": 2, "accel_deg_s2": 0.5},
+//	 "settle_s": 10, "acquire_s": 60,
+//	 "wrap_min_deg": -270, "wrap_max_deg": 270}
+//
+// dome and the wrap are optional (none). Units as in Telescope.
+type TelescopeJSON struct {
+	Mount      string    `json:"mount"`
+	Axis1      AxisJSON  `json:"axis1"`
+	Axis2      AxisJSON  `json:"axis2"`
+	Dome       *AxisJSON `json:"dome,omitempty"`
+	SettleS    float64   `json:"settle_s"`
+	AcquireS   float64   `json:"acquire_s"`
+	WrapMinDeg float64   `json:"wrap_min_deg,omitempty"`
+	WrapMaxDeg float64   `json:"wrap_max_deg,omitempty"`
+}
+
+// AxisJSON is the written form of an Axis.
+type AxisJSON struct {
+	RateDegS   float64 `json:"rate_deg_s"`
+	AccelDegS2 float64 `json:"accel_deg_s2"`
+}
+
+// Telescope returns the Telescope j describes (not yet validated).
+func (j TelescopeJSON) Telescope() Telescope {
+	tel := Telescope{Mount: j.Mount, Axis1: Axis(j.Axis1), Axis2: Axis(j.Axis2), SettleS: j.SettleS, AcquireS: j.AcquireS,
+		WrapMinDeg: j.WrapMinDeg, WrapMaxDeg: j.WrapMaxDeg}
+	if j.Dome != nil {
+		tel.Dome = Axis(*j.Dome)
+	}
+	return tel
+}
+
+// JSON returns tel's written form.
+func (tel Telescope) JSON() TelescopeJSON {
+	j := TelescopeJSON{Mount: tel.Mount, Axis1: AxisJSON(tel.Axis1), Axis2: AxisJSON(tel.Axis2), SettleS: tel.SettleS,
+		AcquireS: tel.AcquireS, WrapMinDeg: tel.WrapMinDeg, WrapMaxDeg: tel.WrapMaxDeg}
+	if tel.Dome.RateDegS > 0 {
+		d := AxisJSON(tel.Dome)
+		j.Dome = &d
+	}
+	return j
+}
+
+// ParseTelescope reads a telescope from its written form (TelescopeJSON):
+// one JSON object, unknown members refused, then Validate. Errors are
+// *ephem.InputError naming the field ("telescope" for the document itself),
+// the value and what is accepted.
+func ParseTelescope(data []byte) (Telescope, error) {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	var j TelescopeJSON
+	if err := dec.Decode(&j); err != nil {
+		return Telescope{}, &ephem.InputError{Field: "telescope", Value: err.Error(),
+			Accepted: `one JSON object with mount, axis1, axis2 ({"rate_deg_s", "accel_deg_s2"}), settle_s, acquire_s and optionally dome, wrap_min_deg, wrap_max_deg`}
+	}
+	if dec.More() {
+		return Telescope{}, &ephem.InputError{Field: "telescope", Value: "more than one JSON value", Accepted: "one JSON object"}
+	}
+	tel := j.Telescope()
+	if err := tel.Validate(); err != nil {
+		return Telescope{}, err
+	}
+	return tel, nil
 }

@@ -1,6 +1,7 @@
 package planner
 
 import (
+	"encoding/json"
 	"math"
 	"math/rand/v2"
 	"sort"
@@ -235,5 +236,31 @@ func TestPlanNightTelescope(t *testing.T) {
 	req.Options.Telescope = &bad
 	if _, err := PlanNight(req); err == nil || !strings.Contains(err.Error(), "telescope.mount") || !strings.Contains(err.Error(), `"fork"`) || !strings.Contains(err.Error(), "altaz or equatorial") {
 		t.Errorf("unknown mount: %v", err)
+	}
+}
+
+// TestParseTelescope reads the written form back (benchTelescope round
+// trip) and refuses bad documents naming the field, the value and what is
+// accepted.
+func TestParseTelescope(t *testing.T) {
+	data, err := json.Marshal(benchTelescope.JSON())
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := ParseTelescope(data)
+	if err != nil || got != benchTelescope {
+		t.Fatalf("round trip: %+v, %v; want %+v", got, err, benchTelescope)
+	}
+	for _, tc := range []struct{ doc, want string }{
+		{`{"mount":"fork","axis1":{"rate_deg_s":2},"axis2":{"rate_deg_s":2}}`, `telescope.mount: "fork"`},
+		{`{"mount":"equatorial","axis1":{"rate_deg_s":-2},"axis2":{"rate_deg_s":2}}`, "telescope.axis1.rate_deg_s: -2"},
+		{`{"mount":"altaz","axis1":{"rate_deg_s":2},"axis2":{"rate_deg_s":2},"dome":{"rate_deg_s":1,"accel_deg_s2":-1}}`, "telescope.dome.accel_deg_s2: -1"},
+		{`{"mount":"altaz","axis1":{"rate_deg_s":2},"axis2":{"rate_deg_s":2},"speed":3}`, `unknown field "speed"`},
+		{`{"mount":"altaz"} {}`, "more than one JSON value"},
+	} {
+		_, err := ParseTelescope([]byte(tc.doc))
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%s: %v, want it to say %q", tc.doc, err, tc.want)
+		}
 	}
 }

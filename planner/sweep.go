@@ -38,6 +38,34 @@ import (
 // sweep), beyond which the best feasible schedule seen is returned, not
 // proven optimal, with the remaining gap.
 
+// Slews (Options.Telescope). The time charged before a block d after a
+// block p of another target is then σ(p, d), the slew from p's pointing at
+// its end to d's at its start (SlewTime, the azimuth axis at the fixed
+// wrap positions of engine.withSlew), a function of the two candidates
+// alone; the first block is charged settling and acquisition, σmin, and
+// σmin ≤ σ(p, d) ≤ σmax(d) = d.acqMax for every p (setSlewBounds). The
+// state a schedule needs is then (critical set, last block), and d's query
+// for other-target predecessors is answered exactly in two parts, per
+// bucket: (i) at d.start − σmax(d), made only when that is not before d's
+// acquisition floor: every schedule ending by then has σ(p, d) ≤ σmax(d),
+// so d fits after each of them, and their last block no longer matters:
+// the bucket's best over other targets, as above, is their best; (ii) at
+// d.start (recentPredecessors), every schedule ending in (d.start −
+// σmax(d), d.start − σmin] (all ending by d.start − σmin when (i) was not
+// made) is checked with its own σ(p, d) and the floor, and the best that
+// fits is taken; a schedule ending later cannot precede d, since no slew
+// is shorter than σmin. Each schedule d may follow lies in (i) or (ii) and
+// is considered, and each considered one is one d may follow, so every
+// bucket's best predecessor of d is exact. Labels are never discarded
+// (part (ii) reads them one by one in order of their ends, from the label
+// list), so the extension of the state by the last block costs no
+// enumeration of states, and Bellman's principle holds as before: a
+// schedule's continuations depend on its past only through its state and
+// its last block. The same-target query, the acquisition-free rule between
+// blocks of one target and the DSSR rounds are unchanged, so the proof of
+// exactness below carries over; TestSlewSolveMatchesBruteForce checks it
+// against exhaustive search.
+
 // sweepEvent is one event of the time sweep. Kinds are ordered so that at
 // equal times a block ending at t is available to a block starting at t, and
 // an occurrence whose last candidate starts at t is closed only after it.

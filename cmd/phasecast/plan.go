@@ -41,6 +41,7 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, header above); required")
 	cf := addConstraintFlags(fl)
 	acquire := fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
+	telFlag := addTelescopeFlag(fl)
 	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = cover the window once, -1 = as many as fit)")
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
@@ -96,6 +97,10 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	if err != nil {
 		return err
 	}
+	tel, err := readTelescope(telFlag)
+	if err != nil {
+		return err
+	}
 	list, err := readTargets(targets)
 	if err != nil {
 		return err
@@ -109,7 +114,7 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	from, to := planner.NightWindow(y, m, d, loc)
 	p, err := planner.PlanNight(planner.NightRequest{
 		Site: site, From: from, To: to, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *fill, PadSigma: pad}, Instrument: inst,
+		Options: planner.Options{StepS: stepS, Fill: *fill, PadSigma: pad, Telescope: tel}, Instrument: inst,
 	})
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
@@ -257,6 +262,41 @@ func readTargets(v *textValue) ([]planner.Target, error) {
 	return list, nil
 }
 
+// addTelescopeFlag adds --telescope, shared by plan and run.
+func addTelescopeFlag(f *flags) *textValue {
+	return f.text("telescope", "FILE.json", "", "telescope motion (docs/formats.md, \"Telescope\"): each visit is charged its slew from the previous target instead of --acquire-s")
+}
+
+// acquisitionText is the header's account of what a visit is charged: the
+// fixed --acquire-s, or with a telescope its slews.
+func acquisitionText(acq float64, tel *planner.Telescope) string {
+	if tel == nil {
+		return fmt.Sprintf("acquisition %s s per visit", fmtG(acq))
+	}
+	return fmt.Sprintf("each visit charged its slew from the previous target (%s mount), %s s settling and %s s acquisition",
+		tel.Mount, fmtG(tel.SettleS), fmtG(tel.AcquireS))
+}
+
+// readTelescope reads the --telescope file: nil when the flag is not given.
+func readTelescope(v *textValue) (*planner.Telescope, error) {
+	if !v.set {
+		return nil, nil
+	}
+	data, err := os.ReadFile(v.value)
+	if err != nil {
+		return nil, fmt.Errorf("--telescope %s: %w", shown(v.value), err)
+	}
+	tel, err := planner.ParseTelescope(data)
+	if err != nil {
+		var ie *ephem.InputError
+		if errors.As(err, &ie) {
+			return nil, usageErrorf("--telescope %s: %s %s: not accepted; accepted: %s", shown(v.value), ie.Field, ie.Value, ie.Accepted)
+		}
+		return nil, err
+	}
+	return &tel, nil
+}
+
 // checkPlanFinite makes sure no NaN reaches the output.
 func checkPlanFinite(out export.PlanDoc) error {
 	for _, b := range out.Blocks {
@@ -309,7 +349,7 @@ func printPlanHeader(b *strings.Builder, p *planner.Plan, ev ephem.NightEvents, 
 	if len(c.Horizon) > 0 {
 		fmt.Fprintf(b, ", horizon mask (%d points)", len(c.Horizon))
 	}
-	fmt.Fprintf(b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
+	fmt.Fprintf(b, ", Sun avoidance %s°; %s\n", fmtG(c.SunAvoidDeg), acquisitionText(acq, p.Options.Telescope))
 	if len(p.Dark) == 0 {
 		fmt.Fprintf(b, "Dark time: none (the Sun stays above %s°)\n", fmtG(c.SunAltMaxDeg))
 	}
@@ -339,6 +379,9 @@ func printPlanBlocks(w io.Writer, p *planner.Plan, loc *time.Location) error {
 		notes := []string{}
 		if bl.AcquireS > 0 {
 			notes = append(notes, fmt.Sprintf("acquire from %s", bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))).In(loc).Format("15:04")))
+		}
+		if bl.SlewS > 0 {
+			notes = append(notes, fmt.Sprintf("slew %.0f s from %s", bl.SlewS, bl.PrevTarget))
 		}
 		if bl.SNROK {
 			notes = append(notes, snrNote(bl))

@@ -68,6 +68,7 @@ type runFlags struct {
 	cf                                          constraintFlags
 	tz, from, nNights, dates, targets, observed *textValue
 	past, acquire, nExp, minNights, bins, step  *textValue
+	telescope                                   *textValue
 	rounds, siteName, name, format, stamp       *textValue
 	binGoals, fill, compare, asJSON             *bool
 	inf                                         planInstrumentFlags
@@ -85,6 +86,7 @@ func addRunFlags() runFlags {
 	rf.past = fl.text("past", "N", "the nights the log reaches", "nights already over, 0..number of nights")
 	rf.cf = addConstraintFlags(fl)
 	rf.acquire = fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
+	rf.telescope = addTelescopeFlag(fl)
 	rf.nExp = fl.text("n-exposures", "N", "0", "exposures wanted per goal and night (0 = cover the window once, -1 = as many as fit)")
 	rf.minNights = fl.text("min-nights", "M", "1", "nights each goal wants its exposures on, 1..366")
 	rf.bins = fl.text("bins", "N", "0", "also count the coverage in N phase bins, 2..100 (0 = none)")
@@ -181,6 +183,10 @@ func (rf runFlags) read() (runJob, error) {
 	if err != nil {
 		return j, err
 	}
+	tel, err := readTelescope(rf.telescope)
+	if err != nil {
+		return j, err
+	}
 	list, err := readTargets(rf.targets)
 	if err != nil {
 		return j, err
@@ -197,7 +203,7 @@ func (rf runFlags) read() (runJob, error) {
 		}
 	}
 	j.req = planner.RunRequest{Site: site, Zone: loc, Nights: nights, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *rf.fill, PadSigma: pad}, Bins: nb, Rounds: nr, CompareIndependent: *rf.compare, Instrument: inst}
+		Options: planner.Options{StepS: stepS, Fill: *rf.fill, PadSigma: pad, Telescope: tel}, Bins: nb, Rounds: nr, CompareIndependent: *rf.compare, Instrument: inst}
 	if nr == 0 {
 		j.req.Rounds = -1
 	}
@@ -385,7 +391,7 @@ func printRunHeader(b *strings.Builder, rp *planner.RunPlan, out export.Run, loc
 	if c.MinMoonSepDeg > 0 {
 		fmt.Fprintf(b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
 	}
-	fmt.Fprintf(b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
+	fmt.Fprintf(b, ", Sun avoidance %s°; %s\n", fmtG(c.SunAvoidDeg), acquisitionText(acq, rp.Request.Options.Telescope))
 	o := out.Objective
 	fmt.Fprintf(b, "Coverage objective: J = %s, %.1f%% of the %s that meeting every requirement exactly is worth (at most %s; greedy pass %s",
 		fmtJ(o.Value), 100*o.Fraction, fmtJ(o.RequiredValue), fmtJ(o.MaxValue), fmtJ(o.GreedyValue))

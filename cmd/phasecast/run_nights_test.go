@@ -231,3 +231,36 @@ func TestRunCommandFormats(t *testing.T) {
 		t.Errorf("--format csv with --json: exit %d, %s", code, stderr)
 	}
 }
+
+// TestRunCommandTelescope: run --telescope charges each block after
+// another target its slew (at least settling and acquisition, the motion in
+// slew_s, the target slewed from in prev_target), and a bad telescope file
+// is refused naming the member, the value and what is accepted.
+func TestRunCommandTelescope(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runCSV)
+	telPath := writeFile(t, "tel.json", `{"mount":"equatorial","axis1":{"rate_deg_s":1,"accel_deg_s2":0.2},"axis2":{"rate_deg_s":1,"accel_deg_s2":0.2},"settle_s":5,"acquire_s":30}`)
+	out := decodeRun(t, args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--n-exposures", "3", "--telescope", telPath})...)
+	slews := 0
+	for _, n := range out.Nights {
+		for i, b := range n.Blocks {
+			if i == 0 || n.Blocks[i-1].Target == b.Target {
+				if b.SlewS != 0 || b.PrevTarget != "" {
+					t.Errorf("%s block %d (%s): slew %v from %q without a move", n.Date, i, b.Target, b.SlewS, b.PrevTarget)
+				}
+				continue
+			}
+			if b.PrevTarget != n.Blocks[i-1].Target || b.SlewS <= 0 || math.Abs(b.AcquireS-(b.SlewS+35)) > 1e-6 {
+				t.Errorf("%s block %d (%s): acquire %v, slew %v from %q; want slew + 35 s from %s", n.Date, i, b.Target, b.AcquireS, b.SlewS, b.PrevTarget, n.Blocks[i-1].Target)
+			}
+			slews++
+		}
+	}
+	if slews == 0 {
+		t.Fatal("no block was charged a slew")
+	}
+	bad := writeFile(t, "bad.json", `{"mount":"altaz","axis1":{"rate_deg_s":-1},"axis2":{"rate_deg_s":1}}`)
+	_, stderr, code := runCmd(t, args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--telescope", bad})...)
+	if code != 2 || !strings.Contains(stderr, "telescope.axis1.rate_deg_s -1") || !strings.Contains(stderr, "0 < rate ≤ 90 degrees per second") {
+		t.Errorf("exit %d, %q", code, stderr)
+	}
+}

@@ -71,6 +71,11 @@ type BlockDoc struct {
 	PhaseErr       float64  `json:"phase_err"`
 	Cycle          int64    `json:"cycle"`
 	AcquireS       float64  `json:"acquire_s"`
+	// SlewS is the slew's motion within AcquireS and PrevTarget the target
+	// slewed from, with a telescope (planner.Block.SlewS); both omitted
+	// without a slew.
+	SlewS          float64  `json:"slew_s,omitempty"`
+	PrevTarget     string   `json:"prev_target,omitempty"`
 	MoonSepDeg     float64  `json:"moon_sep_deg"`
 	MoonUp         bool     `json:"moon_up"`
 	ParallacticDeg float64  `json:"parallactic_deg"`
@@ -246,6 +251,9 @@ func NewBlockDoc(b planner.Block) BlockDoc {
 		Cycle: b.Cycle, AcquireS: b.AcquireS, MoonSepDeg: b.MoonSepDeg, MoonUp: b.MoonUp,
 		ParallacticDeg: b.Parallactic, HourAngleHours: b.HourAngle, SunAltStartDeg: b.SunAltStart,
 		Priority: b.Priority, Filler: b.Filler, Warnings: []string{},
+	}
+	if b.SlewS > 0 {
+		bd.SlewS, bd.PrevTarget = b.SlewS, b.PrevTarget
 	}
 	if b.SNROK {
 		snr, sky := b.SNR, b.SkyMag
