@@ -627,3 +627,38 @@ func TestListsCRUD(t *testing.T) {
 		t.Fatal(err)
 	}
 }
+
+// TestSiteTelescope: a site's telescope is stored and read back, removed
+// with nil, and a bad one is refused naming the field, value and accepted.
+func TestSiteTelescope(t *testing.T) {
+	ctx := context.Background()
+	w := newWorld(t)
+	s := w.s
+	tel := planner.Telescope{Mount: planner.MountAltAz, Axis1: planner.Axis{RateDegS: 3, AccelDegS2: 1},
+		Axis2: planner.Axis{RateDegS: 2, AccelDegS2: 1}, Dome: planner.Axis{RateDegS: 2, AccelDegS2: 0.5},
+		SettleS: 10, AcquireS: 60, WrapMinDeg: -270, WrapMaxDeg: 270}
+	in := siteInput("Scope Hill")
+	in.Telescope = &tel
+	r, err := s.CreateSite(ctx, w.editor, w.team.ID, in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := s.GetSite(ctx, w.viewer, r.ID)
+	if err != nil || got.Telescope == nil || *got.Telescope != tel {
+		t.Fatalf("telescope read back %+v, %v; want %+v", got.Telescope, err, tel)
+	}
+	in.Telescope = nil
+	up, err := s.UpdateSite(ctx, w.editor, r.ID, r.Version, in)
+	if err != nil || up.Telescope != nil {
+		t.Fatalf("after removing it: %+v, %v", up.Telescope, err)
+	}
+	bad := tel
+	bad.Mount = "fork"
+	in.Telescope = &bad
+	_, err = s.UpdateSite(ctx, w.editor, r.ID, up.Version, in)
+	wantCode(t, err, store.EINVALID)
+	v, _ := asStoreError(err).Err.(*store.ValidationError)
+	if v == nil || len(v.Fields) != 1 || v.Fields[0].Field != "telescope.mount" || v.Fields[0].Value != "fork" || !strings.Contains(v.Fields[0].Accepted, "altaz or equatorial") {
+		t.Fatalf("bad mount: %v", err)
+	}
+}

@@ -29,8 +29,11 @@ type SiteRecord struct {
 	// Horizon field is not stored: the site's mask (Horizon above) is
 	// the one that applies; PlanConstraints joins the two.
 	Constraints planner.Constraints
-	Notes       string
-	CreatedAt   time.Time
+	// Telescope is the site's telescope motion (nil: none; each visit is
+	// then charged the fixed acquisition time).
+	Telescope *planner.Telescope
+	Notes     string
+	CreatedAt time.Time
 	UpdatedAt   time.Time
 	Version     int64
 }
@@ -50,6 +53,7 @@ type SiteInput struct {
 	Zone        string
 	Horizon     []planner.HorizonPoint
 	Constraints planner.Constraints
+	Telescope   *planner.Telescope // nil: none
 	Notes       string
 }
 
@@ -82,6 +86,11 @@ func validateSite(v *ValidationError, in SiteInput) {
 	c := in.Constraints
 	c.Horizon = nil // the site's own mask applies
 	validateConstraints(v, "", c)
+	if in.Telescope != nil {
+		if err := in.Telescope.Validate(); err != nil {
+			addInputError(v, "", err)
+		}
+	}
 	validNotes(v, "notes", in.Notes, MaxNotes)
 }
 
@@ -105,14 +114,22 @@ func addInputError(v *ValidationError, prefix string, err error) {
 }
 
 const siteCols = `id, team_id, name, lat_deg, lon_east_deg, elev_m, pressure_hpa, temp_c, zone, horizon_json,
-	constraints_json, notes, created_at, updated_at, version`
+	constraints_json, notes, created_at, updated_at, version, telescope_json`
 
 func scanSite(sc interface{ Scan(...any) error }) (SiteRecord, error) {
 	var r SiteRecord
-	var hj, cj, c, u string
+	var hj, cj, c, u, tj string
 	if err := sc.Scan(&r.ID, &r.TeamID, &r.Name, &r.Site.LatDeg, &r.Site.LonEastDeg, &r.Site.ElevM, &r.Site.PressureHPa,
-		&r.Site.TempC, &r.Zone, &hj, &cj, &r.Notes, &c, &u, &r.Version); err != nil {
+		&r.Site.TempC, &r.Zone, &hj, &cj, &r.Notes, &c, &u, &r.Version, &tj); err != nil {
 		return SiteRecord{}, err
+	}
+	if tj != "" {
+		var j planner.TelescopeJSON
+		if err := json.Unmarshal([]byte(tj), &j); err != nil {
+			return SiteRecord{}, fmt.Errorf("site %d telescope: %w", r.ID, err)
+		}
+		tel := j.Telescope()
+		r.Telescope = &tel
 	}
 	if err := json.Unmarshal([]byte(hj), &r.Horizon); err != nil {
 		return SiteRecord{}, fmt.Errorf("site %d horizon: %w", r.ID, err)
@@ -152,6 +169,15 @@ func authorizedSite(t *txn, action Action, id int64) (SiteRecord, error) {
 		return SiteRecord{}, err
 	}
 	return r, nil
+}
+
+// telescopeJSON is the stored form of a site's telescope ('' for none).
+func telescopeJSON(tel *planner.Telescope) (string, error) {
+	if tel == nil {
+		return "", nil
+	}
+	b, err := json.Marshal(tel.JSON())
+	return string(b), err
 }
 
 func siteJSON(in SiteInput) (string, string, error) {
@@ -215,11 +241,15 @@ func createSite(t *txn, teamID int64, in SiteInput) (SiteRecord, error) {
 	if err != nil {
 		return SiteRecord{}, err
 	}
+	tj, err := telescopeJSON(in.Telescope)
+	if err != nil {
+		return SiteRecord{}, err
+	}
 	now := fmtTime(t.now)
 	res, err := t.exec(`INSERT INTO sites (team_id, name, lat_deg, lon_east_deg, elev_m, pressure_hpa, temp_c, zone,
-		horizon_json, constraints_json, notes, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
+		horizon_json, constraints_json, notes, created_at, updated_at, version, telescope_json) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?)`,
 		teamID, in.Name, in.Site.LatDeg, in.Site.LonEastDeg, in.Site.ElevM, in.Site.PressureHPa, in.Site.TempC, in.Zone,
-		hj, cj, in.Notes, now, now)
+		hj, cj, in.Notes, now, now, tj)
 	if err != nil {
 		return SiteRecord{}, fmt.Errorf("insert site: %w", err)
 	}
@@ -331,11 +361,15 @@ func (s *Store) UpdateSite(ctx context.Context, a Actor, id, version int64, in S
 	if err != nil {
 		return SiteRecord{}, wrap(op, err)
 	}
+	tj, err := telescopeJSON(in.Telescope)
+	if err != nil {
+		return SiteRecord{}, wrap(op, err)
+	}
 	if _, err := t.exec(`UPDATE sites SET name = ?, lat_deg = ?, lon_east_deg = ?, elev_m = ?, pressure_hpa = ?, temp_c = ?,
-		zone = ?, horizon_json = ?, constraints_json = ?, notes = ?, updated_at = ?, version = version + 1
+		zone = ?, horizon_json = ?, constraints_json = ?, notes = ?, telescope_json = ?, updated_at = ?, version = version + 1
 		WHERE id = ? AND version = ?`,
 		in.Name, in.Site.LatDeg, in.Site.LonEastDeg, in.Site.ElevM, in.Site.PressureHPa, in.Site.TempC, in.Zone,
-		hj, cj, in.Notes, fmtTime(t.now), id, version); err != nil {
+		hj, cj, in.Notes, tj, fmtTime(t.now), id, version); err != nil {
 		return SiteRecord{}, wrap(op, err)
 	}
 	after, err := getSite(t, id)
