@@ -193,3 +193,28 @@ func TestImportPreviewAndErrors(t *testing.T) {
 		}
 	})
 }
+
+// TestSiteFormTelescope: the site form takes a telescope as JSON, refuses
+// a bad one naming the member, the value and what is accepted, and shows a
+// stored one on the edit form.
+func TestSiteFormTelescope(t *testing.T) {
+	h := newHarness(t)
+	c := h.client("owner")
+	form := url.Values{"name": {"Scope"}, "lat": {"30"}, "lon": {"-110"}, "elev": {"2000"}, "zone": {"America/Phoenix"}, "twilight": {"nautical"},
+		"max_airmass": {"2"}, "horizon": {"0 10\n180 5\n"}}
+	form.Set("telescope", `{"mount":"fork","axis1":{"rate_deg_s":2},"axis2":{"rate_deg_s":2}}`)
+	resp, body := h.postBody(c, "/sites", form)
+	if resp.StatusCode != http.StatusUnprocessableEntity || !hasTestID(body, "err-telescope") || !strings.Contains(body, "altaz or equatorial") || !strings.Contains(body, "fork") {
+		t.Fatalf("bad mount: status %d, error shown %v", resp.StatusCode, hasTestID(body, "err-telescope"))
+	}
+	form.Set("telescope", `{"mount":"equatorial","axis1":{"rate_deg_s":1.5,"accel_deg_s2":0.5},"axis2":{"rate_deg_s":1,"accel_deg_s2":0.5},"settle_s":5,"acquire_s":40}`)
+	resp = h.post(c, "/sites", form)
+	if resp.StatusCode != http.StatusSeeOther {
+		t.Fatalf("good telescope: status %d", resp.StatusCode)
+	}
+	loc := resp.Header.Get("Location")
+	_, body = h.get(c, loc+"/edit")
+	if !strings.Contains(body, "&#34;mount&#34;: &#34;equatorial&#34;") && !strings.Contains(body, `"mount": "equatorial"`) {
+		t.Errorf("the edit form at %s does not show the stored telescope", loc+"/edit")
+	}
+}

@@ -347,7 +347,7 @@ func (n *night) planIt(errs page.Errs) error {
 		}
 		from, to = ws[0].Start, ws[0].End
 	}
-	n.req = planner.NightRequest{Site: n.site.Site, From: from, To: to, Constraints: c, Options: planner.Options{Fill: n.q.fill}}
+	n.req = planner.NightRequest{Site: n.site.Site, From: from, To: to, Constraints: c, Options: planner.Options{Fill: n.q.fill, Telescope: n.site.Telescope}}
 	for _, t := range n.targets {
 		n.req.Targets = append(n.req.Targets, t.Target)
 	}

@@ -33,7 +33,12 @@ const (
 // key describes every input of a night's plan.
 func (n *night) key() string {
 	var b strings.Builder
-	fmt.Fprintf(&b, "site %d v%d|%s|%v|%v|%+v|%+v|", n.site.ID, n.site.Version, n.q.date, n.req.From, n.req.To, n.req.Constraints, n.req.Options)
+	opt := n.req.Options
+	opt.Telescope = nil // a pointer: its value is written below, not its address
+	fmt.Fprintf(&b, "site %d v%d|%s|%v|%v|%+v|%+v|", n.site.ID, n.site.Version, n.q.date, n.req.From, n.req.To, n.req.Constraints, opt)
+	if t := n.req.Options.Telescope; t != nil {
+		fmt.Fprintf(&b, "telescope %+v|", *t)
+	}
 	for _, t := range n.targets {
 		fmt.Fprintf(&b, "%d v%d,", t.ID, t.Version)
 	}

@@ -105,7 +105,8 @@ func (in *runInputs) nightsOver(now time.Time) int {
 // the observations that fall in those nights count as observed (lost
 // blocks as failed exposures); later ones are left out.
 func (in *runInputs) request(past int) planner.RunRequest {
-	req := planner.RunRequest{Site: in.site.Site, Zone: in.loc, Nights: in.nights, Constraints: in.constraints(), Past: past, Bins: 10}
+	req := planner.RunRequest{Site: in.site.Site, Zone: in.loc, Nights: in.nights, Constraints: in.constraints(), Past: past, Bins: 10,
+		Options: planner.Options{Telescope: in.site.Telescope}}
 	names := map[int64]string{}
 	for _, t := range in.targets {
 		req.Targets = append(req.Targets, t.Target)

@@ -1,6 +1,7 @@
 package web
 
 import (
+	"encoding/json"
 	"fmt"
 	"net/http"
 	"strconv"
@@ -26,7 +27,7 @@ func parseSiteForm(r *http.Request) siteFormIn {
 	p.form = page.SiteForm{Name: f("name"), Lat: f("lat"), Lon: f("lon"), Elev: f("elev"), Zone: f("zone"), Pressure: f("pressure"),
 		Temp: f("temperature"), Notes: r.PostFormValue("notes"), SunAltMax: f("sun_alt_max"), MaxAirmass: f("max_airmass"),
 		MinAlt: f("min_alt"), MinMoonSep: f("min_moon_sep"), MaxMoonIllum: f("max_moon_illum"), HAMin: f("ha_min"), HAMax: f("ha_max"),
-		ZenithExcl: f("zenith_excl"), SunAvoid: f("sun_avoid"), Horizon: r.PostFormValue("horizon")}
+		ZenithExcl: f("zenith_excl"), SunAvoid: f("sun_avoid"), Horizon: r.PostFormValue("horizon"), Telescope: f("telescope")}
 	in := store.SiteInput{Name: p.form.Name, Zone: p.form.Zone, Notes: p.form.Notes}
 	p.req("lat", p.form.Lat, &in.Site.LatDeg)
 	p.req("lon", p.form.Lon, &in.Site.LonEastDeg)
@@ -48,6 +49,14 @@ func parseSiteForm(r *http.Request) siteFormIn {
 		p.errs["horizon"] = strings.ReplaceAll(err.Error(), "\n", "; ")
 	}
 	in.Horizon = h
+	if p.form.Telescope != "" {
+		tel, err := planner.ParseTelescope([]byte(p.form.Telescope))
+		if err != nil {
+			p.errs["telescope"] = err.Error()
+		} else {
+			in.Telescope = &tel
+		}
+	}
 	p.in = in
 	p.form.Twilight = twilightOptions(string(c.Twilight))
 	p.form.Preview = horizonChart(h, c.MinAltDeg)
@@ -85,6 +94,9 @@ func (p *siteFormIn) storeErrs(err error) (page.Errs, int, bool) {
 	for k, v := range errs {
 		if strings.HasPrefix(k, "horizon") {
 			k = "horizon"
+		}
+		if strings.HasPrefix(k, "telescope") {
+			k = "telescope"
 		}
 		out[k] = v
 	}
@@ -125,7 +137,19 @@ func formFromSite(s store.SiteRecord) page.SiteForm {
 		Twilight: twilightOptions(string(c.Twilight)), SunAltMax: optNum(c.SunAltMaxDeg), MaxAirmass: optNum(c.MaxAirmass),
 		MinAlt: optNum(c.MinAltDeg), MinMoonSep: optNum(c.MinMoonSepDeg), MaxMoonIllum: optNum(c.MaxMoonIllum), HAMin: optNum(c.HAMinHours),
 		HAMax: optNum(c.HAMaxHours), ZenithExcl: optNum(c.ZenithExclDeg), SunAvoid: optNum(c.SunAvoidDeg), Horizon: hb.String(),
-		Preview: horizonChart(s.Horizon, c.MinAltDeg), Errs: page.Errs{}}
+		Preview: horizonChart(s.Horizon, c.MinAltDeg), Telescope: telescopeText(s.Telescope), Errs: page.Errs{}}
+}
+
+// telescopeText is a site's telescope as the form's JSON ("" for none).
+func telescopeText(tel *planner.Telescope) string {
+	if tel == nil {
+		return ""
+	}
+	b, err := json.MarshalIndent(tel.JSON(), "", "  ")
+	if err != nil {
+		return ""
+	}
+	return string(b)
 }
 
 // siteSummary describes a site's constraints in one line.
