@@ -34,8 +34,8 @@ type SiteRecord struct {
 	Telescope *planner.Telescope
 	Notes     string
 	CreatedAt time.Time
-	UpdatedAt   time.Time
-	Version     int64
+	UpdatedAt time.Time
+	Version   int64
 }
 
 // PlanConstraints returns the site's default constraints with its horizon
@@ -171,7 +171,7 @@ func authorizedSite(t *txn, action Action, id int64) (SiteRecord, error) {
 	return r, nil
 }
 
-// telescopeJSON is the stored form of a site's telescope ('' for none).
+// telescopeJSON is the stored form of a site's telescope (” for none).
 func telescopeJSON(tel *planner.Telescope) (string, error) {
 	if tel == nil {
 		return "", nil
