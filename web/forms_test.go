@@ -2,11 +2,16 @@ package web
 
 import (
 	"bytes"
+	"context"
 	"mime/multipart"
 	"net/http"
 	"net/url"
+	"regexp"
 	"strings"
 	"testing"
+
+	"phasecast/planner"
+	"phasecast/store"
 )
 
 // validTargetForm is a complete, acceptable target form.
@@ -216,5 +221,31 @@ func TestSiteFormTelescope(t *testing.T) {
 	_, body = h.get(c, loc+"/edit")
 	if !strings.Contains(body, "&#34;mount&#34;: &#34;equatorial&#34;") && !strings.Contains(body, `"mount": "equatorial"`) {
 		t.Errorf("the edit form at %s does not show the stored telescope", loc+"/edit")
+	}
+}
+
+// TestNightPageSlews: with a telescope on the site, the night page shows
+// each block's slew and the target it comes from.
+func TestNightPageSlews(t *testing.T) {
+	h := newHarness(t)
+	f := h.addFixtures(t, 6)
+	ctx := context.Background()
+	owner := h.actor("owner")
+	st, err := h.store.GetSite(ctx, owner, f.siteID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	in := store.SiteInput{Name: st.Name, Site: st.Site, Zone: st.Zone, Horizon: st.Horizon, Constraints: st.Constraints, Notes: st.Notes,
+		Telescope: &planner.Telescope{Mount: planner.MountAltAz, Axis1: planner.Axis{RateDegS: 1, AccelDegS2: 0.3},
+			Axis2: planner.Axis{RateDegS: 1, AccelDegS2: 0.3}, SettleS: 5, AcquireS: 30}}
+	if _, err := h.store.UpdateSite(ctx, owner, st.ID, st.Version, in); err != nil {
+		t.Fatal(err)
+	}
+	resp, body := h.get(h.client("viewer"), "/night?site="+i64s(f.siteID)+"&list="+i64s(f.listID)+"&date=2026-03-14")
+	if resp.StatusCode != http.StatusOK {
+		t.Fatalf("night page: %d", resp.StatusCode)
+	}
+	if !regexp.MustCompile(`\(slew \d+ s from [^)]+\)`).MatchString(body) {
+		t.Error("no block shows its slew and previous target")
 	}
 }

@@ -134,6 +134,9 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 		Parallatic: fmt.Sprintf("%.0f°", b.Parallactic), HourAngle: fmt.Sprintf("%+.2f h", b.HourAngle),
 		LST:    planner.FormatHours(planner.LocalSiderealHours(n.site.Site, b.Start)),
 		SunAlt: fmt.Sprintf("%.1f°", b.SunAltStart), Acquire: num(b.AcquireS) + " s", Cycle: strconv.FormatInt(b.Cycle, 10)}
+	if b.SlewS > 0 {
+		r.Acquire += fmt.Sprintf(" (slew %.0f s from %s)", b.SlewS, b.PrevTarget)
+	}
 	if !b.MoonUp {
 		r.MoonSep += " (down)"
 	}
