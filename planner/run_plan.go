@@ -348,7 +348,11 @@ func (r *runState) computeReach(ctx context.Context, pc *progressCounter) error 
 			}
 			pad[ti] = math.Max(pad[ti], e+g.OverheadS)
 		}
-		pad[ti] += ts.t.AcquireS + 2*guardS + 1
+		acq := ts.t.AcquireS
+		if tel := r.req.Options.Telescope; tel != nil {
+			acq = math.Max(acq, tel.maxSlewS()) // the most a visit may be charged
+		}
+		pad[ti] += acq + 2*guardS + 1
 	}
 	r.reach = make([][][]goalNightReach, K)
 	r.sized = make([]map[occKey]ExposureSizing, K)

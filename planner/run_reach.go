@@ -96,7 +96,7 @@ func reachNight(en *engine, targets []*targetState, clocks []phaseClock, pad []f
 					}
 					g.ExposureS = sz.ExposureS
 				}
-				r.capacity = max(r.capacity, en.capacity(s, g, ts.t.AcquireS))
+				r.capacity = max(r.capacity, en.capacity(s, g, leastAcquire(en.opt.Telescope, ts.t)))
 				lo, hi := en.airmassRangeLean(ts, s.lo, s.hi)
 				r.xlo, r.xhi = math.Min(r.xlo, lo), math.Max(r.xhi, hi)
 			}
@@ -181,4 +181,15 @@ func buildReach(targets []*targetState, goals [][]runGoal, reach [][][]goalNight
 		out[ti] = tr
 	}
 	return out
+}
+
+// leastAcquire is the least acquisition a visit of t can be charged: with a
+// telescope its settling and acquisition (a slew adds to them), else the
+// target's fixed AcquireS. Reach and capacity use it, so that a telescope
+// never makes a goal look out of reach that a night's plan could serve.
+func leastAcquire(tel *Telescope, t Target) float64 {
+	if tel != nil {
+		return tel.minSlewS()
+	}
+	return t.AcquireS
 }
