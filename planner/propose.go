@@ -24,8 +24,13 @@ package planner
 //     1 − p in place), not by sampling. The joint probability that every
 //     goal reaches N is the same dynamic programming on the vector of the
 //     goals' capped counts, computed while at most MaxJointStates vectors
-//     have non-zero probability (otherwise reported as not computed).
+//     have non-zero probability (otherwise reported as not computed); the
+//     goals that all the candidate nights together cannot bring to N are
+//     left out of it.
 //  3. Choosing the nights, greedily, one at a time, best first:
+//     - the goals that all the candidate nights together cannot bring to N
+//       are left out of the choice (they are reported, with what the range
+//       offers them);
 //     - while some goal still lacks exposures on clear nights, the night
 //       adding the most Σ_g w_g·(min(C_g + c[k][g], N_g) − C_g)/N_g, C_g the
 //       exposures of the nights already chosen and w_g = PriorityWeight of
@@ -124,8 +129,9 @@ type ProposalPick struct {
 	Expected         []float64
 	ReachProb        []float64
 	ExpectedCoverage float64
-	// AllReachProb is the probability that every goal reaches its N; −1
-	// when the joint distribution grew past MaxJointStates.
+	// AllReachProb is the probability that every goal the range can meet
+	// reaches its N; −1 when the joint distribution grew past
+	// MaxJointStates.
 	AllReachProb float64
 }
 
@@ -321,6 +327,9 @@ func choose(out *Proposal, c [][]int, flat []runGoal, conf float64) {
 			}
 			gain, total := 0.0, 0
 			for g, n := range c[k] {
+				if unmet[g] {
+					continue
+				}
 				total += n
 				N := flat[g].need()
 				if !margin {
@@ -368,7 +377,7 @@ func choose(out *Proposal, c [][]int, flat []runGoal, conf float64) {
 		if joint != nil {
 			joint = addJointNight(joint, c[best], flat, p)
 			if joint != nil {
-				pk.AllReachProb = allReach(joint, flat)
+				pk.AllReachProb = allReach(joint, flat, unmet)
 			}
 		}
 		out.Picks = append(out.Picks, pk)
@@ -448,13 +457,14 @@ func addJointNight(joint map[string]jointState, n []int, flat []runGoal, p float
 	return out
 }
 
-// allReach is the probability that every goal's capped count is its N.
-func allReach(joint map[string]jointState, flat []runGoal) float64 {
+// allReach is the probability that every goal's capped count is its N,
+// the goals in skip (those the range cannot meet) left out.
+func allReach(joint map[string]jointState, flat []runGoal, skip map[int]bool) float64 {
 	total := 0.0
 	for _, st := range joint {
 		ok := true
 		for g, x := range st.counts {
-			ok = ok && x == flat[g].need()
+			ok = ok && (skip[g] || x == flat[g].need())
 		}
 		if ok {
 			total += st.p

@@ -95,7 +95,7 @@ func TestProposalJointMatchesEnumeration(t *testing.T) {
 				want += pr
 			}
 		}
-		if got := allReach(joint, flat); math.Abs(got-want) > 1e-12 {
+		if got := allReach(joint, flat, nil); math.Abs(got-want) > 1e-12 {
 			t.Fatalf("trial %d: joint P(all reach) = %.15f, enumeration %.15f", trial, got, want)
 		}
 	}
