@@ -235,6 +235,12 @@ func authzTable() []authzRow {
 		{method: "GET", pattern: "/windows.json", path: windowsQuery("/windows.json"), want: windowsWant},
 		{method: "GET", pattern: "/windows.ics", path: windowsQuery("/windows.ics"), want: windowsWant},
 
+		// Proposal sizing: computed for the caller's own team, like windows.
+		{method: "GET", pattern: "/propose", path: p("/propose"), want: teamPage},
+		{method: "GET", pattern: "/propose.json", path: func(w authzWorld) string {
+			return fmt.Sprintf("/propose.json?site=%d&list=%d&t=%d&from=2026-03-14&to=2026-03-15&n=2", w.site, w.list, w.target)
+		}, want: windowsWant},
+
 		// Sites.
 		{method: "GET", pattern: "/sites", path: p("/sites"), want: teamPage},
 		{method: "GET", pattern: "/sites/new", path: p("/sites/new"), want: want{ok, ok, ok, ok, see, see, see, see}},

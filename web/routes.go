@@ -134,6 +134,10 @@ func (s *Server) router() chi.Router {
 		g.get("/windows.json", s.windowsExport("json"))
 		g.get("/windows.ics", s.windowsExport("ics"))
 
+		// Proposal sizing.
+		g.get("/propose", s.proposeShow)
+		g.get("/propose.json", s.proposeExport)
+
 		// Sites.
 		g.get("/sites", s.sitesList)
 		g.get("/sites/new", s.siteNew)
