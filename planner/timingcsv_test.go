@@ -35,7 +35,7 @@ func TestParseTimingsCSV(t *testing.T) {
 func TestParseTimingsCSVErrors(t *testing.T) {
 	for _, tc := range []struct {
 		name, in string
-		want []string // every cell message, in order
+		want     []string // every cell message, in order
 	}{
 		{"Empty", "", []string{"line 1: the file is empty"}},
 		{"NoRows", "time,std,err_s\n", []string{"line 2: the file has a header but no timings"}},
