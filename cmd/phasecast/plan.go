@@ -40,7 +40,14 @@ conjunction of the companion); each goal takes as many exposures as fit in its
 window. --twilight takes civil, nautical, astronomical, or a Sun altitude in
 degrees (e.g. -15). The horizon file (--horizon) has one "azimuth altitude" pair
 of degrees per line, azimuth from north through east; the mask is interpolated
-linearly between points, wrapping through north.`
+linearly between points, wrapping through north.
+
+Replanning the rest of a night: --start TIME (RFC 3339) plans only from TIME
+on (no block or acquisition starts before it), and --observed LOG.csv (the run
+command's log: target,start_utc|mid_utc,exposure_s,n_exposures,overhead_s,status)
+gives the exposures already taken tonight: they stay as they were, and the goals
+they served are not planned again (a goal wanting N with k done wants N − k; with
+--n-exposures 0, one exposure serves it).`
 
 func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("plan", planSynopsis)
@@ -53,9 +60,14 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = as many as fit)")
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
+	start := fl.text("start", "TIME", "", "replan the rest of the night from TIME (RFC 3339): nothing starts before it")
+	observed := fl.text("observed", "LOG.csv", "", "with --start: exposures already taken tonight (the run command's log)")
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
+	}
+	if observed.set && !start.set {
+		return usageErrorf("--observed goes with --start TIME: the instant the night is planned again from")
 	}
 	site, err := sf.site()
 	if err != nil {
@@ -101,14 +113,16 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 		}
 	}
 	from, to := planner.NightWindow(y, m, d, loc)
-	p, err := planner.PlanNight(planner.NightRequest{
-		Site: site, From: from, To: to, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *fill},
-	})
+	req := planner.NightRequest{Site: site, From: from, To: to, Targets: list, Constraints: c,
+		Options: planner.Options{StepS: stepS, Fill: *fill}}
+	ev := ephem.Night(site, y, m, d, loc)
+	if start.set {
+		return replanRest(stdout, req, start, observed, ev, loc, y, m, d, acq, *asJSON)
+	}
+	p, err := planner.PlanNight(req)
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
 	}
-	ev := ephem.Night(site, y, m, d, loc)
 	out := planOutput(p, ev, acq)
 	if err := checkPlanFinite(out); err != nil {
 		return err
@@ -117,6 +131,80 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 		return writeJSON(stdout, out)
 	}
 	return printPlan(stdout, p, ev, loc, y, m, d, acq)
+}
+
+// replanRest plans the rest of the night from --start, keeping the
+// exposures of --observed and not repeating the goals they served.
+func replanRest(stdout io.Writer, req planner.NightRequest, start, observed *textValue, ev ephem.NightEvents, loc *time.Location,
+	y int, m time.Month, d int, acq float64, asJSON bool) error {
+	at, err := ephem.ParseTime(start.value)
+	if err != nil {
+		return fromInputError(err, "not a time", map[string]*textValue{"time": start})
+	}
+	if at.Before(req.From) || !at.Before(req.To) {
+		return fieldError(start, "outside the night", fmt.Sprintf("an instant from %s to %s (local noon to local noon of --date)",
+			req.From.UTC().Format(time.RFC3339), req.To.UTC().Format(time.RFC3339)))
+	}
+	var done []planner.Exposure
+	if observed.set {
+		fh, err := os.Open(observed.value)
+		if err != nil {
+			return fmt.Errorf("--observed %s: %w", shown(observed.value), err)
+		}
+		defer fh.Close()
+		if done, err = planner.ParseObservedCSV(fh); err != nil {
+			var te *planner.TableError
+			if errors.As(err, &te) {
+				return usageErrorf("--observed %s: %s", shown(observed.value), te.Error())
+			}
+			return fmt.Errorf("--observed %s: %w", shown(observed.value), err)
+		}
+		for _, e := range done {
+			if e.Mid.Before(req.From) || !e.Mid.Before(at) {
+				return usageErrorf("--observed %s line %d: mid-time %s is not tonight before --start; accepted: exposures from %s to %s",
+					shown(observed.value), e.Line, e.Mid.UTC().Format(time.RFC3339), req.From.UTC().Format(time.RFC3339), at.UTC().Format(time.RFC3339))
+			}
+		}
+	}
+	rp, err := planner.ReplanNight(req, at, done)
+	if err != nil {
+		return fromInputError(err, "not accepted", nil)
+	}
+	out := planner.NewReplanDoc(rp, ev, acq)
+	if err := checkPlanFinite(out); err != nil {
+		return err
+	}
+	if asJSON {
+		return writeJSON(stdout, out)
+	}
+	var b strings.Builder
+	fmt.Fprintf(&b, "Replanned from %s UTC (%s local): nothing new starts before it.\n", at.UTC().Format("2006-01-02 15:04:05"), at.In(loc).Format("15:04:05"))
+	if len(rp.Done) > 0 {
+		fmt.Fprintf(&b, "Kept: %d exposure(s) already taken tonight.\n", len(rp.Done))
+		tb := newTable(&b)
+		tb.row("  Target", "Goal", "Done", "Wanted", "Still wanted")
+		for _, gs := range rp.Served {
+			if gs.Done == 0 {
+				continue
+			}
+			wanted, left := fmt.Sprint(gs.Wanted), fmt.Sprint(gs.Remaining)
+			if gs.Wanted == 0 {
+				wanted = "as many as fit"
+			}
+			if gs.Remaining == 0 {
+				left = "0 (served: not planned again)"
+			}
+			tb.row("  "+gs.Target, fmt.Sprintf("%.3f", gs.Goal.Center), fmt.Sprint(gs.Done), wanted, left)
+		}
+		if err := tb.flush(); err != nil {
+			return err
+		}
+	}
+	b.WriteString("\n")
+	if _, err := io.WriteString(stdout, b.String()); err != nil {
+		return err
+	}
+	return printPlan(stdout, rp.Plan, ev, loc, y, m, d, acq)
 }
 
 // constraintFlags are the observing-limit flags shared by plan, run and
