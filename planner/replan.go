@@ -24,10 +24,13 @@ type GoalServed struct {
 // what is left, the exposures already taken (kept as they were) and what
 // they served.
 type Replan struct {
-	Start  time.Time // UTC; no new block starts before it
-	Plan   *Plan
-	Done   []Exposure
-	Served []GoalServed
+	Start time.Time // UTC; no new block starts before it
+	Plan  *Plan
+	// Targets are the targets planned (with their remaining goals):
+	// Plan's blocks index them (Block.TargetIndex).
+	Targets []Target
+	Done    []Exposure
+	Served  []GoalServed
 }
 
 // ReplanNight plans the rest of req's night from start: nothing starts
@@ -96,6 +99,6 @@ func ReplanNight(req NightRequest, start time.Time, done []Exposure) (*Replan, e
 	if err != nil {
 		return nil, err
 	}
-	out.Plan = p
+	out.Plan, out.Targets = p, rest.Targets
 	return out, nil
 }

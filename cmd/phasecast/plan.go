@@ -62,9 +62,17 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
 	start := fl.text("start", "TIME", "", "replan the rest of the night from TIME (RFC 3339): nothing starts before it")
 	observed := fl.text("observed", "LOG.csv", "", "with --start: exposures already taken tonight (the run command's log)")
+	sheet := fl.text("sheet", "csv|json", "", "print the telescope sheet of the blocks instead (columns in docs/sheet.md)")
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
+	}
+	sheetFmt := strings.ToLower(strings.TrimSpace(sheet.value))
+	if sheet.set && sheetFmt != "csv" && sheetFmt != "json" {
+		return fieldError(sheet, "not a sheet format", "csv or json")
+	}
+	if sheet.set && *asJSON {
+		return usageErrorf("--sheet %s and --json: give one output", shown(sheet.value))
 	}
 	if observed.set && !start.set {
 		return usageErrorf("--observed goes with --start TIME: the instant the night is planned again from")
@@ -117,11 +125,14 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 		Options: planner.Options{StepS: stepS, Fill: *fill}}
 	ev := ephem.Night(site, y, m, d, loc)
 	if start.set {
-		return replanRest(stdout, req, start, observed, ev, loc, y, m, d, acq, *asJSON)
+		return replanRest(stdout, req, start, observed, ev, loc, y, m, d, acq, *asJSON, sheetFmt)
 	}
 	p, err := planner.PlanNight(req)
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
+	}
+	if sheet.set {
+		return writeSheet(stdout, site, list, p.Blocks, sheetFmt)
 	}
 	out := planOutput(p, ev, acq)
 	if err := checkPlanFinite(out); err != nil {
@@ -133,10 +144,24 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	return printPlan(stdout, p, ev, loc, y, m, d, acq)
 }
 
+// writeSheet prints the telescope sheet of blocks (planned from targets)
+// as CSV or JSON.
+func writeSheet(w io.Writer, site ephem.Site, targets []planner.Target, blocks []planner.Block, format string) error {
+	rows, err := planner.TelescopeSheet(site, targets, blocks)
+	if err != nil {
+		return fromInputError(err, "not accepted", nil)
+	}
+	doc := planner.NewSheetDoc(rows)
+	if format == "json" {
+		return writeJSON(w, doc)
+	}
+	return planner.WriteSheetCSV(w, doc)
+}
+
 // replanRest plans the rest of the night from --start, keeping the
 // exposures of --observed and not repeating the goals they served.
 func replanRest(stdout io.Writer, req planner.NightRequest, start, observed *textValue, ev ephem.NightEvents, loc *time.Location,
-	y int, m time.Month, d int, acq float64, asJSON bool) error {
+	y int, m time.Month, d int, acq float64, asJSON bool, sheetFmt string) error {
 	at, err := ephem.ParseTime(start.value)
 	if err != nil {
 		return fromInputError(err, "not a time", map[string]*textValue{"time": start})
@@ -169,6 +194,9 @@ func replanRest(stdout io.Writer, req planner.NightRequest, start, observed *tex
 	rp, err := planner.ReplanNight(req, at, done)
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
+	}
+	if sheetFmt != "" {
+		return writeSheet(stdout, req.Site, rp.Targets, rp.Plan.Blocks, sheetFmt)
 	}
 	out := planner.NewReplanDoc(rp, ev, acq)
 	if err := checkPlanFinite(out); err != nil {

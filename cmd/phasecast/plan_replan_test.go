@@ -96,3 +96,36 @@ func TestPlanStartBadInput(t *testing.T) {
 		})
 	}
 }
+
+// TestPlanSheet: --sheet csv has one line per block of the plan under the
+// documented header, --sheet json the same rows with three labelled
+// points, and a bad format is refused.
+func TestPlanSheet(t *testing.T) {
+	plan := runJSON(t, replanArgs...)
+	blocks := plan["blocks"].([]any)
+	stdout, stderr, code := runCmd(t, append(append([]string{}, replanArgs...), "--sheet", "csv")...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	lines := strings.Split(strings.TrimSpace(stdout), "\n")
+	if len(lines) != len(blocks)+1 || !strings.HasPrefix(lines[0], "target,goal_phase,cycle,") {
+		t.Fatalf("%d CSV lines for %d blocks:\n%s", len(lines), len(blocks), stdout)
+	}
+	stdout, _, code = runCmd(t, append(append([]string{}, replanArgs...), "--sheet", "json")...)
+	var doc struct {
+		Rows []struct {
+			Points []struct {
+				Label string `json:"label"`
+			} `json:"points"`
+		} `json:"rows"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &doc); code != 0 || err != nil || len(doc.Rows) != len(blocks) {
+		t.Fatalf("sheet json: exit %d, %v, %d rows", code, err, len(doc.Rows))
+	}
+	if p := doc.Rows[0].Points; len(p) != 3 || p[0].Label != "start" || p[1].Label != "mid" || p[2].Label != "end" {
+		t.Errorf("points %+v", p)
+	}
+	if _, stderr, code := runCmd(t, append(append([]string{}, replanArgs...), "--sheet", "pdf")...); code != 2 || !strings.Contains(stderr, "--sheet pdf: not a sheet format; accepted: csv or json") {
+		t.Errorf("bad format: exit %d %q", code, stderr)
+	}
+}
