@@ -17,7 +17,14 @@ var proposeSite = ephem.Site{LatDeg: -27.85, LonEastDeg: -69.12, ElevM: 2650}
 
 func proposeTargets(tb testing.TB, n int) []planner.Target {
 	tb.Helper()
-	fh, err := os.Open("testdata/run_targets.csv")
+	return targetsFile(tb, "testdata/run_targets.csv", n)
+}
+
+// targetsFile reads a plan-command targets file of testdata, every target
+// acquiring in 120 s and every goal wanting n exposures.
+func targetsFile(tb testing.TB, path string, n int) []planner.Target {
+	tb.Helper()
+	fh, err := os.Open(path)
 	if err != nil {
 		tb.Fatal(err)
 	}

@@ -3,7 +3,6 @@ package planner_test
 import (
 	"errors"
 	"fmt"
-	"os"
 	"testing"
 	"time"
 
@@ -15,21 +14,7 @@ import (
 // Cerro Quilla site, 2026-12-01) with every goal wanting n exposures.
 func replanNight(tb testing.TB, n int) planner.NightRequest {
 	tb.Helper()
-	fh, err := os.Open("testdata/night_targets.csv")
-	if err != nil {
-		tb.Fatal(err)
-	}
-	defer fh.Close()
-	list, err := planner.ParseTargetsCSV(fh)
-	if err != nil {
-		tb.Fatal(err)
-	}
-	for i := range list {
-		list[i].AcquireS = 120
-		for k := range list[i].Goals {
-			list[i].Goals[k].NExposures = n
-		}
-	}
+	list := targetsFile(tb, "testdata/night_targets.csv", n)
 	loc := time.FixedZone("UTC-3", -3*3600)
 	from, to := planner.NightWindow(2026, 12, 1, loc)
 	return planner.NightRequest{Site: proposeSite, From: from, To: to, Targets: list, Constraints: planner.DefaultConstraints()}

@@ -126,17 +126,8 @@ func TestFitBadInput(t *testing.T) {
 // without help; with the cycles given by hand in a cycle column the fit
 // takes them and reports them. A bad cycle is refused on its line.
 func TestFitHandCycle(t *testing.T) {
-	dir := t.TempDir()
-	write := func(name, body string) string {
-		t.Helper()
-		p := filepath.Join(dir, name)
-		if err := os.WriteFile(p, []byte(body), 0o600); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
 	loose := []string{"--t0-err", "0.001", "--period-err", "1e-4"}
-	file := write("k.csv", "time,std,err_s,cycle\n2460500.4322443,BJD_TDB,60,0\n2460500.4934789,BJD_TDB,60,1\n2461175.4820787,BJD_TDB,3.2,11024\n")
+	file := writeFile(t, "k.csv", "time,std,err_s,cycle\n2460500.4322443,BJD_TDB,60,0\n2460500.4934789,BJD_TDB,60,1\n2461175.4820787,BJD_TDB,3.2,11024\n")
 	m := runJSON(t, fitArgs(file, loose...)...)
 	tms := m["timings"].([]any)
 	shift := int64(num(t, m, "cycle_shift"))
@@ -146,6 +137,6 @@ func TestFitHandCycle(t *testing.T) {
 			t.Errorf("timing %d: cycle %d (+ shift %d), want %d as given", i, c, shift, want)
 		}
 	}
-	checkBad(t, fitArgs(write("l.csv", "time,std,err_s,cycle\n2460500.4322443,BJD_TDB,60,zero\n2460500.4934789,BJD_TDB,60,1\n"), loose...),
+	checkBad(t, fitArgs(writeFile(t, "l.csv", "time,std,err_s,cycle\n2460500.4322443,BJD_TDB,60,zero\n2460500.4934789,BJD_TDB,60,1\n"), loose...),
 		"line 2: cycle zero: not accepted; accepted: a whole cycle number")
 }
