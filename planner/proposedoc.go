@@ -79,7 +79,7 @@ type YearHoursDoc struct {
 // are rounded to 0.001 h.
 func NewProposalDoc(p *Proposal, hoursFrom RunNight, hours []YearHours, zone string, acquireS float64) ProposalDoc {
 	req := p.Request
-	rc, _ := req.Constraints.Resolved()
+	rc, _ := req.Constraints.Resolved() // dropped: Propose refused the constraints if they did not resolve
 	d := ProposalDoc{From: req.Nights[0].String(), To: req.Nights[len(req.Nights)-1].String(), Nights: len(req.Nights), Zone: zone,
 		Loss: req.Loss, Confidence: req.Confidence, Model: ProposalModel, ClearNights: p.ClearNights, WeatherNights: p.WeatherNights,
 		WeatherMet: p.WeatherMet, ClearDates: nightStrings(p.Dates(p.ClearNights)), WeatherDates: nightStrings(p.Dates(p.WeatherNights)),
@@ -130,7 +130,7 @@ func YearOf(n RunNight) []RunNight {
 	if time.Date(n.Year, 12, 31, 12, 0, 0, 0, time.UTC).YearDay() == 366 {
 		days = 366
 	}
-	out, _ := NightsFrom(n.Year, time.January, 1, days)
+	out, _ := NightsFrom(n.Year, time.January, 1, days) // dropped: 365 or 366 nights from 1 January are always accepted
 	return out
 }
 

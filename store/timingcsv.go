@@ -71,7 +71,7 @@ func timingLines(err error, rows []planner.TimingRow) error {
 			te.Cells = append(te.Cells, planner.CellError{Line: 0, Column: f.Field, Value: f.Value, Reason: "accepted: " + f.Accepted})
 			continue
 		}
-		i, _ := strconv.Atoi(m[1])
+		i, _ := strconv.Atoi(m[1]) // dropped: the pattern matched digits only
 		line := 0
 		if i < len(rows) {
 			line = rows[i].Line

@@ -24,6 +24,15 @@ func (s *Server) apiTimingsUpload(w http.ResponseWriter, r *http.Request, u *use
 		s.apiError(w, r, err)
 		return
 	}
+	body, err := io.ReadAll(http.MaxBytesReader(w, r.Body, maxTimingsBody))
+	if tl := bodyLimitError(err, "the timings file"); tl != nil {
+		s.apiError(w, r, tl)
+		return
+	}
+	if err != nil {
+		s.apiError(w, r, fmt.Errorf("%w: read body: %v", errMalformed, err))
+		return
+	}
 	if ct := r.Header.Get("Content-Type"); !strings.HasPrefix(ct, "text/csv") {
 		s.apiError(w, r, errInvalid(fmt.Sprintf("Content-Type %q is not accepted; accepted: text/csv (the timings file)", ct)))
 		return
@@ -31,11 +40,6 @@ func (s *Server) apiTimingsUpload(w http.ResponseWriter, r *http.Request, u *use
 	dry := r.URL.Query().Get("dry_run")
 	if dry != "" && dry != "0" && dry != "1" {
 		s.apiError(w, r, errInvalid(fmt.Sprintf("dry_run %q is not accepted; accepted: 1 (validate only), 0 or empty", dry)))
-		return
-	}
-	body, err := io.ReadAll(http.MaxBytesReader(w, r.Body, maxTimingsBody))
-	if err != nil {
-		s.apiError(w, r, fmt.Errorf("%w: read body: %v", errMalformed, err))
 		return
 	}
 	got, err := s.store.ImportTimingsCSV(r.Context(), u.actor, id, strings.NewReader(string(body)), dry == "1")

@@ -146,7 +146,7 @@ func parseFraction(s string, def, lo, hi float64, field, accepted string, errs p
 
 // encode writes the request as a query string.
 func (pr *proposal) encode() string {
-	q, _ := url.ParseQuery(pr.req.nightQuery.encode())
+	q := pr.req.nightQuery.values()
 	q.Del("date")
 	for k, v := range map[string]string{"semester": pr.req.semester, "from": pr.req.from, "to": pr.req.to, "n": pr.req.n,
 		"loss": pr.req.loss, "confidence": pr.req.confidence} {
