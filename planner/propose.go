@@ -543,3 +543,14 @@ func mustAlt(ts *targetState, u float64) float64 {
 	alt, _ := ts.track.AltAzUnix(u)
 	return alt
 }
+
+// YearOf returns the nights of the calendar year in which night n falls
+// (1 January to 31 December, 365 or 366 nights): the year chart's nights.
+func YearOf(n RunNight) []RunNight {
+	days := 365
+	if time.Date(n.Year, 12, 31, 12, 0, 0, 0, time.UTC).YearDay() == 366 {
+		days = 366
+	}
+	out, _ := NightsFrom(n.Year, time.January, 1, days) // dropped: 365 or 366 nights from 1 January are always accepted
+	return out
+}

@@ -8,6 +8,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 // TestTelescopeSheet builds the sheet of the README's night: one row per
@@ -48,16 +49,16 @@ func TestTelescopeSheet(t *testing.T) {
 			t.Errorf("row %d: mid parallactic %.4f, block %.4f", i, r.Points[1].ParallacticDeg, b.Parallactic)
 		}
 	}
-	doc := planner.NewSheetDoc(rows)
-	var buf bytes.Buffer
-	if err := planner.WriteSheetCSV(&buf, doc); err != nil {
-		t.Fatal(err)
-	}
-	recs, err := csv.NewReader(&buf).ReadAll()
+	doc := export.NewSheetDoc(rows)
+	b, err := export.SheetCSV(doc)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(recs) != len(rows)+1 || len(recs[0]) != len(planner.SheetCSVHeader) {
+	recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(recs) != len(rows)+1 || len(recs[0]) != len(export.SheetCSVHeader) {
 		t.Fatalf("%d CSV lines of %d fields", len(recs), len(recs[0]))
 	}
 	withMag := 0

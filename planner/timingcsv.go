@@ -48,7 +48,8 @@ type TimingRow struct {
 //   - form: JD (default), MJD (JD − 2400000.5) or RJD (JD − 2400000);
 //   - event: empty (the reference event of the target's T0) or an event
 //     name (EventNames);
-//   - observer, note: free text.
+//   - observer, note: free text, as written (a reader that wrote them
+//     through export.SafeCSVCell undoes it with export.UnquoteCSVCell).
 //
 // Conversion to BJD_TDB needs the target's position and is the store's
 // (store.ImportTimingsCSV). On any bad cell the error is a *TableError
@@ -148,7 +149,7 @@ func parseTimingRow(rec []string, col map[string]int, line int, te *TableError) 
 	}
 	bad := func(name, value, reason string) { te.add(line, col[name]+1, name, value, reason) }
 	row := TimingRow{Line: line, Text: get("time"), Std: ephem.TimeStandard(strings.ToUpper(get("std"))), Form: ephem.FormJD,
-		Event: get("event"), Observer: UnquoteCSVCell(get("observer")), Note: UnquoteCSVCell(get("note"))}
+		Event: get("event"), Observer: get("observer"), Note: get("note")}
 	const stds = "BJD_TDB, BJD_UTC, HJD_TT, HJD_UTC or JD_UTC (every timing carries its time standard; none is guessed)"
 	stdOK := row.Std != "" && row.Std.Validate() == nil
 	if !stdOK {

@@ -8,6 +8,7 @@ import (
 	"strconv"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 // ImportTimingsCSV reads a timings file (planner.ParseTimingsCSV; the
@@ -31,7 +32,7 @@ func (s *Store) ImportTimingsCSV(ctx context.Context, a Actor, targetID int64, r
 	in := make([]TimingInput, len(rows))
 	for i, row := range rows {
 		in[i] = TimingInput{Event: row.Event, T: Epoch{Text: row.Text, Form: row.Form, Standard: row.Std, JD: row.JD},
-			ErrDays: row.ErrDays, Observer: row.Observer, Note: row.Note}
+			ErrDays: row.ErrDays, Observer: export.UnquoteCSVCell(row.Observer), Note: export.UnquoteCSVCell(row.Note)}
 	}
 	t, err := s.beginWrite(ctx, a)
 	if err != nil {

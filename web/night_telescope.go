@@ -9,21 +9,22 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/web/page"
 )
 
 // telescopeDoc is the telescope sheet of the request's planned night: the
 // document `phasecast plan --sheet json` prints.
-func (s *Server) telescopeDoc(r *http.Request, u *user) (*night, planner.SheetDoc, error) {
+func (s *Server) telescopeDoc(r *http.Request, u *user) (*night, export.SheetDoc, error) {
 	n, err := s.plannedNight(r, u)
 	if err != nil {
-		return nil, planner.SheetDoc{}, err
+		return nil, export.SheetDoc{}, err
 	}
 	rows, err := planner.TelescopeSheet(n.req.Site, n.req.Targets, n.plan.Blocks)
 	if err != nil {
-		return nil, planner.SheetDoc{}, err
+		return nil, export.SheetDoc{}, err
 	}
-	return n, planner.NewSheetDoc(rows), nil
+	return n, export.NewSheetDoc(rows), nil
 }
 
 // nightTelescope is the printable telescope sheet (GET /night/telescope):
@@ -43,7 +44,7 @@ func (s *Server) nightTelescope(w http.ResponseWriter, r *http.Request, u *user)
 			Airmass: f(row.AirmassMin, 2) + "–" + f(row.AirmassMax, 2), Phase: f(row.PhaseStart, 3) + "→" + f(row.PhaseEnd, 3),
 			Moon: f(row.MoonSepMinDeg, 0) + "°"}
 		if row.GoalPhase != nil {
-			tr.Goal = phaseNum(*row.GoalPhase)
+			tr.Goal = export.PhaseText(*row.GoalPhase)
 		}
 		if row.Mag != nil {
 			tr.Mag = num(*row.Mag)
@@ -75,7 +76,10 @@ func (s *Server) nightTelescopeExport(ext string) func(http.ResponseWriter, *htt
 			enc.SetIndent("", "  ")
 			err = enc.Encode(doc)
 		} else {
-			err = planner.WriteSheetCSV(&buf, doc)
+			var b []byte
+			if b, err = export.SheetCSV(doc); err == nil {
+				buf.Write(b)
+			}
 		}
 		if err != nil {
 			s.renderError(w, r, err)

@@ -7,7 +7,7 @@ import (
 	"strings"
 	"testing"
 
-	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 // TestNightTelescope: the Night page links the telescope sheet; the page
@@ -37,13 +37,13 @@ func TestNightTelescope(t *testing.T) {
 		t.Fatalf("telescope page = %d, %d start points for %d blocks", resp.StatusCode, strings.Count(body, "<td>start</td>"), len(plan.Blocks))
 	}
 	resp, js = h.get(c, "/night/telescope.json"+q)
-	var doc planner.SheetDoc
+	var doc export.SheetDoc
 	if err := json.Unmarshal([]byte(js), &doc); resp.StatusCode != http.StatusOK || err != nil || len(doc.Rows) != len(plan.Blocks) {
 		t.Fatalf("telescope.json = %d, %v, %d rows", resp.StatusCode, err, len(doc.Rows))
 	}
 	_, cs := h.get(c, "/night/telescope.csv"+q)
 	recs, err := csv.NewReader(strings.NewReader(cs)).ReadAll()
-	if err != nil || len(recs) != len(plan.Blocks)+1 || strings.Join(recs[0], ",") != strings.Join(planner.SheetCSVHeader, ",") {
+	if err != nil || len(recs) != len(plan.Blocks)+1 || strings.Join(recs[0], ",") != strings.Join(export.SheetCSVHeader, ",") {
 		t.Fatalf("telescope.csv: %v, %d lines", err, len(recs))
 	}
 }

@@ -11,6 +11,7 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
 	"phasecast/web/chart"
 	"phasecast/web/page"
@@ -158,8 +159,8 @@ func (pr *proposal) encode() string {
 }
 
 // doc is the proposal's JSON document (the CLI's `propose --json`).
-func (pr *proposal) doc() planner.ProposalDoc {
-	return planner.NewProposalDoc(pr.p, pr.year[0], pr.hours, pr.loc.String(), 0)
+func (pr *proposal) doc() export.ProposalDoc {
+	return export.NewProposalDoc(pr.p, pr.year[0], pr.hours, pr.loc.String(), 0)
 }
 
 func (pr *proposal) exportJSON() ([]byte, error) {
@@ -185,7 +186,7 @@ func (pr *proposal) view(errs page.Errs) page.ProposeView {
 	v.ClearNights, v.ClearDates = d.ClearNights, strings.Join(d.ClearDates, ", ")
 	v.WeatherNights, v.WeatherMet, v.WeatherDates = d.WeatherNights, d.WeatherMet, strings.Join(d.WeatherDates, ", ")
 	for _, g := range d.Goals {
-		v.Goals = append(v.Goals, page.ProposeGoalRow{Target: g.Target, Goal: phaseNum(g.PhaseGoal) + " ± " + phaseNum(g.PhaseHalfWidth),
+		v.Goals = append(v.Goals, page.ProposeGoalRow{Target: g.Target, Goal: export.PhaseText(g.PhaseGoal) + " ± " + export.PhaseText(g.PhaseHalfWidth),
 			Need: strconv.Itoa(g.Need), Offering: strconv.Itoa(g.NightsOffering), Available: strconv.Itoa(g.Available), Reachable: g.Reachable,
 			Clear: strconv.Itoa(g.Clear), Expected: strconv.FormatFloat(g.ExpectedCoverage, 'f', 3, 64), Reach: strconv.FormatFloat(g.ReachProbability, 'f', 3, 64)})
 	}

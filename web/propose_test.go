@@ -8,7 +8,7 @@ import (
 
 	"golang.org/x/net/html"
 
-	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 // byTestID returns the element of the page with data-testid=id, or nil.
@@ -74,7 +74,7 @@ func countUnder(n *html.Node, tag, class string) int {
 }
 
 // TestProposePage sizes a proposal on the page and through its JSON
-// export: the export is planner.NewProposalDoc of the same request (the
+// export: the export is export.NewProposalDoc of the same request (the
 // document `phasecast propose --json` writes), and the page shows its counts,
 // dates and the year chart.
 func TestProposePage(t *testing.T) {
@@ -87,7 +87,7 @@ func TestProposePage(t *testing.T) {
 	if resp.StatusCode != http.StatusOK {
 		t.Fatalf("propose.json = %d: %.300s", resp.StatusCode, js)
 	}
-	var d planner.ProposalDoc
+	var d export.ProposalDoc
 	if err := json.Unmarshal([]byte(js), &d); err != nil {
 		t.Fatalf("propose.json: %v", err)
 	}

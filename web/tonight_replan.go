@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
 )
 
@@ -45,7 +46,7 @@ func (s *Server) replanTonight(ctx context.Context, a store.Actor, n *night) (st
 	var served []string
 	for _, gs := range rp.Served {
 		if gs.Done > 0 && gs.Remaining == 0 {
-			served = append(served, fmt.Sprintf("%s %s", gs.Target, phaseNum(gs.Goal.Center)))
+			served = append(served, fmt.Sprintf("%s %s", gs.Target, export.PhaseText(gs.Goal.Center)))
 		}
 	}
 	msg := fmt.Sprintf("Replanned from %s: %d exposure(s) recorded tonight are kept", now.In(n.loc).Format("15:04"), len(done))

@@ -12,20 +12,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
-)
-
-// The `plan --json` document is planner.PlanDoc, shared with the web; these
-// names stay for run_nights.go, which prints the same objects per night.
-type (
-	planJSON        = planner.PlanDoc
-	planBlockJSON   = planner.BlockDoc
-	unscheduledJSON = planner.UnscheduledDoc
-	warningJSON     = planner.WarningDoc
-	intervalJSON    = planner.IntervalDoc
-	constraintsJSON = planner.ConstraintsDoc
-	// planTime is an instant in RFC 3339 UTC, with the fraction of a second
-	// written only when there is one (to the microsecond).
-	planTime = planner.DocTime
+	"phasecast/planner/export"
 )
 
 const planSynopsis = `Plan one night: for every target of a CSV list, the observable intervals under the
@@ -65,19 +52,25 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
 	inf := addPlanInstrumentFlags(fl)
+	siteName := addSiteNameFlag(fl)
+	format := fl.text("format", "text|json|csv", "text", "output format: the sheet, or the night document (docs/formats.md)")
 	start := fl.text("start", "TIME", "", "replan the rest of the night from TIME (RFC 3339): nothing starts before it")
 	observed := fl.text("observed", "LOG.csv", "", "with --start: exposures already taken tonight (the run command's log)")
 	sheet := fl.text("sheet", "csv|json", "", "print the telescope sheet of the blocks instead (columns in docs/sheet.md)")
-	asJSON := fl.boolean("json", "print one JSON object")
+	asJSON := fl.boolean("json", "print one JSON object (the night document; the same as --format json)")
 	if help, err := fl.parse(args, stdout); help || err != nil {
+		return err
+	}
+	fmtName, err := outputFormatOf(format, *asJSON, "text", "json", "csv")
+	if err != nil {
 		return err
 	}
 	sheetFmt := strings.ToLower(strings.TrimSpace(sheet.value))
 	if sheet.set && sheetFmt != "csv" && sheetFmt != "json" {
 		return fieldError(sheet, "not a sheet format", "csv or json")
 	}
-	if sheet.set && *asJSON {
-		return usageErrorf("--sheet %s and --json: give one output", shown(sheet.value))
+	if sheet.set && (*asJSON || format.set) {
+		return usageErrorf("--sheet %s with --json or --format: give one output", shown(sheet.value))
 	}
 	if observed.set && !start.set {
 		return usageErrorf("--observed goes with --start TIME: the instant the night is planned again from")
@@ -133,89 +126,98 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	req := planner.NightRequest{Site: site, From: from, To: to, Targets: list, Constraints: c,
 		Options: planner.Options{StepS: stepS, Fill: *fill}, Instrument: inst}
 	ev := ephem.Night(site, y, m, d, loc)
+	var rp *planner.Replan
+	var p *planner.Plan
 	if start.set {
-		return replanRest(stdout, req, start, observed, ev, loc, y, m, d, acq, *asJSON, sheetFmt)
-	}
-	p, err := planner.PlanNight(req)
-	if err != nil {
+		if rp, err = replanRest(req, start, observed); err != nil {
+			return err
+		}
+		p, list = rp.Plan, rp.Targets
+	} else if p, err = planner.PlanNight(req); err != nil {
 		return fromInputError(err, "not accepted", nil)
 	}
 	if sheet.set {
 		return writeSheet(stdout, site, list, p.Blocks, sheetFmt)
 	}
-	out := planOutput(p, ev, acq)
-	if err := checkPlanFinite(out); err != nil {
+	out := export.NewNight(export.NewSite(siteName.value, site), fmt.Sprintf("%04d-%02d-%02d", y, int(m), d), loc.String(), p, ev, acq)
+	if rp != nil {
+		out.PlanDoc.Replan = export.NewReplanDoc(rp)
+	}
+	if err := checkPlanFinite(out.PlanDoc); err != nil {
 		return err
 	}
-	if *asJSON {
+	switch fmtName {
+	case "json":
 		return writeJSON(stdout, out)
+	case "csv":
+		return writeBytes(stdout, func() ([]byte, error) { return export.NightCSV(out, loc) })
+	}
+	if rp != nil {
+		if err := printReplanHead(stdout, rp, loc); err != nil {
+			return err
+		}
 	}
 	return printPlan(stdout, p, ev, loc, y, m, d, acq)
 }
 
 // writeSheet prints the telescope sheet of blocks (planned from targets)
-// as CSV or JSON.
+// as CSV or JSON (export.SheetDoc).
 func writeSheet(w io.Writer, site ephem.Site, targets []planner.Target, blocks []planner.Block, format string) error {
 	rows, err := planner.TelescopeSheet(site, targets, blocks)
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
 	}
-	doc := planner.NewSheetDoc(rows)
+	doc := export.NewSheetDoc(rows)
 	if format == "json" {
 		return writeJSON(w, doc)
 	}
-	return planner.WriteSheetCSV(w, doc)
+	return writeBytes(w, func() ([]byte, error) { return export.SheetCSV(doc) })
 }
 
 // replanRest plans the rest of the night from --start, keeping the
 // exposures of --observed and not repeating the goals they served.
-func replanRest(stdout io.Writer, req planner.NightRequest, start, observed *textValue, ev ephem.NightEvents, loc *time.Location,
-	y int, m time.Month, d int, acq float64, asJSON bool, sheetFmt string) error {
+func replanRest(req planner.NightRequest, start, observed *textValue) (*planner.Replan, error) {
 	at, err := ephem.ParseTime(start.value)
 	if err != nil {
-		return fromInputError(err, "not a time", map[string]*textValue{"time": start})
+		return nil, fromInputError(err, "not a time", map[string]*textValue{"time": start})
 	}
 	if at.Before(req.From) || !at.Before(req.To) {
-		return fieldError(start, "outside the night", fmt.Sprintf("an instant from %s to %s (local noon to local noon of --date)",
+		return nil, fieldError(start, "outside the night", fmt.Sprintf("an instant from %s to %s (local noon to local noon of --date)",
 			req.From.UTC().Format(time.RFC3339), req.To.UTC().Format(time.RFC3339)))
 	}
 	var done []planner.Exposure
 	if observed.set {
 		fh, err := os.Open(observed.value)
 		if err != nil {
-			return fmt.Errorf("--observed %s: %w", shown(observed.value), err)
+			return nil, fmt.Errorf("--observed %s: %w", shown(observed.value), err)
 		}
 		defer fh.Close()
 		if done, err = planner.ParseObservedCSV(fh); err != nil {
 			var te *planner.TableError
 			if errors.As(err, &te) {
-				return usageErrorf("--observed %s: %s", shown(observed.value), te.Error())
+				return nil, usageErrorf("--observed %s: %s", shown(observed.value), te.Error())
 			}
-			return fmt.Errorf("--observed %s: %w", shown(observed.value), err)
+			return nil, fmt.Errorf("--observed %s: %w", shown(observed.value), err)
 		}
 		for _, e := range done {
 			if e.Mid.Before(req.From) || !e.Mid.Before(at) {
-				return usageErrorf("--observed %s line %d: mid-time %s is not tonight before --start; accepted: exposures from %s to %s",
+				return nil, usageErrorf("--observed %s line %d: mid-time %s is not tonight before --start; accepted: exposures from %s to %s",
 					shown(observed.value), e.Line, e.Mid.UTC().Format(time.RFC3339), req.From.UTC().Format(time.RFC3339), at.UTC().Format(time.RFC3339))
 			}
 		}
 	}
 	rp, err := planner.ReplanNight(req, at, done)
 	if err != nil {
-		return fromInputError(err, "not accepted", nil)
+		return nil, fromInputError(err, "not accepted", nil)
 	}
-	if sheetFmt != "" {
-		return writeSheet(stdout, req.Site, rp.Targets, rp.Plan.Blocks, sheetFmt)
-	}
-	out := planner.NewReplanDoc(rp, ev, acq)
-	if err := checkPlanFinite(out); err != nil {
-		return err
-	}
-	if asJSON {
-		return writeJSON(stdout, out)
-	}
+	return rp, nil
+}
+
+// printReplanHead says, above a replanned night's sheet, from when it was
+// planned and what was kept.
+func printReplanHead(w io.Writer, rp *planner.Replan, loc *time.Location) error {
 	var b strings.Builder
-	fmt.Fprintf(&b, "Replanned from %s UTC (%s local): nothing new starts before it.\n", at.UTC().Format("2006-01-02 15:04:05"), at.In(loc).Format("15:04:05"))
+	fmt.Fprintf(&b, "Replanned from %s UTC (%s local): nothing new starts before it.\n", rp.Start.UTC().Format("2006-01-02 15:04:05"), rp.Start.In(loc).Format("15:04:05"))
 	if len(rp.Done) > 0 {
 		fmt.Fprintf(&b, "Kept: %d exposure(s) already taken tonight.\n", len(rp.Done))
 		tb := newTable(&b)
@@ -238,10 +240,8 @@ func replanRest(stdout io.Writer, req planner.NightRequest, start, observed *tex
 		}
 	}
 	b.WriteString("\n")
-	if _, err := io.WriteString(stdout, b.String()); err != nil {
-		return err
-	}
-	return printPlan(stdout, rp.Plan, ev, loc, y, m, d, acq)
+	_, err := io.WriteString(w, b.String())
+	return err
 }
 
 // constraintFlags are the observing-limit flags shared by plan, run and
@@ -365,13 +365,8 @@ func readTargets(v *textValue) ([]planner.Target, error) {
 	return list, nil
 }
 
-// planOutput is the `plan --json` document; acq is the --acquire-s value.
-func planOutput(p *planner.Plan, ev ephem.NightEvents, acq float64) planJSON {
-	return planner.NewPlanDoc(p, ev, acq)
-}
-
 // checkPlanFinite makes sure no NaN reaches the output.
-func checkPlanFinite(out planJSON) error {
+func checkPlanFinite(out export.PlanDoc) error {
 	for _, b := range out.Blocks {
 		if err := checkFinite([]string{"phase", "phase", "airmass", "airmass", "phase", "smear", "phase error", "Moon separation", "parallactic angle", "hour angle", "Sun altitude"},
 			b.PhaseStart, b.PhaseEnd, b.AirmassMax, b.AirmassMin, b.PhaseMid, b.Smear, b.PhaseErr, b.MoonSepDeg, b.ParallacticDeg, b.HourAngleHours, b.SunAltStartDeg); err != nil {
@@ -383,37 +378,51 @@ func checkPlanFinite(out planJSON) error {
 
 // printPlan writes the human night sheet.
 func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Location, y int, m time.Month, d int, acq float64) error {
-	evening := time.Date(y, m, d, 12, 0, 0, 0, loc)
+	var b strings.Builder
+	printPlanHeader(&b, p, ev, loc, time.Date(y, m, d, 12, 0, 0, 0, loc), acq)
+	if _, err := io.WriteString(w, b.String()); err != nil {
+		return err
+	}
+	if err := printPlanBlocks(w, p, loc); err != nil {
+		return err
+	}
+	b.Reset()
+	printPlanNotes(&b, p)
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// printPlanHeader writes the night, site, limits, dark time and Moon.
+func printPlanHeader(b *strings.Builder, p *planner.Plan, ev ephem.NightEvents, loc *time.Location, evening time.Time, acq float64) {
 	lt := func(t time.Time) string { return t.In(loc).Format("15:04") }
 	ut := func(t time.Time) string { return t.UTC().Format("15:04") }
-	var b strings.Builder
-	fmt.Fprintf(&b, "Night plan for %s (%s), site %s\n", evening.Format("Monday 2006-01-02"), loc, siteLine(p.Site))
+	fmt.Fprintf(b, "Night plan for %s (%s), site %s\n", evening.Format("Monday 2006-01-02"), loc, siteLine(p.Site))
 	c := p.Constraints
-	fmt.Fprintf(&b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
+	fmt.Fprintf(b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
 	if c.MinAltDeg != 0 {
-		fmt.Fprintf(&b, ", altitude ≥ %s°", fmtG(c.MinAltDeg))
+		fmt.Fprintf(b, ", altitude ≥ %s°", fmtG(c.MinAltDeg))
 	}
 	if c.MinMoonSepDeg > 0 {
-		fmt.Fprintf(&b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
+		fmt.Fprintf(b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
 	}
 	if c.MaxMoonIllum > 0 {
-		fmt.Fprintf(&b, ", Moon ≤ %s%% lit when up", fmtG(100*c.MaxMoonIllum))
+		fmt.Fprintf(b, ", Moon ≤ %s%% lit when up", fmtG(100*c.MaxMoonIllum))
 	}
 	if c.HAMinHours != 0 || c.HAMaxHours != 0 {
-		fmt.Fprintf(&b, ", hour angle %s..%s h", fmtG(c.HAMinHours), fmtG(c.HAMaxHours))
+		fmt.Fprintf(b, ", hour angle %s..%s h", fmtG(c.HAMinHours), fmtG(c.HAMaxHours))
 	}
 	if c.ZenithExclDeg > 0 {
-		fmt.Fprintf(&b, ", zenith exclusion %s°", fmtG(c.ZenithExclDeg))
+		fmt.Fprintf(b, ", zenith exclusion %s°", fmtG(c.ZenithExclDeg))
 	}
 	if len(c.Horizon) > 0 {
-		fmt.Fprintf(&b, ", horizon mask (%d points)", len(c.Horizon))
+		fmt.Fprintf(b, ", horizon mask (%d points)", len(c.Horizon))
 	}
-	fmt.Fprintf(&b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
+	fmt.Fprintf(b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
 	if len(p.Dark) == 0 {
-		fmt.Fprintf(&b, "Dark time: none (the Sun stays above %s°)\n", fmtG(c.SunAltMaxDeg))
+		fmt.Fprintf(b, "Dark time: none (the Sun stays above %s°)\n", fmtG(c.SunAltMaxDeg))
 	}
 	for _, dk := range p.Dark {
-		fmt.Fprintf(&b, "Dark time: %s–%s local (%s–%s UTC), %.1f h\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End), dk.End.Sub(dk.Start).Hours())
+		fmt.Fprintf(b, "Dark time: %s–%s local (%s–%s UTC), %.1f h\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End), dk.End.Sub(dk.Start).Hours())
 	}
 	moon := fmt.Sprintf("Moon: %.0f%% illuminated at midnight", 100*ev.MoonIlluminated)
 	if ev.Moonrise != nil {
@@ -423,10 +432,10 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 		moon += ", sets " + lt(*ev.Moonset) + " local"
 	}
 	b.WriteString(moon + "\n\n")
-	if _, err := io.WriteString(w, b.String()); err != nil {
-		return err
-	}
-	b.Reset()
+}
+
+// printPlanBlocks writes the table of blocks.
+func printPlanBlocks(w io.Writer, p *planner.Plan, loc *time.Location) error {
 	tb := newTable(w)
 	tb.row("start", "", "end", "", "target", "goal", "exposures", "phase start→end", "airmass", "Moon", "par.angle", "notes")
 	tb.row("local", "UTC", "local", "UTC", "", "", "", "", "", "", "", "")
@@ -437,7 +446,7 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 		}
 		notes := []string{}
 		if bl.AcquireS > 0 {
-			notes = append(notes, fmt.Sprintf("acquire from %s", lt(bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))))))
+			notes = append(notes, fmt.Sprintf("acquire from %s", bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))).In(loc).Format("15:04")))
 		}
 		if bl.SNROK {
 			notes = append(notes, snrNote(bl))
@@ -454,13 +463,16 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 	if len(p.Blocks) == 0 {
 		tb.row("(no block can be scheduled)", "", "", "", "", "", "", "", "", "", "", "")
 	}
-	if err := tb.flush(); err != nil {
-		return err
-	}
+	return tb.flush()
+}
+
+// printPlanNotes writes the goals left out, the warnings (each once), the
+// schedule's value and the caution.
+func printPlanNotes(b *strings.Builder, p *planner.Plan) {
 	if len(p.Unscheduled) > 0 {
 		b.WriteString("\nNot scheduled:\n")
 		for _, u := range p.Unscheduled {
-			fmt.Fprintf(&b, "  %s, phase %.3f: %s\n", u.Target, u.Goal.Center, u.Detail)
+			fmt.Fprintf(b, "  %s, phase %.3f: %s\n", u.Target, u.Goal.Center, u.Detail)
 		}
 	}
 	var notes []string
@@ -488,10 +500,8 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 	if !p.Optimal {
 		state = "best found, not proven optimal"
 	}
-	fmt.Fprintf(&b, "\nSchedule value %d (%s; greedy first-fit would give %d), %d candidate blocks.\n", p.Value, state, p.GreedyValue, p.Candidates)
+	fmt.Fprintf(b, "\nSchedule value %d (%s; greedy first-fit would give %d), %d candidate blocks.\n", p.Value, state, p.GreedyValue, p.Candidates)
 	b.WriteString(planner.SafetyCaution + "\n")
-	_, err := io.WriteString(w, b.String())
-	return err
 }
 
 // fmtG formats a number without trailing zeros.

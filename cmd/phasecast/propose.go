@@ -9,6 +9,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 const proposeSynopsis = `Size an observing proposal: the fewest nights, and the best dates, of a semester
@@ -120,7 +121,7 @@ func runPropose(ctx context.Context, _ func() time.Time, args []string, stdout, 
 			return fromInputError(err, "not accepted", nil)
 		}
 	}
-	doc := planner.NewProposalDoc(p, year[0], hours, loc.String(), acq)
+	doc := export.NewProposalDoc(p, year[0], hours, loc.String(), acq)
 	if *asJSON {
 		return writeJSON(stdout, doc)
 	}
@@ -157,7 +158,7 @@ func proposeNights(semester, from, to *textValue) ([]planner.RunNight, error) {
 }
 
 // printProposal writes the proposal as text.
-func printProposal(w io.Writer, site ephem.Site, p *planner.Proposal, doc planner.ProposalDoc, year []planner.RunNight) error {
+func printProposal(w io.Writer, site ephem.Site, p *planner.Proposal, doc export.ProposalDoc, year []planner.RunNight) error {
 	var b strings.Builder
 	req := p.Request
 	fmt.Fprintf(&b, "Proposal %s to %s (%d nights), site %s, zone %s\n", doc.From, doc.To, doc.Nights, siteLine(site), doc.Zone)
@@ -165,7 +166,7 @@ func printProposal(w io.Writer, site ephem.Site, p *planner.Proposal, doc planne
 	fmt.Fprintf(&b, "Limits: Sun below %s° (%s), airmass ≤ %s, Sun avoidance %s°\n", fmtG(rc.SunAltMaxDeg), rc.Twilight, fmtG(rc.MaxAirmass), fmtG(rc.SunAvoidDeg))
 	fmt.Fprintf(&b, "Weather: %s of nights lost (each night clear with probability %s); confidence %s\n",
 		fmtG(100*req.Loss)+" %", fmtG(1-req.Loss), fmtG(req.Confidence))
-	fmt.Fprintf(&b, "Model: %s\n\n", planner.ProposalModel)
+	fmt.Fprintf(&b, "Model: %s\n\n", export.ProposalModel)
 	switch {
 	case len(p.Picks) == 0:
 		b.WriteString("No candidate night gives any goal an exposure.\n")
@@ -248,7 +249,7 @@ func printProposal(w io.Writer, site ephem.Site, p *planner.Proposal, doc planne
 
 // minReach names the lowest probability of reaching N among the goals the
 // range can meet.
-func minReach(doc planner.ProposalDoc) string {
+func minReach(doc export.ProposalDoc) string {
 	lo, who := 2.0, ""
 	for _, gd := range doc.Goals {
 		if gd.Reachable && gd.ReachProbability < lo {

@@ -1,8 +1,9 @@
-package planner
+package export
 
 import (
 	"math"
-	"time"
+
+	"phasecast/planner"
 )
 
 // ProposalModel states the weather model of a proposal in one sentence, for
@@ -77,19 +78,19 @@ type YearHoursDoc struct {
 // (nights from hoursFrom, as ObservableHours returned them; may be nil);
 // zone names the site's zone; acquireS is as for NewConstraintsDoc. Hours
 // are rounded to 0.001 h.
-func NewProposalDoc(p *Proposal, hoursFrom RunNight, hours []YearHours, zone string, acquireS float64) ProposalDoc {
+func NewProposalDoc(p *planner.Proposal, hoursFrom planner.RunNight, hours []planner.YearHours, zone string, acquireS float64) ProposalDoc {
 	req := p.Request
 	rc, _ := req.Constraints.Resolved() // dropped: Propose refused the constraints if they did not resolve
 	d := ProposalDoc{From: req.Nights[0].String(), To: req.Nights[len(req.Nights)-1].String(), Nights: len(req.Nights), Zone: zone,
 		Loss: req.Loss, Confidence: req.Confidence, Model: ProposalModel, ClearNights: p.ClearNights, WeatherNights: p.WeatherNights,
 		WeatherMet: p.WeatherMet, ClearDates: nightStrings(p.Dates(p.ClearNights)), WeatherDates: nightStrings(p.Dates(p.WeatherNights)),
 		Goals: []ProposalGoalDoc{}, Picks: []ProposalPickDoc{}, Hours: []YearHoursDoc{},
-		Constraints: NewConstraintsDoc(rc, acquireS), Caution: SafetyCaution}
+		Constraints: NewConstraintsDoc(rc, acquireS), Caution: Caution}
 	unmet := map[int]bool{}
 	for _, g := range p.Unmet {
 		unmet[g] = true
 	}
-	var last *ProposalPick
+	var last *planner.ProposalPick
 	if p.WeatherNights > 0 {
 		last = &p.Picks[p.WeatherNights-1]
 	}
@@ -123,18 +124,7 @@ func NewProposalDoc(p *Proposal, hoursFrom RunNight, hours []YearHours, zone str
 	return d
 }
 
-// YearOf returns the nights of the calendar year in which night n falls
-// (1 January to 31 December, 365 or 366 nights): the year chart's nights.
-func YearOf(n RunNight) []RunNight {
-	days := 365
-	if time.Date(n.Year, 12, 31, 12, 0, 0, 0, time.UTC).YearDay() == 366 {
-		days = 366
-	}
-	out, _ := NightsFrom(n.Year, time.January, 1, days) // dropped: 365 or 366 nights from 1 January are always accepted
-	return out
-}
-
-func nightStrings(ns []RunNight) []string {
+func nightStrings(ns []planner.RunNight) []string {
 	out := make([]string, len(ns))
 	for i, n := range ns {
 		out[i] = n.String()

@@ -1,15 +1,14 @@
-package planner
+package export
 
 import (
-	"encoding/csv"
-	"io"
 	"math"
 	"strconv"
+
+	"phasecast/planner"
 )
 
-// The telescope sheet's file (the `plan --sheet csv|json` output). It sits
-// beside the night's plan document (plandoc.go) until the documents move to
-// one export package.
+// The telescope sheet's file: `plan --sheet csv|json`, the Night page's
+// /night/telescope.csv and .json.
 
 // SheetCSVHeader is the header of the sheet's CSV, one row per block; the
 // point columns repeat for start, mid and end (documented in
@@ -72,8 +71,8 @@ func round(x float64, d int) float64 {
 
 // NewSheetDoc is the document of the sheet's rows: angles to 1e-5°
 // (0.036″), hours to 1e-6 h (3.6 ms), airmass to 1e-4, phases to 1e-5.
-func NewSheetDoc(rows []SheetRow) SheetDoc {
-	d := SheetDoc{Rows: []SheetRowDoc{}, Caution: SafetyCaution}
+func NewSheetDoc(rows []planner.SheetRow) SheetDoc {
+	d := SheetDoc{Rows: []SheetRowDoc{}, Caution: Caution}
 	for _, r := range rows {
 		b := r.Block
 		rd := SheetRowDoc{Target: b.Target, Cycle: b.Cycle, NExposures: b.N, ExposureS: b.ExposureS, OverheadS: b.OverheadS,
@@ -98,12 +97,9 @@ func NewSheetDoc(rows []SheetRow) SheetDoc {
 	return d
 }
 
-// WriteSheetCSV writes the sheet's CSV (SheetCSVHeader) from its document.
-func WriteSheetCSV(w io.Writer, d SheetDoc) error {
-	cw := csv.NewWriter(w)
-	if err := cw.Write(SheetCSVHeader); err != nil {
-		return err
-	}
+// SheetCSV is the sheet's CSV (SheetCSVHeader) from its document.
+func SheetCSV(d SheetDoc) ([]byte, error) {
+	var rows [][]string
 	g := func(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
 	for _, r := range d.Rows {
 		goal, mag := "", ""
@@ -118,11 +114,7 @@ func WriteSheetCSV(w io.Writer, d SheetDoc) error {
 		for _, p := range r.Points {
 			rec = append(rec, p.UTC.String(), g(p.LSTHours), g(p.HourAngleHours), g(p.AltDeg), g(p.AzDeg), g(p.ParallacticDeg))
 		}
-		rec = append(rec, g(r.AirmassMin), g(r.AirmassMax), g(r.PhaseStart), g(r.PhaseEnd), g(r.MoonSepMinDeg))
-		if err := cw.Write(rec); err != nil {
-			return err
-		}
+		rows = append(rows, append(rec, g(r.AirmassMin), g(r.AirmassMax), g(r.PhaseStart), g(r.PhaseEnd), g(r.MoonSepMinDeg)))
 	}
-	cw.Flush()
-	return cw.Error()
+	return writeCSV(SheetCSVHeader, rows)
 }
