@@ -53,7 +53,7 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 	if err != nil {
 		return err
 	}
-	rp, out, err := job.compute(ctx)
+	rp, out, err := job.compute(ctx, stderr)
 	if err != nil {
 		return err
 	}
@@ -202,9 +202,15 @@ func (rf runFlags) read() (runJob, error) {
 
 // compute plans the run and makes its document; a target's id in the
 // document is its row in the targets file, from 1.
-func (j runJob) compute(ctx context.Context) (*planner.RunPlan, export.Run, error) {
-	rp, err := planner.PlanRun(ctx, j.req, nil)
+// A progress line goes to stderr when it is a terminal.
+func (j runJob) compute(ctx context.Context, stderr io.Writer) (*planner.RunPlan, export.Run, error) {
+	prog := newProgress(stderr, "run")
+	rp, err := planner.PlanRun(ctx, j.req, prog.callback())
+	prog.finish()
 	if err != nil {
+		if ctx.Err() != nil {
+			return nil, export.Run{}, interrupted(err, "run")
+		}
 		var te *planner.TableError
 		if errors.As(err, &te) {
 			return nil, export.Run{}, usageErrorf("--observed %s: %s", shown(j.observed), te.Error())
