@@ -35,8 +35,10 @@ func benchNight(nTargets int) NightRequest {
 	return req
 }
 
-func BenchmarkPlan30Targets(b *testing.B) {
-	req := benchNight(30)
+func BenchmarkPlan30Targets(b *testing.B) { benchPlan(b, benchNight(30)) }
+
+// benchPlan plans req in a benchmark loop and reports the plan's size.
+func benchPlan(b *testing.B, req NightRequest) {
 	var p *Plan
 	for b.Loop() {
 		var err error
@@ -63,17 +65,7 @@ func BenchmarkPlan30TargetsTelescope(b *testing.B) {
 	req := benchNight(30)
 	tel := benchTelescope
 	req.Options.Telescope = &tel
-	var p *Plan
-	for b.Loop() {
-		var err error
-		if p, err = PlanNight(req); err != nil {
-			b.Fatal(err)
-		}
-	}
-	b.ReportMetric(float64(len(p.Blocks)), "blocks")
-	b.ReportMetric(float64(p.Candidates), "candidates")
-	b.ReportMetric(float64(p.Rounds), "rounds")
-	b.ReportMetric(float64(p.States), "states")
+	benchPlan(b, req)
 }
 
 func BenchmarkVisibility30Targets(b *testing.B) {
