@@ -4,6 +4,7 @@ import (
 	"regexp"
 	"strings"
 	"testing"
+	"time"
 
 	"phasecast/planner/export"
 )
@@ -85,4 +86,25 @@ func FuzzSafeCSVCell(f *testing.F) {
 			t.Fatalf("UnquoteCSVCell(SafeCSVCell(%q)) = %q", s, back)
 		}
 	})
+}
+
+// TestNightCSVSlew: a block with a slew fills the slew_s and prev_target
+// columns (the previous target's name guarded like every text cell); one
+// without leaves them empty.
+func TestNightCSVSlew(t *testing.T) {
+	n := export.Night{PlanDoc: export.PlanDoc{Blocks: []export.BlockDoc{
+		{Target: "A", Warnings: []string{}},
+		{Target: "B", SlewS: 42.25, PrevTarget: "=A", Warnings: []string{}},
+	}}}
+	b, err := export.NightCSV(n, time.UTC)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	if len(lines) != 3 || !strings.HasSuffix(lines[0], ",warnings,slew_s,prev_target") {
+		t.Fatalf("CSV:\n%s", b)
+	}
+	if !strings.HasSuffix(lines[1], ",,") || !strings.HasSuffix(lines[2], ",42.2,'=A") && !strings.HasSuffix(lines[2], ",42.3,'=A") {
+		t.Errorf("rows:\n%s\n%s", lines[1], lines[2])
+	}
 }

@@ -35,7 +35,7 @@ func NewNight(site Site, date, zone string, p *planner.Plan, ev planner.NightEve
 // CSV puts "night" and "part" before it (docs/formats.md).
 var BlockCSVHeader = []string{"target", "phase_goal", "event", "start_utc", "end_utc", "start_local", "end_local", "n_exposures", "exposure_s",
 	"overhead_s", "phase_start", "phase_end", "phase_mid", "smear", "phase_err", "airmass_min", "airmass_max", "moon_sep_deg",
-	"parallactic_deg", "hour_angle_hours", "sun_alt_start_deg", "acquire_s", "priority", "filler", "warnings"}
+	"parallactic_deg", "hour_angle_hours", "sun_alt_start_deg", "acquire_s", "priority", "filler", "warnings", "slew_s", "prev_target"}
 
 // blockRow is a block's CSV row (BlockCSVHeader) with local times in loc;
 // text cells a spreadsheet would run as formulas are neutralised.
@@ -45,12 +45,16 @@ func blockRow(b BlockDoc, loc *time.Location) []string {
 		goal = num(*b.PhaseGoal)
 	}
 	start, end := time.Time(b.Start), time.Time(b.End)
+	slew := "" // no slew: no telescope, the first block or the same target
+	if b.SlewS > 0 {
+		slew = fixed(b.SlewS, 1)
+	}
 	return []string{SafeCSVCell(b.Target), goal, SafeCSVCell(b.Event), start.UTC().Format(time.RFC3339), end.UTC().Format(time.RFC3339),
 		start.In(loc).Format(time.RFC3339), end.In(loc).Format(time.RFC3339), strconv.Itoa(b.NExposures), num(b.ExposureS),
 		num(b.OverheadS), fixed(b.PhaseStart, 4), fixed(b.PhaseEnd, 4), fixed(b.PhaseMid, 4), fixed(b.Smear, 5), fixed(b.PhaseErr, 5),
 		fixed(b.AirmassMin, 3), fixed(b.AirmassMax, 3), fixed(b.MoonSepDeg, 1), fixed(b.ParallacticDeg, 1), fixed(b.HourAngleHours, 3),
 		fixed(b.SunAltStartDeg, 2), num(b.AcquireS), strconv.Itoa(b.Priority), strconv.FormatBool(b.Filler),
-		SafeCSVCell(strings.Join(b.Warnings, "; "))}
+		SafeCSVCell(strings.Join(b.Warnings, "; ")), slew, SafeCSVCell(b.PrevTarget)}
 }
 
 // writeCSV writes a header and rows.
