@@ -359,7 +359,10 @@ type occMeta struct {
 // window, half for its exposures. So no amount of lower-priority value buys
 // time from a higher priority, on any night. Blocks do not overlap, an
 // acquisition overhead precedes every change of target (and the first
-// block) inside dark time, each goal occurrence gets at most one block, and
+// block) inside dark time (with Options.Telescope, the slew from the
+// previous block's target at its end to the next one's at its start, with
+// settling and acquisition: the exactness proof for that sequence-dependent
+// charge is in sweep.go, "Slews"), each goal occurrence gets at most one block, and
 // every block meets every constraint from start to end with every
 // exposure's mid-time phase in its window (a Continuous goal's block
 // instead covers its whole window without gaps; an eclipse, ingress or
