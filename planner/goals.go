@@ -1,6 +1,7 @@
 package planner
 
 import (
+	"errors"
 	"fmt"
 	"strings"
 
@@ -89,6 +90,15 @@ func validateTarget(i int, t Target) error {
 	}
 	if err := t.Ephem.Validate(); err != nil {
 		return fmt.Errorf("%s: %w", pre, err)
+	}
+	if t.RV != nil {
+		if _, err := NewRVCurve(*t.RV, t.Ephem); err != nil {
+			var ie *ephem.InputError
+			if errors.As(err, &ie) {
+				return bad(ie.Field, ie.Value, ie.Accepted)
+			}
+			return fmt.Errorf("%s: %w", pre, err)
+		}
 	}
 	for k, g := range t.Goals {
 		gp := fmt.Sprintf("goals[%d].", k)
