@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -20,6 +21,12 @@ var PlanCSVHeader = []string{
 	"name", "ra", "dec", "t0_bjd_tdb", "period_days", "phases",
 	"phase_halfwidth", "exposure_s", "overhead_s", "priority",
 }
+
+// PlanCSVOptional are the optional columns of the targets file: a target's
+// radial-velocity goal (RVGoal). With rv_model, rv_k_kms and rv_sigma_kms
+// are required columns too; a row with rv_model empty has no RV goal and its
+// other rv_ cells must be empty.
+var PlanCSVOptional = []string{"rv_model", "rv_k_kms", "rv_sigma_kms", "rv_want_rel_k"}
 
 // CellError is one rejected cell of a table file: the 1-based line of the
 // file, the 1-based column number and the column's header name (both 0 and ""
@@ -111,8 +118,8 @@ const (
 )
 
 // ParseTargetsCSV reads the `plan` command's targets file: a header line
-// naming the columns of PlanCSVHeader (any order, each exactly once, no
-// others), then one target per line. Blank lines and lines starting with '#'
+// naming the columns of PlanCSVHeader (any order, each exactly once) and
+// any of PlanCSVOptional, no others, then one target per line. Blank lines and lines starting with '#'
 // are skipped.
 //
 //   - name: non-empty text.
@@ -130,6 +137,12 @@ const (
 //   - exposure_s: one exposure, 0 < t ≤ MaxExposureS seconds.
 //   - overhead_s: readout after each exposure, 0 ≤ t ≤ MaxExposureS seconds.
 //   - priority: integer 1 (highest) to 5.
+//   - rv_model (optional): "circular" or "eccentric" (the eccentric model
+//     takes e and ω of the ephemeris: 0 in this file, which has no such
+//     columns), or empty for no RV goal.
+//   - rv_k_kms, rv_sigma_kms, rv_want_rel_k (with rv_model): the rough K and
+//     the velocity error of one exposure, km/s, and the wanted σK/K as a
+//     fraction (empty or 0 for none); RVGoal.Validate's ranges.
 //
 // The file has no convention column: T0 is recorded as the companion's
 // inferior conjunction (ephem.ConvInferiorConjunction), and the phases are
@@ -174,7 +187,20 @@ func ReadTargetsCSV(r io.Reader) ([]TargetRow, error) {
 	}
 	headerLine, _ := cr.FieldPos(0)
 	te := &TableError{}
-	col := columnIndex(header, PlanCSVHeader, headerLine, te)
+	col := columnIndex(header, PlanCSVHeader, PlanCSVOptional, headerLine, te)
+	if hasKey(col, "rv_model") {
+		for _, n := range PlanCSVOptional[1:3] {
+			if !hasKey(col, n) {
+				te.add(headerLine, 0, n, "", "missing column "+n+": rv_model needs rv_k_kms and rv_sigma_kms")
+			}
+		}
+	} else {
+		for _, n := range PlanCSVOptional[1:] {
+			if hasKey(col, n) {
+				te.add(headerLine, col[n]+1, n, n, "column without rv_model: an RV goal needs rv_model, rv_k_kms and rv_sigma_kms")
+			}
+		}
+	}
 	if len(te.Cells) > 0 {
 		return nil, te
 	}
@@ -249,11 +275,12 @@ func csvReadError(err error) error {
 	return fmt.Errorf("read targets CSV: %w", err)
 }
 
-// columnIndex maps each required column name to its index in header,
-// recording missing, repeated and unknown columns in te.
-func columnIndex(header, required []string, line int, te *TableError) map[string]int {
+// columnIndex maps each required and optional column name present to its
+// index in header, recording missing required, repeated and unknown columns
+// in te.
+func columnIndex(header, required, optional []string, line int, te *TableError) map[string]int {
 	want := map[string]bool{}
-	for _, n := range required {
+	for _, n := range slices.Concat(required, optional) {
 		want[n] = true
 	}
 	col := map[string]int{}
@@ -261,7 +288,7 @@ func columnIndex(header, required []string, line int, te *TableError) map[string
 		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
 		switch {
 		case !want[h]:
-			te.add(line, i+1, h, h, "unknown column; the header must be "+strings.Join(required, ","))
+			te.add(line, i+1, h, h, "unknown column; the header must be "+strings.Join(required, ",")+columnsOptional(optional))
 		case hasKey(col, h):
 			te.add(line, i+1, h, h, fmt.Sprintf("column repeated (first at column %d)", col[h]+1))
 		default:
@@ -274,6 +301,14 @@ func columnIndex(header, required []string, line int, te *TableError) map[string
 		}
 	}
 	return col
+}
+
+// columnsOptional names the optional columns for a message.
+func columnsOptional(optional []string) string {
+	if len(optional) == 0 {
+		return ""
+	}
+	return ", optionally with " + strings.Join(optional, ",")
 }
 
 func hasKey(m map[string]int, k string) bool { _, ok := m[k]; return ok }
@@ -369,7 +404,52 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 			t.Goals = append(t.Goals, Goal{Center: c, HalfWidth: hw, ExposureS: exp, OverheadS: ovh})
 		}
 	}
+	if hasKey(col, "rv_model") {
+		t.RV = parseRVCells(get, bad, func(n string) bool { return hasKey(col, n) })
+	}
 	return t, len(te.Cells) == n0
+}
+
+// parseRVCells reads a row's RV goal (nil for none), reporting bad cells.
+func parseRVCells(get func(string) string, bad func(name, value, reason string), has func(string) bool) *RVGoal {
+	cell := func(n string) string {
+		if !has(n) {
+			return ""
+		}
+		return get(n)
+	}
+	if cell("rv_model") == "" {
+		for _, n := range PlanCSVOptional[1:] {
+			if v := cell(n); v != "" {
+				bad(n, v, "empty: this row has no rv_model, so no RV goal")
+			}
+		}
+		return nil
+	}
+	g := RVGoal{Model: RVModel(cell("rv_model"))}
+	num := func(n string, dst *float64) {
+		v := cell(n)
+		if v == "" && n == "rv_want_rel_k" {
+			return
+		}
+		x, ok := parseFinite(v)
+		if !ok {
+			bad(n, v, "a number")
+			return
+		}
+		*dst = x
+	}
+	num("rv_k_kms", &g.KKms)
+	num("rv_sigma_kms", &g.SigmaVKms)
+	num("rv_want_rel_k", &g.WantRelK)
+	if err := g.Validate(); err != nil {
+		var ie *ephem.InputError
+		if errors.As(err, &ie) {
+			bad(ie.Field, cell(ie.Field), ie.Accepted)
+		}
+		return nil
+	}
+	return &g
 }
 
 // ParsePhaseList parses goal centres separated by ';' ("0.25;0.75"), each
