@@ -145,6 +145,11 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 		return fromInputError(err, "not accepted", nil)
 	}
 	out := runOutput(rp, site, loc, acq)
+	tps, err := rp.Precision(nil)
+	if err != nil {
+		return fromInputError(err, "not accepted", nil)
+	}
+	out.Precision = planner.NewPrecisionDocs(tps)
 	if err := checkRunFinite(out); err != nil {
 		return err
 	}
@@ -232,7 +237,10 @@ type runJSONOut struct {
 	Objective   runObjectiveJSON  `json:"objective"`
 	Constraints constraintsJSON   `json:"constraints"`
 	Observed    []runObservedJSON `json:"observed"`
-	Caution     string            `json:"caution"`
+	// Precision is the predicted precision of the targets with an RV goal
+	// (planner.RunPlan.Precision).
+	Precision []planner.PrecisionDoc `json:"precision"`
+	Caution   string                 `json:"caution"`
 }
 
 // runNightJSON is one night: its date and part, planning window, whether it
@@ -443,6 +451,15 @@ func checkRunFinite(out runJSONOut) error {
 			}
 		}
 	}
+	for _, p := range out.Precision {
+		if r := p.RV; r != nil {
+			for _, q := range append([]planner.RVPrecisionDoc{r.Now, r.After}, r.PerNight...) {
+				if err := checkFinite([]string{"σK", "σγ", "σφ0", "σK/K"}, q.SigmaK, q.SigmaGamma, q.SigmaPhase0, q.RelK); err != nil {
+					return fmt.Errorf("%s: %w", p.Target, err)
+				}
+			}
+		}
+	}
 	for _, b := range out.BestNights {
 		for _, g := range b.Goals {
 			for _, n := range g.Nights {
@@ -558,6 +575,9 @@ func printRun(w io.Writer, rp *planner.RunPlan, out runJSONOut, loc *time.Locati
 			fmt.Fprintf(&b, "  %s: %s\n", tc.Target, strings.Join(cells, " "))
 		}
 	}
+	if err := printPrecision(&b, out.Precision); err != nil {
+		return err
+	}
 	b.WriteString("\nBest nights per goal (most exposures one block can hold; airmass over the windows):\n")
 	for _, tr := range rp.Reach {
 		for _, gr := range tr.Goals {
@@ -583,3 +603,42 @@ func printRun(w io.Writer, rp *planner.RunPlan, out runJSONOut, loc *time.Locati
 
 // fmtJ formats an objective value (millionths) in units.
 func fmtJ(v int64) string { return f(float64(v)/1e6, 3) }
+
+// printPrecision writes the predicted precision of the targets with an RV
+// goal: now (the observing log), after the plan, and the exposures still
+// needed for the wanted σK/K.
+func printPrecision(b *strings.Builder, docs []planner.PrecisionDoc) error {
+	if len(docs) == 0 {
+		return nil
+	}
+	b.WriteString("\nPredicted precision (Fisher matrix at the exposures' mid-phases; now = observing log):\n")
+	tb := newTable(b)
+	tb.row("  Target", "Model", "K km/s", "σv km/s", "Now σK/K", "After plan σK/K", "σK km/s", "Wanted", "Still needed")
+	for _, p := range docs {
+		r := p.RV
+		if r == nil {
+			continue
+		}
+		rel := func(q planner.RVPrecisionDoc) string {
+			return fmt.Sprintf("%s (%d)", planner.FormatRelPercent(q.RelK, q.Determined), q.N)
+		}
+		want, need := "—", "—"
+		if r.WantRelK > 0 {
+			want = "≤ " + planner.FormatRelPercent(r.WantRelK, true)
+			need = "over " + fmt.Sprint(planner.MaxExposuresNeeded)
+			if r.NeedAfter != nil {
+				need = fmt.Sprintf("%d exposure(s)", *r.NeedAfter)
+			}
+		}
+		sk := "—"
+		if r.After.Determined {
+			sk = f(r.After.SigmaK, 3)
+		}
+		tb.row("  "+p.Target, string(r.Model), fmtG(r.KKms), fmtG(r.SigmaVKms), rel(r.Now), rel(r.After), sk, want, need)
+	}
+	if err := tb.flush(); err != nil {
+		return err
+	}
+	b.WriteString("  (exposures in brackets; still needed: beyond the plan, at the velocity extremes, a lower bound)\n")
+	return nil
+}
