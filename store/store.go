@@ -241,8 +241,10 @@ type migration struct {
 	sql     string
 }
 
-// migrations returns the embedded migrations in order, checking that they
-// are numbered 1, 2, 3, … without gaps or repeats.
+// migrations returns the embedded migrations in order, checking that their
+// numbers strictly increase (no repeats). Numbers are handed out to parallel
+// changes in advance, so a gap (0004, then 0010) is allowed: the numbers in
+// between are applied when they arrive (see migrate).
 func migrations() ([]migration, error) {
 	entries, err := fs.ReadDir(migrationFS, "migrations")
 	if err != nil {
@@ -263,8 +265,8 @@ func migrations() ([]migration, error) {
 		ms = append(ms, migration{version: v, name: rest, sql: string(body)})
 	}
 	for i, m := range ms { // ReadDir sorts by name
-		if m.version != i+1 {
-			return nil, fmt.Errorf("migration %04d_%s: expected number %04d", m.version, m.name, i+1)
+		if m.version < 1 || (i > 0 && m.version <= ms[i-1].version) {
+			return nil, fmt.Errorf("migration %04d_%s: numbers must be 0001 and up, each once", m.version, m.name)
 		}
 	}
 	return ms, nil
@@ -284,14 +286,23 @@ func (s *Store) migrate(ctx context.Context) error {
 	) STRICT`); err != nil {
 		return fmt.Errorf("create schema_migrations: %w", err)
 	}
-	var current int
-	if err := s.wdb.QueryRowContext(ctx, "SELECT coalesce(max(version), 0) FROM schema_migrations").Scan(&current); err != nil {
-		return fmt.Errorf("read schema version: %w", err)
+	applied, err := s.appliedMigrations(ctx)
+	if err != nil {
+		return err
 	}
-	if current > len(ms) {
-		return fmt.Errorf("the database has schema version %d, newer than this program's %d: use a newer phasecast", current, len(ms))
+	known := map[int]bool{}
+	for _, m := range ms {
+		known[m.version] = true
 	}
-	for _, m := range ms[current:] {
+	for v := range applied {
+		if !known[v] {
+			return fmt.Errorf("the database has schema migration %04d, which this program does not know (newer than its %04d): use a newer phasecast", v, ms[len(ms)-1].version)
+		}
+	}
+	for _, m := range ms {
+		if applied[m.version] {
+			continue
+		}
 		if err := s.applyMigration(ctx, m); err != nil {
 			return err
 		}
@@ -316,6 +327,27 @@ func (s *Store) applyMigration(ctx context.Context, m migration) error {
 		return fmt.Errorf("migration %04d_%s: commit: %w", m.version, m.name, err)
 	}
 	return nil
+}
+
+// appliedMigrations reads the numbers recorded in schema_migrations.
+func (s *Store) appliedMigrations(ctx context.Context) (map[int]bool, error) {
+	rows, err := s.wdb.QueryContext(ctx, "SELECT version FROM schema_migrations")
+	if err != nil {
+		return nil, fmt.Errorf("read schema migrations: %w", err)
+	}
+	defer rows.Close()
+	out := map[int]bool{}
+	for rows.Next() {
+		var v int
+		if err := rows.Scan(&v); err != nil {
+			return nil, fmt.Errorf("read schema migrations: %w", err)
+		}
+		out[v] = true
+	}
+	if err := rows.Err(); err != nil {
+		return nil, fmt.Errorf("read schema migrations: %w", err)
+	}
+	return out, nil
 }
 
 // SchemaVersion returns the number of the newest applied migration.
