@@ -8,6 +8,8 @@ type PrecisionDoc struct {
 	Priority int                `json:"priority"`
 	RV       *RVForecastDoc     `json:"rv,omitempty"`
 	Timing   *TimingForecastDoc `json:"timing,omitempty"`
+	// TimingNote says why measured timings gave no forecast.
+	TimingNote string `json:"timing_note,omitempty"`
 }
 
 // RVForecastDoc is RVForecast in a document; km/s and cycles.
@@ -66,7 +68,7 @@ func NewPrecisionDocs(tps []TargetPrecision) []PrecisionDoc {
 		return TimingPrecisionDoc{N: p.N, Source: p.Source, SigmaT0Days: p.SigmaT0Days, SigmaPDays: p.SigmaPDays, SigmaPdot: p.SigmaPdot, RelP: p.RelP}
 	}
 	for _, tp := range tps {
-		d := PrecisionDoc{Target: tp.Target, Priority: tp.Priority}
+		d := PrecisionDoc{Target: tp.Target, Priority: tp.Priority, TimingNote: tp.TimingNote}
 		if f := tp.RV; f != nil {
 			r := &RVForecastDoc{Model: f.Goal.Model, KKms: f.Goal.KKms, SigmaVKms: f.Goal.SigmaVKms, WantRelK: f.Goal.WantRelK,
 				PhaseSigma: f.PhaseSigma, Now: rv(f.Now), After: rv(f.After), PerNight: []RVPrecisionDoc{}}

@@ -17,6 +17,9 @@ type TargetPrecision struct {
 	Priority    int
 	RV          *RVForecast     // nil when the target has no RV goal
 	Timing      *TimingForecast // nil when the target has no measured timings
+	// TimingNote says why a target with measured timings has no timing
+	// forecast (the fit cannot number its timings, for one).
+	TimingNote string
 }
 
 // RVForecast is the predicted precision of a target's RV goal.
@@ -54,8 +57,10 @@ type TimingForecast struct {
 // Precision predicts, for every target of the run with an RV goal or with
 // measured timings (timings[name], BJD_TDB), what the observed exposures
 // measure now and what the run's plan will measure (notes in precision.go).
-// Targets with neither are left out. Errors are those of PredictTimings for
-// a target's timings (the fit cannot number them, or one is bad).
+// Targets with neither are left out. A target whose timings the fit cannot
+// use (PredictTimings' errors: a cycle count it cannot make, a bad timing)
+// gets TimingNote instead of a timing forecast; the error returned is an RV
+// goal's that does not fit the target's ephemeris.
 func (rp *RunPlan) Precision(timings map[string][]ephem.Timing) ([]TargetPrecision, error) {
 	var out []TargetPrecision
 	site := rp.Request.Site
@@ -71,11 +76,11 @@ func (rp *RunPlan) Precision(timings map[string][]ephem.Timing) ([]TargetPrecisi
 		if tm := timings[t.Name]; len(tm) > 0 {
 			f, err := rp.timingForecast(site, t, tm)
 			if err != nil {
-				return nil, err
+				tp.TimingNote = "timing precision not predicted: " + err.Error()
 			}
 			tp.Timing = f
 		}
-		if tp.RV != nil || tp.Timing != nil {
+		if tp.RV != nil || tp.Timing != nil || tp.TimingNote != "" {
 			out = append(out, tp)
 		}
 	}

@@ -63,8 +63,8 @@ func checkDatabaseFile(ctx context.Context, path string) error {
 	if err != nil {
 		return err
 	}
-	if v > len(ms) {
-		return fmt.Errorf("check %s: schema version %d is newer than this program's %d", path, v, len(ms))
+	if newest := ms[len(ms)-1].version; v > newest {
+		return fmt.Errorf("check %s: schema version %d is newer than this program's %d", path, v, newest)
 	}
 	return nil
 }

@@ -58,6 +58,11 @@ func (s *Server) planRunJob(ctx context.Context, a store.Actor, in *runInputs, p
 		return "", err
 	}
 	doc := newRunDoc(in, rp, s.now())
+	tps, err := rp.Precision(in.timings)
+	if err != nil {
+		return "", err
+	}
+	doc.Precision = planner.NewPrecisionDocs(tps)
 	out, err := json.Marshal(doc)
 	if err != nil {
 		return "", err

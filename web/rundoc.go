@@ -23,7 +23,10 @@ type runDoc struct {
 	Nights    []runNightDoc  `json:"nights"`
 	Targets   []runTargetDoc `json:"targets"`
 	Objective runObjective   `json:"objective"`
-	Caution   string         `json:"caution"`
+	// Precision is the predicted precision of the targets with an RV goal
+	// or measured timings (planner.RunPlan.Precision).
+	Precision []planner.PrecisionDoc `json:"precision"`
+	Caution   string                 `json:"caution"`
 }
 
 type runNightDoc struct {
