@@ -124,7 +124,7 @@ func Night(site Site, year int, month time.Month, day int, loc *time.Location) N
 	}
 	start := time.Date(year, month, day, 12, 0, 0, 0, loc)
 	end := time.Date(year, month, day+1, 12, 0, 0, 0, loc)
-	midnight := time.Date(year, month, day+1, 0, 0, 0, 0, loc)
+	midnight := LocalDayStart(year, month, day+1, loc)
 	ev := NightEvents{
 		Start:           start.UTC(),
 		End:             end.UTC(),

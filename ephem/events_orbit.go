@@ -29,10 +29,12 @@ import (
 //	u = 0°    primary at its ascending node: primary at MAXIMUM RECESSION
 //	          (v₁ = +K₁(1+e cos ω)), companion at maximum approach.
 //	          T0 of the pulsar-timing convention (TASC).
-//	u = 90°   primary farthest behind (z₁ max): the companion is in front,
-//	          between the primary and the observer — the companion's INFERIOR
-//	          conjunction, mid primary eclipse in eclipsing systems; v₁ = v₂ = 0
-//	          (for e = 0), v₁ falling.
+//	u = 90°   primary behind the centre of mass, the companion in front of
+//	          it, between the primary and the observer — the companion's
+//	          INFERIOR conjunction, mid primary eclipse in eclipsing systems;
+//	          v₁ = K₁ e cos ω (0 for e = 0), v₁ falling. The primary is
+//	          farthest behind here only for a circular orbit: with
+//	          r₁ = a₁(1−e²)/(1 + e cos ν), z₁ peaks where cos u = −e cos ω.
 //	u = 180°  primary at its descending node: primary at maximum approach,
 //	          companion at MAXIMUM RECESSION.
 //	u = 270°  companion behind the primary: its SUPERIOR conjunction.

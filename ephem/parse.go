@@ -1,6 +1,8 @@
 package ephem
 
 import (
+	"errors"
+	"fmt"
 	"math"
 	"strconv"
 	"strings"
@@ -99,17 +101,98 @@ func ParseTime(s string) (time.Time, error) {
 	}
 	str := strings.TrimSpace(s)
 	for _, layout := range timeLayouts {
-		t, err := time.Parse(layout, str)
+		t, err := ParseTimeLayout(layout, str)
+		if errors.Is(err, ErrNotLeapSecond) {
+			return time.Time{}, &InputError{Field: "time", Value: shownValue(s), Accepted: acceptedLeap}
+		}
 		if err != nil {
 			continue
 		}
-		t = t.UTC()
 		if t.Year() < MinYear || t.Year() > MaxYear {
 			return bad()
 		}
 		return t, nil
 	}
 	return bad()
+}
+
+// ErrNotLeapSecond is wrapped by ParseTimeLayout's error for a second 60
+// that is not a leap second.
+var ErrNotLeapSecond = errors.New("second 60 is not a leap second")
+
+// ParseTimeLayout is time.Parse(layout, s) in UTC that also reads second 60,
+// which RFC 3339 (§5.6) and RFC 5545 (§3.3.12) allow for a positive leap
+// second: accepted only when it is 23:59:60 UTC (in whatever offset s is
+// written) on a day that ends with a leap second (IsLeapSecondDay), refused
+// elsewhere with an error saying so. time.Time has no leap seconds: the leap
+// second is read as the instant it ends, 00:00:00 UTC of the next day plus
+// any fraction, as time.Date normalises second 60. The layout's fields
+// before its seconds ("05") must be fixed-width, as RFC 3339's are.
+func ParseTimeLayout(layout, s string) (time.Time, error) {
+	t, err := time.Parse(layout, s)
+	if err == nil {
+		return t.UTC(), nil
+	}
+	i := strings.Index(layout, "05")
+	if i < 0 || len(s) < i+2 || s[i:i+2] != "60" {
+		return time.Time{}, err
+	}
+	t, err2 := time.Parse(layout, s[:i]+"59"+s[i+2:])
+	if err2 != nil {
+		return time.Time{}, err
+	}
+	u := t.UTC()
+	if y, m, d := u.Date(); u.Hour() != 23 || u.Minute() != 59 || !IsLeapSecondDay(y, m, d) {
+		return time.Time{}, fmt.Errorf("%q: %w; %s", s, ErrNotLeapSecond, acceptedLeap)
+	}
+	return u.Add(time.Second), nil
+}
+
+// acceptedLeap says where second 60 is accepted.
+var acceptedLeap = "second 60 only for a leap second, at 23:59:60 UTC on a day that ended with one (the last: " + lastLeapDay() + ")"
+
+// IsLeapSecondDay reports whether the UTC day year-month-day ended with a
+// positive leap second (23:59:60 UTC): the day before a line of the
+// TAI−UTC table (timescale.go) from 1972-07-01 on, where TAI−UTC steps up
+// by one second. After the table's last line none is assumed
+// (LeapTableUpdated).
+func IsLeapSecondDay(year int, month time.Month, day int) bool {
+	next := time.Date(year, month, day+1, 0, 0, 0, 0, time.UTC)
+	mjd := float64(next.Unix()/86400) + 40587 // MJD of 1970-01-01 is 40587
+	for i := 1; i < len(taiUTC); i++ {
+		if taiUTC[i].Start == mjd {
+			return taiUTC[i].Rate == 0 && taiUTC[i-1].Rate == 0 && taiUTC[i].Offset-taiUTC[i-1].Offset == 1
+		}
+	}
+	return false
+}
+
+// lastLeapDay is the last day of the table that ended with a leap second.
+func lastLeapDay() string {
+	last := taiUTC[len(taiUTC)-1]
+	return time.Unix(int64(last.Start-40587)*86400, 0).UTC().AddDate(0, 0, -1).Format("2006-01-02")
+}
+
+// LocalDayStart returns the first instant of the local calendar day
+// year-month-day in loc, in UTC. Usually local midnight; when a change of
+// offset skips midnight (a daylight-saving gap, as America/Santiago's on
+// 2026-09-06, whose day starts at 01:00 −03), the first instant that
+// exists on that day, not the instant of the day before that time.Date
+// normalises 00:00 to. Every local date that becomes an instant goes
+// through here. An out-of-range day is normalised first (day 0 is the last
+// of the month before), as time.Date does.
+func LocalDayStart(year int, month time.Month, day int, loc *time.Location) time.Time {
+	if loc == nil {
+		loc = time.UTC
+	}
+	year, month, day = time.Date(year, month, day, 12, 0, 0, 0, time.UTC).Date() // day 32 is the 1st of the next month
+	t := time.Date(year, month, day, 0, 0, 0, 0, loc)
+	if y, m, d := t.Date(); y != year || m != month || d != day {
+		if _, end := t.ZoneBounds(); !end.IsZero() {
+			t = end // the gap's end: the first instant of the new offset
+		}
+	}
+	return t.UTC()
 }
 
 // timeLayouts are tried in order. Layouts without a zone parse as UTC.

@@ -2,8 +2,11 @@ package planner
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"time"
+
+	"phasecast/ephem"
 )
 
 // PlanDoc is the JSON document of one planned night, shared by
@@ -195,7 +198,10 @@ func parseDocTime(b []byte) (time.Time, error) {
 	if err := json.Unmarshal(b, &s); err != nil {
 		return time.Time{}, fmt.Errorf("time %s: not a JSON string; want RFC 3339", ClipValue(string(b)))
 	}
-	u, err := time.Parse(time.RFC3339Nano, s)
+	u, err := ephem.ParseTimeLayout(time.RFC3339Nano, s)
+	if errors.Is(err, ErrNotLeapSecond) {
+		return time.Time{}, fmt.Errorf("time %q: %w", ClipValue(s), err)
+	}
 	if err != nil {
 		return time.Time{}, fmt.Errorf("time %q: not RFC 3339 (e.g. 2026-12-01T23:18:56Z)", ClipValue(s))
 	}

@@ -155,3 +155,20 @@ func TestNewPlanDoc(t *testing.T) {
 		t.Errorf("constraints.ha_min_hours: got %v (present %t), want null", v, ok)
 	}
 }
+
+// TestDocTimeLeapSecond: a document's time may carry second 60 on a
+// leap-second day (RFC 3339 §5.6), read as the instant it ends; elsewhere
+// it is refused, saying why.
+func TestDocTimeLeapSecond(t *testing.T) {
+	var got planner.DocTime
+	if err := json.Unmarshal([]byte(`"2016-12-31T23:59:60Z"`), &got); err != nil {
+		t.Fatal(err)
+	}
+	if want := time.Date(2017, 1, 1, 0, 0, 0, 0, time.UTC); !time.Time(got).Equal(want) {
+		t.Errorf("got %v, want %v", time.Time(got), want)
+	}
+	err := json.Unmarshal([]byte(`"2017-06-30T23:59:60Z"`), &got)
+	if err == nil || !strings.Contains(err.Error(), "leap second") {
+		t.Errorf("second 60 on an ordinary day: %v", err)
+	}
+}

@@ -29,10 +29,15 @@ type RunPlan struct {
 	Exposures []RunExposure // observed first (in request order), then planned by night and time
 	Coverage  []TargetCoverage
 	Reach     []TargetReach
-	// Value is the run objective J (see the coverage notes), millionths;
-	// MaxValue is J when every goal's requirement is met exactly (the sum of
-	// the targets' priority weights over their goals).
-	Value, MaxValue int64
+	// Value is the run objective J (see the coverage notes), millionths.
+	// RequiredValue is J when every goal's requirement is met exactly and
+	// nothing more (the sum of the targets' priority weights over their
+	// goals): J exceeds it by the value of coverage beyond the requirements
+	// (SurplusValue of a required night's for each night more), so J above
+	// RequiredValue does not mean that every requirement is met (see
+	// Coverage). MaxValue is the largest J the run's nights allow, every
+	// goal full on every night: Value ≤ MaxValue always.
+	Value, RequiredValue, MaxValue int64
 	// GreedyValue is J after the greedy pass over the nights, before the
 	// improvement rounds; IndependentValue (with CompareIndependent) is J
 	// when every remaining night is planned on its own, as PlanNight does.
@@ -291,7 +296,13 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 				gc.Status = CoverageUnreachable
 			}
 			out.Value += gc.Share
-			out.MaxValue += 1e6 * r.goals[ti][gi].w
+			rg := r.goals[ti][gi]
+			out.RequiredValue += 1e6 * rg.w
+			full := make([]int, K)
+			for k := range full {
+				full[k] = max(rg.need(), 1)
+			}
+			out.MaxValue += rg.value(full)
 		}
 	}
 	pc.tick()

@@ -146,6 +146,7 @@ func TestRunProperties(t *testing.T) {
 			if rp.Value < rp.GreedyValue {
 				t.Errorf("J %d below the greedy pass's %d", rp.Value, rp.GreedyValue)
 			}
+			checkObjectiveBounds(t, req, rp)
 			blocks := 0
 			for _, np := range rp.Nights {
 				checkNightRules(t, req, np)
@@ -158,6 +159,40 @@ func TestRunProperties(t *testing.T) {
 			checkUnreachable(t, req, rp)
 			checkCapacity(t, rp)
 		})
+	}
+}
+
+// checkObjectiveBounds checks J against its bounds, recomputed here from
+// the coverage notes: RequiredValue is Σ w(priority)·10⁶ over the goals
+// (u = 1 each), MaxValue Σ w·10⁶·(min(K, M) + SurplusValue·max(0, K−M))/M
+// for K nights (every night full), and J never exceeds MaxValue, though it
+// may exceed RequiredValue through coverage beyond the requirements.
+func checkObjectiveBounds(t *testing.T, req planner.RunRequest, rp *planner.RunPlan) {
+	t.Helper()
+	K := len(req.Nights)
+	var required, most float64
+	goals := 0
+	for _, tg := range req.Targets {
+		gs, err := tg.ResolveGoals()
+		if err != nil {
+			t.Fatal(err)
+		}
+		w := float64(planner.PriorityWeight(tg.Priority))
+		for _, g := range gs {
+			M := max(g.MinNights, 1)
+			required += 1e6 * w
+			most += 1e6 * w * (float64(min(K, M)) + planner.SurplusValue*float64(max(0, K-M))) / float64(M)
+			goals++
+		}
+	}
+	if float64(rp.RequiredValue) != required {
+		t.Errorf("RequiredValue %d, want %.0f", rp.RequiredValue, required)
+	}
+	if math.Abs(float64(rp.MaxValue)-most) > float64(goals) { // one millionth of rounding per goal
+		t.Errorf("MaxValue %d, want %.0f", rp.MaxValue, most)
+	}
+	if rp.Value > rp.MaxValue || rp.RequiredValue > rp.MaxValue {
+		t.Errorf("J %d (required %d) above its maximum %d", rp.Value, rp.RequiredValue, rp.MaxValue)
 	}
 }
 

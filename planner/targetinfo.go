@@ -1,6 +1,8 @@
 package planner
 
 import (
+	"fmt"
+	"math"
 	"time"
 
 	"phasecast/ephem"
@@ -37,6 +39,7 @@ const (
 	StdBJDTDB                = ephem.StdBJDTDB
 	FormJD                   = ephem.FormJD
 	ConvInferiorConjunction  = ephem.ConvInferiorConjunction
+	ConvAscendingNode        = ephem.ConvAscendingNode
 	EventInferiorConjunction = ephem.EventInferiorConjunction
 )
 
@@ -115,6 +118,32 @@ func EventPhase(e Ephemeris, ev Event, eclipseDurDays float64) (float64, error) 
 // must be valid.
 func NightEventsOn(site Site, year int, month time.Month, day int, loc *time.Location) NightEvents {
 	return ephem.Night(site, year, month, day, loc)
+}
+
+// ParseTimeLayout is time.Parse in UTC that reads second 60 on a
+// leap-second day as the instant the leap second ends, and refuses it
+// elsewhere with an error wrapping ErrNotLeapSecond (ephem.ParseTimeLayout;
+// RFC 3339 §5.6, RFC 5545 §3.3.12).
+func ParseTimeLayout(layout, s string) (time.Time, error) { return ephem.ParseTimeLayout(layout, s) }
+
+// ErrNotLeapSecond is wrapped by the time parsers' error for a second 60
+// that is not a leap second.
+var ErrNotLeapSecond = ephem.ErrNotLeapSecond
+
+// LocalSiderealHours returns the local apparent sidereal time at site at
+// UTC instant t, in hours, 0 ≤ LST < 24 (Meeus ch. 12, via
+// ephem.Site.LASTHours; UT1 = UTC, at most 0.9 s off). The hour angle of a
+// star is LST − RA.
+func LocalSiderealHours(site Site, t time.Time) float64 { return site.LASTHours(t) }
+
+// FormatHours writes hours 0 ≤ h < 24 as "hh:mm" (rounded to the minute,
+// 24:00 written 00:00), the way sidereal time is read at the telescope.
+func FormatHours(h float64) string {
+	m := int(math.Round(h*60)) % (24 * 60)
+	if m < 0 {
+		m += 24 * 60
+	}
+	return fmt.Sprintf("%02d:%02d", m/60, m%60)
 }
 
 // SkyAt returns where the star stands at UTC instant t seen from site

@@ -64,7 +64,7 @@ func (r Reason) Describe(c Constraints) string {
 	case ReasonBelowHorizon:
 		return "below the horizon"
 	case ReasonAirmass:
-		return "above airmass " + fmtNum(c.MaxAirmass)
+		return "too low for the airmass limit (airmass over " + fmtNum(c.MaxAirmass) + ")"
 	case ReasonMinAlt:
 		return "below " + fmtNum(c.MinAltDeg) + "° altitude"
 	case ReasonHorizonMask:

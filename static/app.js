@@ -6,6 +6,8 @@
 // - data-countdown="RFC3339": ticks a countdown each second.
 // - data-progress="URL": polls a JSON progress endpoint and updates a
 //   <progress> element, then follows data-done when finished.
+// - button[data-copy="ID"]: copies the text of element ID to the clipboard
+//   (the button stays hidden without script; the text is selectable).
 (function () {
   "use strict";
 
@@ -82,5 +84,34 @@
       window.setInterval(tickCountdowns, 1000);
     }
     document.querySelectorAll("[data-progress]").forEach(pollProgress);
+    document.querySelectorAll("button[data-copy]").forEach(function (b) { b.hidden = false; });
+  });
+
+  function selectText(el) {
+    var range = document.createRange();
+    range.selectNodeContents(el);
+    var sel = window.getSelection();
+    sel.removeAllRanges();
+    sel.addRange(range);
+  }
+
+  document.addEventListener("click", function (ev) {
+    var b = ev.target;
+    if (!b || !b.matches || !b.matches("button[data-copy]")) { return; }
+    var el = document.getElementById(b.getAttribute("data-copy"));
+    if (!el) { return; }
+    var text = el.textContent.trim();
+    function done(ok) {
+      b.textContent = ok ? "Copied" : "Select and copy";
+      if (!ok) { selectText(el); }
+    }
+    if (navigator.clipboard && window.isSecureContext) {
+      navigator.clipboard.writeText(text).then(function () { done(true); }, function () { done(false); });
+    } else {
+      selectText(el);
+      var ok = false;
+      try { ok = document.execCommand("copy"); } catch (e) { ok = false; }
+      done(ok);
+    }
   });
 })();

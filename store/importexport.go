@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"sort"
 
 	"phasecast/planner"
@@ -65,6 +66,9 @@ type cellKey struct {
 // add records a problem with a row's field, once per line and column.
 func (c *fileCheck) add(line int, field, value, reason string) {
 	col, n := c.pf.column(field)
+	if n == 0 && c.pf.Format == FormatCSV && slices.Contains(csvColumns, col) {
+		value, reason = missingColumn(field, col, reason)
+	}
 	if c.seen[cellKey{line, col}] { // already reported while reading
 		return
 	}
@@ -241,57 +245,47 @@ func sepArcsec(ra1, dec1, ra2, dec2 float64) float64 {
 	return 2 * math.Asin(math.Min(1, math.Sqrt(h))) / r * 3600
 }
 
-// nearPairs finds rows within DuplicateRadiusArcsec of another row, or of a
-// target already on the list under another name. It sorts by declination
-// and compares only neighbours within the radius in declination, so it is
-// O(n log n) for spread-out lists.
+// nearPairs finds the rows within DuplicateRadiusArcsec of an earlier row
+// of the file, or of a target already on the list under another name: at
+// most one finding per row, naming the earliest such neighbour (a target
+// of the list before any row). The search is a k-d tree over unit vectors
+// (nearIndex), so time and memory stay close to proportional to the file
+// even when every row is at one position; an all-pairs comparison made
+// n(n−1)/2 findings there.
 func nearPairs(pf parsedFile, inputs []TargetInput, existing []StoredTarget, skip map[int]bool) []nearPair {
-	type pt struct {
-		ra, dec float64
-		line    int // 0 for an existing target
-		name    string
-	}
 	renamedAway := map[string]bool{} // existing names the file itself lists
-	var pts []pt
-	for i, in := range inputs {
+	for _, in := range inputs {
 		renamedAway[in.Target.Name] = true
-		if !skip[pf.Rows[i].Line] {
-			pts = append(pts, pt{in.Target.RADeg, in.Target.DecDeg, pf.Rows[i].Line, in.Target.Name})
-		}
 	}
+	var pts []nearPoint
 	for _, st := range existing {
 		if !renamedAway[st.Target.Name] {
-			pts = append(pts, pt{st.Target.RADeg, st.Target.DecDeg, 0, st.Target.Name})
+			pts = append(pts, newNearPoint(st.Target.RADeg, st.Target.DecDeg, 0, st.Target.Name))
 		}
 	}
-	sort.Slice(pts, func(i, j int) bool { return pts[i].dec < pts[j].dec })
-	const radDeg = DuplicateRadiusArcsec / 3600
-	var out []nearPair
-	for i := range pts {
-		for j := i + 1; j < len(pts) && pts[j].dec-pts[i].dec <= radDeg; j++ {
-			a, b := pts[i], pts[j]
-			if a.line == 0 && b.line == 0 {
-				continue
-			}
-			sep := sepArcsec(a.ra, a.dec, b.ra, b.dec)
-			if sep > DuplicateRadiusArcsec {
-				continue
-			}
-			var line int
-			var where string
-			switch {
-			case a.line == 0:
-				line, where = b.line, fmt.Sprintf("%q already on the list", a.name)
-			case b.line == 0:
-				line, where = a.line, fmt.Sprintf("%q already on the list", b.name)
-			case a.line < b.line:
-				line, where = b.line, fmt.Sprintf("%q on line %d", a.name, a.line)
-			default:
-				line, where = a.line, fmt.Sprintf("%q on line %d", b.name, b.line)
-			}
-			out = append(out, nearPair{line: line, reason: fmt.Sprintf(
-				"probable duplicate: %.1f″ from %s (targets closer than %g″ are taken for the same object)", sep, where, DuplicateRadiusArcsec)})
+	for i, in := range inputs {
+		if !skip[pf.Rows[i].Line] {
+			pts = append(pts, newNearPoint(in.Target.RADeg, in.Target.DecDeg, pf.Rows[i].Line, in.Target.Name))
 		}
+	}
+	queries := append([]nearPoint(nil), pts...)
+	idx := newNearIndex(pts)
+	var out []nearPair
+	for _, p := range queries {
+		if p.line == 0 {
+			continue // targets already on the list are not checked against each other
+		}
+		q, ok := idx.earliestWithin(p)
+		if !ok {
+			continue
+		}
+		where := fmt.Sprintf("%q on line %d", q.name, q.line)
+		if q.line == 0 {
+			where = fmt.Sprintf("%q already on the list", q.name)
+		}
+		out = append(out, nearPair{line: p.line, reason: fmt.Sprintf(
+			"probable duplicate: %.1f″ from %s (targets closer than %g″ are taken for the same object)",
+			sepArcsec(p.ra, p.dec, q.ra, q.dec), where, DuplicateRadiusArcsec)})
 	}
 	return out
 }

@@ -420,7 +420,14 @@ func scanPlan(sc interface{ Scan(...any) error }, full bool) (SavedPlan, error) 
 
 const planCols = "id, run_id, name, engine_version, coalesce(created_by, 0), created_at"
 
-// SavePlan keeps a plan for a run (editors and owners).
+// MaxPlansPerRun is how many saved plans a run keeps: saving one more
+// deletes the oldest (each deletion audited), so that repeated planning
+// cannot fill the disk. Observations belong to the run, not to a plan, so
+// nothing marked is lost; an old plan can be made again from its inputs.
+const MaxPlansPerRun = 50
+
+// SavePlan keeps a plan for a run (editors and owners); a run keeps its
+// newest MaxPlansPerRun plans.
 func (s *Store) SavePlan(ctx context.Context, a Actor, runID int64, in SavedPlanInput) (SavedPlan, error) {
 	const op = "store.SavePlan"
 	v := &ValidationError{}
@@ -467,7 +474,43 @@ func (s *Store) SavePlan(ctx context.Context, a Actor, runID int64, in SavedPlan
 	if err := t.audit(r.TeamID, EntPlan, id, ActCreate, nil, planSummary(p)); err != nil {
 		return SavedPlan{}, wrap(op, err)
 	}
+	if err := prunePlans(t, r); err != nil {
+		return SavedPlan{}, wrap(op, err)
+	}
 	return p, commit(t, op)
+}
+
+// prunePlans deletes the plans of run r beyond its newest MaxPlansPerRun.
+func prunePlans(t *txn, r Run) error {
+	rows, err := t.query("SELECT "+planCols+" FROM saved_plans WHERE run_id = ? ORDER BY id DESC LIMIT -1 OFFSET ?", r.ID, MaxPlansPerRun)
+	if err != nil {
+		return err
+	}
+	var old []SavedPlan
+	for rows.Next() {
+		p, err := scanPlan(rows, false)
+		if err != nil {
+			rows.Close()
+			return err
+		}
+		old = append(old, p)
+	}
+	if err := rows.Err(); err != nil {
+		rows.Close()
+		return err
+	}
+	if err := rows.Close(); err != nil {
+		return err
+	}
+	for _, p := range old {
+		if _, err := t.exec("DELETE FROM saved_plans WHERE id = ?", p.ID); err != nil {
+			return err
+		}
+		if err := t.audit(r.TeamID, EntPlan, p.ID, ActDelete, p, nil); err != nil {
+			return fmt.Errorf("prune plan %d of run %d: %w", p.ID, r.ID, err)
+		}
+	}
+	return nil
 }
 
 func planSummary(p SavedPlan) SavedPlan {

@@ -115,11 +115,24 @@ func parseFile(b []byte, f FileFormat) (parsedFile, error) {
 	return parsedFile{}, errInvalid("format: %q is not accepted; accepted: csv, plan_csv, json (or empty to detect)", f)
 }
 
-// tableErr wraps a TableError as EINVALID with a short message.
+// MaxFileProblems is the most problems a refused file lists one by one;
+// the rest are counted in a last entry ("… and N more problems"), so that
+// a file bad on every line does not make a message per line to send.
+const MaxFileProblems = 100
+
+// tableErr wraps a TableError as EINVALID with a short message, keeping
+// the first MaxFileProblems problems and a last entry counting the rest.
 func tableErr(te *planner.TableError) error {
-	msg := fmt.Sprintf("%d problem(s) in the file; nothing was imported", len(te.Cells))
-	if len(te.Cells) > 0 {
+	total := len(te.Cells)
+	msg := fmt.Sprintf("%d problem(s) in the file; nothing was imported", total)
+	if total > 0 {
 		msg += "; first: " + te.Cells[0].String()
+	}
+	if total > MaxFileProblems {
+		rest := te.Cells[MaxFileProblems]
+		te.Cells = append(te.Cells[:MaxFileProblems:MaxFileProblems], planner.CellError{Line: rest.Line,
+			Reason: fmt.Sprintf("… and %d more problems from this line on (the first %d are listed); fix these and import again",
+				total-MaxFileProblems, MaxFileProblems)})
 	}
 	return &Error{Code: EINVALID, Message: msg, Err: te}
 }
@@ -262,15 +275,26 @@ func parseTeamCSV(b []byte) (parsedFile, error) {
 	pf.Cells = te.Cells
 	pf.column = func(field string) (string, int) {
 		c := goalSubfield(field)
-		if strings.HasPrefix(c, "goals") || (strings.HasPrefix(field, "goals") && !hasKey(col, c)) {
+		if strings.HasPrefix(c, "goals") || (strings.HasPrefix(field, "goals") && !hasKey(col, c) && !slices.Contains(csvColumns, c)) {
 			c = "goals"
 		}
 		if i, ok := col[c]; ok {
 			return c, i + 1
 		}
-		return c, 0
+		return c, 0 // a column the header lacks: see missingColumn
 	}
 	return pf, nil
+}
+
+// missingColumn rewords a check on a value the team CSV never gave: the
+// header lacks its column, so the value is the default and the message
+// says the column is missing (and, for a goal's setting, that the goals
+// cell gave none either).
+func missingColumn(field, col, accepted string) (value, reason string) {
+	if strings.HasPrefix(field, "goals[") {
+		return "", fmt.Sprintf("the file has no %s column and the goals cell gives none for this goal; accepted: %s", col, accepted)
+	}
+	return "", fmt.Sprintf("the file has no %s column; accepted: %s", col, accepted)
 }
 
 func hasKey(m map[string]int, k string) bool { _, ok := m[k]; return ok }

@@ -162,6 +162,14 @@ func resolveEpoch(v *ValidationError, field string, e Epoch, st ephem.Star) (Epo
 	return out, bjd, true
 }
 
+// CheckTargetInput validates in without storing it: nil, or the EINVALID
+// error CreateTarget would return, carrying every rejected field (a
+// *ValidationError). Forms call it to report all bad fields at once.
+func CheckTargetInput(in TargetInput) error {
+	_, v := validateTargetInput(in)
+	return v.err()
+}
+
 // validateTargetInput checks every field, and returns the input with T0
 // resolved: Target.Ephem.T0 is set to the BJD_TDB value and T0 to the epoch
 // as given. Field names are those of the target file format (FORMAT.md).

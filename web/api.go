@@ -7,8 +7,8 @@ import (
 	"fmt"
 	"io"
 	"net/http"
-	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"phasecast/store"
 )
@@ -38,7 +38,11 @@ func (s *Server) apiUser(h func(http.ResponseWriter, *http.Request, *user)) http
 			return
 		}
 		u := &user{actor: a}
-		want, _ := strconv.ParseInt(r.URL.Query().Get("team"), 10, 64)
+		want, err := queryID(r.URL.Query(), "team")
+		if err != nil {
+			s.apiError(w, r, err)
+			return
+		}
 		for _, m := range a.Teams {
 			if m.TeamID == want || (want == 0 && u.team.TeamID == 0) {
 				u.team = m
@@ -77,7 +81,7 @@ func (s *Server) apiError(w http.ResponseWriter, r *http.Request, err error) {
 	if errors.Is(err, errMalformed) {
 		code = codeInvalid
 	}
-	if status == http.StatusServiceUnavailable {
+	if status == http.StatusServiceUnavailable && code != codeBusy {
 		code = codeInternal
 	}
 	body.Error.Code, body.Error.Message = code, msg
@@ -134,13 +138,28 @@ func writeJSON(w http.ResponseWriter, status int, v any) {
 	w.Header().Set("Content-Type", "application/json")
 	w.Header().Set("Cache-Control", "no-store")
 	w.WriteHeader(status)
-	_, _ = buf.WriteTo(w)
+	_, _ = buf.WriteTo(w) // dropped: the status is sent; a client that has gone cannot be told more
 }
 
-// readJSON decodes a request body of at most 4 MiB into v, refusing
-// unknown members and trailing data.
+// maxAPIBody bounds a JSON API request body (bytes).
+const maxAPIBody = 4 << 20
+
+// readJSON decodes a request body of at most maxAPIBody into v: a larger
+// body is 413, text that is not UTF-8 is 422 naming the member (the JSON
+// decoder would silently store U+FFFD), unknown members and trailing data
+// are 400.
 func readJSON(w http.ResponseWriter, r *http.Request, v any) error {
-	dec := json.NewDecoder(http.MaxBytesReader(w, r.Body, 4<<20))
+	b, err := io.ReadAll(http.MaxBytesReader(w, r.Body, maxAPIBody))
+	if tl := bodyLimitError(err, "the JSON body"); tl != nil {
+		return tl
+	}
+	if err != nil {
+		return &codedError{code: codeInvalid, msg: "the JSON body could not be read", err: fmt.Errorf("%w: %v", errMalformed, err)}
+	}
+	if !utf8.Valid(b) {
+		return errInvalid(fmt.Sprintf("%s: the text is not valid UTF-8; accepted: UTF-8 text", invalidUTF8Member(b)))
+	}
+	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(v); err != nil {
 		return &codedError{code: codeInvalid, msg: "the JSON body is not accepted: " + err.Error(), err: errMalformed}
@@ -149,6 +168,77 @@ func readJSON(w http.ResponseWriter, r *http.Request, v any) error {
 		return &codedError{code: codeInvalid, msg: "the JSON body has data after the object", err: errMalformed}
 	}
 	return nil
+}
+
+// invalidUTF8Member names the member of a JSON document b whose text
+// holds the first byte that is not UTF-8 ("name", "goals[1].event"), or
+// "body" when that byte is outside any string.
+func invalidUTF8Member(b []byte) string {
+	at := len(b)
+	for i := 0; i < len(b); {
+		r, n := utf8.DecodeRune(b[i:])
+		if r == utf8.RuneError && n <= 1 {
+			at = i
+			break
+		}
+		i += n
+	}
+	type level struct {
+		array bool
+		key   string
+		index int
+	}
+	var path []level
+	memberPath := func() string {
+		var sb strings.Builder
+		for _, l := range path {
+			if l.array {
+				fmt.Fprintf(&sb, "[%d]", l.index)
+			} else if l.key != "" {
+				if sb.Len() > 0 {
+					sb.WriteByte('.')
+				}
+				sb.WriteString(l.key)
+			}
+		}
+		if sb.Len() == 0 {
+			return "body"
+		}
+		return sb.String()
+	}
+	dec := json.NewDecoder(bytes.NewReader(b))
+	expectKey := false
+	for {
+		tok, err := dec.Token()
+		if err != nil {
+			return "body"
+		}
+		end, top := int(dec.InputOffset()), len(path)-1
+		if d, ok := tok.(json.Delim); ok && (d == '}' || d == ']') {
+			path = path[:top]
+			expectKey = len(path) > 0 && !path[len(path)-1].array
+			continue
+		}
+		if key, ok := tok.(string); ok && expectKey && top >= 0 {
+			path[top].key, expectKey = key, false
+			if end > at {
+				return memberPath() // the member's name itself
+			}
+			continue
+		}
+		if top >= 0 && path[top].array {
+			path[top].index++
+		}
+		if d, ok := tok.(json.Delim); ok {
+			path = append(path, level{array: d == '[', index: -1})
+			expectKey = d == '{'
+			continue
+		}
+		if end > at {
+			return memberPath()
+		}
+		expectKey = top >= 0 && !path[top].array
+	}
 }
 
 // apiNotFound answers API paths no route matches, in JSON.

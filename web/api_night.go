@@ -18,5 +18,5 @@ func (s *Server) apiNight(w http.ResponseWriter, r *http.Request, u *user) {
 	}
 	w.Header().Set("Content-Type", "application/json")
 	w.Header().Set("Cache-Control", "no-store")
-	_, _ = w.Write(append(b, '\n'))
+	_, _ = w.Write(append(b, '\n')) // dropped: the status is sent; a client that has gone cannot be told more
 }

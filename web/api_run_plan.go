@@ -16,8 +16,11 @@ func (s *Server) apiRunPlan(w http.ResponseWriter, r *http.Request, u *user) {
 		s.apiError(w, r, err)
 		return
 	}
-	want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
-	_, doc, _, err := s.runPlanDoc(r.Context(), u.actor, id, want)
+	want, err := queryID(r.URL.Query(), "plan")
+	var doc *runDoc
+	if err == nil {
+		_, doc, _, err = s.runPlanDoc(r.Context(), u.actor, id, want)
+	}
 	if err == nil && doc == nil {
 		err = errNotFound("the run has no saved plan yet: POST /api/v1/runs/{id}/plan makes one")
 	}
@@ -36,8 +39,11 @@ func (s *Server) apiRunCoverage(w http.ResponseWriter, r *http.Request, u *user)
 		s.apiError(w, r, err)
 		return
 	}
-	want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
-	_, doc, _, err := s.runPlanDoc(r.Context(), u.actor, id, want)
+	want, err := queryID(r.URL.Query(), "plan")
+	var doc *runDoc
+	if err == nil {
+		_, doc, _, err = s.runPlanDoc(r.Context(), u.actor, id, want)
+	}
 	if err == nil && doc == nil {
 		err = errNotFound("the run has no saved plan yet: POST /api/v1/runs/{id}/plan makes one")
 	}

@@ -14,6 +14,10 @@ func (s *Server) apiTargetCreate(w http.ResponseWriter, r *http.Request, u *user
 		s.apiError(w, r, err)
 		return
 	}
+	if err := in.checkIdentity(0, id); err != nil {
+		s.apiError(w, r, err)
+		return
+	}
 	ti, err := in.input()
 	if err != nil {
 		s.apiError(w, r, err)

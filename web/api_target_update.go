@@ -20,6 +20,16 @@ func (s *Server) apiTargetUpdate(w http.ResponseWriter, r *http.Request, u *user
 		s.apiError(w, r, errInvalid("version: give the version you read (GET returns it); it guards against overwriting someone else's change"))
 		return
 	}
+	if in.ID != 0 || in.ListID != 0 {
+		cur, err := s.store.GetTarget(r.Context(), u.actor, id)
+		if err == nil {
+			err = in.checkIdentity(id, cur.ListID)
+		}
+		if err != nil {
+			s.apiError(w, r, err)
+			return
+		}
+	}
 	ti, err := in.input()
 	if err != nil {
 		s.apiError(w, r, err)

@@ -99,6 +99,25 @@ func targetToJSON(t store.StoredTarget) targetJSON {
 	return out
 }
 
+// checkIdentity refuses a body whose "id" or "list_id" names another
+// target or list than the request's: those members are output only (a
+// GET's answer may be sent back as it is), and a target cannot be moved
+// to another list or written under another id. targetID is 0 for a new
+// target.
+func (j targetJSON) checkIdentity(targetID, listID int64) error {
+	if j.ID != 0 && j.ID != targetID {
+		accepted := "no id (the server gives it)"
+		if targetID != 0 {
+			accepted = fmt.Sprintf("absent or %d, the id in the address", targetID)
+		}
+		return errInvalid(fmt.Sprintf("id: %d is not accepted; accepted: %s", j.ID, accepted))
+	}
+	if j.ListID != 0 && j.ListID != listID {
+		return errInvalid(fmt.Sprintf("list_id: %d is not accepted; accepted: absent or %d, the target's own list (a target is not moved between lists)", j.ListID, listID))
+	}
+	return nil
+}
+
 // input converts an API target to the store's input. The epoch is read as
 // written; bad T0 text is EINVALID naming the field.
 func (j targetJSON) input() (store.TargetInput, error) {

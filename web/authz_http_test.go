@@ -401,6 +401,25 @@ func (h *harness) newAuthzWorld(tb testing.TB, n int) authzWorld {
 	return w
 }
 
+// planRun plans run runID as a and saves the plan through the optimizer's own code
+// path (planRunJob) and returns the run's saved plans, newest first.
+func (h *harness) planRun(tb testing.TB, a store.Actor, runID int64) []store.SavedPlan {
+	tb.Helper()
+	ctx := context.Background()
+	in, err := h.srv.loadRun(ctx, a, runID)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	if _, err := h.srv.planRunJob(ctx, a, in, 0, &job{}); err != nil {
+		tb.Fatal(err)
+	}
+	plans, err := h.store.ListPlans(ctx, a, runID)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return plans
+}
+
 // addAuthzPlan plans w's run through the optimizer's own code path
 // (planRunJob, as POST /runs/{id}/optimize does in the background) and
 // records the saved plan's id; the plan must have a block to mark.
@@ -408,17 +427,7 @@ func (h *harness) addAuthzPlan(tb testing.TB, w *authzWorld) {
 	tb.Helper()
 	ctx := context.Background()
 	owner := h.actor("owner")
-	in, err := h.srv.loadRun(ctx, owner, w.run)
-	if err != nil {
-		tb.Fatal(err)
-	}
-	if _, err := h.srv.planRunJob(ctx, owner, in, 0, &job{}); err != nil {
-		tb.Fatal(err)
-	}
-	plans, err := h.store.ListPlans(ctx, owner, w.run)
-	if err != nil {
-		tb.Fatal(err)
-	}
+	plans := h.planRun(tb, owner, w.run)
 	if len(plans) != 1 {
 		tb.Fatalf("run %d has %d saved plans, want 1", w.run, len(plans))
 	}

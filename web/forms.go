@@ -42,7 +42,11 @@ func formErrs(err error) (errs page.Errs, status int, ok bool) {
 // parseForm reads a posted form (at most 2 MiB).
 func parseForm(w http.ResponseWriter, r *http.Request) error {
 	r.Body = http.MaxBytesReader(w, r.Body, 2<<20)
-	if err := r.ParseForm(); err != nil {
+	err := r.ParseForm()
+	if tl := bodyLimitError(err, "the form"); tl != nil {
+		return tl
+	}
+	if err != nil {
 		return fmt.Errorf("%w: %v", errMalformed, err)
 	}
 	return nil

@@ -30,10 +30,14 @@ func importFormats(sel string) []page.Option {
 func readImport(w http.ResponseWriter, r *http.Request) (content, format string, err error) {
 	r.Body = http.MaxBytesReader(w, r.Body, maxImportForm)
 	if strings.HasPrefix(r.Header.Get("Content-Type"), "multipart/form-data") {
-		if err := r.ParseMultipartForm(maxImportForm); err != nil {
-			return "", "", fmt.Errorf("%w: %v", errMalformed, err)
-		}
-	} else if err := r.ParseForm(); err != nil {
+		err = r.ParseMultipartForm(maxImportForm)
+	} else {
+		err = r.ParseForm()
+	}
+	if tl := bodyLimitError(err, "the import (file and form)"); tl != nil {
+		return "", "", tl
+	}
+	if err != nil {
 		return "", "", fmt.Errorf("%w: %v", errMalformed, err)
 	}
 	format = r.PostFormValue("format")

@@ -63,6 +63,10 @@ type jobs struct {
 
 const maxJobs = 2
 
+// maxJobsPerUser is how many background computations one user may run at
+// once, so that one user cannot take every slot of maxJobs.
+const maxJobsPerUser = 1
+
 // start runs work in the background under a context that the job's cancel
 // button (or a 10-minute limit) ends.
 func (js *jobs) start(userID int64, title, back string, work func(ctx context.Context, j *job) (next string, err error)) (*job, error) {
@@ -71,7 +75,7 @@ func (js *jobs) start(userID int64, title, back string, work func(ctx context.Co
 	if js.m == nil {
 		js.m = map[string]*job{}
 	}
-	running := 0
+	running, mine := 0, 0
 	for id, j := range js.m {
 		_, _, finished, _ := j.state()
 		if finished && time.Since(j.started) > time.Hour { // elapsed
@@ -81,10 +85,16 @@ func (js *jobs) start(userID int64, title, back string, work func(ctx context.Co
 			if j.userID == userID && j.back == back {
 				return j, nil // the same computation is already running
 			}
+			if j.userID == userID {
+				mine++
+			}
 		}
 	}
+	if mine >= maxJobsPerUser {
+		return nil, &codedError{code: codeTooMany, msg: "You already have a run being planned; wait for it to finish (or stop it), then try again."}
+	}
 	if running >= maxJobs {
-		return nil, errInvalid("The server is busy with other long computations; try again in a minute.")
+		return nil, errBusy()
 	}
 	b := make([]byte, 12)
 	if _, err := rand.Read(b); err != nil {

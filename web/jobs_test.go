@@ -60,15 +60,21 @@ func TestJobs(t *testing.T) {
 		block := make(chan struct{})
 		defer close(block)
 		for i := range maxJobs {
-			if _, err := js.start(2, "t", "/busy"+i64s(int64(i)), func(ctx context.Context, j *job) (string, error) {
+			// One job per user (maxJobsPerUser), users 10, 11, …
+			if _, err := js.start(10+int64(i), "t", "/busy"+i64s(int64(i)), func(ctx context.Context, j *job) (string, error) {
 				<-block
 				return "", nil
 			}); err != nil {
 				t.Fatal(err)
 			}
 		}
-		if _, err := js.start(3, "t", "/more", func(ctx context.Context, j *job) (string, error) { return "", nil }); err == nil {
-			t.Error("a job beyond the limit was started")
+		_, err := js.start(10, "t", "/another", func(ctx context.Context, j *job) (string, error) { return "", nil })
+		if code, _ := errorCode(err); code != codeTooMany {
+			t.Errorf("a second job of one user: %v, want %s", err, codeTooMany)
+		}
+		_, err = js.start(3, "t", "/more", func(ctx context.Context, j *job) (string, error) { return "", nil })
+		if code, _ := errorCode(err); code != codeBusy {
+			t.Errorf("a job beyond the server's limit: %v, want %s", err, codeBusy)
 		}
 	})
 }

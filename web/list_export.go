@@ -41,10 +41,13 @@ func (s *Server) listExport(format store.FileFormat) func(http.ResponseWriter, *
 
 var unsafeName = regexp.MustCompile(`[^A-Za-z0-9._-]+`)
 
+// dashes is a run of dashes, written as one in file names.
+var dashes = regexp.MustCompile(`-{2,}`)
+
 // fileName makes a download name such as "my-list-targets.csv" from
 // free text, keeping only safe characters.
 func fileName(base, what, ext string) string {
-	b := strings.Trim(unsafeName.ReplaceAllString(strings.ToLower(base), "-"), "-.")
+	b := strings.Trim(dashes.ReplaceAllString(unsafeName.ReplaceAllString(strings.ToLower(base), "-"), "-"), "-.")
 	if b == "" {
 		b = "phasecast"
 	}
@@ -59,5 +62,5 @@ func download(w http.ResponseWriter, ctype, name string, body []byte) {
 	w.Header().Set("Content-Type", ctype)
 	w.Header().Set("Content-Disposition", `attachment; filename="`+name+`"`)
 	w.Header().Set("Cache-Control", "no-store")
-	_, _ = w.Write(body)
+	_, _ = w.Write(body) // dropped: the status is sent; a client that has gone cannot be told more
 }

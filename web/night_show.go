@@ -24,11 +24,11 @@ func (s *Server) nightShow(w http.ResponseWriter, r *http.Request, u *user) {
 		s.render(w, r, http.StatusOK, page.Night(c, page.NightView{NoSite: len(n.sites) == 0, Form: page.NightForm{Errs: errs}}))
 		return
 	}
-	if len(errs) == 0 {
-		if err := n.planIt(errs); err != nil {
-			s.renderError(w, r, err)
-			return
-		}
+	// planIt checks the constraints even after a bad date, so that every
+	// message shows at once; it plans only when nothing was refused.
+	if err := n.planIt(errs); err != nil {
+		s.renderError(w, r, err)
+		return
 	}
 	v := page.NightView{}
 	status := http.StatusOK

@@ -74,6 +74,21 @@ func parsePart(s string) (planner.NightPart, error) {
 	return "", errInvalid(fmt.Sprintf("part: “%s” is not accepted; accepted: full, first or second", s))
 }
 
+// queryID reads the optional id parameter name of a query: 0 when absent
+// or empty, else a positive whole number, or EINVALID naming the parameter
+// and the value.
+func queryID(q url.Values, name string) (int64, error) {
+	s := q.Get(name)
+	if s == "" {
+		return 0, nil
+	}
+	id, err := strconv.ParseInt(s, 10, 64)
+	if err != nil || id <= 0 {
+		return 0, errInvalid(fmt.Sprintf("%s: %q is not accepted; accepted: an id (a whole number above 0)", name, planner.ClipValue(s)))
+	}
+	return id, nil
+}
+
 func optID(s string) (int64, error) {
 	if s == "" {
 		return 0, nil
@@ -88,6 +103,11 @@ func optID(s string) (int64, error) {
 // encode writes the request back as a query string (with the defaults it
 // resolved to, so that exports plan the same night).
 func (n nightQuery) encode() string {
+	return n.values().Encode()
+}
+
+// values is the request as query values (see encode).
+func (n nightQuery) values() url.Values {
 	q := url.Values{}
 	q.Set("site", i64s(n.siteID))
 	q.Set("date", n.date)
@@ -110,7 +130,7 @@ func (n nightQuery) encode() string {
 	if n.fill {
 		q.Set("fill", "1")
 	}
-	return q.Encode()
+	return q
 }
 
 // night is a planned night with what the pages and exports show.
@@ -135,6 +155,7 @@ type night struct {
 	req     planner.NightRequest
 	plan    *planner.Plan
 	events  planner.NightEvents
+	source  string // Tonight: whose blocks are shown (a run's saved plan, or planned now)
 }
 
 // loadNight resolves the request's site, list and targets for the actor
@@ -166,8 +187,15 @@ func (s *Server) loadNight(ctx context.Context, a store.Actor, teamID int64, q n
 	if len(n.sites) == 0 || len(n.lists) == 0 {
 		return n, errs, nil
 	}
-	n.site, n.q.siteID = pick(n.sites, q.siteID, func(r store.SiteRecord) int64 { return r.ID })
-	n.list, n.q.listID = pick(n.lists, q.listID, func(l store.TargetList) int64 { return l.ID })
+	var okSite, okList bool
+	n.site, n.q.siteID, okSite = pick(n.sites, q.siteID, func(r store.SiteRecord) int64 { return r.ID })
+	n.list, n.q.listID, okList = pick(n.lists, q.listID, func(l store.TargetList) int64 { return l.ID })
+	switch {
+	case !okSite:
+		return nil, nil, errNotFound(fmt.Sprintf("The team has no site %d.", q.siteID))
+	case !okList:
+		return nil, nil, errNotFound(fmt.Sprintf("The team has no list %d.", q.listID))
+	}
 	if n.loc, err = time.LoadLocation(n.site.Zone); err != nil {
 		n.loc = time.UTC
 	}
@@ -201,18 +229,24 @@ func (s *Server) loadNight(ctx context.Context, a store.Actor, teamID int64, q n
 				n.targets = append(n.targets, t)
 			}
 		}
+		for _, id := range q.targetIDs {
+			if !slices.ContainsFunc(n.targets, func(t store.StoredTarget) bool { return t.ID == id }) {
+				return nil, nil, errNotFound(fmt.Sprintf("Target %d is not on the list %s.", id, n.list.Name))
+			}
+		}
 	}
 	return n, errs, nil
 }
 
-// pick returns the element with id want, or the first one.
-func pick[T any](xs []T, want int64, id func(T) int64) (T, int64) {
+// pick returns the element with id want, or the first one when want is 0;
+// ok is false when want is not among xs.
+func pick[T any](xs []T, want int64, id func(T) int64) (x T, got int64, ok bool) {
 	for _, x := range xs {
 		if id(x) == want {
-			return x, want
+			return x, want, true
 		}
 	}
-	return xs[0], id(xs[0])
+	return xs[0], id(xs[0]), want == 0
 }
 
 // tonight is the local date of the evening of the night in progress or
@@ -255,7 +289,40 @@ func (n *night) constraints(errs page.Errs) planner.Constraints {
 		}
 		*o.dst = v
 	}
+	n.checkEach(c, errs)
 	return c
+}
+
+// checkEach puts the planner's message on every override it refuses, not
+// only the first: each typed value is checked alone on the site's
+// constraints.
+func (n *night) checkEach(c planner.Constraints, errs page.Errs) {
+	base := n.site.PlanConstraints()
+	if n.base != nil {
+		base = *n.base
+		base.Horizon = n.site.Horizon
+	}
+	for _, o := range []struct {
+		field, text string
+		set         func(*planner.Constraints)
+	}{{"max_airmass", n.q.maxAirmass, func(b *planner.Constraints) { b.MaxAirmass = c.MaxAirmass }},
+		{"min_alt", n.q.minAlt, func(b *planner.Constraints) { b.MinAltDeg = c.MinAltDeg }},
+		{"min_moon_sep", n.q.minMoonSep, func(b *planner.Constraints) { b.MinMoonSepDeg = c.MinMoonSepDeg }},
+		{"max_moon_illum", n.q.maxMoonIllum, func(b *planner.Constraints) { b.MaxMoonIllum = c.MaxMoonIllum }},
+		{"sun_avoid", n.q.sunAvoid, func(b *planner.Constraints) { b.SunAvoidDeg = c.SunAvoidDeg }}} {
+		if o.text == "" || errs.Has(o.field) {
+			continue
+		}
+		one := base
+		o.set(&one)
+		if _, err := one.Resolved(); err != nil {
+			if fe, _, ok := formErrs(err); ok {
+				if msg, ok := fe[o.field]; ok {
+					errs[o.field] = msg
+				}
+			}
+		}
+	}
 }
 
 // planIt plans the night. Constraint values the planner refuses become

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"strconv"
-	"strings"
 	"time"
 
 	"phasecast/planner"
@@ -51,23 +50,19 @@ func (n *night) form(errs page.Errs) page.NightForm {
 // view builds the Night page's result part from the plan.
 func (n *night) view(now time.Time) (page.NightView, error) {
 	p := n.plan
-	zone, _ := now.In(n.loc).Zone()
+	at := n.whole.Start
 	if len(p.Blocks) > 0 {
-		zone, _ = p.Blocks[0].Start.In(n.loc).Zone()
+		at = p.Blocks[0].Start
 	} else if n.events.Sunset != nil {
-		zone, _ = n.events.Sunset.In(n.loc).Zone()
+		at = *n.events.Sunset
 	}
+	zone := zoneLabel(n.loc, at)
 	v := page.NightView{HasPlan: true, Title: n.title(), Zone: zone, Query: n.q.encode(), PartNote: n.partNote()}
 	v.Events = n.eventRows()
 	for _, b := range p.Blocks {
 		v.Blocks = append(v.Blocks, n.blockRow(b))
 	}
-	for _, w := range p.Warnings {
-		if w.Code == planner.WarnSunAvoidApplied || w.GoalIndex >= 0 && isBlockWarning(w) {
-			continue
-		}
-		v.Warnings = append(v.Warnings, warningText(w))
-	}
+	v.Warnings = warningGroups(p, n.loc)
 	for _, u := range p.Unscheduled {
 		v.Unscheduled = append(v.Unscheduled, page.UnschedRow{Target: u.Target, Goal: goalLabel(u.Goal), Reason: u.Detail})
 	}
@@ -127,7 +122,7 @@ func (n *night) eventRows() []page.EventRow {
 
 // blockRow formats one block with every figure.
 func (n *night) blockRow(b planner.Block) page.BlockRow {
-	r := page.BlockRow{Target: b.Target, Goal: goalLabel(b.Goal), Priority: b.Priority, Filler: b.Filler,
+	r := page.BlockRow{Target: b.Target, Goal: goalLabelConv(b.Goal, n.convOf(b.TargetIndex)), Priority: b.Priority, Filler: b.Filler,
 		Local:     b.Start.In(n.loc).Format("15:04:05") + "–" + b.End.In(n.loc).Format("15:04:05"),
 		UTC:       b.Start.UTC().Format("15:04:05") + "–" + b.End.UTC().Format("15:04:05"),
 		Exposures: fmt.Sprintf("%d × %s s + %s s", b.N, num(b.ExposureS), num(b.OverheadS)),
@@ -137,6 +132,7 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 		Airmass:    fmt.Sprintf("%.2f–%.2f", b.AirmassMin, b.AirmassMax),
 		MoonSep:    fmt.Sprintf("%.0f°", b.MoonSepDeg),
 		Parallatic: fmt.Sprintf("%.0f°", b.Parallactic), HourAngle: fmt.Sprintf("%+.2f h", b.HourAngle),
+		LST:    planner.FormatHours(planner.LocalSiderealHours(n.site.Site, b.Start)),
 		SunAlt: fmt.Sprintf("%.1f°", b.SunAltStart), Acquire: num(b.AcquireS) + " s", Cycle: strconv.FormatInt(b.Cycle, 10)}
 	if !b.MoonUp {
 		r.MoonSep += " (down)"
@@ -146,19 +142,29 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 	if b.Filler {
 		r.Goal, r.GoalShort = "filler", "filler"
 	}
-	for _, w := range b.Warnings {
-		r.Warnings = append(r.Warnings, w.Message)
-	}
 	return r
 }
 
 // goalLabel names a goal: "φ 0.25 ± 0.05" or "quadrature (max recession) φ 0.25 ± 0.05".
-func goalLabel(g planner.Goal) string {
+func goalLabel(g planner.Goal) string { return goalLabelConv(g, "") }
+
+// goalLabelConv is goalLabel with the event named for the target's T0
+// convention: an ascending-node (pulsar-timing) ephemeris says whose
+// conjunction or quadrature it is (eventName).
+func goalLabelConv(g planner.Goal, conv planner.Convention) string {
 	s := fmt.Sprintf("φ %s ± %s", phaseNum(g.Center), phaseNum(g.HalfWidth))
 	if g.Event != "" {
-		s = strings.ReplaceAll(g.Event, "_", " ") + ", " + s
+		s = eventName(g.Event, conv) + ", " + s
 	}
 	return s
+}
+
+// convOf is the T0 convention of the night's target i ("" if unknown).
+func (n *night) convOf(i int) planner.Convention {
+	if i < 0 || i >= len(n.req.Targets) {
+		return ""
+	}
+	return n.req.Targets[i].Ephem.Convention
 }
 
 // phaseNum formats a phase: as typed when short ("0.25"), else to four

@@ -34,6 +34,9 @@ func (s *Server) renderError(w http.ResponseWriter, r *http.Request, err error) 
 		s.log.Info("request refused", "path", redactPath(r.URL.Path), "status", status, "err", err)
 	}
 	c := s.chrome(r, http.StatusText(status), "")
+	if u, ok := s.pageUser(r); ok {
+		c = s.chromeFor(r, u, http.StatusText(status), "")
+	}
 	s.render(w, r, status, page.ErrorPage(c, page.ErrorView{Status: status, Heading: http.StatusText(status), Message: msg}))
 }
 

@@ -1,6 +1,7 @@
 package web
 
 import (
+	"errors"
 	"net/http"
 	"strings"
 
@@ -37,7 +38,9 @@ func (g guarded) del(pattern string, h userHandler)  { g.r.Delete(pattern, g.gua
 // copies its URL parameters into the request's path values.
 func (s *Server) router() chi.Router {
 	r := chi.NewRouter()
-	r.Use(s.logRequests, s.recoverPanics, secureHeaders, http.NewCrossOriginProtection().Handler,
+	csrf := http.NewCrossOriginProtection()
+	csrf.SetDenyHandler(http.HandlerFunc(s.crossOriginDenied))
+	r.Use(s.logRequests, s.recoverPanics, secureHeaders, csrf.Handler,
 		middleware.GetHead) // a GET route answers HEAD too, as with net/http's ServeMux
 	// No 405s: an address without a route for the method is "not found",
 	// as a page or, under /api/, as a JSON error.
@@ -60,7 +63,7 @@ func (s *Server) router() chi.Router {
 
 	// Read-only share links (no sign-in).
 	r.Get("/share/{token}", s.shareShow)
-	r.Get("/share/{token}/night", s.shareNight)
+	r.Get("/share/{token}/night", s.heavyPublic(s.shareNight))
 
 	// Signed in, with or without a team.
 	r.Group(func(r chi.Router) {
@@ -86,13 +89,13 @@ func (s *Server) router() chi.Router {
 		g.post("/team/members/{id}/role", s.teamMemberRole)
 		g.post("/team/members/{id}/remove", s.teamMemberRemove)
 
-		g.get("/tonight", s.tonightShow)
-		g.get("/tonight/body", s.tonightBody)
-		g.get("/night", s.nightShow)
-		g.get("/night/sheet", s.nightSheet)
-		g.get("/night.csv", s.nightExport("csv"))
-		g.get("/night.json", s.nightExport("json"))
-		g.get("/night.ics", s.nightExport("ics"))
+		g.get("/tonight", s.heavy(s.tonightShow))
+		g.get("/tonight/body", s.heavy(s.tonightBody))
+		g.get("/night", s.heavy(s.nightShow))
+		g.get("/night/sheet", s.heavy(s.nightSheet))
+		g.get("/night.csv", s.heavy(s.nightExport("csv")))
+		g.get("/night.json", s.heavy(s.nightExport("json")))
+		g.get("/night.ics", s.heavy(s.nightExport("ics")))
 
 		// Targets and lists.
 		g.get("/targets", s.targetsList)
@@ -109,8 +112,8 @@ func (s *Server) router() chi.Router {
 		g.post("/lists/{id}", s.listUpdate)
 		g.post("/lists/{id}/delete", s.listDelete)
 		g.get("/lists/{id}/import", s.importForm)
-		g.post("/lists/{id}/import/preview", s.importPreview)
-		g.post("/lists/{id}/import", s.importCommit)
+		g.post("/lists/{id}/import/preview", s.heavy(s.importPreview))
+		g.post("/lists/{id}/import", s.heavy(s.importCommit))
 		g.get("/lists/{id}/export.csv", s.listExport(store.FormatCSV))
 		g.get("/lists/{id}/export.json", s.listExport(store.FormatJSON))
 		g.post("/lists/{id}/share", s.shareCreate)
@@ -129,10 +132,10 @@ func (s *Server) router() chi.Router {
 		g.get("/runs/{id}/plan.ics", s.runExport("ics"))
 
 		// Queue windows.
-		g.get("/windows", s.windowsShow)
-		g.get("/windows.csv", s.windowsExport("csv"))
-		g.get("/windows.json", s.windowsExport("json"))
-		g.get("/windows.ics", s.windowsExport("ics"))
+		g.get("/windows", s.heavy(s.windowsShow))
+		g.get("/windows.csv", s.heavy(s.windowsExport("csv")))
+		g.get("/windows.json", s.heavy(s.windowsExport("json")))
+		g.get("/windows.ics", s.heavy(s.windowsExport("ics")))
 
 		// Sites.
 		g.get("/sites", s.sitesList)
@@ -155,14 +158,27 @@ func (s *Server) router() chi.Router {
 		g.get("/targets/{id}", s.apiTargetGet)
 		g.put("/targets/{id}", s.apiTargetUpdate)
 		g.del("/targets/{id}", s.apiTargetDelete)
-		g.get("/night", s.apiNight)
-		g.get("/windows", s.apiWindows)
+		g.get("/night", s.heavy(s.apiNight))
+		g.get("/windows", s.heavy(s.apiWindows))
 		g.get("/runs", s.apiRuns)
 		g.get("/runs/{id}/plan", s.apiRunPlan)
-		g.post("/runs/{id}/plan", s.apiRunPlanCreate)
+		g.post("/runs/{id}/plan", s.heavy(s.apiRunPlanCreate))
 		g.get("/runs/{id}/coverage", s.apiRunCoverage)
 	})
 	return r
+}
+
+// crossOriginDenied answers a state-changing request sent from another
+// site (http.CrossOriginProtection's refusal) with the app's 403 page, or
+// a JSON error under /api/.
+func (s *Server) crossOriginDenied(w http.ResponseWriter, r *http.Request) {
+	err := &codedError{code: codeForbidden, err: errors.New("cross-origin request refused"),
+		msg: "This request came from another site, so it was refused (protection against cross-site request forgery). Open the page on this site and send the form from there."}
+	if strings.HasPrefix(r.URL.Path, "/api/") {
+		s.apiError(w, r, err)
+		return
+	}
+	s.renderError(w, r, err)
 }
 
 // noRoute answers a request no route takes: a JSON error under /api/, the

@@ -25,7 +25,11 @@ func (s *Server) runExport(ext string) func(http.ResponseWriter, *http.Request, 
 			s.renderError(w, r, err)
 			return
 		}
-		want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
+		want, err := queryID(r.URL.Query(), "plan")
+		if err != nil {
+			s.renderError(w, r, err)
+			return
+		}
 		plans, doc, planID, err := s.runPlanDoc(r.Context(), u.actor, id, want)
 		if err == nil && doc == nil {
 			err = errNotFound("This run has no saved plan yet.")
@@ -62,8 +66,10 @@ func (s *Server) runExport(ext string) func(http.ResponseWriter, *http.Request, 
 func runCSV(doc *runDoc) ([]byte, error) {
 	var buf bytes.Buffer
 	cw := csv.NewWriter(&buf)
-	_ = cw.Write([]string{"night", "part", "target", "phase_goal", "event", "start_utc", "end_utc", "n_exposures", "exposure_s", "overhead_s",
-		"phase_start", "phase_end", "airmass_min", "airmass_max", "priority", "filler"})
+	if err := cw.Write([]string{"night", "part", "target", "phase_goal", "event", "start_utc", "end_utc", "n_exposures", "exposure_s", "overhead_s",
+		"phase_start", "phase_end", "airmass_min", "airmass_max", "priority", "filler"}); err != nil {
+		return nil, err
+	}
 	f := func(x float64) string { return strconv.FormatFloat(x, 'f', 4, 64) }
 	for _, n := range doc.Nights {
 		for _, b := range n.Blocks {
@@ -71,9 +77,11 @@ func runCSV(doc *runDoc) ([]byte, error) {
 			if b.PhaseGoal != nil {
 				goal = num(*b.PhaseGoal)
 			}
-			_ = cw.Write([]string{n.Date, n.Part, planner.SafeCSVCell(b.Target), goal, planner.SafeCSVCell(b.Event), b.Start.String(), b.End.String(), strconv.Itoa(b.NExposures),
+			if err := cw.Write([]string{n.Date, n.Part, planner.SafeCSVCell(b.Target), goal, planner.SafeCSVCell(b.Event), b.Start.String(), b.End.String(), strconv.Itoa(b.NExposures),
 				num(b.ExposureS), num(b.OverheadS), f(b.PhaseStart), f(b.PhaseEnd), f(b.AirmassMin), f(b.AirmassMax),
-				strconv.Itoa(b.Priority), strconv.FormatBool(b.Filler)})
+				strconv.Itoa(b.Priority), strconv.FormatBool(b.Filler)}); err != nil {
+				return nil, err
+			}
 		}
 	}
 	cw.Flush()

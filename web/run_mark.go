@@ -16,11 +16,21 @@ func (s *Server) runMark(w http.ResponseWriter, r *http.Request, u *user) {
 	if err == nil {
 		err = parseForm(w, r)
 	}
+	if err != nil {
+		s.renderError(w, r, err)
+		return
+	}
 	planID, perr := formInt64(r, "plan")
 	night, nerr := strconv.Atoi(r.PostFormValue("night"))
-	block, berr := strconv.Atoi(r.PostFormValue("block"))
 	status := r.PostFormValue("status")
-	if err != nil || perr != nil || nerr != nil || berr != nil || (status != "done" && status != "lost") {
+	// block=all marks every block of the night not marked yet as lost:
+	// the whole night was lost (clouds, fault).
+	whole := r.PostFormValue("block") == "all" && status == "lost"
+	block, berr := strconv.Atoi(r.PostFormValue("block"))
+	if whole {
+		berr = nil
+	}
+	if perr != nil || nerr != nil || berr != nil || (status != "done" && status != "lost") {
 		s.renderError(w, r, errMalformed)
 		return
 	}
@@ -34,11 +44,24 @@ func (s *Server) runMark(w http.ResponseWriter, r *http.Request, u *user) {
 		s.renderError(w, r, err)
 		return
 	}
-	if night < 0 || night >= len(doc.Nights) || block < 0 || block >= len(doc.Nights[night].Blocks) {
+	if night < 0 || night >= len(doc.Nights) || (!whole && (block < 0 || block >= len(doc.Nights[night].Blocks))) {
 		s.renderError(w, r, errNotFound("There is no such block in the plan."))
 		return
 	}
-	if _, err := s.store.AddObservations(r.Context(), u.actor, blockObservations(id, doc.Nights[night].Blocks[block], status)); err != nil {
+	var obs []store.ObservationInput
+	if whole {
+		if obs, err = s.unmarkedLost(r, u, id, doc.Nights[night].Blocks); err != nil {
+			s.renderError(w, r, err)
+			return
+		}
+	} else {
+		obs = blockObservations(id, doc.Nights[night].Blocks[block], status)
+	}
+	if len(obs) == 0 {
+		http.Redirect(w, r, "/runs/"+i64s(id)+"?plan="+i64s(planID)+"&m=marked", http.StatusSeeOther)
+		return
+	}
+	if _, err := s.store.AddObservations(r.Context(), u.actor, obs); err != nil {
 		s.renderError(w, r, err)
 		return
 	}
@@ -68,4 +91,20 @@ func blockObservations(runID int64, b runBlockDoc, status string) []store.Observ
 		out[k] = mk(start.Add(time.Duration(k)*step), store.ObsDone)
 	}
 	return out
+}
+
+// unmarkedLost is one failed record for each block of a night that has no
+// mark yet, for the "whole night lost" action.
+func (s *Server) unmarkedLost(r *http.Request, u *user, runID int64, blocks []runBlockDoc) ([]store.ObservationInput, error) {
+	in, err := s.loadRun(r.Context(), u.actor, runID)
+	if err != nil {
+		return nil, err
+	}
+	var out []store.ObservationInput
+	for bi, b := range blocks {
+		if runBlockRow(in, bi, b).State == "" {
+			out = append(out, blockObservations(runID, b, "lost")...)
+		}
+	}
+	return out, nil
 }

@@ -43,6 +43,9 @@ func (s *Server) runOptimize(w http.ResponseWriter, r *http.Request, u *user) {
 		return s.planRunJob(ctx, actor, in, past, j)
 	})
 	if err != nil {
+		if code, _ := errorCode(err); code == codeBusy || code == codeTooMany {
+			w.Header().Set("Retry-After", strconv.Itoa(heavyRetryAfterS))
+		}
 		s.renderError(w, r, err)
 		return
 	}

@@ -2,8 +2,9 @@ package web
 
 import (
 	"context"
+	"fmt"
 	"net/http"
-	"strconv"
+	"slices"
 
 	"phasecast/store"
 	"phasecast/web/page"
@@ -33,7 +34,10 @@ func (s *Server) runShow(w http.ResponseWriter, r *http.Request, u *user) {
 // memberRunView is a run's page for a member: the plan, the editing
 // controls their role allows, a job in progress, the share links.
 func (s *Server) memberRunView(r *http.Request, u *user, in *runInputs) (page.RunView, error) {
-	want, _ := strconv.ParseInt(r.URL.Query().Get("plan"), 10, 64)
+	want, err := queryID(r.URL.Query(), "plan")
+	if err != nil {
+		return page.RunView{}, err
+	}
 	plans, doc, planID, err := s.runPlanDoc(r.Context(), u.actor, in.run.ID, want)
 	if err != nil {
 		return page.RunView{}, err
@@ -57,10 +61,11 @@ func (s *Server) runPlanDoc(ctx context.Context, a store.Actor, runID, want int6
 		return plans, nil, 0, err
 	}
 	planID := plans[0].ID
-	for _, p := range plans {
-		if p.ID == want {
-			planID = want
+	if want != 0 {
+		if !slices.ContainsFunc(plans, func(p store.SavedPlan) bool { return p.ID == want }) {
+			return plans, nil, 0, errNotFound(fmt.Sprintf("plan %d is not a saved plan of this run", want))
 		}
+		planID = want
 	}
 	p, err := s.store.GetPlan(ctx, a, planID)
 	if err != nil {

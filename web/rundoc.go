@@ -85,8 +85,13 @@ type runBinDoc struct {
 	Planned  int     `json:"planned"`
 }
 
+// runObjective is the run objective J in millionths: value, what meeting
+// every requirement exactly is worth (required_value; value is above it
+// with coverage beyond the requirements) and the largest J the run's
+// nights allow (max_value, never below value); see planner.RunPlan.
 type runObjective struct {
 	Value            int64 `json:"value"`
+	RequiredValue    int64 `json:"required_value"`
 	MaxValue         int64 `json:"max_value"`
 	GreedyValue      int64 `json:"greedy_value"`
 	IndependentValue int64 `json:"independent_value"`
@@ -97,7 +102,7 @@ type runObjective struct {
 func newRunDoc(in *runInputs, rp *planner.RunPlan, now time.Time) runDoc {
 	d := runDoc{Run: in.run.Name, RunID: in.run.ID, Site: siteJSON{in.site.Name, in.site.Site.LatDeg, in.site.Site.LonEastDeg, in.site.Site.ElevM},
 		Zone: in.site.Zone, MadeAt: utcString(now), Past: rp.Request.Past, Caution: cautionText + " " + planner.SafetyCaution,
-		Objective: runObjective{rp.Value, rp.MaxValue, rp.GreedyValue, rp.IndependentValue, rp.Rounds}}
+		Objective: runObjective{rp.Value, rp.RequiredValue, rp.MaxValue, rp.GreedyValue, rp.IndependentValue, rp.Rounds}}
 	ids := make([]int64, len(in.targets))
 	for i, t := range in.targets {
 		ids[i] = t.ID

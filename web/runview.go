@@ -19,8 +19,7 @@ import (
 func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, now time.Time) page.RunView {
 	run := in.run
 	v := page.RunView{ID: run.ID, Name: run.Name, NightsN: len(in.nights), Past: in.nightsOver(now), PlanID: planID}
-	zone, _ := now.In(in.loc).Zone()
-	v.Zone = zone
+	v.Zone = zoneLabel(in.loc, now)
 	_, cons, _ := siteSummary(store.SiteRecord{Site: in.site.Site, Constraints: run.Constraints})
 	v.Summary = fmt.Sprintf("%d nights at %s, %d targets; %s.", len(in.nights), in.site.Name, len(in.targets), cons)
 	for _, p := range plans {
@@ -58,9 +57,14 @@ func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, 
 		}
 		v.Schedules = append(v.Schedules, ns)
 	}
-	v.Objective = fmt.Sprintf("Run objective %.3f of %.3f when every requirement is met (greedy pass %.3f; nights planned on their own %.3f).",
-		float64(doc.Objective.Value)/1e6, float64(doc.Objective.MaxValue)/1e6, float64(doc.Objective.GreedyValue)/1e6,
-		float64(doc.Objective.IndependentValue)/1e6)
+	v.Past = max(v.Past, doc.Past, leadingMarked(v.Schedules))
+	o := doc.Objective
+	most := ""
+	if o.MaxValue > 0 {
+		most = fmt.Sprintf(", at most %.3f in all", float64(o.MaxValue)/1e6)
+	}
+	v.Objective = fmt.Sprintf("Run objective %.3f; meeting every requirement exactly is worth %.3f, coverage beyond the requirements adds to it%s (greedy pass %.3f; nights planned on their own %.3f).",
+		float64(o.Value)/1e6, float64(o.RequiredValue)/1e6, most, float64(o.GreedyValue)/1e6, float64(o.IndependentValue)/1e6)
 	return v
 }
 
@@ -151,5 +155,29 @@ func loadDoc(p store.SavedPlan) (*runDoc, error) {
 	if err := json.Unmarshal(p.Output, &d); err != nil {
 		return nil, fmt.Errorf("saved plan %d: %w", p.ID, err)
 	}
+	if o := &d.Objective; o.RequiredValue == 0 && o.MaxValue > 0 {
+		// A plan saved before required_value: its max_value was what
+		// meeting every requirement is worth; its true maximum is unknown.
+		o.RequiredValue, o.MaxValue = o.MaxValue, 0
+	}
 	return &d, nil
+}
+
+// leadingMarked counts the run's first nights whose every block has an
+// outcome (done or lost): those nights are over, so the replan form
+// proposes them as such. A night over in the plan counts as well.
+func leadingMarked(ns []page.NightSchedule) int {
+	k := 0
+	for _, n := range ns {
+		if !n.Past && len(n.Blocks) == 0 {
+			break
+		}
+		for _, b := range n.Blocks {
+			if b.State == "" {
+				return k
+			}
+		}
+		k++
+	}
+	return k
 }

@@ -1,6 +1,7 @@
 package web
 
 import (
+	"context"
 	"net/http"
 	"net/url"
 	"strconv"
@@ -42,7 +43,10 @@ func (s *Server) sessionUser(r *http.Request) (*user, bool) {
 		return nil, false
 	}
 	u := &user{actor: a}
-	want, _ := strconv.ParseInt(cookieValue(r, teamCookie), 10, 64)
+	want, err := strconv.ParseInt(cookieValue(r, teamCookie), 10, 64)
+	if err != nil {
+		want = 0 // no team cookie, or a garbled one: the user's first team
+	}
 	for _, m := range a.Teams {
 		if m.TeamID == want || u.team.TeamID == 0 {
 			u.team = m
@@ -62,6 +66,19 @@ func cookieValue(r *http.Request, name string) string {
 	return c.Value
 }
 
+// userKey is the request context key of the signed-in *user, so that an
+// error page shows the header of the user it refuses.
+type userKey struct{}
+
+// pageUser returns the signed-in user of r: the one signedIn found, or a
+// session lookup on routes without a guard (a page that does not exist).
+func (s *Server) pageUser(r *http.Request) (*user, bool) {
+	if u, ok := r.Context().Value(userKey{}).(*user); ok {
+		return u, true
+	}
+	return s.sessionUser(r)
+}
+
 // signedIn wraps a handler that needs a signed-in user; anyone else is sent
 // to the sign-in page (and back afterwards).
 func (s *Server) signedIn(h func(http.ResponseWriter, *http.Request, *user)) http.HandlerFunc {
@@ -77,7 +94,7 @@ func (s *Server) signedIn(h func(http.ResponseWriter, *http.Request, *user)) htt
 			http.Redirect(w, r, "/login?next="+url.QueryEscape(next), http.StatusSeeOther)
 			return
 		}
-		h(w, r, u)
+		h(w, r.WithContext(context.WithValue(r.Context(), userKey{}, u)), u)
 	}
 }
 

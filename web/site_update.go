@@ -15,9 +15,13 @@ func (s *Server) siteUpdate(w http.ResponseWriter, r *http.Request, u *user) {
 	if err == nil {
 		err = parseForm(w, r)
 	}
-	version, verr := formInt64(r, "version")
-	if err != nil || verr != nil {
-		s.renderError(w, r, errors.Join(err, verr))
+	if err != nil {
+		s.renderError(w, r, err)
+		return
+	}
+	version, err := formInt64(r, "version")
+	if err != nil {
+		s.renderError(w, r, err)
 		return
 	}
 	p := parseSiteForm(r)

@@ -54,7 +54,7 @@ func (s *Server) targetDetail(ctx context.Context, u *user, id int64) (page.Targ
 		goals = tg.Goals
 	}
 	for _, g := range goals {
-		v.Goals = append(v.Goals, goalLabel(g)+fmt.Sprintf(": %s s exposures + %s s readout, %s", num(g.ExposureS), num(g.OverheadS), wantLabel(g.NExposures)))
+		v.Goals = append(v.Goals, goalLabelConv(g, t.Ephemeris.Ephem.Convention)+fmt.Sprintf(": %s s exposures + %s s readout, %s", num(g.ExposureS), num(g.OverheadS), wantLabel(g.NExposures)))
 	}
 	v.Sigma = sigmaChart(site, t, now)
 	v.Timings, v.OC = timingRows(t, timings)
@@ -125,13 +125,10 @@ func by(name string) string {
 	return ", " + name
 }
 
-// fmtSeconds writes a duration in seconds with two significant digits,
-// or in milliseconds below one second.
+// fmtSeconds writes an uncertainty in seconds with two significant
+// digits, in plain decimals ("0.43 s", "0.000086 s", "430 s").
 func fmtSeconds(s float64) string {
-	if s > 0 && s < 1 {
-		return strconv.FormatFloat(s*1000, 'g', 2, 64) + " ms"
-	}
-	return strconv.FormatFloat(s, 'g', 3, 64) + " s"
+	return sigFig(s, 2) + " s"
 }
 
 func historyRow(h store.EphemerisRecord, current bool) page.EphemRow {
@@ -161,7 +158,7 @@ func upcomingEvents(site planner.Site, t store.StoredTarget, now time.Time) []pa
 		if err != nil {
 			continue
 		}
-		row := page.UpcomingRow{Event: strings.ReplaceAll(string(ev), "_", " "), Phase: strconv.FormatFloat(ph, 'f', 4, 64)}
+		row := page.UpcomingRow{Event: eventName(string(ev), e.Convention), Phase: strconv.FormatFloat(ph, 'f', 4, 64)}
 		for i, at := range planner.UpcomingEvents(site, t.Target.Star(), e, ph, now, now.Add(span)) {
 			if i == 3 {
 				break

@@ -80,6 +80,9 @@ func parseTargetForm(r *http.Request) targetFormIn {
 		}
 	}
 	p.in = store.TargetInput{Target: t, T0: epoch, EphemNote: p.form.EphNote}
+	if len(p.errs) > 0 {
+		p.addStoreChecks()
+	}
 	return p
 }
 
@@ -98,6 +101,21 @@ func (p *targetFormIn) rvGoal() *planner.RVGoal {
 	p.num("rv_sigma_kms", f.RVSigma, &g.SigmaVKms)
 	p.num("rv_want_rel_k", f.RVWant, &g.WantRelK)
 	return g
+}
+
+// addStoreChecks adds the store's messages for the fields that parsed but
+// are out of range, so that one submission lists every bad field; a field
+// that did not parse keeps its own message.
+func (p *targetFormIn) addStoreChecks() {
+	errs, _, ok := p.storeErrs(store.CheckTargetInput(p.in))
+	if !ok {
+		return
+	}
+	for k, msg := range errs {
+		if !p.errs.Has(k) && k != "" {
+			p.errs[k] = msg
+		}
+	}
 }
 
 // num parses an optional number (empty is 0) into dst.
@@ -170,7 +188,10 @@ func (p *targetFormIn) storeErrs(err error) (page.Errs, int, bool) {
 	out := page.Errs{}
 	for k, msg := range errs {
 		if m := goalFieldRE.FindStringSubmatch(k); m != nil {
-			n, _ := strconv.Atoi(m[1])
+			n, err := strconv.Atoi(m[1])
+			if err != nil {
+				n = len(p.goalRow) // digits too many for an int: no such goal row
+			}
 			field := m[2]
 			if field == "event" {
 				field = "center"

@@ -134,12 +134,13 @@ func fmtPeriod(days float64) string {
 	return fmt.Sprintf("%.6f d", days)
 }
 
-// fmtPhaseErr writes a phase uncertainty with two significant digits.
+// fmtPhaseErr writes a phase uncertainty with two significant digits, in
+// plain decimals (0.000018).
 func fmtPhaseErr(x float64) string {
 	if x <= 0 || math.IsNaN(x) {
 		return "0"
 	}
-	return strconv.FormatFloat(x, 'g', 2, 64)
+	return sigFig(x, 2)
 }
 
 // fmtDuration writes a duration as "2 d 3 h", "1 h 12 min" or "45 min".

@@ -2,7 +2,6 @@ package web
 
 import (
 	"net/http"
-	"strconv"
 
 	"phasecast/store"
 	"phasecast/web/page"
@@ -31,7 +30,10 @@ func (s *Server) targetsView(r *http.Request, u *user) (page.TargetsView, error)
 	if v.Sort == "" {
 		v.Sort = "name"
 	}
-	want, _ := strconv.ParseInt(q.Get("list"), 10, 64)
+	want, err := queryID(q, "list")
+	if err != nil {
+		return page.TargetsView{}, err
+	}
 	var cur *store.TargetList
 	for i, l := range lists {
 		if l.ID == want || (want == 0 && i == 0) {

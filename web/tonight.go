@@ -35,8 +35,9 @@ func (s *Server) tonightNight(ctx context.Context, u *user, q url.Values) (*nigh
 	if run == nil && want == 0 {
 		for i, r := range runs {
 			if st, err := s.store.GetSite(ctx, u.actor, r.SiteID); err == nil {
-				loc, _ := time.LoadLocation(st.Zone)
-				if loc == nil {
+				loc, err := time.LoadLocation(st.Zone)
+				if err != nil { // a zone this binary cannot load: the site's date in UTC
+					s.log.Warn("tonight: site zone", "site", st.ID, "zone", st.Zone, "err", err)
 					loc = time.UTC
 				}
 				today := tonight(s.now(), loc)
@@ -58,6 +59,11 @@ func (s *Server) tonightNight(ctx context.Context, u *user, q url.Values) (*nigh
 		if err := n.planIt(errs); err != nil {
 			return nil, nil, nil, err
 		}
+		if len(errs) == 0 {
+			if n.source, err = s.followSavedPlan(ctx, u.actor, n, run); err != nil {
+				return nil, nil, nil, err
+			}
+		}
 	}
 	return n, runs, run, nil
 }
@@ -76,7 +82,8 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 	if run != nil {
 		v.Heading = "Tonight: run " + run.Name + " at " + n.site.Name
 	}
-	v.Clock = now.In(n.loc).Format("15:04 MST") + " · " + now.UTC().Format("15:04 UTC") + " · night of " + n.q.date
+	v.Clock = now.In(n.loc).Format("15:04") + " " + zoneLabel(n.loc, now) + " · " + now.UTC().Format("15:04 UTC") + " · LST " +
+		planner.FormatHours(planner.LocalSiderealHours(n.site.Site, now)) + " · night of " + n.q.date
 	if n.half() && n.plan != nil {
 		v.Clock += " · " + n.partNote()
 	}
@@ -84,11 +91,12 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 		v.NoPlan = "No plan could be made for tonight; open the Night page for details."
 		return v
 	}
+	v.Source = n.source
 	q := n.q
 	v.NightLink = "/night?" + q.encode()
-	zone, _ := now.In(n.loc).Zone()
+	zone := zoneLabel(n.loc, now)
 	for _, b := range n.plan.Blocks {
-		nb := &page.NowBlock{Target: b.Target, Goal: goalLabel(b.Goal), Exposures: fmt.Sprintf("%d × %s s", b.N, num(b.ExposureS)),
+		nb := &page.NowBlock{Target: b.Target, Goal: goalLabelConv(b.Goal, n.convOf(b.TargetIndex)), Exposures: fmt.Sprintf("%d × %s s", b.N, num(b.ExposureS)),
 			Span: b.Start.In(n.loc).Format("15:04") + "–" + b.End.In(n.loc).Format("15:04") + " " + zone}
 		if b.Filler {
 			nb.Goal = "filler"
@@ -119,12 +127,7 @@ func tonightRow(n *night, i int, t store.StoredTarget, now time.Time) page.Tonig
 	_, ph, phErr := planner.PhaseNow(n.site.Site, tg.Star(), tg.Ephem, now)
 	r.Phase, r.PhaseErr = fmt.Sprintf("%.3f", ph), "± "+fmtPhaseErr(phErr)
 	sky := planner.SkyAt(n.site.Site, tg.Star(), now)
-	r.Altitude = fmt.Sprintf("%.0f°", sky.AltRefractedDeg)
-	if sky.AirmassOK {
-		r.Altitude += fmt.Sprintf(" (airmass %.2f)", sky.Airmass)
-	} else {
-		r.Altitude += " (below the horizon)"
-	}
+	r.Altitude = altitudeText(sky)
 	goals, err := tg.ResolveGoals()
 	if err == nil {
 		best := time.Time{}
@@ -133,7 +136,7 @@ func tonightRow(n *night, i int, t store.StoredTarget, now time.Time) page.Tonig
 			start := math.Mod(g.Center-g.HalfWidth+1, 1)
 			ts := planner.UpcomingEvents(n.site.Site, tg.Star(), tg.Ephem, start, now, now.Add(time.Duration(tg.Ephem.PeriodDays*24*float64(time.Hour))+time.Minute))
 			if len(ts) > 0 && (best.IsZero() || ts[0].Before(best)) {
-				best, label = ts[0], goalLabel(g)
+				best, label = ts[0], goalLabelConv(g, tg.Ephem.Convention)
 			}
 		}
 		if !best.IsZero() {
@@ -143,7 +146,7 @@ func tonightRow(n *night, i int, t store.StoredTarget, now time.Time) page.Tonig
 	}
 	for _, b := range n.plan.Blocks {
 		if b.TargetIndex == i && b.End.After(now) {
-			r.NextBlock = b.Start.In(n.loc).Format("15:04") + "–" + b.End.In(n.loc).Format("15:04") + ", " + goalLabel(b.Goal)
+			r.NextBlock = b.Start.In(n.loc).Format("15:04") + "–" + b.End.In(n.loc).Format("15:04") + ", " + goalLabelConv(b.Goal, tg.Ephem.Convention)
 			if b.Start.After(now) {
 				r.BlockAt, r.BlockIn = b.Start.UTC().Format(time.RFC3339), "in "+fmtDuration(b.Start.Sub(now))
 			} else {

@@ -42,6 +42,7 @@ type Server struct {
 	logins  *limiter
 	jobs    jobs
 	plans   planCache
+	gate    *heavyGate
 }
 
 // New returns a Server for cfg.
@@ -59,6 +60,7 @@ func New(cfg Config) (*Server, error) {
 		store:   cfg.Store,
 		ping:    cfg.Store.Ping,
 		logins:  newLimiter(10, 30*time.Second),
+		gate:    newHeavyGate(defaultHeavySlots()),
 	}
 	if s.log == nil {
 		s.log = slog.New(slog.DiscardHandler)

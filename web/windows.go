@@ -127,7 +127,7 @@ func (w *windows) parseGoal() string {
 
 // encode writes the request as a query string.
 func (w *windows) encode() string {
-	q, _ := url.ParseQuery(w.req.nightQuery.encode())
+	q := w.req.nightQuery.values()
 	q.Del("date")
 	q.Set("from", w.req.from)
 	q.Set("to", w.req.to)
@@ -162,7 +162,7 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 	if w.req.goalN > 0 {
 		v.Title = fmt.Sprintf("Windows of %s, goal %d, at %s, %s to %s", n.targets[0].Target.Name, w.req.goalN, n.site.Name, w.req.from, w.req.to)
 	}
-	v.Zone, _ = w.from.In(n.loc).Zone()
+	v.Zone = zoneLabel(n.loc, w.from)
 	for _, g := range w.groups {
 		grp := page.WindowGroup{Target: g.Target, Goal: goalLabel(g.Goal)}
 		for _, qw := range g.Windows {
@@ -225,11 +225,15 @@ func (w *windows) exportJSON() ([]byte, error) {
 func (w *windows) exportCSV() ([]byte, error) {
 	var buf bytes.Buffer
 	cw := csv.NewWriter(&buf)
-	_ = cw.Write([]string{"target", "phase_goal", "event", "start_utc", "end_utc", "cycle", "airmass_min", "airmass_max", "phase_err", "uncertain", "whole_exposures"})
+	if err := cw.Write([]string{"target", "phase_goal", "event", "start_utc", "end_utc", "cycle", "airmass_min", "airmass_max", "phase_err", "uncertain", "whole_exposures"}); err != nil {
+		return nil, err
+	}
 	for _, r := range w.flat() {
-		_ = cw.Write([]string{planner.SafeCSVCell(r.Target), num(r.PhaseGoal), planner.SafeCSVCell(r.Event), r.Start, r.End, strconv.FormatInt(r.Cycle, 10),
+		if err := cw.Write([]string{planner.SafeCSVCell(r.Target), num(r.PhaseGoal), planner.SafeCSVCell(r.Event), r.Start, r.End, strconv.FormatInt(r.Cycle, 10),
 			strconv.FormatFloat(r.AirmassMin, 'f', 3, 64), strconv.FormatFloat(r.AirmassMax, 'f', 3, 64),
-			strconv.FormatFloat(r.PhaseErr, 'g', 3, 64), strconv.FormatBool(r.Uncertain), strconv.Itoa(r.Exposures)})
+			strconv.FormatFloat(r.PhaseErr, 'g', 3, 64), strconv.FormatBool(r.Uncertain), strconv.Itoa(r.Exposures)}); err != nil {
+			return nil, err
+		}
 	}
 	cw.Flush()
 	return buf.Bytes(), cw.Error()

@@ -46,6 +46,11 @@ func runBackup(ctx context.Context, now func() time.Time, args []string, stdout,
 	if err != nil {
 		return err
 	}
+	// Opening a missing file would make an empty database at the mistyped
+	// path and back that up.
+	if fi, err := os.Stat(dbPath); err != nil || !fi.Mode().IsRegular() {
+		return fieldError(db, "no such database file", "the path of an existing phasecast database (the file serve uses)")
+	}
 	st, err := store.Open(ctx, dbPath, now)
 	if err != nil {
 		return fmt.Errorf("open database %s: %w", dbPath, err)

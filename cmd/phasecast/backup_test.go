@@ -101,6 +101,14 @@ func TestBackupBadInput(t *testing.T) {
 	if err := os.WriteFile(existing, []byte("x"), 0o600); err != nil {
 		t.Fatal(err)
 	}
+	live := filepath.Join(dir, "live.db")
+	st, err := store.Open(context.Background(), live, testClock(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := st.Close(); err != nil {
+		t.Fatal(err)
+	}
 	cases := []struct {
 		name string
 		argv []string
@@ -108,7 +116,9 @@ func TestBackupBadInput(t *testing.T) {
 	}{
 		{"MissingOut", []string{"backup", "--db", filepath.Join(dir, "a.db")}, "missing --out"},
 		{"EmptyOut", []string{"backup", "--out", " "}, "--out"},
-		{"OutExists", []string{"backup", "--db", filepath.Join(dir, "b.db"), "--out", existing}, "exists already"},
+		{"OutExists", []string{"backup", "--db", live, "--out", existing}, "exists already"},
+		// A mistyped --db used to make an empty database there and back it up.
+		{"MissingDB", []string{"backup", "--db", filepath.Join(dir, "nothere.db"), "--out", filepath.Join(dir, "copy.db")}, "--db"},
 		{"MissingFrom", []string{"restore", "--db", filepath.Join(dir, "c.db")}, "missing --from"},
 		{"FromNotADatabase", []string{"restore", "--from", existing, "--db", filepath.Join(dir, "d.db")}, "restore"},
 	}
@@ -122,5 +132,10 @@ func TestBackupBadInput(t *testing.T) {
 				t.Errorf("stderr %q: want one line containing %q", errOut, c.want)
 			}
 		})
+	}
+	for _, name := range []string{"nothere.db", "copy.db", "a.db", "c.db", "d.db"} {
+		if _, err := os.Stat(filepath.Join(dir, name)); !os.IsNotExist(err) {
+			t.Errorf("%s exists after a refused command (%v)", name, err)
+		}
 	}
 }

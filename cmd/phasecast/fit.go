@@ -309,7 +309,10 @@ func fitError(err error, file *textValue, rows []timingRow, ef ephemFlags) error
 	var ie *ephem.InputError
 	if errors.As(err, &ie) {
 		if m := timingField.FindStringSubmatch(ie.Field); m != nil {
-			i, _ := strconv.Atoi(m[1])
+			i, err := strconv.Atoi(m[1])
+			if err != nil {
+				return usageErrorf("--timings %s: %s %s not accepted; accepted: %s", shown(file.value), ie.Field, ie.Value, ie.Accepted)
+			}
 			return usageErrorf("%s: %s %s not accepted; accepted: %s", lineOf(i), strings.TrimPrefix(ie.Field, m[0]+"."), ie.Value, ie.Accepted)
 		}
 		if f, ok := strings.CutPrefix(ie.Field, "guess."); ok {

@@ -29,30 +29,38 @@ type listedPackage struct {
 
 func listPackages(t *testing.T) []listedPackage {
 	t.Helper()
+	pkgs := goList[listedPackage](t, "-e", "-json=ImportPath,Imports,Deps", module+"/...")
+	if len(pkgs) == 0 {
+		t.Fatal("go list found no packages")
+	}
+	return pkgs
+}
+
+// goList runs `go list` with args (which ask for JSON) and decodes every
+// package it prints into a T.
+func goList[T any](t *testing.T, args ...string) []T {
+	t.Helper()
 	goTool, err := exec.LookPath("go")
 	if err != nil {
-		t.Fatalf("the go command is needed to check the import direction: %v", err)
+		t.Fatalf("the go command is needed to list the module's packages: %v", err)
 	}
-	cmd := exec.Command(goTool, "list", "-e", "-json=ImportPath,Imports,Deps", module+"/...")
+	cmd := exec.Command(goTool, append([]string{"list"}, args...)...)
 	var stderr bytes.Buffer
 	cmd.Stderr = &stderr
 	out, err := cmd.Output()
 	if err != nil {
 		t.Fatalf("go list: %v: %s", err, stderr.String())
 	}
-	var pkgs []listedPackage
+	var pkgs []T
 	dec := json.NewDecoder(bytes.NewReader(out))
 	for {
-		var p listedPackage
+		var p T
 		if err := dec.Decode(&p); errors.Is(err, io.EOF) {
 			break
 		} else if err != nil {
 			t.Fatalf("decoding go list output: %v", err)
 		}
 		pkgs = append(pkgs, p)
-	}
-	if len(pkgs) == 0 {
-		t.Fatal("go list found no packages")
 	}
 	return pkgs
 }

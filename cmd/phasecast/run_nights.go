@@ -144,7 +144,10 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 		}
 		return fromInputError(err, "not accepted", nil)
 	}
-	out := runOutput(rp, site, loc, acq)
+	out, err := runOutput(rp, site, loc, acq)
+	if err != nil {
+		return fromInputError(err, "not accepted", nil)
+	}
 	tps, err := rp.Precision(nil)
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
@@ -326,11 +329,14 @@ type runRankJSON struct {
 
 // runObjectiveJSON gives the run objective J (coverage notes of the
 // planner), as a fraction of what meeting every requirement exactly is
-// worth (above 1 with coverage beyond the requirements), and the raw
-// values in millionths.
+// worth (required_value; above 1 with coverage beyond the requirements,
+// which does not mean every requirement is met), the largest J the run's
+// nights allow (max_value, never below value), and the raw values in
+// millionths.
 type runObjectiveJSON struct {
 	Fraction         float64  `json:"fraction"`
 	Value            int64    `json:"value"`
+	RequiredValue    int64    `json:"required_value"`
 	MaxValue         int64    `json:"max_value"`
 	GreedyValue      int64    `json:"greedy_value"`
 	IndependentValue *int64   `json:"independent_value"`
@@ -359,7 +365,7 @@ func partName(n planner.RunNight) string {
 	return string(n.Part)
 }
 
-func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq float64) runJSONOut {
+func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq float64) (runJSONOut, error) {
 	out := runJSONOut{Zone: loc.String(), Caution: planner.SafetyCaution,
 		Nights: []runNightJSON{}, Coverage: []runCoverageJSON{}, BestNights: []runBestJSON{}, Observed: []runObservedJSON{}}
 	for _, np := range rp.Nights {
@@ -375,7 +381,10 @@ func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq flo
 		out.Nights = append(out.Nights, nj)
 	}
 	if len(rp.Nights) > 0 && out.Constraints.Twilight == "" {
-		rc, _ := rp.Request.Constraints.Resolved()
+		rc, err := rp.Request.Constraints.Resolved()
+		if err != nil {
+			return out, err
+		}
 		out.Constraints = constraintsJSON{Twilight: string(rc.Twilight), SunAltMaxDeg: rc.SunAltMaxDeg, MaxAirmass: rc.MaxAirmass,
 			MinAltDeg: rc.MinAltDeg, MinMoonSepDeg: rc.MinMoonSepDeg, MaxMoonIllum: rc.MaxMoonIllum, ZenithExclDeg: rc.ZenithExclDeg,
 			SunAvoidDeg: rc.SunAvoidDeg, HorizonPoints: len(rc.Horizon), AcquireS: acq}
@@ -421,20 +430,21 @@ func runOutput(rp *planner.RunPlan, site ephem.Site, loc *time.Location, acq flo
 				ExposureS: e.ExposureS, Phase: e.Phase, Failed: e.Failed})
 		}
 	}
-	o := runObjectiveJSON{Value: rp.Value, MaxValue: rp.MaxValue, GreedyValue: rp.GreedyValue, Rounds: rp.Rounds, Solves: rp.Solves}
-	if rp.MaxValue > 0 {
-		o.Fraction = float64(rp.Value) / float64(rp.MaxValue)
+	o := runObjectiveJSON{Value: rp.Value, RequiredValue: rp.RequiredValue, MaxValue: rp.MaxValue, GreedyValue: rp.GreedyValue,
+		Rounds: rp.Rounds, Solves: rp.Solves}
+	if rp.RequiredValue > 0 {
+		o.Fraction = float64(rp.Value) / float64(rp.RequiredValue)
 	}
 	if rp.Request.CompareIndependent {
 		v := rp.IndependentValue
 		o.IndependentValue = &v
-		if rp.MaxValue > 0 {
-			f := float64(v) / float64(rp.MaxValue)
+		if rp.RequiredValue > 0 {
+			f := float64(v) / float64(rp.RequiredValue)
 			o.IndependentFrac = &f
 		}
 	}
 	out.Objective = o
-	return out
+	return out, nil
 }
 
 // checkRunFinite makes sure no NaN reaches the output.
@@ -486,8 +496,8 @@ func printRun(w io.Writer, rp *planner.RunPlan, out runJSONOut, loc *time.Locati
 	}
 	fmt.Fprintf(&b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
 	o := out.Objective
-	fmt.Fprintf(&b, "Coverage objective: %.1f%% of the requirements (J = %s of %s; greedy pass %s",
-		100*o.Fraction, fmtJ(o.Value), fmtJ(o.MaxValue), fmtJ(o.GreedyValue))
+	fmt.Fprintf(&b, "Coverage objective: J = %s, %.1f%% of the %s that meeting every requirement exactly is worth (at most %s; greedy pass %s",
+		fmtJ(o.Value), 100*o.Fraction, fmtJ(o.RequiredValue), fmtJ(o.MaxValue), fmtJ(o.GreedyValue))
 	if o.IndependentValue != nil {
 		fmt.Fprintf(&b, "; each night planned on its own: %s", fmtJ(*o.IndependentValue))
 	}

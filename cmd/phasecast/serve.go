@@ -146,15 +146,7 @@ func firstStart(ctx context.Context, st *store.Store, cfg serveConfig, base stri
 // then shuts down gracefully, letting requests in flight finish for up to
 // 10 seconds.
 func serveUntilDone(ctx context.Context, ln net.Listener, h http.Handler, logger *slog.Logger) error {
-	hs := &http.Server{
-		Handler:           h,
-		ReadHeaderTimeout: 10 * time.Second,
-		ReadTimeout:       60 * time.Second,
-		WriteTimeout:      5 * time.Minute, // long plans and exports
-		IdleTimeout:       2 * time.Minute,
-		MaxHeaderBytes:    64 << 10,
-		ErrorLog:          slog.NewLogLogger(logger.Handler(), slog.LevelWarn),
-	}
+	hs := newHTTPServer(h, logger, defaultTimeouts)
 	errc := make(chan error, 1)
 	go func() { errc <- hs.Serve(ln) }()
 	select {
@@ -172,6 +164,33 @@ func serveUntilDone(ctx context.Context, ln net.Listener, h http.Handler, logger
 		return fmt.Errorf("serve: %w", err)
 	}
 	return nil
+}
+
+// serveTimeouts are the limits of one connection of the server: a client
+// that sends its headers, its body or reads its answer slower than this,
+// or keeps an idle connection longer, is cut off, so that slow clients
+// cannot hold the server's connections.
+type serveTimeouts struct {
+	readHeader, read, write, idle time.Duration
+}
+
+// defaultTimeouts are serve's: 10 s for the request headers, 60 s for the
+// whole request (a 16 MiB import on a slow line), 5 minutes to write the
+// answer (long plans and exports; heavy work is also bounded by the web
+// server's gate), 2 minutes idle between requests.
+var defaultTimeouts = serveTimeouts{readHeader: 10 * time.Second, read: 60 * time.Second, write: 5 * time.Minute, idle: 2 * time.Minute}
+
+// newHTTPServer returns the http.Server of serve for handler h.
+func newHTTPServer(h http.Handler, logger *slog.Logger, t serveTimeouts) *http.Server {
+	return &http.Server{
+		Handler:           h,
+		ReadHeaderTimeout: t.readHeader,
+		ReadTimeout:       t.read,
+		WriteTimeout:      t.write,
+		IdleTimeout:       t.idle,
+		MaxHeaderBytes:    64 << 10,
+		ErrorLog:          slog.NewLogLogger(logger.Handler(), slog.LevelWarn),
+	}
 }
 
 // newLogger returns the server's structured logger on w.

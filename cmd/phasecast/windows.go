@@ -153,7 +153,7 @@ func rangeEnd(v *textValue, loc *time.Location) (time.Time, error) {
 		if err != nil {
 			return time.Time{}, fieldError(v, "not a date", "a date YYYY-MM-DD (local midnight) or an instant in RFC 3339")
 		}
-		return time.Date(y, m, d, 0, 0, 0, 0, loc).UTC(), nil
+		return ephem.LocalDayStart(y, m, d, loc), nil
 	}
 	t, err := ephem.ParseTime(s)
 	if err != nil {
@@ -339,7 +339,10 @@ func writeWindowsICS(w io.Writer, got []planner.GoalWindows, stamp time.Time) er
 func printWindows(w io.Writer, got []planner.GoalWindows, site ephem.Site, loc *time.Location, t0, t1 time.Time, c planner.Constraints) error {
 	var b strings.Builder
 	fmt.Fprintf(&b, "Queue windows %s to %s UTC, site %s\n", t0.UTC().Format("2006-01-02 15:04"), t1.UTC().Format("2006-01-02 15:04"), siteLine(site))
-	rc, _ := c.Resolved()
+	rc, err := c.Resolved()
+	if err != nil {
+		return fromInputError(err, "not accepted", nil)
+	}
 	fmt.Fprintf(&b, "Limits: Sun below %s° (%s), airmass ≤ %s, Sun avoidance %s°\n", fmtG(rc.SunAltMaxDeg), rc.Twilight, fmtG(rc.MaxAirmass), fmtG(rc.SunAvoidDeg))
 	for _, gw := range got {
 		fmt.Fprintf(&b, "\n%s, phase %.3f ± %.3f", gw.Target, gw.Goal.Center, gw.Goal.HalfWidth)
@@ -369,7 +372,7 @@ func printWindows(w io.Writer, got []planner.GoalWindows, site ephem.Site, loc *
 		b.WriteString("\n(!) the phase uncertainty exceeds the window's half-width: the window may be elsewhere; refine the ephemeris.\n")
 	}
 	b.WriteString("\n" + planner.SafetyCaution + "\n")
-	_, err := io.WriteString(w, b.String())
+	_, err = io.WriteString(w, b.String())
 	return err
 }
 

@@ -122,10 +122,15 @@ func (h Horizon) draw(s *svg) {
 		s.b = append(s.b, p.b...)
 		s.raw("M")
 		s.b = appendXY(s.b, c, c-rad)
-		s.raw("A")
-		s.b = appendXY(s.b, rad, rad)
-		s.raw(" 0 1 1 ")
-		s.b = appendXY(s.b, c-0.01, c-rad)
+		// The horizon circle as two half circles: a single arc back to its
+		// own start point has identical endpoints, which SVG drops (SVG 1.1,
+		// F.6.2), leaving only the mask polygon filled.
+		for _, endY := range []float64{c + rad, c - rad} {
+			s.raw("A")
+			s.b = appendXY(s.b, rad, rad)
+			s.raw(" 0 0 1 ")
+			s.b = appendXY(s.b, c, endY)
+		}
 		s.raw(`Z" fill="#59636e" fill-opacity="0.35" stroke="#1b1f24" stroke-width="1.2" class="mask"/>`)
 		for _, q := range pts {
 			x, y := polar(c, rad, q.AzDeg, q.AltDeg)

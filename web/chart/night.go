@@ -3,6 +3,7 @@ package chart
 import (
 	"io"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -185,12 +186,17 @@ func (n Night) draw(s *svg) {
 	n.drawLimit(s, g)
 	s.raw(`<g clip-path="url(#` + id + `-plot)">`)
 	n.drawMoon(s, g)
+	names := n.placeTrackLabels(g)
+	avoid := make([]box, len(names))
+	for i, l := range names {
+		avoid[i] = l.at
+	}
 	for i, tr := range n.Tracks {
-		n.drawTrack(s, g, i, tr)
+		n.drawTrack(s, g, i, tr, avoid)
 	}
 	s.raw("</g>")
 	n.drawUnallocated(s, g)
-	n.drawTrackLabels(s, g)
+	drawTrackLabels(s, names)
 	n.drawLanes(s, g, lanesTop, id)
 	n.drawNow(s, g, lanesTop)
 	s.rect(g.x0, g.y0, g.x1-g.x0, g.y1-g.y0, "class", "frame", "fill", "none", "stroke", "#59636e")
@@ -412,7 +418,7 @@ func lerp(ta time.Time, a float64, tb time.Time, b float64, t time.Time) float64
 	return a + (b-a)*t.Sub(ta).Seconds()/d
 }
 
-func (n Night) drawTrack(s *svg, g nightGeom, i int, tr Track) {
+func (n Night) drawTrack(s *svg, g nightGeom, i int, tr Track, avoid []box) {
 	colour, dash, cls := seriesStyle(i)
 	sc := "s" + strconv.Itoa(cls)
 	s.raw(`<g class="track" data-target="`)
@@ -434,7 +440,7 @@ func (n Night) drawTrack(s *svg, g nightGeom, i int, tr Track) {
 		s.pathEl(trackPath(g, tr.Points, b.Start, b.End), "class", "blk "+sc, "fill", "none", "stroke", colour,
 			"stroke-width", "3.5", "stroke-linecap", "butt")
 	}
-	n.drawPhaseMarks(s, g, tr, colour, sc)
+	n.drawPhaseMarks(s, g, tr, colour, sc, avoid)
 	s.raw("</g>")
 }
 
@@ -474,7 +480,9 @@ func phaseMarks(tr Track) []PhaseMark {
 	return out
 }
 
-func (n Night) drawPhaseMarks(s *svg, g nightGeom, tr Track, colour, sc string) {
+// drawPhaseMarks marks phases 0 and 0.5 along a track and labels some of
+// them, never over a box in avoid (the targets' names).
+func (n Night) drawPhaseMarks(s *svg, g nightGeom, tr Track, colour, sc string, avoid []box) {
 	lastLabel, lastMark := math.Inf(-1), math.Inf(-1)
 	label := len(n.Tracks) <= 8 // more tracks: marks only, the legend explains them
 	for _, m := range phaseMarks(tr) {
@@ -492,8 +500,10 @@ func (n Night) drawPhaseMarks(s *svg, g nightGeom, tr Track, colour, sc string) 
 		} else {
 			s.circle(x, y, 3, "class", "ph5 "+sc, "fill", "#ffffff", "stroke", colour, "stroke-width", "1.4")
 		}
-		if label && x-lastLabel >= 40 {
-			s.text(x+4, y-5, "φ"+fmtPhase(m.Phase), "font-size", "9", "class", "halo", "stroke", "#ffffff",
+		text := "φ" + fmtPhase(m.Phase)
+		at := box{x + 4, y - 14, x + 4 + float64(len([]rune(text)))*5, y - 3}
+		if label && x-lastLabel >= 40 && !slices.ContainsFunc(avoid, at.overlaps) {
+			s.text(x+4, y-5, text, "font-size", "9", "class", "halo", "stroke", "#ffffff",
 				"stroke-width", "2.5", "paint-order", "stroke")
 			lastLabel = x
 		}
@@ -527,9 +537,27 @@ func (a box) overlaps(b box) bool {
 	return a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1
 }
 
-// drawTrackLabels names each track near its highest point, moving a label
-// along the track when it would cover one already placed.
-func (n Night) drawTrackLabels(s *svg, g nightGeom) {
+// trackLabel is a track's name and where it is drawn.
+type trackLabel struct {
+	name  string
+	x, y  float64
+	at    box
+	class int
+}
+
+// drawTrackLabels draws the names placed by placeTrackLabels.
+func drawTrackLabels(s *svg, labels []trackLabel) {
+	for _, l := range labels {
+		s.text(l.x, l.y, l.name, "text-anchor", "middle", "font-weight", "600",
+			"class", "halo lbl f"+strconv.Itoa(l.class), "stroke", "#ffffff", "stroke-width", "3", "paint-order", "stroke")
+	}
+}
+
+// placeTrackLabels places each track's name near its highest point, moving
+// a label along the track when it would cover one already placed. The
+// names are placed before the phase labels, which then keep clear of them.
+func (n Night) placeTrackLabels(g nightGeom) []trackLabel {
+	var out []trackLabel
 	var placed []box
 	if x, y, label, ok := n.moonLabel(g); ok {
 		half := float64(len([]rune(label)))*3.4 + 2
@@ -575,9 +603,9 @@ func (n Night) drawTrackLabels(s *svg, g nightGeom) {
 		}
 		placed = append(placed, at)
 		_, _, cls := seriesStyle(i)
-		s.text(x, y, name, "text-anchor", "middle", "font-weight", "600",
-			"class", "halo lbl f"+strconv.Itoa(cls), "stroke", "#ffffff", "stroke-width", "3", "paint-order", "stroke")
+		out = append(out, trackLabel{name: name, x: x, y: y, at: at, class: cls})
 	}
+	return out
 }
 
 func (n Night) drawLanes(s *svg, g nightGeom, top float64, id string) {

@@ -3,6 +3,7 @@ package chart
 import (
 	"io"
 	"math"
+	"slices"
 	"strconv"
 )
 
@@ -63,6 +64,10 @@ func (r Ring) draw(s *svg) {
 		size = 240
 	}
 	height := size + 34
+	hasBins := slices.ContainsFunc(r.Bins, func(b Bin) bool { return b.Count > 0 && finite(b.From) && finite(b.To) })
+	if hasBins {
+		height += 14
+	}
 	c := size / 2
 	rad := size/2 - 30
 	s.open(size, height, "chart ring", r.Title, "Orbital phase as angle, phase 0 at the top and increasing clockwise; "+
@@ -124,6 +129,10 @@ func (r Ring) draw(s *svg) {
 	s.circle(120, ly-4, 2.6, "fill", "#1b1f24")
 	s.text(126, ly, "observed ("+strconv.Itoa(len(r.Observed))+")", "font-size", "10")
 	s.text(8, ly+16, "arcs: goals (✓ met; dashed: not yet)", "font-size", "10")
+	if hasBins {
+		s.line(8, ly+26, 18, ly+26, "stroke", "#59636e", "stroke-opacity", "0.45", "stroke-width", "6", "class", "bin-key")
+		s.text(22, ly+30, "grey inner bars: exposures per phase bin", "font-size", "10")
+	}
 	s.close()
 }
 
@@ -192,17 +201,30 @@ func appendArc(b []byte, c, rad, from, to float64) []byte {
 	return b
 }
 
-// placeLabel writes a goal label just inside the ring at phase p, anchored
-// so that it runs towards the centre, and moves it up or down while it
-// would cover a label already placed.
+// placeLabel writes a goal label just inside the ring at phase p and moves
+// it up or down while it would cover a label already placed. On the left
+// and right of the ring a label runs towards the centre; near the top and
+// the bottom it runs away from the vertical through the centre, so that it
+// stays beside its own arc: an eclipse's ingress (just before phase 0, left
+// of the top) and egress (right of it) do not swap sides.
 func placeLabel(s *svg, placed *[]box, c, rad, p float64, label string) {
 	w := float64(len([]rune(label)))*5.2 + 2
 	shifts := []float64{0, 12, -12, 24, -24}
+	px, py := ringPoint(c, rad, p)
+	vertical := math.Abs(px-c) < math.Abs(py-c)
+	if vertical {
+		rad -= 10 // more room across the ring
+	}
 	for try, dy := range shifts {
 		x, y := ringPoint(c, rad, p)
 		y += dy
 		anchor, x0 := "middle", x-w/2
 		switch {
+		case vertical && x < c-0.5:
+			anchor, x0 = "end", x-w
+		case vertical && x > c+0.5:
+			anchor, x0 = "start", x
+		case vertical:
 		case x > c+8:
 			anchor, x0 = "end", x-w
 		case x < c-8:

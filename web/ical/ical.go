@@ -23,6 +23,8 @@ import (
 	"strings"
 	"time"
 	"unicode/utf8"
+
+	"phasecast/planner"
 )
 
 // Calendar is one iCalendar object.
@@ -229,11 +231,11 @@ func Parse(r io.Reader) (Calendar, error) {
 		case "UID":
 			ev.UID = unescapeText(value)
 		case "DTSTAMP":
-			ev.Stamp, perr = time.Parse(utcFormat, value)
+			ev.Stamp, perr = planner.ParseTimeLayout(utcFormat, value)
 		case "DTSTART":
-			ev.Start, perr = time.Parse(utcFormat, value)
+			ev.Start, perr = planner.ParseTimeLayout(utcFormat, value)
 		case "DTEND":
-			ev.End, perr = time.Parse(utcFormat, value)
+			ev.End, perr = planner.ParseTimeLayout(utcFormat, value)
 		case "SUMMARY":
 			ev.Summary = unescapeText(value)
 		case "DESCRIPTION":
@@ -244,6 +246,9 @@ func Parse(r io.Reader) (Calendar, error) {
 			for _, p := range splitUnescaped(value) {
 				ev.Categories = append(ev.Categories, unescapeText(p))
 			}
+		}
+		if errors.Is(perr, planner.ErrNotLeapSecond) {
+			return Calendar{}, fmt.Errorf("ical: content line %d: %s %q: %w", i+1, name, value, perr)
 		}
 		if perr != nil {
 			return Calendar{}, fmt.Errorf("ical: content line %d: %s %q is not a UTC date-time like 20260314T213000Z", i+1, name, value)

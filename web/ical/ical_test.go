@@ -186,3 +186,22 @@ func Example() {
 	// END:VEVENT⏎
 	// END:VCALENDAR⏎
 }
+
+// RFC 5545 §3.3.12: time-second 60 is a positive leap second. It is read
+// on a leap-second day, as the instant it ends, and refused elsewhere.
+func TestParseLeapSecond(t *testing.T) {
+	cal := func(stamp string) string {
+		return "BEGIN:VCALENDAR\r\nPRODID:-//t//t//EN\r\nVERSION:2.0\r\nBEGIN:VEVENT\r\nUID:a\r\nDTSTAMP:" + stamp +
+			"\r\nDTSTART:20170101T000000Z\r\nDTEND:20170101T001000Z\r\nSUMMARY:s\r\nEND:VEVENT\r\nEND:VCALENDAR\r\n"
+	}
+	c, err := ical.Parse(strings.NewReader(cal("20161231T235960Z")))
+	if err != nil {
+		t.Fatalf("leap second refused: %v", err)
+	}
+	if want := time.Date(2017, 1, 1, 0, 0, 0, 0, time.UTC); len(c.Events) != 1 || !c.Events[0].Stamp.Equal(want) {
+		t.Errorf("events %+v, want DTSTAMP %v", c.Events, want)
+	}
+	if _, err := ical.Parse(strings.NewReader(cal("20170630T235960Z"))); err == nil || !strings.Contains(err.Error(), "leap second") {
+		t.Errorf("second 60 on an ordinary day: %v", err)
+	}
+}

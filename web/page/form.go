@@ -1,5 +1,12 @@
 package page
 
+import (
+	"cmp"
+	"fmt"
+	"slices"
+	"strings"
+)
+
 // Errs holds a form's rejected fields: field name → message naming the value
 // and what is accepted. The empty key holds a message for the whole form.
 type Errs map[string]string
@@ -26,4 +33,77 @@ type Option struct {
 	Value    string
 	Label    string
 	Selected bool
+}
+
+// FieldLabel names a form field for the error summary.
+type FieldLabel struct{ Field, Label string }
+
+// Summary returns every field message of e as "label: message", in the
+// order of labels, then goal rows ("goal 2, exposure s: …") and any other
+// field by name. The whole-form message (field "") is left to FormErr.
+func (e Errs) Summary(labels []FieldLabel) []string {
+	var out []string
+	done := map[string]bool{"": true}
+	for _, l := range labels {
+		if msg, ok := e[l.Field]; ok {
+			out = append(out, l.Label+": "+msg)
+			done[l.Field] = true
+		}
+	}
+	var rest []string
+	for f := range e {
+		if !done[f] {
+			rest = append(rest, f)
+		}
+	}
+	slices.SortFunc(rest, func(a, b string) int { return cmp.Compare(goalOrder(a), goalOrder(b)) })
+	for _, f := range rest {
+		out = append(out, fieldLabel(f)+": "+e[f])
+	}
+	return out
+}
+
+// goalOrder sorts goal fields by row number, then name; others after.
+func goalOrder(f string) string {
+	var row int
+	var name string
+	if n, _ := fmt.Sscanf(strings.Replace(f, "].", "] ", 1), "goals[%d] %s", &row, &name); n == 2 { // dropped: n == 2 is the test that the field is a goal field
+		return fmt.Sprintf("0 %04d %s", row, name)
+	}
+	return "1 " + f
+}
+
+// fieldLabel is a readable name for a field without a label: "goal 2,
+// phase halfwidth" for goals[1].phase_halfwidth.
+func fieldLabel(f string) string {
+	var row int
+	var name string
+	if n, _ := fmt.Sscanf(strings.Replace(f, "].", "] ", 1), "goals[%d] %s", &row, &name); n == 2 { // dropped: n == 2 is the test that the field is a goal field
+		return fmt.Sprintf("goal %d, %s", row+1, strings.ReplaceAll(name, "_", " "))
+	}
+	return strings.ReplaceAll(f, "_", " ")
+}
+
+// NightLabels name the Night form's fields in page order.
+var NightLabels = []FieldLabel{{"site", "Site"}, {"date", "Night of"}, {"list", "Target list"}, {"twilight", "Twilight"},
+	{"part", "Part of the night"}, {"max_airmass", "Maximum airmass"}, {"min_alt", "Minimum altitude"},
+	{"min_moon_sep", "Minimum Moon separation"}, {"max_moon_illum", "Maximum Moon illumination"}, {"sun_avoid", "Sun avoidance"}}
+
+// TargetLabels name the target form's top-level fields in page order.
+var TargetLabels = []FieldLabel{{"name", "Name"}, {"ra", "RA"}, {"dec", "Dec"}, {"pm_ra_masyr", "Proper motion RA"},
+	{"pm_dec_masyr", "Proper motion Dec"}, {"mag", "Magnitude"}, {"priority", "Priority"}, {"acquire_s", "Acquisition"},
+	{"tags", "Tags"}, {"t0", "T0"}, {"t0_standard", "T0 time standard"}, {"t0_form", "T0 written as"},
+	{"t0_convention", "T0 marks"}, {"phase_offset", "Phase of T0"}, {"t0_err_days", "σ T0"}, {"period_days", "Period"},
+	{"period_err_days", "σ period"}, {"pdot", "Ṗ"}, {"ecc", "Eccentricity"}, {"omega_deg", "ω"},
+	{"goals", "Goals"}, {"notes", "Notes"}, {"ephem_note", "Ephemeris note"}}
+
+// ConstraintErr reports whether any of the Night form's constraint fields
+// (inside the Constraints box) was rejected.
+func (f NightForm) ConstraintErr() bool {
+	for _, k := range []string{"max_airmass", "min_alt", "min_moon_sep", "max_moon_illum", "sun_avoid"} {
+		if f.Errs.Has(k) {
+			return true
+		}
+	}
+	return false
 }

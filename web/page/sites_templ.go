@@ -392,7 +392,7 @@ func SiteEdit(c Chrome, v SiteForm) templ.Component {
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}
-			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 24, "</div></fieldset><fieldset><legend>Horizon mask</legend><div class=\"grid2\"><label>One point per line: azimuth (° from north through east) and the lowest usable altitude (°), e.g. <code>120 15</code>. Linear between points, wrapping through north. <textarea name=\"horizon\" rows=\"12\" aria-invalid=\"")
+			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 24, "</div></fieldset><fieldset><legend>Horizon mask</legend><div class=\"grid2\"><label><span>One point per line: azimuth (° from north through east) and the lowest usable altitude (°), e.g. <code>120 15</code>. Linear between points, wrapping through north.</span> <textarea name=\"horizon\" rows=\"12\" aria-invalid=\"")
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}
