@@ -8,7 +8,8 @@ import (
 // Precision shows, for each target, the predicted relative error of what
 // its exposures measure (σK/K, in per cent) against the nights of a run:
 // before the run's remaining nights ("now", index 0) and after each night
-// in turn, with the wanted precision as a dashed line.
+// in turn, with the wanted precision as a dashed line. The axis ends at
+// 100 % at most; larger values are drawn on its top edge.
 type Precision struct {
 	Title  string
 	Nights []string // the run's nights, labels of the x positions 1..len
@@ -69,7 +70,9 @@ func (c Precision) draw(s *svg) {
 		s.close()
 		return
 	}
-	yt, ylo, yhi := niceTicks(0, ymax*1.05, 5)
+	// A relative error above 100 % means "not measured yet": the axis stops
+	// there and such points sit on its top edge.
+	yt, ylo, yhi := niceTicks(0, min(ymax*1.05, 100), 5)
 	ys := tickStep(yt)
 	right := 130.0
 	x := linear{0, float64(n), 70, w - right}
