@@ -1,7 +1,6 @@
 package planner
 
 import (
-	"math"
 	"slices"
 	"time"
 
@@ -199,25 +198,4 @@ func (rp *RunPlan) timingForecast(site ephem.Site, t Target, measured []ephem.Ti
 		}
 	}
 	return f, nil
-}
-
-// RelError is the forecast's relative error that the precision objective
-// and the plots use: σK/K for an RV goal, else σP/P; ok is false when it is
-// not determined.
-func (tp TargetPrecision) RelError(after bool) (float64, bool) {
-	if tp.RV != nil {
-		p := tp.RV.Now
-		if after {
-			p = tp.RV.After
-		}
-		return p.RelK, p.Determined
-	}
-	if tp.Timing != nil {
-		p := tp.Timing.Now
-		if after {
-			p = tp.Timing.After
-		}
-		return p.RelP, p.SigmaPDays > 0 && !math.IsInf(p.RelP, 0)
-	}
-	return 0, false
 }

@@ -9,6 +9,8 @@ import (
 	"io"
 	"math"
 	"os"
+	"slices"
+	"strconv"
 	"strings"
 	"time"
 
@@ -41,7 +43,14 @@ target and exposure_s are required, and exactly one of start_utc or mid_utc
 (recorded, not counted); note is free text. Every bad row is reported by line
 and nothing is read. The nights up to the last one in the log are over (or give
 --past N): they are not planned again, and the remaining nights are planned for
-what is still missing.`
+what is still missing.
+
+Predicted precision: targets with an RV goal (the optional columns rv_model,
+rv_k_kms, rv_sigma_kms, rv_want_rel_k) get σK/K now (the log) and after the
+plan, and the exposures still needed for rv_want_rel_k; with --timings
+(columns target,time,std,err_s or err_days[,form][,note], as for fit) each timed
+target gets σT0 and σP now and once the planned timings of its reference
+event join them.`
 
 func runRun(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("run", runSynopsis)
@@ -52,6 +61,7 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 	dates := fl.text("dates", "LIST", "", "allocated nights: dates YYYY-MM-DD[:first|:second], comma-separated, in order")
 	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, as for plan); required")
 	observed := fl.text("observed", "LOG.csv", "", "log of exposures already taken (CSV, columns above)")
+	timingsFile := fl.text("timings", "FILE.csv", "", "measured times of the targets' reference events (CSV as for fit, with a target column)")
 	past := fl.text("past", "N", "the nights the log reaches", "nights already over, 0..number of nights")
 	cf := addConstraintFlags(fl)
 	acquire := fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
@@ -148,7 +158,11 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
 	}
-	tps, err := rp.Precision(nil)
+	timings, err := runTimings(timingsFile, site, list)
+	if err != nil {
+		return err
+	}
+	tps, err := rp.Precision(timings)
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
 	}
@@ -160,6 +174,27 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 		return writeJSON(stdout, out)
 	}
 	return printRun(stdout, rp, out, loc, acq)
+}
+
+// runTimings reads the --timings file (none: nil), converting each row with
+// its target's position at the site.
+func runTimings(file *textValue, site ephem.Site, list []planner.Target) (map[string][]ephem.Timing, error) {
+	if !file.set {
+		return nil, nil
+	}
+	stars := map[string]ephem.Star{}
+	for _, t := range list {
+		stars[t.Name] = t.Star()
+	}
+	rows, err := readTimings(file, &site, nil, stars)
+	if err != nil {
+		return nil, err
+	}
+	out := map[string][]ephem.Timing{}
+	for _, r := range rows {
+		out[r.target] = append(out[r.target], ephem.Timing{Value: r.bjd, Std: ephem.StdBJDTDB, ErrDays: r.errDays})
+	}
+	return out, nil
 }
 
 // wholeNumber parses a whole number flag in lo..hi.
@@ -618,8 +653,8 @@ func fmtJ(v int64) string { return f(float64(v)/1e6, 3) }
 // goal: now (the observing log), after the plan, and the exposures still
 // needed for the wanted σK/K.
 func printPrecision(b *strings.Builder, docs []planner.PrecisionDoc) error {
-	if len(docs) == 0 {
-		return nil
+	if !slices.ContainsFunc(docs, func(p planner.PrecisionDoc) bool { return p.RV != nil }) {
+		return printTimingPrecision(b, docs)
 	}
 	b.WriteString("\nPredicted precision (Fisher matrix at the exposures' mid-phases; now = observing log):\n")
 	tb := newTable(b)
@@ -650,5 +685,29 @@ func printPrecision(b *strings.Builder, docs []planner.PrecisionDoc) error {
 		return err
 	}
 	b.WriteString("  (exposures in brackets; still needed: beyond the plan, at the velocity extremes, a lower bound)\n")
-	return nil
+	return printTimingPrecision(b, docs)
+}
+
+// printTimingPrecision writes the timing targets' predicted σT0 and σP.
+func printTimingPrecision(b *strings.Builder, docs []planner.PrecisionDoc) error {
+	tb := newTable(b)
+	head := false
+	for _, p := range docs {
+		if p.TimingNote != "" {
+			fmt.Fprintf(b, "  %s: %s\n", p.Target, p.TimingNote)
+		}
+		t := p.Timing
+		if t == nil {
+			continue
+		}
+		if !head {
+			b.WriteString("\nPredicted ephemeris precision (covariance of the fit; planned timings of the reference event):\n")
+			tb.row("  Target", "Timings now", "σT0 s", "σP s", "Planned timings", "σT0 s", "σP s")
+			head = true
+		}
+		sec := func(d float64) string { return strconv.FormatFloat(d*86400, 'g', 3, 64) }
+		tb.row("  "+p.Target, fmt.Sprintf("%d (%s)", t.Now.N, t.Now.Source), sec(t.Now.SigmaT0Days), sec(t.Now.SigmaPDays),
+			fmt.Sprint(t.Planned), sec(t.After.SigmaT0Days), sec(t.After.SigmaPDays))
+	}
+	return tb.flush()
 }

@@ -298,3 +298,59 @@ func TestRunCommandPrecision(t *testing.T) {
 		t.Errorf("text output lacks the precision table:\n%s", stdout)
 	}
 }
+
+// TestRunCommandTimings gives measured timings of one target: it gets σP now
+// and, with the reference events inside its planned blocks, a smaller σP
+// after the plan; a timing of a target not in the list is refused by line.
+func TestRunCommandTimings(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runRVCSV)
+	tim := writeFile(t, "timings.csv", "target,time,std,err_s\n"+
+		"Okapi-2,2460833.704900,BJD_TDB,5\nOkapi-2,2460977.404900,BJD_TDB,5\nOkapi-2,2461101.944900,BJD_TDB,5\nOkapi-2,2461119.188900,BJD_TDB,5\n")
+	argv := args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--n-exposures", "0", "--timings", tim})
+	stdout, stderr, code := runCmd(t, append(argv, "--json")...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var out struct {
+		Precision []struct {
+			Target string `json:"target"`
+			Timing *struct {
+				Planned int `json:"planned_timings"`
+				Now     struct {
+					N      int     `json:"n_timings"`
+					SigmaP float64 `json:"sigma_p_days"`
+				} `json:"now"`
+				After struct {
+					N      int     `json:"n_timings"`
+					SigmaP float64 `json:"sigma_p_days"`
+				} `json:"after_plan"`
+			} `json:"timing"`
+		} `json:"precision"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &out); err != nil {
+		t.Fatal(err)
+	}
+	var found bool
+	for _, p := range out.Precision {
+		if p.Target != "Okapi-2" || p.Timing == nil {
+			continue
+		}
+		found = true
+		tm := p.Timing
+		if tm.Now.N != 4 || tm.Planned == 0 || tm.After.N != 4+tm.Planned || !(tm.After.SigmaP < tm.Now.SigmaP) {
+			t.Errorf("Okapi-2 timing forecast %+v: want 4 timings now, planned ones, σP shrinking", *tm)
+		}
+	}
+	if !found {
+		t.Fatalf("no timing forecast for Okapi-2: %s", stdout)
+	}
+	stdout, _, code = runCmd(t, argv...)
+	if code != 0 || !strings.Contains(stdout, "Predicted ephemeris precision") {
+		t.Errorf("text output lacks the timing table:\n%s", stdout)
+	}
+	bad := writeFile(t, "bad.csv", "target,time,std,err_s\nNobody-1,2460833.7049,BJD_TDB,5\n")
+	_, stderr, code = runCmd(t, args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--timings", bad})...)
+	if code != 2 || !strings.Contains(stderr, "line 2") || !strings.Contains(stderr, "Nobody-1") {
+		t.Errorf("unknown target: exit %d, %s", code, stderr)
+	}
+}
