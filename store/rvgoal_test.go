@@ -61,6 +61,15 @@ func TestImportRVGoal(t *testing.T) {
 			}
 		}
 	}
+	// A changed RV goal is an update naming rv_goal; the rest unchanged.
+	changed := strings.Replace(file, "circular,85,4.5,0.03", "circular,85,4.5,0.02", 1)
+	prev, err := w.s.PreviewImport(ctx, w.editor, l.ID, strings.NewReader(changed), store.FormatAuto)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if prev.Updated != 1 || prev.Unchanged != 2 || strings.Join(prev.Rows[0].Changed, ",") != "rv_goal" {
+		t.Errorf("preview of a changed RV goal = %+v", prev)
+	}
 	// An older team CSV, without the rv_ columns, has no RV goals.
 	lOld, _ := importInto(t, w, "Old", teamCSV, store.FormatCSV)
 	old, err := w.s.ListTargets(ctx, w.viewer, lOld.ID)
