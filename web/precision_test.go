@@ -48,7 +48,11 @@ func TestTargetFormRVGoal(t *testing.T) {
 	if resp.StatusCode != http.StatusSeeOther || !strings.HasPrefix(loc, "/targets/") {
 		t.Fatalf("create = %d to %q", resp.StatusCode, loc)
 	}
-	_, body := h.get(c, strings.SplitN(loc, "?", 2)[0]+"/edit")
+	_, body := h.get(c, strings.SplitN(loc, "?", 2)[0])
+	if !strings.Contains(body, "circular, K 85 km/s, σv 4.5 km/s per exposure, wanted σK/K ≤ 3 %") {
+		t.Error("the target page does not show the RV goal")
+	}
+	_, body = h.get(c, strings.SplitN(loc, "?", 2)[0]+"/edit")
 	for _, want := range []string{`value="85"`, `value="4.5"`, `value="0.03"`, `<option value="circular" selected>`} {
 		if !strings.Contains(body, want) {
 			t.Errorf("edit page lacks %s", want)
