@@ -111,14 +111,24 @@ func (rp *RunPlan) rvForecast(ti int, t Target) (*RVForecast, error) {
 	f.PhaseSigma = meanEpochPhaseSigma(rp.Request.Site, t, mids)
 	f.Now = c.Predict(now, f.PhaseSigma)
 	f.After = c.Predict(all, f.PhaseSigma)
+	// Night by night: each exposure's information is added once, to its
+	// night, and the nights are summed in order.
+	perNight := make([]fisher, len(rp.Nights))
+	count := make([]int, len(rp.Nights))
+	for i, x := range all {
+		c.add(&perNight[nights[i]], x, 1)
+		count[nights[i]]++
+	}
+	var cum fisher
+	n := 0
 	for k := range rp.Nights {
-		var upTo []RVExposure
-		for i, x := range all {
-			if nights[i] <= k {
-				upTo = append(upTo, x)
+		for a := range 3 {
+			for b := range 3 {
+				cum[a][b] += perNight[k][a][b]
 			}
 		}
-		f.PerNight[k] = c.Predict(upTo, f.PhaseSigma)
+		n += count[k]
+		f.PerNight[k] = c.solve(cum, n, f.PhaseSigma)
 	}
 	if w := t.RV.WantRelK; w > 0 {
 		smear := 0.0
