@@ -36,7 +36,7 @@ func RVShape(ecc, omegaDeg, m float64) (g, slope float64, err error) {
 	M := 2 * math.Pi * (m - math.Floor(m))
 	ν := M
 	if ecc > 0 {
-		E, kerr := kepler.Kepler2(ecc, unit.Angle(M), 15)
+		E, kerr := kepler.Kepler2(ecc, unit.Angle(M), 12)
 		if kerr != nil {
 			E = kepler.Kepler3(ecc, unit.Angle(M))
 		}
@@ -44,7 +44,8 @@ func RVShape(ecc, omegaDeg, m float64) (g, slope float64, err error) {
 	}
 	s, c := math.Sincos(ν + ω)
 	q := 1 + ecc*math.Cos(ν)
-	return c + ecc*math.Cos(ω), -2 * math.Pi * s * q * q / math.Pow(1-ecc*ecc, 1.5), nil
+	r := 1 - ecc*ecc
+	return c + ecc*math.Cos(ω), -2 * math.Pi * s * q * q / (r * math.Sqrt(r)), nil
 }
 
 // MeanPhaseAtT0 returns M/2π (cycles, 0 ≤ m < 1), the mean anomaly's share
