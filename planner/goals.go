@@ -100,6 +100,9 @@ func validateTarget(i int, t Target) error {
 			return fmt.Errorf("%s: %w", pre, err)
 		}
 	}
+	if err := validateBrightness(pre, t); err != nil {
+		return err
+	}
 	for k, g := range t.Goals {
 		gp := fmt.Sprintf("goals[%d].", k)
 		switch {

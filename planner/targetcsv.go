@@ -22,11 +22,18 @@ var PlanCSVHeader = []string{
 	"phase_halfwidth", "exposure_s", "overhead_s", "priority",
 }
 
-// PlanCSVOptional are the optional columns of the targets file: a target's
-// radial-velocity goal (RVGoal). With rv_model, rv_k_kms and rv_sigma_kms
-// are required columns too; a row with rv_model empty has no RV goal and its
-// other rv_ cells must be empty.
-var PlanCSVOptional = []string{"rv_model", "rv_k_kms", "rv_sigma_kms", "rv_want_rel_k"}
+// PlanCSVOptional are the targets file's optional columns, in their
+// documented order: the target's brightness (band, mag), the wanted S/N
+// per exposure with its smear limit (snr, max_smear), and a variable's faint
+// and bright magnitudes with their phases. A file without them reads as
+// before; an empty cell means "not given".
+var PlanCSVOptional = []string{"band", "mag", "snr", "max_smear", "faint_mag", "faint_phase", "bright_mag", "bright_phase"}
+
+// PlanCSVRV are the optional columns of a target's radial-velocity goal
+// (RVGoal). With rv_model, rv_k_kms and rv_sigma_kms are required columns
+// too; a row with rv_model empty has no RV goal and its other rv_ cells must
+// be empty.
+var PlanCSVRV = []string{"rv_model", "rv_k_kms", "rv_sigma_kms", "rv_want_rel_k"}
 
 // CellError is one rejected cell of a table file: the 1-based line of the
 // file, the 1-based column number and the column's header name (both 0 and ""
@@ -118,8 +125,8 @@ const (
 )
 
 // ParseTargetsCSV reads the `plan` command's targets file: a header line
-// naming the columns of PlanCSVHeader (any order, each exactly once) and
-// any of PlanCSVOptional, no others, then one target per line. Blank lines and lines starting with '#'
+// naming the columns of PlanCSVHeader (any order, each exactly once) and any
+// of PlanCSVOptional and PlanCSVRV, no others, then one target per line. Blank lines and lines starting with '#'
 // are skipped.
 //
 //   - name: non-empty text.
@@ -137,9 +144,23 @@ const (
 //   - exposure_s: one exposure, 0 < t ≤ MaxExposureS seconds.
 //   - overhead_s: readout after each exposure, 0 ≤ t ≤ MaxExposureS seconds.
 //   - priority: integer 1 (highest) to 5.
-//   - rv_model (optional): "circular" or "eccentric" (the eccentric model
-//     takes e and ω of the ephemeris: 0 in this file, which has no such
-//     columns), or empty for no RV goal.
+//
+// The optional columns (PlanCSVOptional) may be left out or left empty:
+//
+//   - band: the band of mag, U B V R I (Vega) or g r i z (AB).
+//   - mag: the target's magnitude in band, −2..30.
+//   - snr: the wanted S/N per exposure of every goal of the row, 0 < S/N ≤
+//     100000; needs band and mag. With an instrument, the planner then sizes
+//     each block's exposure for its sky (SizeExposure) and exposure_s is
+//     used only without one.
+//   - max_smear: the most phase one S/N-sized exposure may span,
+//     0 < s < 0.5 (empty: DefaultMaxSmear).
+//   - faint_mag, faint_phase, bright_mag, bright_phase: a variable's
+//     extremes in band (−2..30, bright not fainter than faint) and their
+//     phases (0 ≤ φ < 1); all four or none (Target.MagAtPhase).
+//   - rv_model: "circular" or "eccentric" (the eccentric model takes e and
+//     ω of the ephemeris: 0 in this file, which has no such columns), or
+//     empty for no RV goal.
 //   - rv_k_kms, rv_sigma_kms, rv_want_rel_k (with rv_model): the rough K and
 //     the velocity error of one exposure, km/s, and the wanted σK/K as a
 //     fraction (empty or 0 for none); RVGoal.Validate's ranges.
@@ -187,15 +208,15 @@ func ReadTargetsCSV(r io.Reader) ([]TargetRow, error) {
 	}
 	headerLine, _ := cr.FieldPos(0)
 	te := &TableError{}
-	col := columnIndex(header, PlanCSVHeader, PlanCSVOptional, headerLine, te)
+	col := columnIndex(header, PlanCSVHeader, headerLine, te, slices.Concat(PlanCSVOptional, PlanCSVRV)...)
 	if hasKey(col, "rv_model") {
-		for _, n := range PlanCSVOptional[1:3] {
+		for _, n := range PlanCSVRV[1:3] {
 			if !hasKey(col, n) {
 				te.add(headerLine, 0, n, "", "missing column "+n+": rv_model needs rv_k_kms and rv_sigma_kms")
 			}
 		}
 	} else {
-		for _, n := range PlanCSVOptional[1:] {
+		for _, n := range PlanCSVRV[1:] {
 			if hasKey(col, n) {
 				te.add(headerLine, col[n]+1, n, n, "column without rv_model: an RV goal needs rv_model, rv_k_kms and rv_sigma_kms")
 			}
@@ -275,20 +296,23 @@ func csvReadError(err error) error {
 	return fmt.Errorf("read targets CSV: %w", err)
 }
 
-// columnIndex maps each required and optional column name present to its
-// index in header, recording missing required, repeated and unknown columns
-// in te.
-func columnIndex(header, required, optional []string, line int, te *TableError) map[string]int {
+// columnIndex maps each required (and each optional column present) name to
+// its index in header, recording missing, repeated and unknown columns in te.
+func columnIndex(header, required []string, line int, te *TableError, optional ...string) map[string]int {
 	want := map[string]bool{}
-	for _, n := range slices.Concat(required, optional) {
+	for _, n := range append(append([]string(nil), required...), optional...) {
 		want[n] = true
 	}
 	col := map[string]int{}
+	expected := strings.Join(required, ",")
+	if len(optional) > 0 {
+		expected += " (optional: " + strings.Join(optional, ",") + ")"
+	}
 	for i, h := range header {
 		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
 		switch {
 		case !want[h]:
-			te.add(line, i+1, h, h, "unknown column; the header must be "+strings.Join(required, ",")+columnsOptional(optional))
+			te.add(line, i+1, h, h, "unknown column; the header must be "+expected)
 		case hasKey(col, h):
 			te.add(line, i+1, h, h, fmt.Sprintf("column repeated (first at column %d)", col[h]+1))
 		default:
@@ -301,14 +325,6 @@ func columnIndex(header, required, optional []string, line int, te *TableError) 
 		}
 	}
 	return col
-}
-
-// columnsOptional names the optional columns for a message.
-func columnsOptional(optional []string) string {
-	if len(optional) == 0 {
-		return ""
-	}
-	return ", optionally with " + strings.Join(optional, ",")
 }
 
 func hasKey(m map[string]int, k string) bool { _, ok := m[k]; return ok }
@@ -400,8 +416,9 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 		if reason != "" {
 			bad("phases", v, reason)
 		}
+		snr, smear := parseBrightnessCells(&t, get, col, bad)
 		for _, c := range centres {
-			t.Goals = append(t.Goals, Goal{Center: c, HalfWidth: hw, ExposureS: exp, OverheadS: ovh})
+			t.Goals = append(t.Goals, Goal{Center: c, HalfWidth: hw, ExposureS: exp, OverheadS: ovh, SNR: snr, MaxSmear: smear})
 		}
 	}
 	if hasKey(col, "rv_model") {
@@ -419,7 +436,7 @@ func parseRVCells(get func(string) string, bad func(name, value, reason string),
 		return get(n)
 	}
 	if cell("rv_model") == "" {
-		for _, n := range PlanCSVOptional[1:] {
+		for _, n := range PlanCSVRV[1:] {
 			if v := cell(n); v != "" {
 				bad(n, v, "empty: this row has no rv_model, so no RV goal")
 			}
@@ -450,6 +467,83 @@ func parseRVCells(get func(string) string, bad func(name, value, reason string),
 		return nil
 	}
 	return &g
+}
+
+// parseBrightnessCells reads the optional columns of PlanCSVOptional into t
+// (band, mag) and returns the goals' snr and max_smear (0 when absent or
+// empty); bad cells go to bad.
+func parseBrightnessCells(t *Target, get func(string) string, col map[string]int, bad func(name, value, reason string)) (snr, smear float64) {
+	cell := func(name string) string {
+		if !hasKey(col, name) {
+			return ""
+		}
+		return get(name)
+	}
+	if v := cell("band"); v != "" {
+		b, err := ephem.ParseBand(v)
+		if err != nil {
+			bad("band", v, inputReason(err))
+		}
+		t.Band = string(b)
+	}
+	if v := cell("mag"); v != "" {
+		m, ok := parseFinite(v)
+		if !ok || m < -2 || m > 30 {
+			bad("mag", v, "a magnitude −2..30 in the band")
+		}
+		t.Mag = m
+		if t.Band == "" && cell("band") == "" {
+			bad("mag", v, "a magnitude needs its band in the band column")
+		}
+	}
+	if v := cell("snr"); v != "" {
+		x, ok := parseFinite(v)
+		if !ok || x <= 0 || x > 100000 {
+			bad("snr", v, "a wanted S/N per exposure, 0 < S/N ≤ 100000")
+		}
+		if cell("band") == "" || (cell("mag") == "" && cell("faint_mag") == "") {
+			bad("snr", v, "an S/N goal needs the target's band and mag (or faint and bright magnitudes)")
+		}
+		snr = x
+	}
+	variable := []struct {
+		name   string
+		dst    *float64
+		lo, hi float64
+		accept string
+	}{
+		{"faint_mag", &t.FaintMag, -2, 30, "a magnitude −2..30 in the band"},
+		{"faint_phase", &t.FaintPhase, 0, 0.999999999, "a phase 0 ≤ φ < 1"},
+		{"bright_mag", &t.BrightMag, -2, 30, "a magnitude −2..30 in the band"},
+		{"bright_phase", &t.BrightPhase, 0, 0.999999999, "a phase 0 ≤ φ < 1"},
+	}
+	given := 0
+	for _, f := range variable {
+		if v := cell(f.name); v != "" {
+			x, ok := parseFinite(v)
+			if !ok || x < f.lo || x > f.hi {
+				bad(f.name, v, f.accept)
+			}
+			*f.dst = x
+			given++
+		}
+	}
+	switch {
+	case given != 0 && given != len(variable):
+		bad("faint_mag", cell("faint_mag"), "all of faint_mag, faint_phase, bright_mag and bright_phase, or none")
+	case given != 0 && cell("band") == "":
+		bad("faint_mag", cell("faint_mag"), "a variable's magnitudes need the band column")
+	case given != 0 && (t.BrightMag > t.FaintMag || t.BrightPhase == t.FaintPhase):
+		bad("bright_mag", cell("bright_mag"), "not fainter than faint_mag, at a phase other than faint_phase")
+	}
+	if v := cell("max_smear"); v != "" {
+		x, ok := parseFinite(v)
+		if !ok || x <= 0 || x >= 0.5 {
+			bad("max_smear", v, fmt.Sprintf("the most phase one exposure may span, 0 < s < 0.5 (empty: %g)", DefaultMaxSmear))
+		}
+		smear = x
+	}
+	return snr, smear
 }
 
 // ParsePhaseList parses goal centres separated by ';' ("0.25;0.75"), each

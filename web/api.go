@@ -71,7 +71,9 @@ type apiErrorBody struct {
 // the log only.
 func (s *Server) apiError(w http.ResponseWriter, r *http.Request, err error) {
 	status, msg := statusFor(err)
-	if status >= 500 {
+	if code, _ := errorCode(err); code == codeBusy {
+		s.log.Warn("api request refused: busy", "path", r.URL.Path, "err", err)
+	} else if status >= 500 {
 		s.log.Error("api request failed", "path", r.URL.Path, "err", err)
 	} else {
 		s.log.Info("api request refused", "path", r.URL.Path, "status", status, "err", err)

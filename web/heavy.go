@@ -31,7 +31,8 @@ const heavyRetryAfterS = 10
 // queue of at most maxQueue; one caller (a user, or the address of a
 // share-link visitor) holds at most perCaller running or waiting. The rest
 // are refused at once, so that heavy work cannot pile up, and /healthz and
-// the light pages keep answering.
+// the light pages keep answering. A refusal is logged at warning level: it
+// is the server protecting itself, not a failure.
 type heavyGate struct {
 	slots     chan struct{}
 	wait      time.Duration
@@ -43,13 +44,22 @@ type heavyGate struct {
 	holders map[string]int // running or waiting, by caller
 	active  int            // running or waiting, in all
 	freeing atomic.Bool    // a FreeOSMemory is under way
+	freed   time.Time      // when memory was last handed back (g.mu)
 }
 
-// newHeavyGate returns a gate of n slots (at least 1), a queue as long
-// again, a 2-second wait and 2 requests per caller.
+// freeEvery is the least time between two hand-backs of memory to the
+// system: each is a full garbage collection.
+const freeEvery = 10 * time.Second
+
+// newHeavyGate returns a gate of n slots (at least 1), a queue of 16 per
+// slot, a 2-second wait and 4 requests per caller (a browser's page and its
+// downloads). A waiting request holds no memory of its work yet; most
+// heavy requests (a night from the plan cache, a night plan) take tens of
+// milliseconds and pass through the queue, a year of queue windows takes
+// seconds and is refused when the slots stay taken.
 func newHeavyGate(n int) *heavyGate {
 	n = max(n, 1)
-	return &heavyGate{slots: make(chan struct{}, n), wait: 2 * time.Second, maxQueue: n, perCaller: 2, holders: map[string]int{}}
+	return &heavyGate{slots: make(chan struct{}, n), wait: 2 * time.Second, maxQueue: 16 * n, perCaller: 4, holders: map[string]int{}}
 }
 
 // defaultHeavySlots is the server's number of heavy slots: the processors
@@ -107,12 +117,14 @@ func errBusy() error {
 }
 
 // leave forgets one request of caller; g.mu is held. When the last heavy
-// request has gone, the memory it used is handed back to the system.
+// request has gone, the memory it used is handed back to the system (at
+// most once every freeEvery).
 func (g *heavyGate) leave(caller string) {
 	if g.holders[caller]--; g.holders[caller] <= 0 {
 		delete(g.holders, caller)
 	}
-	if g.active--; g.active == 0 && g.freeing.CompareAndSwap(false, true) {
+	if g.active--; g.active == 0 && time.Since(g.freed) >= freeEvery && g.freeing.CompareAndSwap(false, true) { // elapsed
+		g.freed = time.Now() // elapsed
 		go func() {
 			defer g.freeing.Store(false)
 			debug.FreeOSMemory()

@@ -9,6 +9,7 @@ import (
 	"runtime"
 	"sync"
 	"testing"
+	"time"
 )
 
 // heavyGet requests path with an API token and returns the status, the
@@ -51,8 +52,8 @@ func checkRefusal(tb testing.TB, status int, retry string, body []byte) {
 
 // TestHeavyGateRefusesExcess fills every heavy slot of the server, then
 // sends 50 concurrent year-long queue-window requests from one viewer's
-// token: beyond the caller's two, they are refused at once with 429, and
-// the two that queue are refused with 503 when their wait runs out;
+// token: beyond the caller's perCaller, they are refused at once with 429,
+// and those that queue are refused with 503 when their wait runs out;
 // /healthz answers meanwhile. Once the slots are free, the same request
 // is answered.
 func TestHeavyGateRefusesExcess(t *testing.T) {
@@ -103,7 +104,8 @@ func TestHeavyGateRefusesExcess(t *testing.T) {
 // requests from three members' tokens while /healthz is asked again and
 // again: every answer is 200, or a 429/503 refusal with Retry-After; at
 // least one is answered, at least one refused; every /healthz is 200.
-// The heap in use is sampled (runtime.MemStats.HeapInuse) and logged.
+// The heap in use is sampled (runtime.MemStats.HeapInuse) and logged, with
+// the slowest /healthz (a figure for docs/reliability.md, not asserted).
 func TestHeavyConcurrentWindows(t *testing.T) {
 	if testing.Short() {
 		t.Skip("50 year-long window requests")
@@ -117,6 +119,7 @@ func TestHeavyConcurrentWindows(t *testing.T) {
 	runtime.ReadMemStats(&before)
 	done := make(chan struct{})
 	var peak uint64
+	var slowest time.Duration // logged only: a figure, not an assertion
 	healthz := map[int]int{}
 	var sampler sync.WaitGroup
 	sampler.Go(func() {
@@ -129,7 +132,9 @@ func TestHeavyConcurrentWindows(t *testing.T) {
 			var m runtime.MemStats
 			runtime.ReadMemStats(&m)
 			peak = max(peak, m.HeapInuse)
+			start := time.Now() // elapsed
 			status, _, _ := heavyGet(t, h.ts.URL+"/healthz", "")
+			slowest = max(slowest, time.Since(start))
 			healthz[status]++
 		}
 	})
@@ -152,8 +157,8 @@ func TestHeavyConcurrentWindows(t *testing.T) {
 	for _, s := range statuses {
 		count[s]++
 	}
-	t.Logf("statuses %v; /healthz %v; heap in use %.0f MB before, %.0f MB at most during", count, healthz,
-		float64(before.HeapInuse)/1e6, float64(peak)/1e6)
+	t.Logf("statuses %v; /healthz %v, the slowest in %v; heap in use %.0f MB before, %.0f MB at most during", count, healthz,
+		slowest.Round(time.Millisecond), float64(before.HeapInuse)/1e6, float64(peak)/1e6)
 	if count[http.StatusOK] == 0 || count[http.StatusOK] == n {
 		t.Errorf("statuses %v: want some answered and the excess refused", count)
 	}

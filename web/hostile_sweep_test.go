@@ -641,3 +641,61 @@ func TestCrossTeamIDsInBodies(t *testing.T) {
 		}
 	}
 }
+
+// TestJobOfAnotherUser: a background computation's page, progress and
+// cancel button answer only the user who started it: the team's owner
+// and another team's member get 404, and their cancel does not stop it.
+func TestJobOfAnotherUser(t *testing.T) {
+	h := newHarness(t)
+	w := h.newAuthzWorld(t, 1)
+	editor := h.client("editor")
+	resp := h.post(editor, fmt.Sprintf("/runs/%d/optimize", w.run), url.Values{"past": {"0"}})
+	job := resp.Header.Get("Location")
+	if resp.StatusCode != http.StatusSeeOther || !strings.HasPrefix(job, "/jobs/") {
+		t.Fatalf("optimize: %d to %q", resp.StatusCode, job)
+	}
+	for _, name := range []string{"owner", "outsider"} {
+		c := h.client(name)
+		for _, path := range []string{job, job + "/progress"} {
+			if resp, _ := h.get(c, path); resp.StatusCode != http.StatusNotFound {
+				t.Errorf("%s GET %s: %d, want 404", name, path, resp.StatusCode)
+			}
+		}
+		if resp := h.post(c, job+"/cancel", nil); resp.StatusCode != http.StatusNotFound {
+			t.Errorf("%s POST %s/cancel: %d, want 404", name, job, resp.StatusCode)
+		}
+	}
+	followJob(t, h, editor, resp) // the editor's job ran to its end: a saved plan
+}
+
+// TestHostileQueries: out-of-range and malformed query values on the
+// heavy pages and the share view are refused (404 or 422), never planned
+// and never a 5xx: a share night index negative, huge or not a number, a
+// night in the year 99999 or 1000, a century of queue windows, a range
+// that ends before it starts, limits of ±1e308, a plan id past int64.
+func TestHostileQueries(t *testing.T) {
+	h := newHarness(t)
+	w := h.newAuthzWorld(t, 1)
+	h.addAuthzPlan(t, &w)
+	c := h.client("editor")
+	q := fmt.Sprintf("site=%d&list=%d", w.site, w.list)
+	cases := []struct {
+		path string
+		want int
+	}{
+		{"/share/" + w.runShareToken + "/night?n=-1", http.StatusNotFound},
+		{"/share/" + w.runShareToken + "/night?n=99999999999999999999", http.StatusNotFound},
+		{"/share/" + w.runShareToken + "/night?n=abc", http.StatusNotFound},
+		{"/night?" + q + "&date=99999-01-01", http.StatusUnprocessableEntity},
+		{"/night?" + q + "&date=1000-01-01", http.StatusUnprocessableEntity},
+		{"/windows.json?" + q + "&from=2026-01-01&to=2126-01-01", http.StatusUnprocessableEntity},
+		{"/windows.json?" + q + "&from=2026-01-01&to=2025-01-01", http.StatusUnprocessableEntity},
+		{"/night?" + q + "&date=2026-03-14&max_airmass=1e308&min_alt=-1e308", http.StatusUnprocessableEntity},
+		{fmt.Sprintf("/runs/%d/plan.csv?plan=99999999999999999999", w.run), http.StatusUnprocessableEntity},
+	}
+	for _, tc := range cases {
+		if resp, body := h.get(c, tc.path); resp.StatusCode != tc.want {
+			t.Errorf("%s: %d, want %d: %.200s", tc.path, resp.StatusCode, tc.want, body)
+		}
+	}
+}

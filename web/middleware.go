@@ -45,7 +45,10 @@ func (s *Server) logRequests(next http.Handler) http.Handler {
 			status = http.StatusOK
 		}
 		level := slog.LevelInfo
-		if status >= 500 {
+		switch {
+		case status == http.StatusServiceUnavailable && ww.Header().Get("Retry-After") != "":
+			level = slog.LevelWarn // the heavy-work gate refused it (heavy.go)
+		case status >= 500:
 			level = slog.LevelError
 		}
 		s.log.LogAttrs(r.Context(), level, "request",

@@ -28,7 +28,9 @@ func (s *Server) render(w http.ResponseWriter, r *http.Request, status int, c te
 // renderError shows the short safe message for err and logs the details.
 func (s *Server) renderError(w http.ResponseWriter, r *http.Request, err error) {
 	status, msg := statusFor(err)
-	if status >= 500 {
+	if code, _ := errorCode(err); code == codeBusy {
+		s.log.Warn("request refused: busy", "path", redactPath(r.URL.Path), "err", err)
+	} else if status >= 500 {
 		s.log.Error("request failed", "path", redactPath(r.URL.Path), "err", err)
 	} else {
 		s.log.Info("request refused", "path", redactPath(r.URL.Path), "status", status, "err", err)

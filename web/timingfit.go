@@ -31,7 +31,7 @@ func timingRows(t store.StoredTarget, timings []store.Timing) ([]page.TimingRow,
 			ev = tm.Event
 		}
 		row := page.TimingRow{ID: tm.ID, Version: tm.Version, Event: ev, Time: tm.T.Text + " " + string(tm.T.Standard),
-			BJD: planner.FormatEpoch(tm.BJD, planner.FormJD, 6), Err: strconv.FormatFloat(tm.ErrDays*86400, 'g', 3, 64),
+			BJD: planner.FormatEpoch(tm.BJD, planner.FormJD, 6), Err: sigFig(tm.ErrDays*86400, 2),
 			Observer: tm.Observer, Note: tm.Note, OC: "—"}
 		if c, r, ok := residual(e, tm); ok {
 			row.OC = strconv.FormatFloat(r, 'f', 1, 64)

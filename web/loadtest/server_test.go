@@ -325,10 +325,11 @@ func newAPIClient(tr http.RoundTripper, base, session, token string) *client {
 
 // response is what a request returned.
 type response struct {
-	status   int
-	body     []byte
-	location string
-	elapsed  time.Duration
+	status     int
+	body       []byte
+	location   string
+	retryAfter string // set on a refusal of the heavy-work gate (429, 503)
+	elapsed    time.Duration
 }
 
 // get requests path (with its query).
@@ -389,7 +390,8 @@ func (c *client) send(req *http.Request) (response, error) {
 	}
 	defer resp.Body.Close()
 	b, err := io.ReadAll(resp.Body)
-	r := response{status: resp.StatusCode, body: b, location: resp.Header.Get("Location"), elapsed: time.Since(start)}
+	r := response{status: resp.StatusCode, body: b, location: resp.Header.Get("Location"), retryAfter: resp.Header.Get("Retry-After"),
+		elapsed: time.Since(start)}
 	if err != nil {
 		return r, fmt.Errorf("read body of %s %s: %w", req.Method, req.URL.Path, err)
 	}

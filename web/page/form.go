@@ -3,7 +3,9 @@ package page
 import (
 	"cmp"
 	"fmt"
+	"regexp"
 	"slices"
+	"strconv"
 	"strings"
 )
 
@@ -65,9 +67,7 @@ func (e Errs) Summary(labels []FieldLabel) []string {
 
 // goalOrder sorts goal fields by row number, then name; others after.
 func goalOrder(f string) string {
-	var row int
-	var name string
-	if n, _ := fmt.Sscanf(strings.Replace(f, "].", "] ", 1), "goals[%d] %s", &row, &name); n == 2 { // dropped: n == 2 is the test that the field is a goal field
+	if row, name, ok := goalFieldOf(f); ok {
 		return fmt.Sprintf("0 %04d %s", row, name)
 	}
 	return "1 " + f
@@ -76,12 +76,23 @@ func goalOrder(f string) string {
 // fieldLabel is a readable name for a field without a label: "goal 2,
 // phase halfwidth" for goals[1].phase_halfwidth.
 func fieldLabel(f string) string {
-	var row int
-	var name string
-	if n, _ := fmt.Sscanf(strings.Replace(f, "].", "] ", 1), "goals[%d] %s", &row, &name); n == 2 { // dropped: n == 2 is the test that the field is a goal field
+	if row, name, ok := goalFieldOf(f); ok {
 		return fmt.Sprintf("goal %d, %s", row+1, strings.ReplaceAll(name, "_", " "))
 	}
 	return strings.ReplaceAll(f, "_", " ")
+}
+
+// goalFieldRE matches a goal row's field name, as GoalField writes it.
+var goalFieldRE = regexp.MustCompile(`^goals\[(\d{1,4})\]\.(\w+)$`)
+
+// goalFieldOf splits "goals[2].exposure_s" into row 2 and "exposure_s".
+func goalFieldOf(f string) (row int, name string, ok bool) {
+	m := goalFieldRE.FindStringSubmatch(f)
+	if m == nil {
+		return 0, "", false
+	}
+	row, err := strconv.Atoi(m[1])
+	return row, m[2], err == nil
 }
 
 // NightLabels name the Night form's fields in page order.
