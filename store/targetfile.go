@@ -13,6 +13,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 // The team target file formats are described in FORMAT.md.
@@ -213,23 +214,10 @@ func parseTeamCSV(b []byte) (parsedFile, error) {
 		return parsedFile{}, tableErr(te)
 	}
 	headerLine, _ := cr.FieldPos(0)
-	col := map[string]int{}
-	for i, h := range header {
-		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
-		switch {
-		case !slices.Contains(csvColumns, h):
-			add(headerLine, i+1, h, h, "unknown column; accepted columns: "+strings.Join(csvColumns, ","))
-		case hasKey(col, h):
-			add(headerLine, i+1, h, h, fmt.Sprintf("column repeated (first at column %d)", col[h]+1))
-		default:
-			col[h] = i
-		}
-	}
-	for _, n := range csvRequired {
-		if !hasKey(col, n) {
-			add(headerLine, 0, n, "", "missing required column "+n+"; required: "+strings.Join(csvRequired, ","))
-		}
-	}
+	col := planner.ColumnIndex(header, csvColumns, csvRequired, headerLine, te, "accepted columns: "+strings.Join(csvColumns, ","),
+		func(n string) string {
+			return "missing required column " + n + "; required: " + strings.Join(csvRequired, ",")
+		})
 	if len(te.Cells) > 0 {
 		return parsedFile{}, tableErr(te)
 	}
@@ -312,7 +300,7 @@ func (c *cellReader) get(name string) string {
 	if !ok {
 		return ""
 	}
-	return planner.UnquoteCSVCell(strings.TrimSpace(c.rec[i]))
+	return export.UnquoteCSVCell(strings.TrimSpace(c.rec[i]))
 }
 
 func (c *cellReader) bad(name, value, reason string) {
@@ -612,7 +600,7 @@ func writeTeamCSV(w io.Writer, targets []StoredTarget) error {
 			copy(rec[len(rec)-4:], []string{string(g.Model), num(g.KKms), num(g.SigmaVKms), numOrEmpty(g.WantRelK)})
 		}
 		for i := range rec {
-			rec[i] = planner.SafeCSVCell(rec[i])
+			rec[i] = export.SafeCSVCell(rec[i])
 		}
 		if err := cw.Write(rec); err != nil {
 			return err

@@ -4,13 +4,14 @@ import (
 	"fmt"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/web/chart"
 	"phasecast/web/page"
 )
 
 // precisionView builds the run page's predicted-precision table and the
 // chart of σK/K against the nights from a saved plan's document.
-func precisionView(doc *runDoc) ([]page.PrecisionRow, chart.Precision) {
+func precisionView(doc *export.Run) ([]page.PrecisionRow, chart.Precision) {
 	var rows []page.PrecisionRow
 	ch := chart.Precision{Title: "Predicted σK/K over the run"}
 	for _, n := range doc.Nights {
