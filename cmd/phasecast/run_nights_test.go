@@ -213,12 +213,12 @@ func TestRunCommandPrecision(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
 	var out struct {
-		Coverage []struct {
+		Targets []struct {
 			Target string `json:"target"`
 			Goals  []struct {
 				Planned int `json:"planned"`
 			} `json:"goals"`
-		} `json:"coverage"`
+		} `json:"targets"`
 		Precision []struct {
 			Target string `json:"target"`
 			RV     struct {
@@ -241,7 +241,7 @@ func TestRunCommandPrecision(t *testing.T) {
 	}
 	p := out.Precision[0].RV
 	planned := 0
-	for _, g := range out.Coverage[0].Goals {
+	for _, g := range out.Targets[0].Goals {
 		planned += g.Planned
 	}
 	if p.After.N < planned || planned == 0 || !p.After.Determined || len(p.PerNight) != 3 {
