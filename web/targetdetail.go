@@ -88,6 +88,13 @@ func targetFacts(t store.StoredTarget) []page.KV {
 	if len(tg.Tags) > 0 {
 		kv = append(kv, page.KV{Key: "Tags", Value: strings.Join(tg.Tags, ", ")})
 	}
+	if g := tg.RV; g != nil {
+		v := fmt.Sprintf("%s, K %s km/s, σv %s km/s per exposure", g.Model, num(g.KKms), num(g.SigmaVKms))
+		if g.WantRelK > 0 {
+			v += ", wanted σK/K ≤ " + planner.FormatRelPercent(g.WantRelK, true)
+		}
+		kv = append(kv, page.KV{Key: "Radial-velocity goal", Value: v})
+	}
 	return append(kv, page.KV{Key: "Saved", Value: fmtUTC(t.UpdatedAt) + " (version " + strconv.FormatInt(t.Version, 10) + ")"})
 }
 

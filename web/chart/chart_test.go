@@ -486,3 +486,34 @@ func BenchmarkNightChartSVG(b *testing.B) {
 	}
 	b.ReportMetric(float64(buf.Len())/1024, "KiB/chart")
 }
+
+// TestPrecision checks the precision chart: one curve per target, a point
+// per determined value (an undetermined one leaves a gap), the wanted line
+// and its label, and the "now" tick; with nothing determined it says so.
+func TestPrecision(t *testing.T) {
+	c := Precision{Title: "σK/K", Nights: []string{"2026-12-01", "2026-12-02", "2026-12-03"}, Series: []PrecisionSeries{
+		{Label: "A", Values: []float64{0, 9, 5, 3.5}, OK: []bool{false, true, true, true}, Want: 3},
+		{Label: "B", Values: []float64{12, 12, 8, 6}, OK: []bool{true, true, true, true}},
+	}}
+	els := parseSVG(t, c.SVG())
+	checkCoordinates(t, els)
+	if got := count(els, func(e element) bool { return e.name == "path" && hasClass(e, "series") }); got != 2 {
+		t.Errorf("curves = %d, want 2", got)
+	}
+	if got := count(els, func(e element) bool { return e.name == "circle" && hasClass(e, "series") }); got != 7 {
+		t.Errorf("points = %d, want 7 (A's undetermined first value left out)", got)
+	}
+	if got := count(els, func(e element) bool { return e.name == "line" && hasClass(e, "limit") }); got != 1 {
+		t.Errorf("wanted lines = %d, want 1", got)
+	}
+	txt := texts(els)
+	for _, want := range []string{"now", "A wanted 3 %", "predicted error (%)"} {
+		if !strings.Contains(txt, want) {
+			t.Errorf("chart text lacks %q", want)
+		}
+	}
+	empty := Precision{Title: "none", Nights: []string{"x"}, Series: []PrecisionSeries{{Label: "A", Values: []float64{0, 0}, OK: []bool{false, false}}}}
+	if !strings.Contains(texts(parseSVG(t, empty.SVG())), "Nothing measurable yet") {
+		t.Error("an undetermined series draws something")
+	}
+}
