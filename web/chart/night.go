@@ -339,7 +339,7 @@ func (n Night) drawLimits(s *svg, g nightGeom, zone *time.Location) {
 			continue
 		}
 		x := g.x(t)
-		s.line(x, nStripTop, x, nStripTop+nStripH+3, "stroke", inkText, "stroke-width", "0.8", "class", "limit")
+		s.line(x, nStripTop, x, nStripTop+nStripH+3, "stroke", inkText, "stroke-width", "0.8", "class", "twl")
 		rank := 2
 		switch name {
 		case "dark", "dark ends":
@@ -634,7 +634,7 @@ func (n Night) drawNow(s *svg, g nightGeom, top, bottom float64) {
 		return
 	}
 	x := g.x(n.Now)
-	s.raw(`<g class="now">`)
+	s.raw(`<g class="nowmark">`)
 	s.line(x, top, x, bottom, "stroke", nowStroke, "stroke-width", "2")
 	s.rect(x-13, top+nStripH+nMarksH+1, 26, 12, "fill", paperFill, "class", "nowbg")
 	s.text(x, top+nStripH+nMarksH+10, "now", "text-anchor", "middle", "font-weight", "700", "font-size", "10", "fill", nowStroke)

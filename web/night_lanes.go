@@ -1,0 +1,101 @@
+package web
+
+import (
+	"fmt"
+	"strings"
+	"time"
+
+	"phasecast/planner"
+	"phasecast/web/chart"
+	"phasecast/web/page"
+)
+
+// laneEvents names the quarter-orbit events for the chart's lanes, short
+// enough to fit a lane; an ascending-node (pulsar-timing) ephemeris says
+// they are the companion's, as eventName does in full.
+var laneEvents = []struct {
+	ev, name, pulsar string
+}{
+	{"inferior_conjunction", "inf. conj.", "comp. inf. conj."},
+	{"max_recession", "max. recession", "comp. max. recession"},
+	{"superior_conjunction", "sup. conj.", "comp. sup. conj."},
+	{"max_approach", "max. approach", "comp. max. approach"},
+}
+
+// trackEvents lists target t's named orbital events for the chart: the
+// conjunctions and quadratures, and the eclipse ingress and egress of any
+// goal that gives an eclipse duration. An event the ephemeris cannot place
+// is left out.
+func trackEvents(t planner.Target) []chart.PhaseMark {
+	var out []chart.PhaseMark
+	pulsar := t.Ephem.Convention == planner.ConvAscendingNode
+	for _, e := range laneEvents {
+		ph, err := planner.EventPhase(t.Ephem, planner.Event(e.ev), 0)
+		if err != nil {
+			continue
+		}
+		name := e.name
+		if pulsar {
+			name = e.pulsar
+		}
+		out = append(out, chart.PhaseMark{Phase: ph, Name: name})
+	}
+	for _, g := range t.Goals {
+		if g.EclipseDurDays <= 0 {
+			continue
+		}
+		for _, ev := range []string{"eclipse_ingress", "eclipse_egress"} {
+			if ph, err := planner.EventPhase(t.Ephem, planner.Event(ev), g.EclipseDurDays); err == nil {
+				out = append(out, chart.PhaseMark{Phase: ph, Name: strings.TrimPrefix(ev, "eclipse_")})
+			}
+		}
+		break
+	}
+	return out
+}
+
+// blockDetail is the figures a chart block shows on focus, one per line.
+func blockDetail(r page.BlockRow, zone string) string {
+	return strings.Join([]string{
+		r.UTC + " UT",
+		r.Local + " " + zone,
+		"LST at start " + r.LST,
+		"airmass " + r.Airmass,
+		"phase " + r.Phases,
+		"parallactic angle " + r.Parallatic,
+		"Moon " + r.MoonSep,
+	}, "\n")
+}
+
+// summary is the night in one line: the dark time (astronomical dusk to
+// dawn) in local time and UT with its length, sunset and sunrise, and the
+// Moon's phase and hours up. It replaces a table of event times; the same
+// limits are drawn in the chart's top strip.
+func (n *night) summary() string {
+	ev := n.events
+	hm := func(t *time.Time) string { return t.In(n.loc).Format("15:04") }
+	var parts []string
+	if ev.AstronomicalDusk != nil && ev.AstronomicalDawn != nil && ev.AstronomicalDawn.After(*ev.AstronomicalDusk) {
+		d := ev.AstronomicalDawn.Sub(*ev.AstronomicalDusk).Round(time.Minute)
+		parts = append(parts, fmt.Sprintf("Dark %s–%s %s (%s–%s UT), %d h %02d min", hm(ev.AstronomicalDusk), hm(ev.AstronomicalDawn),
+			zoneLabel(n.loc, *ev.AstronomicalDusk), ev.AstronomicalDusk.UTC().Format("15:04"), ev.AstronomicalDawn.UTC().Format("15:04"),
+			int(d.Hours()), int(d.Minutes())%60))
+	} else {
+		parts = append(parts, "No astronomical darkness: the Sun stays above −18°")
+	}
+	if ev.Sunset != nil && ev.Sunrise != nil {
+		parts = append(parts, "sunset "+hm(ev.Sunset)+", sunrise "+hm(ev.Sunrise))
+	}
+	moon := fmt.Sprintf("Moon %.0f%% lit", ev.MoonIlluminated*100)
+	switch rise, set := ev.Moonrise, ev.Moonset; {
+	case rise != nil && set != nil && rise.Before(*set):
+		moon += ", up " + hm(rise) + "–" + hm(set)
+	case rise != nil && set != nil:
+		moon += ", sets " + hm(set) + ", rises " + hm(rise)
+	case rise != nil:
+		moon += ", rises " + hm(rise)
+	case set != nil:
+		moon += ", sets " + hm(set)
+	}
+	return strings.Join(append(parts, moon), " · ")
+}
