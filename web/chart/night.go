@@ -395,6 +395,9 @@ func (n Night) drawHours(s *svg, g nightGeom, zone *time.Location, top, bottom f
 		}
 		x := g.x(t)
 		s.line(x, top-3, x, bottom, "stroke", "#c9d0da", "stroke-width", "0.6", "class", "grid")
+		if x < g.x0+16 || x > g.x1-14 {
+			continue // its label would run into the zone's name or off the edge
+		}
 		s.text(x, y, t.In(zone).Format("15:04"), "text-anchor", "middle", "fill", inkText)
 		s.text(x, y+11, t.UTC().Format("15:04"), "text-anchor", "middle", "font-size", "9", "fill", mutedText)
 	}
@@ -536,11 +539,15 @@ var quarters = []PhaseMark{{Phase: 0, Name: "φ0"}, {Phase: 0.25, Name: "φ0.25"
 // previous label.
 func (n Night) drawPhase(s *svg, g nightGeom, tr Track, top, h float64, blocked []box) {
 	s.raw(`<g class="phase">`)
+	lastTick := math.Inf(-1)
 	for _, m := range crossings(tr.Points, quarters) {
 		x := g.x(m.T)
-		if x < g.x0 || x > g.x1 {
+		// an orbit of minutes gives ticks closer than a few pixels: keep
+		// the ones that stay apart
+		if x < g.x0 || x > g.x1 || x-lastTick < 3 {
 			continue
 		}
+		lastTick = x
 		tl := 4.0
 		if m.Phase == 0 || m.Phase == 0.5 {
 			tl = 7

@@ -2,6 +2,7 @@ package page
 
 import (
 	"fmt"
+	"strings"
 	"time"
 )
 
@@ -76,4 +77,14 @@ func plural(n int, one, many string) string {
 func (v NightView) AsSheet() NightView {
 	v.Sheet = true
 	return v
+}
+
+// LocalShort is the block's local times to the minute, "21:03–21:45", for
+// the one-line list (Local keeps the seconds).
+func (b BlockRow) LocalShort() string {
+	from, to, ok := strings.Cut(b.Local, "–")
+	if !ok || len(from) < 5 || len(to) < 5 {
+		return b.Local
+	}
+	return from[:5] + "–" + to[:5]
 }
