@@ -99,3 +99,14 @@ func (n *night) summary() string {
 	}
 	return strings.Join(append(parts, moon), " · ")
 }
+
+// nightOf is the local date of the evening on which the night holding
+// instant t began: a window after local midnight belongs to the evening
+// before (local noon to noon).
+func nightOf(t time.Time, loc *time.Location) string {
+	l := t.In(loc)
+	if l.Hour() < 12 {
+		l = l.AddDate(0, 0, -1)
+	}
+	return l.Format("2006-01-02")
+}
