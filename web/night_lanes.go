@@ -6,6 +6,7 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/store"
 	"phasecast/web/chart"
 	"phasecast/web/page"
 )
@@ -109,4 +110,49 @@ func nightOf(t time.Time, loc *time.Location) string {
 		l = l.AddDate(0, 0, -1)
 	}
 	return l.Format("2006-01-02")
+}
+
+// altitudeTonight is the target detail page's small altitude panel: the
+// night at the team's first site that is under way at now, or else the
+// coming one (local noon to noon), from an hour before sunset to an hour
+// after sunrise, with the site's own limit. ok is false without a site, a
+// zone that loads or samples.
+func altitudeTonight(sites []store.SiteRecord, tg planner.Target, now time.Time) (chart.Altitude, bool) {
+	if len(sites) == 0 {
+		return chart.Altitude{}, false
+	}
+	rec := sites[0]
+	loc, err := time.LoadLocation(rec.Zone)
+	if err != nil {
+		return chart.Altitude{}, false
+	}
+	day := now.In(loc)
+	if day.Hour() < 12 {
+		day = day.AddDate(0, 0, -1)
+	}
+	ev := planner.NightEventsOn(rec.Site, day.Year(), day.Month(), day.Day(), loc)
+	from, to := ev.Start, ev.End
+	if ev.Sunset != nil && ev.Sunrise != nil {
+		from, to = ev.Sunset.Add(-time.Hour), ev.Sunrise.Add(time.Hour)
+	}
+	smp, err := planner.SampleNight(rec.Site, from, to, []planner.Target{tg}, 5*time.Minute)
+	if err != nil || len(smp.Targets) != 1 {
+		return chart.Altitude{}, false
+	}
+	a := chart.Altitude{Title: tg.Name + ", night of " + day.Format("2006-01-02") + " at " + rec.Name, Start: from, End: to, Zone: loc}
+	for _, b := range smp.Bands {
+		if b.Kind == "night" {
+			a.Dark = append(a.Dark, chart.Span{Start: b.Start, End: b.End})
+		}
+	}
+	for i, t := range smp.Times {
+		a.Points = append(a.Points, chart.AltPoint{T: t, AltDeg: smp.Targets[0].AltDeg[i]})
+	}
+	if c := rec.Constraints; c.MaxAirmass > 0 {
+		a.LimitAltDeg = planner.AirmassAltDeg(c.MaxAirmass)
+	}
+	if c := rec.Constraints; c.MinAltDeg > a.LimitAltDeg {
+		a.LimitAltDeg = c.MinAltDeg
+	}
+	return a, true
 }

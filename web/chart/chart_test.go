@@ -538,3 +538,32 @@ func BenchmarkNightChartSVG(b *testing.B) {
 	}
 	b.ReportMetric(float64(buf.Len())/1024, "KiB/chart")
 }
+
+func TestAltitudePanels(t *testing.T) {
+	night := sampleNight(3, 5*time.Minute)
+	night.Tracks[2].Points[4].AltDeg = math.NaN()
+	ps := night.Panels()
+	if len(ps) != 3 {
+		t.Fatalf("%d panels for 3 targets", len(ps))
+	}
+	for _, p := range ps {
+		doc := p.SVG()
+		if strings.Contains(doc, "NaN") || strings.Contains(doc, "Inf") {
+			t.Errorf("%s: NaN or Inf in the panel", p.Title)
+		}
+		els := parseSVG(t, doc)
+		checkCoordinates(t, els)
+		txt := texts(els)
+		for _, want := range []string{p.Title, "highest", "limit 30°"} {
+			if !strings.Contains(txt, want) {
+				t.Errorf("%s: panel text lacks %q", p.Title, want)
+			}
+		}
+		if strings.Contains(txt, "airmass") || strings.Contains(txt, "UT") {
+			t.Errorf("%s: the panel has a second scale: %q", p.Title, txt)
+		}
+		if count(els, func(e element) bool { return e.name == "rect" && hasClass(e, "altblock") }) != 1 {
+			t.Errorf("%s: want its one block marked", p.Title)
+		}
+	}
+}

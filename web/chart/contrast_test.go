@@ -56,7 +56,27 @@ func TestChartTextContrast(t *testing.T) {
 	night.Blocks[1].State = "done"
 	night.Blocks[2].State = "lost"
 	night.Unallocated = []Span{{Start: night.Start, End: night.Start.Add(3 * time.Hour), Label: "not allocated"}}
-	els := parseSVG(t, night.SVG())
+	t.Run("Lanes", func(t *testing.T) {
+		if n := checkTextContrast(t, night.SVG()); n < 40 {
+			t.Errorf("only %d texts checked", n)
+		}
+	})
+	t.Run("AltitudePanels", func(t *testing.T) {
+		n := 0
+		for _, p := range night.Panels() {
+			n += checkTextContrast(t, p.SVG())
+		}
+		if n < 6*4 {
+			t.Errorf("only %d texts checked", n)
+		}
+	})
+}
+
+// checkTextContrast checks every text of doc against the ground under it
+// and returns how many it checked.
+func checkTextContrast(t *testing.T, doc string) int {
+	t.Helper()
+	els := parseSVG(t, doc)
 	type rect struct {
 		x0, y0, x1, y1 float64
 		fill           string
@@ -105,8 +125,6 @@ func TestChartTextContrast(t *testing.T) {
 			}
 		}
 	}
-	if checked < 40 {
-		t.Errorf("only %d texts checked", checked)
-	}
 	t.Logf("%d text/ground pairs checked", checked)
+	return checked
 }
