@@ -6,6 +6,11 @@ import (
 	"time"
 )
 
+// blockFold is how many block lines the Night page shows before it folds
+// the rest under a count: 40 lines keep a dense night's page within 2.5
+// screens at 1,400 × 900 (the browser test checks it).
+const blockFold = 40
+
 // NextInfo is the block the Night page puts first: the one being observed
 // at the page's "now", or else the next to start.
 type NextInfo struct {
