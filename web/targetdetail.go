@@ -57,6 +57,7 @@ func (s *Server) targetDetail(ctx context.Context, u *user, id int64) (page.Targ
 		v.Goals = append(v.Goals, goalLabelConv(g, t.Ephemeris.Ephem.Convention)+fmt.Sprintf(": %s s exposures + %s s readout, %s", num(g.ExposureS), num(g.OverheadS), wantLabel(g.NExposures)))
 	}
 	v.Sigma = sigmaChart(site, t, now)
+	v.Altitude, v.HasAltitude = altitudeTonight(sites, tg, now)
 	v.Timings, v.OC = timingRows(t, timings)
 	fit, note := proposeFit(t, timings)
 	if fit != nil {
