@@ -116,7 +116,7 @@ func runFit(ctx context.Context, _ func() time.Time, args []string, stdout, stde
 	if !file.set {
 		return missing(file)
 	}
-	rows, err := readTimings(file, site, star)
+	rows, err := readTimings(file, site, star, nil)
 	if err != nil {
 		return err
 	}
@@ -160,6 +160,7 @@ func runFit(ctx context.Context, _ func() time.Time, args []string, stdout, stde
 // timingRow is one parsed CSV row.
 type timingRow struct {
 	line    int
+	target  string // the row's target (run's timings file only)
 	text    string
 	std     ephem.TimeStandard
 	form    ephem.EpochForm
@@ -173,8 +174,11 @@ const maxTimings = 100000
 
 var timingColumns = []string{"time", "std", "err_s", "err_days", "form", "cycle", "note"}
 
-// readTimings reads and converts the CSV file named by the flag.
-func readTimings(file *textValue, site *ephem.Site, star *ephem.Star) ([]timingRow, error) {
+// readTimings reads and converts the CSV file named by the flag. With
+// targets (run's file of several targets' timings) a target column is
+// required, naming a target of the list, whose position converts the row;
+// otherwise star does.
+func readTimings(file *textValue, site *ephem.Site, star *ephem.Star, targets map[string]ephem.Star) ([]timingRow, error) {
 	f, err := os.Open(file.value)
 	if err != nil {
 		return nil, fmt.Errorf("--timings %s: %w", shown(file.value), errors.Unwrap(err))
@@ -191,17 +195,25 @@ func readTimings(file *textValue, site *ephem.Site, star *ephem.Star) ([]timingR
 		return nil, usageErrorf("--timings %s: no header line: %v; accepted: a header such as time,std,err_s", shown(file.value), oneLine(err.Error()))
 	}
 	col := map[string]int{}
+	accepted := timingColumns
+	if targets != nil {
+		accepted = append([]string{"target"}, timingColumns...)
+	}
 	for i, h := range header {
 		name := strings.ToLower(strings.TrimSpace(strings.TrimPrefix(h, "\ufeff")))
-		if !slices.Contains(timingColumns, name) {
-			return nil, usageErrorf("%s: unknown column %q; accepted: %s", where(1), name, strings.Join(timingColumns, ", "))
+		if !slices.Contains(accepted, name) {
+			return nil, usageErrorf("%s: unknown column %q; accepted: %s", where(1), name, strings.Join(accepted, ", "))
 		}
 		if _, dup := col[name]; dup {
 			return nil, usageErrorf("%s: column %q appears twice", where(1), name)
 		}
 		col[name] = i
 	}
-	for _, need := range []string{"time", "std"} {
+	need := []string{"time", "std"}
+	if targets != nil {
+		need = append(need, "target")
+	}
+	for _, need := range need {
 		if _, ok := col[need]; !ok {
 			return nil, usageErrorf("%s: no %q column; accepted: a header with time, std and err_s or err_days", where(1), need)
 		}
@@ -233,11 +245,19 @@ func readTimings(file *textValue, site *ephem.Site, star *ephem.Star) ([]timingR
 			}
 			return ""
 		}
-		row, err := parseTimingRow(get, site, star)
+		rowStar := star
+		if targets != nil {
+			st, ok := targets[get("target")]
+			if !ok {
+				return nil, usageErrorf("%s: target %s is not in the targets file", where(line), shown(get("target")))
+			}
+			rowStar = &st
+		}
+		row, err := parseTimingRow(get, site, rowStar)
 		if err != nil {
 			return nil, usageErrorf("%s: %s", where(line), oneLine(err.Error()))
 		}
-		row.line = line
+		row.line, row.target = line, get("target")
 		rows = append(rows, row)
 	}
 	if len(rows) == 0 {

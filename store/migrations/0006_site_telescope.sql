@@ -1,4 +1,4 @@
--- 0005_site_telescope: a site may describe its telescope's motion
+-- 0006_site_telescope: a site may describe its telescope's motion
 -- (planner.TelescopeJSON); '' is none, and the planner then charges each
 -- visit the fixed acquisition time.
 
