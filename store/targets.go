@@ -216,6 +216,12 @@ func validateTargetInput(in TargetInput) (TargetInput, *ValidationError) {
 		addEphemError(v, err) // the rest of the ephemeris, checked with a stand-in T0
 	}
 	validateGoals(v, *t, ephemOK)
+	if b, err := ephem.ParseBand(t.Band); err == nil {
+		t.Band = string(b) // stored as the trade writes it, without blanks
+	}
+	if err := planner.ValidateBrightness(*t); err != nil {
+		addInputError(v, "", err)
+	}
 	validNotes(v, "ephem_note", in.EphemNote, MaxNotes)
 	return in, v
 }
@@ -543,7 +549,7 @@ const ephemCols = `e.id, e.target_id, e.t0_day, e.t0_frac, e.t0_in_day, e.t0_in_
 	coalesce(e.created_by, 0), coalesce(u.name, ''), e.created_at`
 
 const targetSelect = `SELECT t.id, t.list_id, l.team_id, t.name, t.ra_deg, t.dec_deg, t.pm_ra_masyr, t.pm_dec_masyr, t.mag,
-	t.priority, t.acquire_s, t.goals_json, t.tags_json, t.notes, t.created_at, t.updated_at, t.version, ` + ephemCols + `
+	t.band, t.faint_mag, t.faint_phase, t.bright_mag, t.bright_phase, t.priority, t.acquire_s, t.goals_json, t.tags_json, t.notes, t.created_at, t.updated_at, t.version, ` + ephemCols + `
 	FROM targets t
 	JOIN target_lists l ON l.id = t.list_id
 	JOIN ephemerides e ON e.id = (SELECT max(id) FROM ephemerides WHERE target_id = t.id)
@@ -582,7 +588,7 @@ func scanTarget(sc interface{ Scan(...any) error }) (StoredTarget, error) {
 	var es ephemScan
 	tg := &st.Target
 	dest := []any{&st.ID, &st.ListID, &st.TeamID, &tg.Name, &tg.RADeg, &tg.DecDeg, &tg.PMRAmasyr, &tg.PMDecmasyr, &tg.Mag,
-		&tg.Priority, &tg.AcquireS, &goals, &tags, &tg.Notes, &c, &u, &st.Version}
+		&tg.Band, &tg.FaintMag, &tg.FaintPhase, &tg.BrightMag, &tg.BrightPhase, &tg.Priority, &tg.AcquireS, &goals, &tags, &tg.Notes, &c, &u, &st.Version}
 	dest = append(dest, ephemDest(&st.Ephemeris, &es)...)
 	if err := sc.Scan(dest...); err != nil {
 		return StoredTarget{}, err
@@ -688,9 +694,11 @@ func insertTarget(t *txn, listID int64, in TargetInput, src EphemerisSource) (in
 	}
 	now := fmtTime(t.now)
 	tg := in.Target
-	res, err := t.exec(`INSERT INTO targets (list_id, name, ra_deg, dec_deg, pm_ra_masyr, pm_dec_masyr, mag, priority, acquire_s,
-		goals_json, tags_json, notes, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
-		listID, tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Priority, tg.AcquireS, goals, tags, tg.Notes, now, now)
+	res, err := t.exec(`INSERT INTO targets (list_id, name, ra_deg, dec_deg, pm_ra_masyr, pm_dec_masyr, mag, band, faint_mag,
+		faint_phase, bright_mag, bright_phase, priority, acquire_s, goals_json, tags_json, notes, created_at, updated_at, version)
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
+		listID, tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Band, tg.FaintMag, tg.FaintPhase,
+		tg.BrightMag, tg.BrightPhase, tg.Priority, tg.AcquireS, goals, tags, tg.Notes, now, now)
 	if err != nil {
 		return 0, fmt.Errorf("insert target: %w", err)
 	}
@@ -859,10 +867,10 @@ func applyTargetUpdate(t *txn, before StoredTarget, in TargetInput, src Ephemeri
 	}
 	tg := in.Target
 	if _, err := t.exec(`UPDATE targets SET name = ?, ra_deg = ?, dec_deg = ?, pm_ra_masyr = ?, pm_dec_masyr = ?, mag = ?,
-		priority = ?, acquire_s = ?, goals_json = ?, tags_json = ?, notes = ?, updated_at = ?, version = version + 1
+		band = ?, faint_mag = ?, faint_phase = ?, bright_mag = ?, bright_phase = ?, priority = ?, acquire_s = ?, goals_json = ?, tags_json = ?, notes = ?, updated_at = ?, version = version + 1
 		WHERE id = ? AND version = ?`,
-		tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Priority, tg.AcquireS, goals, tags, tg.Notes,
-		fmtTime(t.now), before.ID, before.Version); err != nil {
+		tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Band, tg.FaintMag, tg.FaintPhase, tg.BrightMag,
+		tg.BrightPhase, tg.Priority, tg.AcquireS, goals, tags, tg.Notes, fmtTime(t.now), before.ID, before.Version); err != nil {
 		return StoredTarget{}, fmt.Errorf("update target: %w", err)
 	}
 	after, err := getTarget(t, before.ID)
