@@ -33,6 +33,7 @@ type nightQuery struct {
 	maxMoonIllum   string
 	sunAvoid       string
 	fill           bool
+	instrument     string // the site's instrument by name; "" = its first
 }
 
 // parseNightQuery reads a night request; ids that do not parse are
@@ -40,7 +41,8 @@ type nightQuery struct {
 func parseNightQuery(q url.Values) (nightQuery, error) {
 	n := nightQuery{date: strings.TrimSpace(q.Get("date")), twilight: q.Get("twilight"), maxAirmass: strings.TrimSpace(q.Get("max_airmass")),
 		minAlt: strings.TrimSpace(q.Get("min_alt")), minMoonSep: strings.TrimSpace(q.Get("min_moon_sep")),
-		maxMoonIllum: strings.TrimSpace(q.Get("max_moon_illum")), sunAvoid: strings.TrimSpace(q.Get("sun_avoid")), fill: q.Get("fill") == "1"}
+		maxMoonIllum: strings.TrimSpace(q.Get("max_moon_illum")), sunAvoid: strings.TrimSpace(q.Get("sun_avoid")), fill: q.Get("fill") == "1",
+		instrument: strings.TrimSpace(q.Get("instrument"))}
 	var err error
 	if n.siteID, err = optID(q.Get("site")); err != nil {
 		return n, err
@@ -348,6 +350,18 @@ func (n *night) planIt(errs page.Errs) error {
 		from, to = ws[0].Start, ws[0].End
 	}
 	n.req = planner.NightRequest{Site: n.site.Site, From: from, To: to, Constraints: c, Options: planner.Options{Fill: n.q.fill}}
+	inst, err := n.site.Instrument(n.q.instrument)
+	if err != nil {
+		fe, _, ok := formErrs(err)
+		if !ok {
+			return err
+		}
+		for k, v := range fe {
+			errs[k] = v
+		}
+		return nil
+	}
+	n.req.Instrument = inst
 	for _, t := range n.targets {
 		n.req.Targets = append(n.req.Targets, t.Target)
 	}
