@@ -40,3 +40,19 @@ func TestDemoNightSNR(t *testing.T) {
 		t.Errorf("unknown instrument: %d", resp.StatusCode)
 	}
 }
+
+// TestDemoWindowsSNR lists a fixed week of the demo's queue windows with
+// the default instrument: windows of S/N goals say the sized exposure and
+// its S/N, in the page and in the JSON export.
+func TestDemoWindowsSNR(t *testing.T) {
+	d := newDemo(t)
+	q := "site=" + i64s(d.info.Site.ID) + "&list=" + i64s(d.info.List.ID) + "&from=2026-12-01&to=2026-12-07"
+	resp, body := d.get(t, "/windows?"+q)
+	if resp.StatusCode != http.StatusOK || !regexp.MustCompile(`× \d+\.\d s \(S/N \d+, sky \d+\.\d\d mag/arcsec²\)`).MatchString(body) {
+		t.Errorf("windows page: %d, no sized exposure shown", resp.StatusCode)
+	}
+	resp, body = d.get(t, "/windows.json?"+q)
+	if resp.StatusCode != http.StatusOK || !regexp.MustCompile(`"snr": \d`).MatchString(body) || !regexp.MustCompile(`"sky_mag_arcsec2": \d`).MatchString(body) {
+		t.Errorf("windows JSON: %d, no snr or sky member:\n%.2000s", resp.StatusCode, body)
+	}
+}

@@ -124,7 +124,7 @@ func (n nightQuery) values() url.Values {
 		q.Add("t", i64s(id))
 	}
 	for k, v := range map[string]string{"twilight": n.twilight, "max_airmass": n.maxAirmass, "min_alt": n.minAlt,
-		"min_moon_sep": n.minMoonSep, "max_moon_illum": n.maxMoonIllum, "sun_avoid": n.sunAvoid} {
+		"min_moon_sep": n.minMoonSep, "max_moon_illum": n.maxMoonIllum, "sun_avoid": n.sunAvoid, "instrument": n.instrument} {
 		if v != "" {
 			q.Set(k, v)
 		}
@@ -327,6 +327,23 @@ func (n *night) checkEach(c planner.Constraints, errs page.Errs) {
 	}
 }
 
+// instrument is the site's instrument the request names (the first when
+// it names none; nil for a site without instruments). An unknown name is a
+// message on the instrument field.
+func (n *night) instrument(errs page.Errs) (*planner.Instrument, error) {
+	inst, err := n.site.Instrument(n.q.instrument)
+	if err != nil {
+		fe, _, ok := formErrs(err)
+		if !ok {
+			return nil, err
+		}
+		for k, v := range fe {
+			errs[k] = v
+		}
+	}
+	return inst, nil
+}
+
 // planIt plans the night. Constraint values the planner refuses become
 // messages on their fields.
 func (n *night) planIt(errs page.Errs) error {
@@ -350,16 +367,9 @@ func (n *night) planIt(errs page.Errs) error {
 		from, to = ws[0].Start, ws[0].End
 	}
 	n.req = planner.NightRequest{Site: n.site.Site, From: from, To: to, Constraints: c, Options: planner.Options{Fill: n.q.fill}}
-	inst, err := n.site.Instrument(n.q.instrument)
-	if err != nil {
-		fe, _, ok := formErrs(err)
-		if !ok {
-			return err
-		}
-		for k, v := range fe {
-			errs[k] = v
-		}
-		return nil
+	inst, err := n.instrument(errs)
+	if err != nil || len(errs) > 0 {
+		return err
 	}
 	n.req.Instrument = inst
 	for _, t := range n.targets {

@@ -106,6 +106,9 @@ func (in *runInputs) nightsOver(now time.Time) int {
 // blocks as failed exposures); later ones are left out.
 func (in *runInputs) request(past int) planner.RunRequest {
 	req := planner.RunRequest{Site: in.site.Site, Zone: in.loc, Nights: in.nights, Constraints: in.constraints(), Past: past, Bins: 10}
+	// A run sizes S/N goals' exposures with its site's default (first)
+	// instrument; "" never fails.
+	req.Instrument, _ = in.site.Instrument("")
 	names := map[int64]string{}
 	for _, t := range in.targets {
 		req.Targets = append(req.Targets, t.Target)

@@ -81,6 +81,9 @@ func (s *Server) loadWindows(ctx context.Context, a store.Actor, teamID int64, q
 	w.from, _ = planner.NightWindow(y1, m1, d1, n.loc)
 	_, w.to = planner.NightWindow(y2, m2, d2, n.loc)
 	req := planner.WindowRequest{Site: n.site.Site, From: w.from, To: w.to, Constraints: n.constraints(errs)}
+	if req.Instrument, err = n.instrument(errs); err != nil {
+		return nil, nil, err
+	}
 	for _, t := range n.targets {
 		if w.req.goalN > 0 {
 			t.Target.Goals = []planner.Goal{t.Target.Goals[w.req.goalN-1]}
@@ -170,7 +173,7 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 				Local:  qw.Start.In(n.loc).Format("Jan 02 15:04") + "–" + qw.End.In(n.loc).Format("15:04"),
 				Length: fmtDuration(qw.End.Sub(qw.Start)), Cycle: strconv.FormatInt(qw.Cycle, 10),
 				Airmass: fmt.Sprintf("%.2f–%.2f", qw.AirmassMin, qw.AirmassMax), PhaseErr: fmtPhaseErr(qw.PhaseErr), Uncertain: qw.Uncertain,
-				Exposures: strconv.Itoa(qw.Exposures)})
+				Exposures: strconv.Itoa(qw.Exposures) + sizingText(qw.Sizing)})
 			v.Total++
 		}
 		v.Groups = append(v.Groups, grp)
@@ -191,6 +194,25 @@ type windowJSON struct {
 	PhaseErr   float64 `json:"phase_err"`
 	Uncertain  bool    `json:"uncertain"`
 	Exposures  int     `json:"whole_exposures"`
+	// ExposureS, SNR and SkyMag are the exposure sized for the goal's S/N
+	// at the window's middle, the S/N it reaches (the best reachable when
+	// SNRReached is false) and the sky used; absent without an instrument.
+	ExposureS  *float64 `json:"exposure_s,omitempty"`
+	SNR        *float64 `json:"snr,omitempty"`
+	SkyMag     *float64 `json:"sky_mag_arcsec2,omitempty"`
+	SNRReached *bool    `json:"snr_reached,omitempty"`
+}
+
+// sizingText describes a window's S/N sizing for the table: "" without
+// one.
+func sizingText(sz *planner.ExposureSizing) string {
+	switch {
+	case sz == nil:
+		return ""
+	case !sz.Reached:
+		return fmt.Sprintf(" (S/N not reached within the smear limit: best %.1f in %.1f s, sky %.2f mag/arcsec²)", sz.SNR, sz.ExposureS, sz.SkyMag)
+	}
+	return fmt.Sprintf(" × %.1f s (S/N %.0f, sky %.2f mag/arcsec²)", sz.ExposureS, sz.SNR, sz.SkyMag)
 }
 
 // flat lists every window in target, goal, time order.
@@ -198,9 +220,13 @@ func (w *windows) flat() []windowJSON {
 	out := []windowJSON{}
 	for _, g := range w.groups {
 		for _, qw := range g.Windows {
-			out = append(out, windowJSON{Target: g.Target, PhaseGoal: g.Goal.Center, Event: g.Goal.Event, Start: utcString(qw.Start),
+			wj := windowJSON{Target: g.Target, PhaseGoal: g.Goal.Center, Event: g.Goal.Event, Start: utcString(qw.Start),
 				End: utcString(qw.End), Cycle: qw.Cycle, AirmassMin: qw.AirmassMin, AirmassMax: qw.AirmassMax, PhaseErr: qw.PhaseErr,
-				Uncertain: qw.Uncertain, Exposures: qw.Exposures})
+				Uncertain: qw.Uncertain, Exposures: qw.Exposures}
+			if sz := qw.Sizing; sz != nil {
+				wj.ExposureS, wj.SNR, wj.SkyMag, wj.SNRReached = &sz.ExposureS, &sz.SNR, &sz.SkyMag, &sz.Reached
+			}
+			out = append(out, wj)
 		}
 	}
 	return out
