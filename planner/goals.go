@@ -61,8 +61,10 @@ func EventNames() []string {
 	return names
 }
 
-// validateTarget checks the fields the night planner reads. Field names in
-// errors are prefixed with the target's position and name.
+// validateTarget checks a target before planning: a name, at least one
+// goal, a valid ephemeris, and the rules of TargetProblems (the first one
+// broken is the error). Field names in errors are prefixed with the
+// target's position and name.
 func validateTarget(i int, t Target) error {
 	pre := fmt.Sprintf("targets[%d]", i)
 	if strings.TrimSpace(t.Name) != "" {
@@ -71,19 +73,12 @@ func validateTarget(i int, t Target) error {
 	bad := func(field, value, accepted string) error {
 		return &ephem.InputError{Field: pre + "." + field, Value: value, Accepted: accepted}
 	}
+	ps := TargetProblems(t)
 	switch {
 	case strings.TrimSpace(t.Name) == "":
 		return bad("name", `""`, "a non-empty name")
-	case !finite(t.RADeg) || t.RADeg < 0 || t.RADeg >= 360:
-		return bad("ra", fmtNum(t.RADeg), "0 ≤ RA < 360 degrees")
-	case !finite(t.DecDeg) || t.DecDeg < -90 || t.DecDeg > 90:
-		return bad("dec", fmtNum(t.DecDeg), "−90..90 degrees")
-	case !finite(t.PMRAmasyr) || !finite(t.PMDecmasyr):
-		return bad("proper_motion", fmtNum(t.PMRAmasyr)+", "+fmtNum(t.PMDecmasyr), "finite values, mas/yr")
-	case t.Priority < 1 || t.Priority > 5:
-		return bad("priority", fmt.Sprint(t.Priority), "an integer 1 (highest) to 5")
-	case !finite(t.AcquireS) || t.AcquireS < 0 || t.AcquireS > 3600:
-		return bad("acquire_s", fmtNum(t.AcquireS), "0..3600 seconds")
+	case len(ps) > 0 && !strings.HasPrefix(ps[0].Field, "goals"):
+		return bad(ps[0].Field, ps[0].Value, ps[0].Accepted)
 	case len(t.Goals) == 0:
 		return bad("goals", "none", "at least one phase goal")
 	}
@@ -93,22 +88,8 @@ func validateTarget(i int, t Target) error {
 	if err := validateBrightness(pre, t); err != nil {
 		return err
 	}
-	for k, g := range t.Goals {
-		gp := fmt.Sprintf("goals[%d].", k)
-		switch {
-		case g.Event == "" && (!finite(g.Center) || g.Center < 0 || g.Center >= 1):
-			return bad(gp+"center", fmtNum(g.Center), "0 ≤ phase < 1")
-		case !finite(g.HalfWidth) || g.HalfWidth <= 0 || g.HalfWidth >= 0.5:
-			return bad(gp+"half_width", fmtNum(g.HalfWidth), "0 < half-width < 0.5 (phase)")
-		case !finite(g.ExposureS) || g.ExposureS <= 0 || g.ExposureS > 86400:
-			return bad(gp+"exposure_s", fmtNum(g.ExposureS), "0 < exposure ≤ 86400 seconds")
-		case !finite(g.OverheadS) || g.OverheadS < 0 || g.OverheadS > 86400:
-			return bad(gp+"overhead_s", fmtNum(g.OverheadS), "0 ≤ overhead ≤ 86400 seconds")
-		case g.NExposures < 0 || g.NExposures > 10000:
-			return bad(gp+"n_exposures", fmt.Sprint(g.NExposures), "0 (as many as fit) to 10000")
-		case !finite(g.EclipseDurDays) || g.EclipseDurDays < 0:
-			return bad(gp+"eclipse_duration_days", fmtNum(g.EclipseDurDays), "a duration ≥ 0 days")
-		}
+	if len(ps) > 0 {
+		return bad(ps[0].Field, ps[0].Value, ps[0].Accepted)
 	}
 	return nil
 }

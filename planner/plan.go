@@ -1,8 +1,10 @@
 package planner
 
 import (
+	"context"
 	"fmt"
 	"math"
+	"sync"
 	"time"
 
 	"phasecast/ephem"
@@ -265,7 +267,8 @@ type engine struct {
 	c          Constraints
 	opt        Options
 	mask       *horizonMask
-	altAirmass float64 // refracted altitude of the airmass limit, 0 = none
+	altAirmass float64         // refracted altitude of the airmass limit, 0 = none
+	air        *ephem.AirTable // the site's refraction table (sample)
 	sky        *nightSky
 	from, to   float64
 	dark       []span
@@ -276,7 +279,8 @@ type engine struct {
 	presized   map[occKey]ExposureSizing
 	// short holds, per target and goal, the best S/N of the occurrences
 	// whose smear limit stopped the exposure short of the goal's S/N.
-	short map[[2]int]snrShortfall
+	short   map[[2]int]snrShortfall
+	shortMu sync.Mutex // buildProblem lists targets on all cores
 }
 
 // occMeta describes one goal occurrence.
@@ -360,7 +364,7 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 			return nil, nil, err
 		}
 	}
-	en := &engine{site: req.Site, c: c, opt: opt, mask: newHorizonMask(c.Horizon), from: from, to: to,
+	en := &engine{site: req.Site, c: c, opt: opt, mask: newHorizonMask(c.Horizon), air: req.Site.AirTable(), from: from, to: to,
 		instrument: req.Instrument, presized: req.presized, short: map[[2]int]snrShortfall{}}
 	if c.MaxAirmass > 0 {
 		en.altAirmass = altForAirmass(c.MaxAirmass)
@@ -376,10 +380,13 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 	en.fillEnvCache()
 	frame := ephem.NewSkyFrame(req.Site, req.From, req.To)
 	targets := make([]*targetState, len(req.Targets))
-	for i, t := range req.Targets {
+	// The targets are independent: set them up on all cores (the engine is
+	// read-only here; each target's state is its own).
+	err = forEach(context.Background(), len(req.Targets), func(i int) error {
+		t := req.Targets[i]
 		goals, err := t.ResolveGoals()
 		if err != nil {
-			return nil, nil, err
+			return err
 		}
 		ts := &targetState{idx: i, t: t, goals: goals, star: t.Star(), amGrid: make([]float64, int((to-from)/opt.StepS)+2)}
 		ts.track = frame.Track(ts.star)
@@ -397,6 +404,10 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 			ts.phaseErr = t.Ephem.PhaseErr(ts.clock.bjd(mid))
 		}
 		targets[i] = ts
+		return nil
+	}, nil)
+	if err != nil {
+		return nil, nil, err
 	}
 	return en, targets, nil
 }
@@ -424,12 +435,19 @@ const guardS = 1.0
 // buildProblem lists every goal occurrence in dark time and its candidate
 // blocks.
 func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
-	pr := &problem{nTargets: len(targets), cands: make([]candidate, 0, 4096)}
-	var occs []occMeta
-	for _, ts := range targets {
+	// Targets on all cores, each with its own occurrences numbered from 0,
+	// then put together in target order (renumbered), as one loop would.
+	type part struct {
+		occs  []occMeta
+		cands []candidate
+	}
+	parts := make([]part, len(targets))
+	forAll(len(targets), func(i int) {
+		ts := targets[i]
 		if !ts.hasClock || ts.phaseErr > en.opt.MaxPhaseErr {
-			continue
+			return
 		}
+		p := &parts[i]
 		for gi, g := range ts.goals {
 			lo, hi := en.dark[0].lo, en.dark[len(en.dark)-1].hi
 			sizing := en.instrument != nil && SizesBySNR(ts.t, g)
@@ -451,10 +469,24 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 				if wanted == 0 {
 					wanted = int(math.Floor((oc.hi-oc.lo)/L)) + 1
 				}
-				k := len(occs)
-				occs = append(occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted, exposureS: og.ExposureS, sized: sizing})
-				pr.cands = en.appendCandidates(pr.cands, ts, og, oc, k, wanted)
+				k := len(p.occs)
+				p.occs = append(p.occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted, exposureS: og.ExposureS, sized: sizing})
+				p.cands = en.appendCandidates(p.cands, ts, og, oc, k, wanted)
 			}
+		}
+	})
+	n := 0
+	for _, p := range parts {
+		n += len(p.cands)
+	}
+	pr := &problem{nTargets: len(targets), cands: make([]candidate, 0, n)}
+	var occs []occMeta
+	for _, p := range parts {
+		base := len(occs)
+		occs = append(occs, p.occs...)
+		for _, c := range p.cands {
+			c.occ += base
+			pr.cands = append(pr.cands, c)
 		}
 	}
 	pr.nOcc = len(occs)

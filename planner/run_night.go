@@ -78,6 +78,16 @@ type nightSolution struct {
 // then by window opening; with the priority weights that is PlanNight's
 // first-fit by priority.
 func (m *nightModel) solve(w [][]int64) nightSolution {
+	greedy := m.weigh(w)
+	// The exact optimum, with the candidates no optimum can use removed
+	// first (solvePruned, proof in prune.go).
+	sol := m.pr.solvePruned(greedy, m.en.opt.MaxStates)
+	return nightSolution{sol: sol, greedy: m.pr.value(greedy).main, weights: w}
+}
+
+// weigh sets the candidates' values for goal weights w and returns the
+// greedy schedule (see solve).
+func (m *nightModel) weigh(w [][]int64) []int {
 	for i := range m.pr.cands {
 		c := &m.pr.cands[i]
 		om := m.occs[c.occ]
@@ -95,8 +105,7 @@ func (m *nightModel) solve(w [][]int64) nightSolution {
 		}
 		return oa.occ.lo < ob.occ.lo
 	})
-	greedy := m.pr.greedy(order)
-	return nightSolution{sol: m.pr.solve(greedy, m.en.opt.MaxStates), greedy: m.pr.value(greedy).main, weights: w}
+	return m.pr.greedy(order)
 }
 
 // plan turns a solved night into the Plan PlanNight returns: blocks with

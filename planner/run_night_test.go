@@ -98,7 +98,11 @@ func TestNightModelWeights(t *testing.T) {
 				}
 			}
 			if tg < 0 {
-				t.Skip("every goal with a candidate is served: no conflict to resolve")
+				// The checks above passed; this night has no goal left out, so
+				// the heavy-weight check has nothing to displace here (the
+				// count below makes sure some night has one).
+				t.Log("every goal with a candidate is served: no conflict to resolve")
+				return
 			}
 			conflicts++
 			w = m.priorityWeights()

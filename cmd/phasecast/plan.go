@@ -12,20 +12,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
-)
-
-// The `plan --json` document is planner.PlanDoc, shared with the web; these
-// names stay for run_nights.go, which prints the same objects per night.
-type (
-	planJSON        = planner.PlanDoc
-	planBlockJSON   = planner.BlockDoc
-	unscheduledJSON = planner.UnscheduledDoc
-	warningJSON     = planner.WarningDoc
-	intervalJSON    = planner.IntervalDoc
-	constraintsJSON = planner.ConstraintsDoc
-	// planTime is an instant in RFC 3339 UTC, with the fraction of a second
-	// written only when there is one (to the microsecond).
-	planTime = planner.DocTime
+	"phasecast/planner/export"
 )
 
 const planSynopsis = `Plan one night: for every target of a CSV list, the observable intervals under the
@@ -58,8 +45,14 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
 	inf := addPlanInstrumentFlags(fl)
-	asJSON := fl.boolean("json", "print one JSON object")
+	siteName := addSiteNameFlag(fl)
+	format := fl.text("format", "text|json|csv", "text", "output format: the sheet, or the night document (docs/formats.md)")
+	asJSON := fl.boolean("json", "print one JSON object (the night document; the same as --format json)")
 	if help, err := fl.parse(args, stdout); help || err != nil {
+		return err
+	}
+	fmtName, err := outputFormatOf(format, *asJSON, "text", "json", "csv")
+	if err != nil {
 		return err
 	}
 	site, err := sf.site()
@@ -118,12 +111,15 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 		return fromInputError(err, "not accepted", nil)
 	}
 	ev := ephem.Night(site, y, m, d, loc)
-	out := planOutput(p, ev, acq)
-	if err := checkPlanFinite(out); err != nil {
+	out := export.NewNight(export.NewSite(siteName.value, site), fmt.Sprintf("%04d-%02d-%02d", y, int(m), d), loc.String(), p, ev, acq)
+	if err := checkPlanFinite(out.PlanDoc); err != nil {
 		return err
 	}
-	if *asJSON {
+	switch fmtName {
+	case "json":
 		return writeJSON(stdout, out)
+	case "csv":
+		return writeBytes(stdout, func() ([]byte, error) { return export.NightCSV(out, loc) })
 	}
 	return printPlan(stdout, p, ev, loc, y, m, d, acq)
 }
@@ -249,13 +245,8 @@ func readTargets(v *textValue) ([]planner.Target, error) {
 	return list, nil
 }
 
-// planOutput is the `plan --json` document; acq is the --acquire-s value.
-func planOutput(p *planner.Plan, ev ephem.NightEvents, acq float64) planJSON {
-	return planner.NewPlanDoc(p, ev, acq)
-}
-
 // checkPlanFinite makes sure no NaN reaches the output.
-func checkPlanFinite(out planJSON) error {
+func checkPlanFinite(out export.PlanDoc) error {
 	for _, b := range out.Blocks {
 		if err := checkFinite([]string{"phase", "phase", "airmass", "airmass", "phase", "smear", "phase error", "Moon separation", "parallactic angle", "hour angle", "Sun altitude"},
 			b.PhaseStart, b.PhaseEnd, b.AirmassMax, b.AirmassMin, b.PhaseMid, b.Smear, b.PhaseErr, b.MoonSepDeg, b.ParallacticDeg, b.HourAngleHours, b.SunAltStartDeg); err != nil {
@@ -267,37 +258,51 @@ func checkPlanFinite(out planJSON) error {
 
 // printPlan writes the human night sheet.
 func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Location, y int, m time.Month, d int, acq float64) error {
-	evening := time.Date(y, m, d, 12, 0, 0, 0, loc)
+	var b strings.Builder
+	printPlanHeader(&b, p, ev, loc, time.Date(y, m, d, 12, 0, 0, 0, loc), acq)
+	if _, err := io.WriteString(w, b.String()); err != nil {
+		return err
+	}
+	if err := printPlanBlocks(w, p, loc); err != nil {
+		return err
+	}
+	b.Reset()
+	printPlanNotes(&b, p)
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// printPlanHeader writes the night, site, limits, dark time and Moon.
+func printPlanHeader(b *strings.Builder, p *planner.Plan, ev ephem.NightEvents, loc *time.Location, evening time.Time, acq float64) {
 	lt := func(t time.Time) string { return t.In(loc).Format("15:04") }
 	ut := func(t time.Time) string { return t.UTC().Format("15:04") }
-	var b strings.Builder
-	fmt.Fprintf(&b, "Night plan for %s (%s), site %s\n", evening.Format("Monday 2006-01-02"), loc, siteLine(p.Site))
+	fmt.Fprintf(b, "Night plan for %s (%s), site %s\n", evening.Format("Monday 2006-01-02"), loc, siteLine(p.Site))
 	c := p.Constraints
-	fmt.Fprintf(&b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
+	fmt.Fprintf(b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
 	if c.MinAltDeg != 0 {
-		fmt.Fprintf(&b, ", altitude ≥ %s°", fmtG(c.MinAltDeg))
+		fmt.Fprintf(b, ", altitude ≥ %s°", fmtG(c.MinAltDeg))
 	}
 	if c.MinMoonSepDeg > 0 {
-		fmt.Fprintf(&b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
+		fmt.Fprintf(b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
 	}
 	if c.MaxMoonIllum > 0 {
-		fmt.Fprintf(&b, ", Moon ≤ %s%% lit when up", fmtG(100*c.MaxMoonIllum))
+		fmt.Fprintf(b, ", Moon ≤ %s%% lit when up", fmtG(100*c.MaxMoonIllum))
 	}
 	if c.HAMinHours != 0 || c.HAMaxHours != 0 {
-		fmt.Fprintf(&b, ", hour angle %s..%s h", fmtG(c.HAMinHours), fmtG(c.HAMaxHours))
+		fmt.Fprintf(b, ", hour angle %s..%s h", fmtG(c.HAMinHours), fmtG(c.HAMaxHours))
 	}
 	if c.ZenithExclDeg > 0 {
-		fmt.Fprintf(&b, ", zenith exclusion %s°", fmtG(c.ZenithExclDeg))
+		fmt.Fprintf(b, ", zenith exclusion %s°", fmtG(c.ZenithExclDeg))
 	}
 	if len(c.Horizon) > 0 {
-		fmt.Fprintf(&b, ", horizon mask (%d points)", len(c.Horizon))
+		fmt.Fprintf(b, ", horizon mask (%d points)", len(c.Horizon))
 	}
-	fmt.Fprintf(&b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
+	fmt.Fprintf(b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
 	if len(p.Dark) == 0 {
-		fmt.Fprintf(&b, "Dark time: none (the Sun stays above %s°)\n", fmtG(c.SunAltMaxDeg))
+		fmt.Fprintf(b, "Dark time: none (the Sun stays above %s°)\n", fmtG(c.SunAltMaxDeg))
 	}
 	for _, dk := range p.Dark {
-		fmt.Fprintf(&b, "Dark time: %s–%s local (%s–%s UTC), %.1f h\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End), dk.End.Sub(dk.Start).Hours())
+		fmt.Fprintf(b, "Dark time: %s–%s local (%s–%s UTC), %.1f h\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End), dk.End.Sub(dk.Start).Hours())
 	}
 	moon := fmt.Sprintf("Moon: %.0f%% illuminated at midnight", 100*ev.MoonIlluminated)
 	if ev.Moonrise != nil {
@@ -307,10 +312,10 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 		moon += ", sets " + lt(*ev.Moonset) + " local"
 	}
 	b.WriteString(moon + "\n\n")
-	if _, err := io.WriteString(w, b.String()); err != nil {
-		return err
-	}
-	b.Reset()
+}
+
+// printPlanBlocks writes the table of blocks.
+func printPlanBlocks(w io.Writer, p *planner.Plan, loc *time.Location) error {
 	tb := newTable(w)
 	tb.row("start", "", "end", "", "target", "goal", "exposures", "phase start→end", "airmass", "Moon", "par.angle", "notes")
 	tb.row("local", "UTC", "local", "UTC", "", "", "", "", "", "", "", "")
@@ -321,7 +326,7 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 		}
 		notes := []string{}
 		if bl.AcquireS > 0 {
-			notes = append(notes, fmt.Sprintf("acquire from %s", lt(bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))))))
+			notes = append(notes, fmt.Sprintf("acquire from %s", bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))).In(loc).Format("15:04")))
 		}
 		if bl.SNROK {
 			notes = append(notes, snrNote(bl))
@@ -338,13 +343,16 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 	if len(p.Blocks) == 0 {
 		tb.row("(no block can be scheduled)", "", "", "", "", "", "", "", "", "", "", "")
 	}
-	if err := tb.flush(); err != nil {
-		return err
-	}
+	return tb.flush()
+}
+
+// printPlanNotes writes the goals left out, the warnings (each once), the
+// schedule's value and the caution.
+func printPlanNotes(b *strings.Builder, p *planner.Plan) {
 	if len(p.Unscheduled) > 0 {
 		b.WriteString("\nNot scheduled:\n")
 		for _, u := range p.Unscheduled {
-			fmt.Fprintf(&b, "  %s, phase %.3f: %s\n", u.Target, u.Goal.Center, u.Detail)
+			fmt.Fprintf(b, "  %s, phase %.3f: %s\n", u.Target, u.Goal.Center, u.Detail)
 		}
 	}
 	var notes []string
@@ -372,10 +380,8 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 	if !p.Optimal {
 		state = "best found, not proven optimal"
 	}
-	fmt.Fprintf(&b, "\nSchedule value %d (%s; greedy first-fit would give %d), %d candidate blocks.\n", p.Value, state, p.GreedyValue, p.Candidates)
+	fmt.Fprintf(b, "\nSchedule value %d (%s; greedy first-fit would give %d), %d candidate blocks.\n", p.Value, state, p.GreedyValue, p.Candidates)
 	b.WriteString(planner.SafetyCaution + "\n")
-	_, err := io.WriteString(w, b.String())
-	return err
 }
 
 // fmtG formats a number without trailing zeros.
