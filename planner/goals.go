@@ -2,6 +2,7 @@ package planner
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"phasecast/ephem"
@@ -46,10 +47,65 @@ func (t Target) ResolveGoals() ([]Goal, error) {
 			r := g
 			r.Event = string(ev)
 			r.Center = ph
+			r.ContainEvent = g.Event == EventEclipse || ev == ephem.EventEclipseIngress || ev == ephem.EventEclipseEgress
 			out = append(out, r)
 		}
 	}
 	return out, nil
+}
+
+// NExposuresAccepted is what Goal.NExposures accepts, for error messages.
+const NExposuresAccepted = "0 (enough to cover the window once), −1 (as many as fit) or 1..10000"
+
+// NAsManyAsFit in Goal.NExposures asks for as many exposures as one window
+// holds; 0 (the default) asks for enough to cover the window once.
+const NAsManyAsFit = -1
+
+// WindowS returns the goal window's length in time, seconds: 2 × HalfWidth
+// × the period (periodDays, days).
+func (g Goal) WindowS(periodDays float64) float64 { return 2 * g.HalfWidth * periodDays * 86400 }
+
+// Capacity returns C, the most exposures whose mid-times fit in one window
+// of the goal: ⌊W/L⌋ + 1, W = WindowS, L = ExposureS + OverheadS (mid-times
+// L apart, the first at the window's opening).
+func (g Goal) Capacity(periodDays float64) int {
+	return int(math.Floor(g.WindowS(periodDays)/(g.ExposureS+g.OverheadS))) + 1
+}
+
+// CoverOnce returns the exposures that cover the window once: the fewest n
+// with (n−1)·L + E ≥ W (from the first exposure's start to the last one's
+// end), at least 1, at most Capacity.
+func (g Goal) CoverOnce(periodDays float64) int {
+	L, E, W := g.ExposureS+g.OverheadS, g.ExposureS, g.WindowS(periodDays)
+	n := 1
+	if W > E {
+		n = int(math.Ceil((W-E)/L-1e-9)) + 1
+	}
+	return min(n, g.Capacity(periodDays))
+}
+
+// Wanted returns N, the exposures the goal wants per night: NExposures when
+// set (1..10000), CoverOnce for 0, Capacity for NAsManyAsFit.
+func (g Goal) Wanted(periodDays float64) int {
+	switch {
+	case g.NExposures > 0:
+		return g.NExposures
+	case g.NExposures == NAsManyAsFit:
+		return g.Capacity(periodDays)
+	}
+	return g.CoverOnce(periodDays)
+}
+
+// WantedLabel describes the goal's wanted count in words ("3 wanted",
+// "enough to cover the window once", "as many as fit").
+func (g Goal) WantedLabel() string {
+	switch {
+	case g.NExposures > 0:
+		return fmt.Sprintf("%d wanted", g.NExposures)
+	case g.NExposures == NAsManyAsFit:
+		return "as many as fit"
+	}
+	return "enough to cover the window once"
 }
 
 // EventNames lists the goal events accepted in Goal.Event.

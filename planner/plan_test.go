@@ -208,10 +208,10 @@ func TestPlanRelaxMonotone(t *testing.T) {
 			if !base.Optimal || !p.Optimal {
 				t.Fatalf("night %d: not proven optimal", n)
 			}
-			if p.Value < base.Value {
+			if p.Objective.Less(base.Objective) {
 				t.Errorf("night %d, %s removed: value %d < %d with it", n, rx.name, p.Value, base.Value)
 			}
-			if p.Value > base.Value {
+			if base.Objective.Less(p.Objective) {
 				gains++
 			}
 		}
@@ -257,7 +257,7 @@ func TestPlanBeatsGreedyRealNight(t *testing.T) {
 	if p.Blocks[0].Target != "Short-2" {
 		t.Errorf("first block %s, want Short-2 (its window is short)", p.Blocks[0].Target)
 	}
-	if !(p.GreedyValue < p.Value) {
+	if !p.GreedyObjective.Less(p.Objective) {
 		t.Errorf("optimum %d does not beat greedy %d", p.Value, p.GreedyValue)
 	}
 	t.Logf("optimum %d (2 goals) against greedy %d", p.Value, p.GreedyValue)

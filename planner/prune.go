@@ -56,7 +56,8 @@ import (
 // Incumbents: the one given and the best chain made feasible
 // (problem.repair); LB is the better one's value. Two passes. When LB is
 // within pruneTight of the whole relaxation's bound max UB, a first guess
-// LB* = (1 − pruneGuess) · max UB (main value) prunes hard and its problem
+// LB* = (1 − pruneGuess) · max UB (on its leading priority level,
+// pruneGuessBelow) prunes hard and its problem
 // is solved:
 // its optimum V is a feasible schedule of pr. If V ≥ LB*, V is the optimum
 // of pr: an optimal schedule S* of pr has value ≥ V ≥ LB*, so by the rule
@@ -73,7 +74,7 @@ func (pr *problem) solvePruned(incumbent []int, maxBuckets int) solution {
 			end, top = i, f.val
 		}
 	}
-	lb := score{main: math.MinInt64 / 4, tie: math.MinInt64 / 4}
+	lb := lowestScore()
 	if pr.feasible(incumbent) {
 		lb = pr.value(incumbent)
 	} else {
@@ -95,8 +96,7 @@ func (pr *problem) solvePruned(incumbent []int, maxBuckets int) solution {
 	// chain is within pruneTight of the bound (dense nights of many targets
 	// with the priority weights); with a loose relaxation (a run's uneven
 	// weights) the guess would fail and cost a solve.
-	guess := score{main: top.main - int64(pruneGuess*float64(top.main)), tie: math.MinInt64 / 4}
-	if lb.less(guess) && float64(top.main-lb.main) <= pruneTight*float64(top.main) {
+	if guess, ok := pruneGuessBelow(top, lb); ok {
 		sol := pr.solveKept(pr.keptBy(fwd, bwd, guess), incumbent, maxBuckets)
 		if sol.optimal && !sol.value.less(guess) {
 			return sol
@@ -106,6 +106,42 @@ func (pr *problem) solvePruned(incumbent []int, maxBuckets int) solution {
 		}
 	}
 	return pr.solveKept(pr.keptBy(fwd, bwd, lb), incumbent, maxBuckets)
+}
+
+// lowestScore is below every score a schedule can have (and far from
+// overflow when compared).
+func lowestScore() score {
+	var s score
+	for l := range levels {
+		s.main[l], s.tie[l] = math.MinInt64/4, math.MinInt64/4
+	}
+	return s
+}
+
+// pruneGuessBelow returns the first pass's guess LB* for the relaxation's
+// bound top and the proven lb, and whether the guess is worth a solve. The
+// objective compares level by level (priority 1 first), so the guess keeps
+// top's levels before its leading level l (the first with a non-zero main
+// value), lowers level l's main value by pruneGuess of it and takes
+// everything after as −∞: a score just below "as good as the bound on the
+// leading level". It is tried when lb agrees with top before level l and
+// falls short on level l by at most pruneTight. Any guess keeps the result
+// exact (see solvePruned); the choice only decides whether the first pass
+// pays.
+func pruneGuessBelow(top, lb score) (score, bool) {
+	l, v := top.leading()
+	if l < 0 || v <= 0 {
+		return score{}, false
+	}
+	guess := lowestScore()
+	for k := 0; k < l; k++ {
+		if lb.main[k] != top.main[k] || lb.tie[k] != top.tie[k] {
+			return score{}, false
+		}
+		guess.main[k], guess.tie[k] = top.main[k], top.tie[k]
+	}
+	guess.main[l] = v - int64(pruneGuess*float64(v))
+	return guess, lb.less(guess) && float64(v-lb.main[l]) <= pruneTight*float64(v)
 }
 
 // pruneGuess is the first pass's guess of how far the optimum falls short
@@ -126,7 +162,7 @@ func (pr *problem) keptBy(fwd, bwd []chainValue, lb score) []int {
 		if !fwd[i].ok || !bwd[i].ok {
 			continue
 		}
-		ub := fwd[i].val.plus(bwd[i].val).plus(score{-pr.cands[i].val.main, -pr.cands[i].val.tie})
+		ub := fwd[i].val.plus(bwd[i].val).minus(pr.cands[i].val)
 		if !ub.less(lb) {
 			keep = append(keep, i)
 		}

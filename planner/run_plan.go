@@ -303,14 +303,20 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 	for ti := range out.Coverage {
 		for gi := range out.Coverage[ti].Goals {
 			gc := &out.Coverage[ti].Goals[gi]
+			bestCap, fullNights := 0, 0
 			for _, gn := range out.Reach[ti].Goals[gi].Nights {
 				if gn.Night >= r.past {
 					gc.ReachableNights++
+					bestCap = max(bestCap, gn.Capacity)
+					if gn.Capacity >= gc.NeedExposures {
+						fullNights++
+					}
 				}
 			}
 			if gc.Status == CoverageNone && len(out.Reach[ti].Goals[gi].Nights) == 0 {
 				gc.Status = CoverageUnreachable
 			}
+			gc.Shortfall = coverageShortfall(*gc, r.targets[ti].t.Ephem.PeriodDays, bestCap, fullNights)
 			out.Value += gc.Share
 			rg := r.goals[ti][gi]
 			out.RequiredValue += 1e6 * rg.w

@@ -40,7 +40,8 @@ type TargetProblem struct {
 // priority (1..5), acquire_s (0..MaxAcquireS), goals (at most MaxGoals) and
 // per goal goals[k].event (a known event), .center (0 ≤ φ < 1 without an
 // event), .phase_halfwidth (0 < w < 0.5), .exposure_s (0 < t ≤ MaxExposureS),
-// .overhead_s (0..MaxExposureS), .n_exposures (0..MaxGoalExposures),
+// .overhead_s (0..MaxExposureS), .n_exposures (NAsManyAsFit, 0 or
+// 1..MaxGoalExposures), .min_block_s (0..86400 s),
 // .min_nights (0..MaxRunNights) and .eclipse_duration_days (≥ 0 and shorter
 // than the period). When t's ephemeris is valid each goal's event is also
 // resolved against it, so that an impossible one (the periastron of a
@@ -97,8 +98,11 @@ func TargetProblems(t Target) []TargetProblem {
 		if !finite(g.OverheadS) || g.OverheadS < 0 || g.OverheadS > MaxExposureS {
 			bad(f+"overhead_s", fmtNum(g.OverheadS), fmt.Sprintf("readout per exposure, 0 ≤ t ≤ %g seconds", MaxExposureS))
 		}
-		if g.NExposures < 0 || g.NExposures > MaxGoalExposures {
-			bad(f+"n_exposures", strconv.Itoa(g.NExposures), fmt.Sprintf("0 (as many as fit) to %d", MaxGoalExposures))
+		if g.NExposures < NAsManyAsFit || g.NExposures > MaxGoalExposures {
+			bad(f+"n_exposures", strconv.Itoa(g.NExposures), NExposuresAccepted)
+		}
+		if !finite(g.MinBlockS) || g.MinBlockS < 0 || g.MinBlockS > 86400 {
+			bad(f+"min_block_s", fmtNum(g.MinBlockS), "0 (none) to 86400 seconds")
 		}
 		if g.MinNights < 0 || g.MinNights > MaxRunNights {
 			bad(f+"min_nights", strconv.Itoa(g.MinNights), fmt.Sprintf("0 to %d nights", MaxRunNights))

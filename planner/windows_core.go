@@ -208,7 +208,7 @@ func (en *engine) reach(ts *targetState, clock *phaseClock, pad float64) ([][]re
 	occs := make([][]occurrence, len(ts.goals))
 	var want []span
 	for gi, g := range ts.goals {
-		occs[gi] = clock.occurrences(g.Center, g.HalfWidth, lo, hi, en.opt.MaxOccurrences+1)
+		occs[gi] = clock.occurrences(g.Center, en.opt.halfWidth(g.HalfWidth, phaseErr), lo, hi, en.opt.MaxOccurrences+1)
 		if len(occs[gi]) > en.opt.MaxOccurrences {
 			return nil, 0, &errTooManyOccurrences{ts.t.Name, en.opt.MaxOccurrences}
 		}

@@ -90,6 +90,16 @@ func TestDemoPagesRender(t *testing.T) {
 			if m := regexp.MustCompile(`NaN|Inf\b`).FindString(string(b)); m != "" {
 				t.Errorf("GET %s shows %q", p.path, m)
 			}
+			if p.testid == "upcoming" {
+				// Every predicted event time carries its ±.
+				body := string(b)
+				table := body[strings.Index(body, `data-testid="upcoming"`):]
+				table = table[:strings.Index(table, "</table>")]
+				times, sigmas := strings.Count(table, "(in "), strings.Count(table, " ± ")
+				if times == 0 || times != sigmas {
+					t.Errorf("GET %s: %d predicted event times, %d with their ±", p.path, times, sigmas)
+				}
+			}
 		})
 	}
 }

@@ -91,8 +91,11 @@ func needText(n int) string {
 }
 
 func statusText(g export.RunGoal) string {
-	if g.Unreachable != "" {
+	switch {
+	case g.Unreachable != "":
 		return g.Status + ": " + g.Unreachable
+	case g.Shortfall != "":
+		return g.Status + ": " + g.Shortfall
 	}
 	return g.Status
 }

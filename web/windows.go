@@ -163,6 +163,9 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 	v.Zone = zoneLabel(n.loc, w.from)
 	for _, g := range w.groups {
 		grp := page.WindowGroup{Target: g.Target, Goal: export.GoalLabel(g.Goal)}
+		if g.Refused > 0 {
+			grp.Refused = fmt.Sprintf("%d window(s) left out: %s", g.Refused, g.RefusedNote)
+		}
 		for _, qw := range g.Windows {
 			grp.Rows = append(grp.Rows, page.WindowRow{StartUTC: qw.Start.UTC().Format("2006-01-02 15:04:05"), EndUTC: qw.End.UTC().Format("15:04:05"),
 				Local:  qw.Start.In(n.loc).Format("Jan 02 15:04") + "–" + qw.End.In(n.loc).Format("15:04"),

@@ -41,7 +41,7 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, header above); required")
 	cf := addConstraintFlags(fl)
 	acquire := fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
-	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = as many as fit)")
+	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = cover the window once, -1 = as many as fit)")
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
 	inf := addPlanInstrumentFlags(fl)
@@ -73,13 +73,17 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	if err != nil {
 		return err
 	}
+	pad, err := cf.pad()
+	if err != nil {
+		return err
+	}
 	acq, err := number(acquire, false, 120, 0, 3600, "seconds 0..3600")
 	if err != nil {
 		return err
 	}
-	n, err := number(nExp, false, 0, 0, 10000, "a whole number 0..10000 (0 = as many as fit)")
+	n, err := number(nExp, false, 0, planner.NAsManyAsFit, 10000, "a whole number -1..10000 (0 = cover the window once, -1 = as many as fit)")
 	if err == nil && n != math.Trunc(n) {
-		err = fieldError(nExp, "not a whole number", "a whole number 0..10000 (0 = as many as fit)")
+		err = fieldError(nExp, "not a whole number", "a whole number -1..10000 (0 = cover the window once, -1 = as many as fit)")
 	}
 	if err != nil {
 		return err
@@ -105,7 +109,7 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	from, to := planner.NightWindow(y, m, d, loc)
 	p, err := planner.PlanNight(planner.NightRequest{
 		Site: site, From: from, To: to, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *fill}, Instrument: inst,
+		Options: planner.Options{StepS: stepS, Fill: *fill, PadSigma: pad}, Instrument: inst,
 	})
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
@@ -128,6 +132,13 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 // windows.
 type constraintFlags struct {
 	twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum, haMin, haMax, zenith, sunAvoid, horizon *textValue
+	// padSigma widens the goal windows by k σ of phase (planner.Options.PadSigma).
+	padSigma *textValue
+}
+
+// pad reads --pad-sigma.
+func (cf constraintFlags) pad() (float64, error) {
+	return number(cf.padSigma, false, 0, 0, 10, "0..10 (σ of the phase added to each goal window's half-width)")
 }
 
 // addConstraintFlags registers the observing-limit flags on fl.
@@ -143,6 +154,7 @@ func addConstraintFlags(fl *flags) constraintFlags {
 		zenith:       fl.text("zenith-excl", "DEG", "0", "no tracking within this distance of the zenith (alt-az mounts), degrees 0..30"),
 		sunAvoid:     fl.text("sun-avoid", "DEG", "30", "never point closer than this to the Sun, degrees 0..90 (safety)"),
 		horizon:      fl.text("horizon", "FILE", "", "horizon mask file: lines of \"azimuth altitude\" in degrees"),
+		padSigma:     fl.text("pad-sigma", "K", "0", "widen every goal window by K times the ephemeris' 1σ phase uncertainty that night, 0..10"),
 	}
 }
 

@@ -30,7 +30,8 @@ At most 366 nights, within 366 days. Each night runs from local noon to local no
 
 Targets: the CSV of the plan command (header
   name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority).
-Every goal wants --n-exposures exposures (0 = as many as fit) on each of
+Every goal wants --n-exposures exposures (0 = enough to cover its window
+once, -1 = as many as fit) on each of
 --min-nights nights. --bins N reports the coverage in N phase bins too; with
 --bin-goals the targets' goals become those N bins (a light curve).
 
@@ -84,7 +85,7 @@ func addRunFlags() runFlags {
 	rf.past = fl.text("past", "N", "the nights the log reaches", "nights already over, 0..number of nights")
 	rf.cf = addConstraintFlags(fl)
 	rf.acquire = fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
-	rf.nExp = fl.text("n-exposures", "N", "0", "exposures wanted per goal and night (0 = as many as fit)")
+	rf.nExp = fl.text("n-exposures", "N", "0", "exposures wanted per goal and night (0 = cover the window once, -1 = as many as fit)")
 	rf.minNights = fl.text("min-nights", "M", "1", "nights each goal wants its exposures on, 1..366")
 	rf.bins = fl.text("bins", "N", "0", "also count the coverage in N phase bins, 2..100 (0 = none)")
 	rf.binGoals = fl.boolean("bin-goals", "plan for the --bins phase bins instead of the CSV's phases (a light curve)")
@@ -136,10 +137,14 @@ func (rf runFlags) read() (runJob, error) {
 	if err != nil {
 		return j, err
 	}
+	pad, err := rf.cf.pad()
+	if err != nil {
+		return j, err
+	}
 	if j.acq, err = number(rf.acquire, false, 120, 0, 3600, "seconds 0..3600"); err != nil {
 		return j, err
 	}
-	n, err := wholeNumber(rf.nExp, 0, 0, 10000, "a whole number 0..10000 (0 = as many as fit)")
+	n, err := wholeNumber(rf.nExp, 0, planner.NAsManyAsFit, 10000, "a whole number -1..10000 (0 = cover the window once, -1 = as many as fit)")
 	if err != nil {
 		return j, err
 	}
@@ -192,7 +197,7 @@ func (rf runFlags) read() (runJob, error) {
 		}
 	}
 	j.req = planner.RunRequest{Site: site, Zone: loc, Nights: nights, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *rf.fill}, Bins: nb, Rounds: nr, CompareIndependent: *rf.compare, Instrument: inst}
+		Options: planner.Options{StepS: stepS, Fill: *rf.fill, PadSigma: pad}, Bins: nb, Rounds: nr, CompareIndependent: *rf.compare, Instrument: inst}
 	if nr == 0 {
 		j.req.Rounds = -1
 	}
@@ -458,6 +463,17 @@ func printRunCoverage(b *strings.Builder, rp *planner.RunPlan) error {
 	}
 	if err := tb.flush(); err != nil {
 		return err
+	}
+	var short []string
+	for _, tc := range rp.Coverage {
+		for _, gc := range tc.Goals {
+			if gc.Shortfall != "" && gc.Status != planner.CoverageUnreachable {
+				short = append(short, fmt.Sprintf("  %s, phase %.3f (%s): %s", tc.Target, gc.Goal.Center, gc.Status, gc.Shortfall))
+			}
+		}
+	}
+	if len(short) > 0 {
+		b.WriteString("\nShort of the requirement:\n" + strings.Join(short, "\n") + "\n")
 	}
 	if rp.Request.Bins > 0 {
 		fmt.Fprintf(b, "\nPhase bins (%d, exposures per bin from phase 0):\n", rp.Request.Bins)

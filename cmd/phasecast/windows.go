@@ -93,6 +93,7 @@ type windowsJob struct {
 	c        planner.Constraints
 	nMin     int
 	stepS    float64
+	pad      float64 // --pad-sigma
 	stamp    time.Time
 	inst     *planner.Instrument // nil: no exposure sizing
 	targets  []planner.Target
@@ -126,6 +127,9 @@ func (wf windowsFlags) read() (windowsJob, error) {
 	if j.c, err = wf.cf.constraints(); err != nil {
 		return j, err
 	}
+	if j.pad, err = wf.cf.pad(); err != nil {
+		return j, err
+	}
 	if j.nMin, err = wholeNumber(wf.minExp, 0, 0, 10000, "a whole number 0..10000"); err != nil {
 		return j, err
 	}
@@ -155,7 +159,7 @@ func (wf windowsFlags) read() (windowsJob, error) {
 func (j windowsJob) compute(ctx context.Context, stderr io.Writer) ([]planner.GoalWindows, error) {
 	prog := newProgress(stderr, "windows")
 	got, err := planner.QueueWindows(ctx, planner.WindowRequest{Site: j.site, From: j.t0, To: j.t1, Targets: j.targets, Constraints: j.c,
-		Options: planner.Options{StepS: j.stepS}, Instrument: j.inst}, prog.callback())
+		Options: planner.Options{StepS: j.stepS, PadSigma: j.pad}, Instrument: j.inst}, prog.callback())
 	prog.finish()
 	if err != nil {
 		if ctx.Err() != nil {

@@ -91,6 +91,9 @@ type RunGoal struct {
 	ReachableNights int             `json:"reachable_nights"`
 	Nights          []RunGoalNight  `json:"nights"`
 	Unreachable     string          `json:"unreachable,omitempty"`
+	// Shortfall says in numbers why a goal not met falls short
+	// (planner.GoalCoverage.Shortfall).
+	Shortfall string `json:"shortfall,omitempty"`
 }
 
 // RunNightCount is a goal's exposures on one night.
@@ -229,7 +232,7 @@ func NewRun(in RunInput, rp *planner.RunPlan) (Run, error) {
 		for _, g := range tc.Goals {
 			gd := RunGoal{PhaseGoal: g.Goal.Center, PhaseHalfWidth: g.Goal.HalfWidth, Event: g.Goal.Event, NeedExposures: g.NeedExposures,
 				NeedNights: g.NeedNights, Observed: g.Observed, Planned: g.Planned, PerNight: []RunNightCount{}, NightsMet: g.NightsMet,
-				Status: string(g.Status), Value: g.Value, ReachableNights: g.ReachableNights, Nights: []RunGoalNight{}}
+				Status: string(g.Status), Value: g.Value, ReachableNights: g.ReachableNights, Nights: []RunGoalNight{}, Shortfall: g.Shortfall}
 			for _, pn := range g.PerNight {
 				gd.PerNight = append(gd.PerNight, RunNightCount{pn.Observed, pn.Planned})
 			}
