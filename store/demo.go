@@ -130,7 +130,7 @@ func demoTargets() []demoTarget {
 			notes: "Hot subdwarf + M dwarf; T0 marks the superior conjunction (reflection maximum), so mid-eclipse is at phase 0.5."},
 		{name: "PCX J2339-0541", ra: "23:39:02.66", dec: "-05:41:37.3", mag: 18.9, band: "V", t0: "2459904.55520", std: ephem.StdBJDTDB,
 			ephem: ephem.Ephemeris{T0ErrDays: 2e-5, PeriodDays: 0.0290344, PeriodErr: 1e-10, Pdot: -2.1e-12, PdotErr: 3e-13, Convention: inf},
-			goals: []planner.Goal{withSNR(demoGoal("quadratures", 0, 0.04, 30, 4), 80)}, priority: 1, tags: []string{"double-white-dwarf", "decaying"},
+			goals: []planner.Goal{withSNR(demoGoal("quadratures", 0, 0.04, 30, 4), 35)}, priority: 1, tags: []string{"double-white-dwarf", "decaying"},
 			notes: "Detached double white dwarf, 41.8-minute orbit shrinking (Ṗ < 0)."},
 	}
 }
