@@ -29,6 +29,10 @@ type SiteRecord struct {
 	// Horizon field is not stored: the site's mask (Horizon above) is
 	// the one that applies; PlanConstraints joins the two.
 	Constraints planner.Constraints
+	// Instruments are the site's telescopes and detectors, for exposures
+	// sized by S/N; the first is the default of a night, run or windows
+	// request. Empty: no instrument, exposures as typed.
+	Instruments []planner.Instrument
 	Notes       string
 	CreatedAt   time.Time
 	UpdatedAt   time.Time
@@ -50,7 +54,64 @@ type SiteInput struct {
 	Zone        string
 	Horizon     []planner.HorizonPoint
 	Constraints planner.Constraints
+	Instruments []planner.Instrument // see SiteRecord.Instruments; at most MaxInstruments, names unique
 	Notes       string
+}
+
+// MaxInstruments bounds a site's instruments.
+const MaxInstruments = 20
+
+// Instrument returns the site's instrument named name, the first when name
+// is "", or an EINVALID error naming the field "instrument", the value and
+// the names accepted. A site without instruments returns nil for "".
+func (r SiteRecord) Instrument(name string) (*planner.Instrument, error) {
+	if name == "" {
+		if len(r.Instruments) == 0 {
+			return nil, nil
+		}
+		return &r.Instruments[0], nil
+	}
+	names := make([]string, len(r.Instruments))
+	for i := range r.Instruments {
+		if r.Instruments[i].Name == name {
+			return &r.Instruments[i], nil
+		}
+		names[i] = strconv.Quote(r.Instruments[i].Name)
+	}
+	accepted := "the site has no instruments"
+	if len(names) > 0 {
+		accepted = "one of the site's instruments: " + strings.Join(names, ", ")
+	}
+	v := &ValidationError{}
+	v.add("instrument", name, accepted)
+	return nil, v.err()
+}
+
+// validateInstruments checks a site's instruments with the planner's own
+// validator (planner.Instrument.Validate): a name of 1..200 characters,
+// each name once.
+func validateInstruments(v *ValidationError, ins []planner.Instrument) {
+	if len(ins) > MaxInstruments {
+		v.add("instruments", strconv.Itoa(len(ins))+" instruments", fmt.Sprintf("at most %d instruments", MaxInstruments))
+		return
+	}
+	seen := map[string]bool{}
+	for i, in := range ins {
+		pre := fmt.Sprintf("instruments[%d]", i)
+		if seen[in.Name] {
+			v.add(pre+".name", in.Name, "a name used once among the site's instruments")
+		}
+		seen[in.Name] = true
+		validName(v, pre+".name", in.Name)
+		if err := in.Validate(); err != nil {
+			var ie *ephem.InputError
+			if errors.As(err, &ie) {
+				v.add(pre+strings.TrimPrefix(ie.Field, "instrument"), strings.Trim(ie.Value, `"`), ie.Accepted)
+			} else {
+				v.add(pre, "", err.Error())
+			}
+		}
+	}
 }
 
 // MaxHorizonPoints bounds a horizon mask (one point per degree of azimuth).
@@ -82,6 +143,7 @@ func validateSite(v *ValidationError, in SiteInput) {
 	c := in.Constraints
 	c.Horizon = nil // the site's own mask applies
 	validateConstraints(v, "", c)
+	validateInstruments(v, in.Instruments)
 	validNotes(v, "notes", in.Notes, MaxNotes)
 }
 
@@ -105,13 +167,13 @@ func addInputError(v *ValidationError, prefix string, err error) {
 }
 
 const siteCols = `id, team_id, name, lat_deg, lon_east_deg, elev_m, pressure_hpa, temp_c, zone, horizon_json,
-	constraints_json, notes, created_at, updated_at, version`
+	constraints_json, instruments_json, notes, created_at, updated_at, version`
 
 func scanSite(sc interface{ Scan(...any) error }) (SiteRecord, error) {
 	var r SiteRecord
-	var hj, cj, c, u string
+	var hj, cj, ij, c, u string
 	if err := sc.Scan(&r.ID, &r.TeamID, &r.Name, &r.Site.LatDeg, &r.Site.LonEastDeg, &r.Site.ElevM, &r.Site.PressureHPa,
-		&r.Site.TempC, &r.Zone, &hj, &cj, &r.Notes, &c, &u, &r.Version); err != nil {
+		&r.Site.TempC, &r.Zone, &hj, &cj, &ij, &r.Notes, &c, &u, &r.Version); err != nil {
 		return SiteRecord{}, err
 	}
 	if err := json.Unmarshal([]byte(hj), &r.Horizon); err != nil {
@@ -119,6 +181,9 @@ func scanSite(sc interface{ Scan(...any) error }) (SiteRecord, error) {
 	}
 	if err := json.Unmarshal([]byte(cj), &r.Constraints); err != nil {
 		return SiteRecord{}, fmt.Errorf("site %d constraints: %w", r.ID, err)
+	}
+	if err := json.Unmarshal([]byte(ij), &r.Instruments); err != nil {
+		return SiteRecord{}, fmt.Errorf("site %d instruments: %w", r.ID, err)
 	}
 	var err error
 	if r.CreatedAt, err = parseTime(c); err != nil {
@@ -154,22 +219,30 @@ func authorizedSite(t *txn, action Action, id int64) (SiteRecord, error) {
 	return r, nil
 }
 
-func siteJSON(in SiteInput) (string, string, error) {
+func siteJSON(in SiteInput) (hj, cj, ij string, err error) {
 	h := in.Horizon
 	if h == nil {
 		h = []planner.HorizonPoint{}
 	}
-	hj, err := json.Marshal(h)
+	hb, err := json.Marshal(h)
 	if err != nil {
-		return "", "", err
+		return "", "", "", err
 	}
 	c := in.Constraints
 	c.Horizon = nil
-	cj, err := json.Marshal(c)
+	cb, err := json.Marshal(c)
 	if err != nil {
-		return "", "", err
+		return "", "", "", err
 	}
-	return string(hj), string(cj), nil
+	ins := in.Instruments
+	if ins == nil {
+		ins = []planner.Instrument{}
+	}
+	ib, err := json.Marshal(ins)
+	if err != nil {
+		return "", "", "", err
+	}
+	return string(hb), string(cb), string(ib), nil
 }
 
 // siteNameTaken reports whether another site of the team has name.
@@ -211,15 +284,16 @@ func createSite(t *txn, teamID int64, in SiteInput) (SiteRecord, error) {
 	if err := siteNameTaken(t, teamID, in.Name, 0); err != nil {
 		return SiteRecord{}, err
 	}
-	hj, cj, err := siteJSON(in)
+	hj, cj, ij, err := siteJSON(in)
 	if err != nil {
 		return SiteRecord{}, err
 	}
 	now := fmtTime(t.now)
 	res, err := t.exec(`INSERT INTO sites (team_id, name, lat_deg, lon_east_deg, elev_m, pressure_hpa, temp_c, zone,
-		horizon_json, constraints_json, notes, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
+		horizon_json, constraints_json, instruments_json, notes, created_at, updated_at, version)
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
 		teamID, in.Name, in.Site.LatDeg, in.Site.LonEastDeg, in.Site.ElevM, in.Site.PressureHPa, in.Site.TempC, in.Zone,
-		hj, cj, in.Notes, now, now)
+		hj, cj, ij, in.Notes, now, now)
 	if err != nil {
 		return SiteRecord{}, fmt.Errorf("insert site: %w", err)
 	}
@@ -327,15 +401,15 @@ func (s *Store) UpdateSite(ctx context.Context, a Actor, id, version int64, in S
 	if err := siteNameTaken(t, before.TeamID, in.Name, id); err != nil {
 		return SiteRecord{}, wrap(op, err)
 	}
-	hj, cj, err := siteJSON(in)
+	hj, cj, ij, err := siteJSON(in)
 	if err != nil {
 		return SiteRecord{}, wrap(op, err)
 	}
 	if _, err := t.exec(`UPDATE sites SET name = ?, lat_deg = ?, lon_east_deg = ?, elev_m = ?, pressure_hpa = ?, temp_c = ?,
-		zone = ?, horizon_json = ?, constraints_json = ?, notes = ?, updated_at = ?, version = version + 1
+		zone = ?, horizon_json = ?, constraints_json = ?, instruments_json = ?, notes = ?, updated_at = ?, version = version + 1
 		WHERE id = ? AND version = ?`,
 		in.Name, in.Site.LatDeg, in.Site.LonEastDeg, in.Site.ElevM, in.Site.PressureHPa, in.Site.TempC, in.Zone,
-		hj, cj, in.Notes, fmtTime(t.now), id, version); err != nil {
+		hj, cj, ij, in.Notes, fmtTime(t.now), id, version); err != nil {
 		return SiteRecord{}, wrap(op, err)
 	}
 	after, err := getSite(t, id)

@@ -196,6 +196,13 @@ func validateTargetInput(in TargetInput) (TargetInput, *ValidationError) {
 		checked.Ephem.T0 = ephem.JD2{}
 	}
 	addProblems(v, planner.TargetProblems(checked), true)
+	// The brightness after the rulebook, as the planner checks it.
+	if b, err := ephem.ParseBand(t.Band); err == nil {
+		t.Band = string(b) // stored as the trade writes it, without blanks
+	}
+	if err := planner.ValidateBrightness(*t); err != nil {
+		addInputError(v, "", err)
+	}
 	validNotes(v, "ephem_note", in.EphemNote, MaxNotes)
 	return in, v
 }
@@ -483,6 +490,7 @@ const ephemCols = `e.id, e.target_id, e.t0_day, e.t0_frac, e.t0_in_day, e.t0_in_
 	coalesce(e.created_by, 0), coalesce(u.name, ''), e.created_at`
 
 const targetSelect = `SELECT t.id, t.list_id, l.team_id, t.name, t.ra_deg, t.dec_deg, t.pm_ra_masyr, t.pm_dec_masyr, t.mag,
+	t.band, t.faint_mag, t.faint_phase, t.bright_mag, t.bright_phase,
 	t.priority, t.acquire_s, t.goals_json, t.tags_json, t.notes, t.rv_model, t.rv_k_kms, t.rv_sigma_kms, t.rv_want_rel_k,
 	t.created_at, t.updated_at, t.version, ` + ephemCols + `
 	FROM targets t
@@ -524,6 +532,7 @@ func scanTarget(sc interface{ Scan(...any) error }) (StoredTarget, error) {
 	var es ephemScan
 	tg := &st.Target
 	dest := []any{&st.ID, &st.ListID, &st.TeamID, &tg.Name, &tg.RADeg, &tg.DecDeg, &tg.PMRAmasyr, &tg.PMDecmasyr, &tg.Mag,
+		&tg.Band, &tg.FaintMag, &tg.FaintPhase, &tg.BrightMag, &tg.BrightPhase,
 		&tg.Priority, &tg.AcquireS, &goals, &tags, &tg.Notes, &rvModel, &rv.KKms, &rv.SigmaVKms, &rv.WantRelK, &c, &u, &st.Version}
 	dest = append(dest, ephemDest(&st.Ephemeris, &es)...)
 	if err := sc.Scan(dest...); err != nil {
@@ -644,11 +653,12 @@ func insertTarget(t *txn, listID int64, in TargetInput, src EphemerisSource) (in
 	now := fmtTime(t.now)
 	tg := in.Target
 	rv := rvColumns(tg.RV)
-	res, err := t.exec(`INSERT INTO targets (list_id, name, ra_deg, dec_deg, pm_ra_masyr, pm_dec_masyr, mag, priority, acquire_s,
-		goals_json, tags_json, notes, rv_model, rv_k_kms, rv_sigma_kms, rv_want_rel_k, created_at, updated_at, version)
-		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
-		listID, tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Priority, tg.AcquireS, goals, tags, tg.Notes,
-		rv[0], rv[1], rv[2], rv[3], now, now)
+	res, err := t.exec(`INSERT INTO targets (list_id, name, ra_deg, dec_deg, pm_ra_masyr, pm_dec_masyr, mag, band, faint_mag,
+		faint_phase, bright_mag, bright_phase, priority, acquire_s, goals_json, tags_json, notes, rv_model, rv_k_kms, rv_sigma_kms,
+		rv_want_rel_k, created_at, updated_at, version)
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
+		listID, tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Band, tg.FaintMag, tg.FaintPhase,
+		tg.BrightMag, tg.BrightPhase, tg.Priority, tg.AcquireS, goals, tags, tg.Notes, rv[0], rv[1], rv[2], rv[3], now, now)
 	if err != nil {
 		return 0, fmt.Errorf("insert target: %w", err)
 	}
@@ -818,10 +828,12 @@ func applyTargetUpdate(t *txn, before StoredTarget, in TargetInput, src Ephemeri
 	tg := in.Target
 	rv := rvColumns(tg.RV)
 	if _, err := t.exec(`UPDATE targets SET name = ?, ra_deg = ?, dec_deg = ?, pm_ra_masyr = ?, pm_dec_masyr = ?, mag = ?,
+		band = ?, faint_mag = ?, faint_phase = ?, bright_mag = ?, bright_phase = ?,
 		priority = ?, acquire_s = ?, goals_json = ?, tags_json = ?, notes = ?, rv_model = ?, rv_k_kms = ?, rv_sigma_kms = ?,
 		rv_want_rel_k = ?, updated_at = ?, version = version + 1
 		WHERE id = ? AND version = ?`,
-		tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Priority, tg.AcquireS, goals, tags, tg.Notes,
+		tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Band, tg.FaintMag, tg.FaintPhase, tg.BrightMag,
+		tg.BrightPhase, tg.Priority, tg.AcquireS, goals, tags, tg.Notes,
 		rv[0], rv[1], rv[2], rv[3], fmtTime(t.now), before.ID, before.Version); err != nil {
 		return StoredTarget{}, fmt.Errorf("update target: %w", err)
 	}

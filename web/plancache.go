@@ -34,6 +34,9 @@ const (
 func (n *night) key() string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "site %d v%d|%s|%v|%v|%+v|%+v|", n.site.ID, n.site.Version, n.q.date, n.req.From, n.req.To, n.req.Constraints, n.req.Options)
+	if n.req.Instrument != nil {
+		fmt.Fprintf(&b, "instrument %q|", n.req.Instrument.Name)
+	}
 	for _, t := range n.targets {
 		fmt.Fprintf(&b, "%d v%d,", t.ID, t.Version)
 	}
