@@ -12,12 +12,18 @@ import (
 	"time"
 
 	"phasecast/store"
+	"phasecast/store/testdb"
 )
 
-// rawDB opens the store's file directly, for inspecting the schema.
+// rawDB opens the store's database directly (the SQLite file, or the
+// PostgreSQL database of a URL), for inspecting the schema.
 func rawDB(tb testing.TB, path string) *sql.DB {
 	tb.Helper()
-	db, err := sql.Open("sqlite", "file:"+path+"?_pragma=busy_timeout(5000)")
+	driver, dsn := "sqlite", "file:"+path+"?_pragma=busy_timeout(5000)"
+	if store.IsPostgresURL(path) {
+		driver, dsn = "pgx", path
+	}
+	db, err := sql.Open(driver, dsn)
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -27,7 +33,11 @@ func rawDB(tb testing.TB, path string) *sql.DB {
 
 func columns(tb testing.TB, db *sql.DB, table string) []string {
 	tb.Helper()
-	rows, err := db.Query("SELECT name FROM pragma_table_info(?)", table)
+	q := "SELECT name FROM pragma_table_info(?)"
+	if testdb.Postgres() {
+		q = "SELECT column_name FROM information_schema.columns WHERE table_schema = 'public' AND table_name = $1"
+	}
+	rows, err := db.Query(q, table)
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -106,6 +116,9 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 			}
 		})
 	}
+	if testdb.Postgres() {
+		return
+	}
 	var mode string
 	if err := db.QueryRow("PRAGMA journal_mode").Scan(&mode); err != nil || mode != "wal" {
 		t.Errorf("journal_mode = %q (%v), want wal", mode, err)
@@ -114,7 +127,7 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 
 func TestMigrateIsIdempotentAndRefusesNewer(t *testing.T) {
 	ctx := context.Background()
-	path := filepath.Join(t.TempDir(), "db.sqlite")
+	path := testdb.Target(t, "db.sqlite")
 	s, err := store.Open(ctx, path, func() time.Time { return t0 })
 	if err != nil {
 		t.Fatal(err)
@@ -165,5 +178,38 @@ func TestImportDirection(t *testing.T) {
 				t.Errorf("%s imports %s; store may import only ephem and planner of phasecast", f, p)
 			}
 		}
+	}
+}
+
+// TestMigrateConcurrentOpens: servers starting together on one empty
+// database apply each migration once (on PostgreSQL under the advisory
+// lock; on SQLite under its write lock).
+func TestMigrateConcurrentOpens(t *testing.T) {
+	ctx := context.Background()
+	path := testdb.Target(t, "db.sqlite")
+	const n = 4
+	errs := make(chan error, n)
+	stores := make(chan *store.Store, n)
+	for range n {
+		go func() {
+			s, err := store.Open(ctx, path, func() time.Time { return t0 })
+			errs <- err
+			stores <- s
+		}()
+	}
+	for range n {
+		if err := <-errs; err != nil {
+			t.Errorf("concurrent Open: %v", err)
+		}
+		if s := <-stores; s != nil {
+			defer s.Close()
+		}
+	}
+	var rows, distinct int
+	if err := rawDB(t, path).QueryRow("SELECT count(*), count(DISTINCT version) FROM schema_migrations").Scan(&rows, &distinct); err != nil {
+		t.Fatal(err)
+	}
+	if rows != 4 || distinct != 4 {
+		t.Errorf("schema_migrations has %d rows, %d versions; want 4 and 4", rows, distinct)
 	}
 }

@@ -29,13 +29,13 @@ copy of the old data.`
 // runBackup is the backup command.
 func runBackup(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("backup", backupSynopsis)
-	db := fl.text("db", "FILE", DefaultDBPath, "the live database file")
+	db := fl.text("db", dbMeta, DefaultDBPath, "the live database: "+dbUsage)
 	out := fl.text("out", "FILE", "", "the backup file to write (must not exist); required")
 	asJSON := fl.boolean("json", `print one JSON object {"database", "backup"}`)
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	dbPath, err := pathFlag(db, DefaultDBPath)
+	dbPath, err := dbFlag(db)
 	if err != nil {
 		return err
 	}
@@ -45,6 +45,9 @@ func runBackup(ctx context.Context, now func() time.Time, args []string, stdout,
 	outPath, err := pathFlag(out, "")
 	if err != nil {
 		return err
+	}
+	if store.IsPostgresURL(dbPath) {
+		return pgToolAdvice(stdout, "backup", dbPath, outPath)
 	}
 	// Opening a missing file would make an empty database at the mistyped
 	// path and back that up.
@@ -70,7 +73,7 @@ func runBackup(ctx context.Context, now func() time.Time, args []string, stdout,
 func runRestore(ctx context.Context, _ func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("restore", restoreSynopsis)
 	from := fl.text("from", "FILE", "", "the backup file to restore; required")
-	db := fl.text("db", "FILE", DefaultDBPath, "the database file to replace (the server must be stopped)")
+	db := fl.text("db", dbMeta, DefaultDBPath, "the database to replace (the server must be stopped): "+dbUsage)
 	asJSON := fl.boolean("json", `print one JSON object {"database", "restored_from", "kept_as"} (kept_as empty when there was no database)`)
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
@@ -82,9 +85,12 @@ func runRestore(ctx context.Context, _ func() time.Time, args []string, stdout, 
 	if err != nil {
 		return err
 	}
-	dbPath, err := pathFlag(db, DefaultDBPath)
+	dbPath, err := dbFlag(db)
 	if err != nil {
 		return err
+	}
+	if store.IsPostgresURL(dbPath) {
+		return pgToolAdvice(stdout, "restore", dbPath, fromPath)
 	}
 	kept := ""
 	if _, err := os.Stat(dbPath); err == nil {
@@ -113,4 +119,34 @@ func pathFlag(v *textValue, def string) (string, error) {
 		return "", fieldError(v, "empty", "a file path")
 	}
 	return v.value, nil
+}
+
+// pgToolAdvice is backup's and restore's answer on a PostgreSQL database:
+// phasecast does not copy a server's database itself, PostgreSQL's own
+// pg_dump and pg_restore do (consistently, while the servers run, in the
+// custom format that pg_restore reads). The commands are given for the
+// URL with its password hidden; they take the password from PGPASSWORD or
+// ~/.pgpass, or from the URL as given to --db.
+func pgToolAdvice(stdout io.Writer, cmd, db, file string) error {
+	u := store.RedactURL(db)
+	fmt.Fprintf(stdout, "PostgreSQL's own tools copy a PostgreSQL database (password as in --db, or in PGPASSWORD or ~/.pgpass):\n")
+	fmt.Fprintf(stdout, "  backup (the servers may keep running):\n    pg_dump --format=custom --file=%s --dbname='%s'\n", shellWord(file), u)
+	fmt.Fprintf(stdout, "  restore (stop every phasecast server first):\n    pg_restore --clean --if-exists --no-owner --single-transaction --dbname='%s' %s\n", u, shellWord(file))
+	return usageErrorf("%s: --db %s is a PostgreSQL database; phasecast %s copies only SQLite files: use the pg_dump/pg_restore commands above", cmd, u, cmd)
+}
+
+// shellWord quotes s for a POSIX shell when it holds anything but plain
+// path characters.
+func shellWord(s string) string {
+	plain := s != ""
+	for _, r := range s {
+		if !(r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= '0' && r <= '9' || strings.ContainsRune("/._-+=:,@", r)) {
+			plain = false
+			break
+		}
+	}
+	if plain {
+		return s
+	}
+	return "'" + strings.ReplaceAll(s, "'", `'\''`) + "'"
 }
