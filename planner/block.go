@@ -17,9 +17,11 @@ const twilightDarkDeg = -18.0
 // block builds a Block of n exposures of target ts starting at Unix second
 // s: goal gi (−1 for a filler, which then uses the target's first goal's
 // exposure setup), with acq seconds of acquisition charged before it.
-func (en *engine) block(ts *targetState, gi int, s float64, n int, acq float64, filler bool) Block {
+// exposureS is the length of one exposure: the goal's, or the one sized for
+// its S/N (sized true).
+func (en *engine) block(ts *targetState, gi int, exposureS float64, sized bool, s float64, n int, acq float64, filler bool) Block {
 	g := ts.goals[max(gi, 0)]
-	E, O := g.ExposureS, g.OverheadS
+	E, O := exposureS, g.OverheadS
 	L := E + O
 	e := s + float64(n)*L
 	mid := 0.5 * (s + e)
@@ -54,6 +56,8 @@ func (en *engine) block(ts *targetState, gi int, s float64, n int, acq float64, 
 	h := en.site.Horizontal(ra, dec, tm)
 	b.Parallactic, b.HourAngle = h.ParallacticDeg, h.HourAngleHours
 	b.SunAltStart = en.site.SunAltDeg(timeOf(s))
+	b.SizedBySNR = sized
+	b.SNR, b.SkyMag, b.SNROK = snrAt(en.site, ts.t, en.instrument, E, tm, b.PhaseMid)
 	b.Warnings = en.blockWarnings(b)
 	return b
 }
@@ -180,6 +184,9 @@ func (en *engine) reason(ts *targetState, gi int, g Goal, occs []occMeta, need [
 	if ts.phaseErr > en.opt.MaxPhaseErr {
 		return UnschedEphemerisUncertain, fmt.Sprintf("the ephemeris' 1σ phase uncertainty tonight is %.3f, above the limit %.3f: the window's place on the orbit is unknown; refine T0 and P first",
 			ts.phaseErr, en.opt.MaxPhaseErr)
+	}
+	if sh, ok := en.short[[2]int{ts.idx, gi}]; ok && len(need) == 0 {
+		return UnschedSNRUnreachable, sh.detail(g, ts.t.Ephem.PeriodDays)
 	}
 	var inDark, inVis []span
 	for _, m := range occs {
@@ -380,5 +387,5 @@ func (en *engine) bestFiller(targets []*targetState, d span, prev, next *Block) 
 	if prev != nil && prev.TargetIndex == best.ts.idx {
 		acq = 0
 	}
-	return en.block(best.ts, -1, best.start, best.n, acq, true), true
+	return en.block(best.ts, -1, best.ts.goals[0].ExposureS, false, best.start, best.n, acq, true), true
 }

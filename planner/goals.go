@@ -90,6 +90,9 @@ func validateTarget(i int, t Target) error {
 	if err := t.Ephem.Validate(); err != nil {
 		return fmt.Errorf("%s: %w", pre, err)
 	}
+	if err := validateBrightness(pre, t); err != nil {
+		return err
+	}
 	for k, g := range t.Goals {
 		gp := fmt.Sprintf("goals[%d].", k)
 		switch {

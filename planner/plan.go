@@ -93,6 +93,12 @@ type NightRequest struct {
 	Targets     []Target
 	Constraints Constraints
 	Options     Options
+	// Instrument, when set, sizes the exposures of goals with an SNR on
+	// targets with a Band (see SizeExposure) and gives every block of a
+	// target with a Band its S/N per exposure and sky brightness.
+	Instrument *Instrument
+	// presized holds exposures a run's reach already sized, by occurrence.
+	presized map[occKey]ExposureSizing
 }
 
 // Block is a run of consecutive exposures of one target serving one goal
@@ -134,7 +140,15 @@ type Block struct {
 	Parallactic float64 // parallactic angle at the middle, degrees, −180..180
 	HourAngle   float64 // hour angle at the middle, hours
 	SunAltStart float64 // the Sun's altitude at Start, degrees (airless)
-	Value       int64   // the block's share of the objective
+	// SizedBySNR tells that ExposureS was sized for the goal's S/N (at the
+	// middle of the occurrence's observable part of the window).
+	SizedBySNR bool
+	// SNR is the S/N per exposure at the block's middle and SkyMag the sky
+	// brightness used, mag/arcsec² in the target's band; both 0 (SNROK
+	// false) without an instrument or a band.
+	SNR, SkyMag float64
+	SNROK       bool
+	Value       int64 // the block's share of the objective
 	Warnings    []Warning
 }
 
@@ -151,6 +165,9 @@ const (
 	UnschedEphemerisUncertain  UnscheduledReason = "ephemeris_uncertain"   // phase uncertainty above Options.MaxPhaseErr
 	UnschedLostToPriority      UnscheduledReason = "lost_to_higher_priority"
 	UnschedLostToSchedule      UnscheduledReason = "lost_to_schedule" // conflicts with blocks worth more together
+	// UnschedSNRUnreachable: the goal's S/N needs a longer exposure than
+	// its smear limit allows at every observable time of its windows.
+	UnschedSNRUnreachable UnscheduledReason = "snr_unreachable"
 )
 
 // Unscheduled is a goal with no block on the night, with the reason.
@@ -253,15 +270,22 @@ type engine struct {
 	from, to   float64
 	dark       []span
 	day        []badSpan
-	envGrid    []env // Sun and Moon on the StepS grid in dark time (see envAt)
-	envK0      int   // grid index of envGrid[0]
+	envGrid    []env       // Sun and Moon on the StepS grid in dark time (see envAt)
+	envK0      int         // grid index of envGrid[0]
+	instrument *Instrument // sizes S/N goals' exposures; nil = none
+	presized   map[occKey]ExposureSizing
+	// short holds, per target and goal, the best S/N of the occurrences
+	// whose smear limit stopped the exposure short of the goal's S/N.
+	short map[[2]int]snrShortfall
 }
 
 // occMeta describes one goal occurrence.
 type occMeta struct {
 	target, goal int
 	occ          occurrence
-	wanted       int // N, or the window's capacity
+	wanted       int     // N, or the window's capacity
+	exposureS    float64 // the occurrence's exposure: the goal's, or sized for its S/N
+	sized        bool    // exposureS was sized for the goal's S/N
 }
 
 // PlanNight plans one night: the observable intervals of every target, the
@@ -331,7 +355,13 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 		}
 		names[t.Name] = i
 	}
-	en := &engine{site: req.Site, c: c, opt: opt, mask: newHorizonMask(c.Horizon), from: from, to: to}
+	if req.Instrument != nil {
+		if err := req.Instrument.Validate(); err != nil {
+			return nil, nil, err
+		}
+	}
+	en := &engine{site: req.Site, c: c, opt: opt, mask: newHorizonMask(c.Horizon), from: from, to: to,
+		instrument: req.Instrument, presized: req.presized, short: map[[2]int]snrShortfall{}}
 	if c.MaxAirmass > 0 {
 		en.altAirmass = altForAirmass(c.MaxAirmass)
 	}
@@ -402,15 +432,28 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 		}
 		for gi, g := range ts.goals {
 			lo, hi := en.dark[0].lo, en.dark[len(en.dark)-1].hi
+			sizing := en.instrument != nil && SizesBySNR(ts.t, g)
 			for _, oc := range ts.clock.occurrences(g.Center, g.HalfWidth, lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences) {
-				L := g.ExposureS + g.OverheadS
-				wanted := g.NExposures
+				og := g
+				if sizing {
+					sz, ok, err := en.sizeOccurrence(ts, gi, g, oc)
+					if err != nil || !ok {
+						continue // not observable in this window: no candidates either way
+					}
+					if !sz.Reached {
+						en.noteShortfall(ts.idx, gi, sz, g)
+						continue
+					}
+					og.ExposureS = sz.ExposureS
+				}
+				L := og.ExposureS + og.OverheadS
+				wanted := og.NExposures
 				if wanted == 0 {
 					wanted = int(math.Floor((oc.hi-oc.lo)/L)) + 1
 				}
 				k := len(occs)
-				occs = append(occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted})
-				pr.cands = en.appendCandidates(pr.cands, ts, g, oc, k, wanted)
+				occs = append(occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted, exposureS: og.ExposureS, sized: sizing})
+				pr.cands = en.appendCandidates(pr.cands, ts, og, oc, k, wanted)
 			}
 		}
 	}

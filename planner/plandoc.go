@@ -79,6 +79,13 @@ type BlockDoc struct {
 	Priority       int      `json:"priority"`
 	Filler         bool     `json:"filler"`
 	Warnings       []string `json:"warnings"`
+	// SNR is the S/N per exposure at the block's middle and SkyMag the sky
+	// brightness used there, mag/arcsec² in the target's band; both omitted
+	// without an instrument or a target band. SizedBySNR is true when the
+	// exposure was sized for the goal's S/N.
+	SNR        *float64 `json:"snr,omitempty"`
+	SkyMag     *float64 `json:"sky_mag_arcsec2,omitempty"`
+	SizedBySNR bool     `json:"sized_by_snr,omitempty"`
 }
 
 // UnscheduledDoc is a goal left without a block: Reason is the sentence,
@@ -240,6 +247,11 @@ func NewBlockDoc(b Block) BlockDoc {
 		ParallacticDeg: b.Parallactic, HourAngleHours: b.HourAngle, SunAltStartDeg: b.SunAltStart,
 		Priority: b.Priority, Filler: b.Filler, Warnings: []string{},
 	}
+	if b.SNROK {
+		snr, sky := b.SNR, b.SkyMag
+		bd.SNR, bd.SkyMag = &snr, &sky
+	}
+	bd.SizedBySNR = b.SizedBySNR
 	if b.Filler {
 		bd.Event = ""
 	} else {

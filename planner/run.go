@@ -156,6 +156,10 @@ type RunRequest struct {
 	Constraints Constraints
 	// Options are the night planner's options for every night.
 	Options Options
+	// Instrument, when set, sizes S/N goals' exposures as the night
+	// planner does (NightRequest.Instrument), each occurrence once for both
+	// the best-night search and the night's schedule.
+	Instrument *Instrument
 	// Bins, when 2..MaxBins, adds phase-bin counts to the coverage; 0 means
 	// none.
 	Bins int

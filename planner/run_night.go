@@ -136,7 +136,7 @@ func (m *nightModel) plan(ns nightSolution) *Plan {
 		if prev == nil || prev.target != c.target {
 			acq = ts.t.AcquireS
 		}
-		b := en.block(ts, om.goal, c.start, c.n, acq, false)
+		b := en.block(ts, om.goal, om.exposureS, om.sized, c.start, c.n, acq, false)
 		b.Cycle = om.occ.cycle
 		b.Value = c.val.main
 		p.Blocks = append(p.Blocks, b)
@@ -164,8 +164,9 @@ func (m *nightModel) counts(ns nightSolution, goals [][]runGoal) [][]int {
 	for _, i := range ns.sol.chosen {
 		c := &m.pr.cands[i]
 		ts := m.targets[c.target]
-		g := ts.goals[m.occs[c.occ].goal]
-		E, L := g.ExposureS, g.ExposureS+g.OverheadS
+		om := m.occs[c.occ]
+		g := ts.goals[om.goal]
+		E, L := om.exposureS, om.exposureS+g.OverheadS
 		for j := range c.n {
 			_, phi := ts.clock.phase(c.start + float64(j)*L + E/2)
 			for gi, rg := range goals[c.target] {

@@ -121,6 +121,7 @@ type runState struct {
 	obsN    []int     // night of each observed exposure
 	obs     [][][]int // [night][target][goal] observed counts
 	reach   [][][]goalNightReach
+	sized   []map[occKey]ExposureSizing // per night: S/N-sized exposures by occurrence (reach and models share them)
 	models  []*nightModel
 	kept    int       // candidates kept in models
 	planned [][][]int // [night][target][goal] planned counts (future nights)
@@ -148,6 +149,11 @@ func newRunState(req RunRequest) (*runState, error) {
 	targets, err := checkTargets(req.Targets)
 	if err != nil {
 		return nil, err
+	}
+	if req.Instrument != nil {
+		if err := req.Instrument.Validate(); err != nil {
+			return nil, err
+		}
 	}
 	loc := req.Zone
 	if loc == nil {
@@ -320,18 +326,24 @@ func (r *runState) computeReach(ctx context.Context, pc *progressCounter) error 
 	pad := make([]float64, len(r.targets))
 	for ti, ts := range r.targets {
 		for _, g := range ts.goals {
-			pad[ti] = math.Max(pad[ti], g.ExposureS+g.OverheadS)
+			e := g.ExposureS
+			if r.req.Instrument != nil && SizesBySNR(ts.t, g) {
+				e = math.Max(e, g.maxSmear()*ts.t.Ephem.PeriodDays*86400) // a sized exposure never exceeds its smear limit
+			}
+			pad[ti] = math.Max(pad[ti], e+g.OverheadS)
 		}
 		pad[ti] += ts.t.AcquireS + 2*guardS + 1
 	}
 	r.reach = make([][][]goalNightReach, K)
+	r.sized = make([]map[occKey]ExposureSizing, K)
 	return forEach(ctx, K, func(k int) error {
 		en := r.base.night(r.from[k], r.to[k])
 		clocks := make([]phaseClock, len(r.targets))
 		for ti, ts := range r.targets {
 			clocks[ti] = newSparseClock(r.req.Site, ts.star, ts.t.Ephem, []float64{r.from[k], 0.5 * (r.from[k] + r.to[k]), r.to[k]})
 		}
-		rn, err := reachNight(en, r.targets, clocks, pad)
+		r.sized[k] = map[occKey]ExposureSizing{}
+		rn, err := reachNight(en, r.targets, clocks, pad, r.req.Instrument, r.sized[k])
 		if err != nil {
 			return err
 		}
@@ -388,8 +400,12 @@ func (r *runState) zeroCounts() [][]int {
 
 // nightRequest is the night planner's request for night k.
 func (r *runState) nightRequest(k int) NightRequest {
+	var sized map[occKey]ExposureSizing
+	if r.sized != nil {
+		sized = r.sized[k]
+	}
 	return NightRequest{Site: r.req.Site, From: timeOf(r.from[k]), To: timeOf(r.to[k]), Targets: r.req.Targets,
-		Constraints: r.req.Constraints, Options: r.req.Options}
+		Constraints: r.req.Constraints, Options: r.req.Options, Instrument: r.req.Instrument, presized: sized}
 }
 
 // buildModels sets up the future nights' problems in parallel, keeping

@@ -73,7 +73,11 @@ type goalNightReach struct {
 
 // reachNight computes one night's reach for every goal of every target,
 // indexed [target][goal].
-func reachNight(en *engine, targets []*targetState, clocks []phaseClock, pad []float64) ([][]goalNightReach, error) {
+//
+// With an instrument, S/N goals' occurrences are sized (sizeReach) into
+// sized, and each span's capacity counts exposures of its occurrence's sized
+// length (none when the smear limit stops the S/N short).
+func reachNight(en *engine, targets []*targetState, clocks []phaseClock, pad []float64, in *Instrument, sized map[occKey]ExposureSizing) ([][]goalNightReach, error) {
 	out := make([][]goalNightReach, len(targets))
 	for ti, ts := range targets {
 		spans, pe, err := en.reach(ts, &clocks[ti], pad[ti])
@@ -82,9 +86,17 @@ func reachNight(en *engine, targets []*targetState, clocks []phaseClock, pad []f
 		}
 		out[ti] = make([]goalNightReach, len(ts.goals))
 		for gi, rs := range spans {
+			sizeReach(en.site, in, ts, gi, rs, sized)
 			r := goalNightReach{spans: rs, phaseErr: pe, uncertain: pe > en.opt.MaxPhaseErr, xlo: math.Inf(1), xhi: math.Inf(-1)}
 			for _, s := range rs {
-				r.capacity = max(r.capacity, en.capacity(s, ts.goals[gi], ts.t.AcquireS))
+				g := ts.goals[gi]
+				if sz, ok := sized[occKey{ts.idx, gi, s.occ.cycle}]; ok {
+					if !sz.Reached {
+						continue
+					}
+					g.ExposureS = sz.ExposureS
+				}
+				r.capacity = max(r.capacity, en.capacity(s, g, ts.t.AcquireS))
 				lo, hi := en.airmassRangeLean(ts, s.lo, s.hi)
 				r.xlo, r.xhi = math.Min(r.xlo, lo), math.Max(r.xhi, hi)
 			}

@@ -17,13 +17,23 @@ type Target struct {
 	// CoordEpochJY is the Julian epoch of RADeg and DecDeg (2016.0 for
 	// J2016.0); 0 means J2000.0. Proper motion is applied from it.
 	CoordEpochJY float64
-	Mag          float64 // brightness for the observer's reference (0 = unknown)
-	Ephem        ephem.Ephemeris
-	Goals        []Goal
-	Priority     int     // 1 (highest) to 5
-	AcquireS     float64 // acquisition overhead per visit (slew, centring), s
-	Tags         []string
-	Notes        string
+	Mag          float64 // brightness, magnitudes in Band (0 = unknown when Band is empty)
+	// Band is the photometric band of Mag ("U" "B" "V" "R" "I" "g" "r"
+	// "i" "z"; "" = no brightness known). With an Instrument in the
+	// request, goals with an SNR size their exposures from it.
+	Band string
+	// FaintMag and BrightMag, when given (both non-zero), make the target a
+	// variable: its magnitude in Band is FaintMag at phase FaintPhase and
+	// BrightMag at BrightPhase (0 ≤ φ < 1, in the ephemeris' convention),
+	// linear in phase between them (MagAtPhase).
+	FaintMag, FaintPhase   float64
+	BrightMag, BrightPhase float64
+	Ephem                  ephem.Ephemeris
+	Goals                  []Goal
+	Priority               int     // 1 (highest) to 5
+	AcquireS               float64 // acquisition overhead per visit (slew, centring), s
+	Tags                   []string
+	Notes                  string
 }
 
 // Star returns the target's catalogue place for the ephem package.
@@ -48,6 +58,14 @@ type Goal struct {
 	// EclipseDurDays is the eclipse's full duration (first to last
 	// contact), days, for the events eclipse_ingress and eclipse_egress.
 	EclipseDurDays float64
+	// SNR, when positive, is the wanted signal-to-noise per exposure: with
+	// an Instrument in the request and a Band on the target, each block's
+	// exposure is sized for its own sky (SizeExposure) and ExposureS is
+	// used only without an instrument. 0..100000.
+	SNR float64
+	// MaxSmear is the most of the orbit one S/N-sized exposure may span,
+	// phase, 0 ≤ s < 0.5 (0: DefaultMaxSmear).
+	MaxSmear float64
 }
 
 // Twilight names the Sun altitude that closes the dark time.

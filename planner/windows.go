@@ -33,6 +33,11 @@ type WindowRequest struct {
 	// windows per goal and night (default 2000). The other fields are not
 	// used.
 	Options Options
+	// Instrument, when set, sizes the exposures of goals with an SNR on
+	// targets with a Band for each window's own sky (at its middle), with
+	// the night planner's rule (SizeExposure); Exposures then counts
+	// exposures of that length.
+	Instrument *Instrument
 }
 
 // QueueWindow is one interval in which a goal can be observed.
@@ -53,6 +58,11 @@ type QueueWindow struct {
 	// count (the night planner also admits exposures whose mid-time, not
 	// their whole length, lies in the phase window).
 	Exposures int
+	// Sizing is the exposure sized for the goal's S/N at the window's
+	// middle (nil without an instrument, a band or an S/N goal). When
+	// Sizing.Reached is false the smear limit stops the exposure short of
+	// the S/N: Sizing.SNR is the best reachable and Exposures is 0.
+	Sizing *ExposureSizing
 }
 
 // GoalWindows is the list of queue windows of one goal of one target.
@@ -96,6 +106,11 @@ func QueueWindows(ctx context.Context, req WindowRequest, progress func(done, to
 	if err != nil {
 		return nil, err
 	}
+	if req.Instrument != nil {
+		if err := req.Instrument.Validate(); err != nil {
+			return nil, err
+		}
+	}
 	bounds := dayBounds(from, to, req.Site.LonEastDeg)
 	nights := make([]*engine, len(bounds)-1)
 	pc := &progressCounter{total: len(nights) + len(targets), fn: progress}
@@ -126,7 +141,7 @@ func QueueWindows(ctx context.Context, req WindowRequest, progress func(done, to
 			}
 			for gi, rs := range spans {
 				for _, r := range rs {
-					lists[gi].Windows = appendWindow(lists[gi].Windows, en, ts, &clock, gi, r)
+					lists[gi].Windows = appendWindow(lists[gi].Windows, en, ts, &clock, gi, r, req.Instrument)
 				}
 				if len(lists[gi].Windows) > MaxWindowsPerGoal {
 					return fmt.Errorf("target %q goal at phase %.4f: more than %d windows in the range; shorten the range", ts.t.Name, ts.goals[gi].Center, MaxWindowsPerGoal)
@@ -148,8 +163,9 @@ func QueueWindows(ctx context.Context, req WindowRequest, progress func(done, to
 
 // appendWindow adds reach span r of goal gi as a queue window, merging it
 // with the previous window when they touch (within 1 ms, e.g. across a day
-// boundary).
-func appendWindow(ws []QueueWindow, en *engine, ts *targetState, clock *phaseClock, gi int, r reachSpan) []QueueWindow {
+// boundary). With an instrument, an S/N goal's exposure is sized at the
+// window's middle.
+func appendWindow(ws []QueueWindow, en *engine, ts *targetState, clock *phaseClock, gi int, r reachSpan, in *Instrument) []QueueWindow {
 	g := ts.goals[gi]
 	lo, hi := r.lo, r.hi
 	xlo, xhi := en.airmassRangeLean(ts, lo, hi)
@@ -162,15 +178,25 @@ func appendWindow(ws []QueueWindow, en *engine, ts *targetState, clock *phaseClo
 	}
 	mid := 0.5 * (lo + hi)
 	pe := ts.t.Ephem.PhaseErr(clock.bjd(mid))
+	var sz *ExposureSizing
+	if in != nil && SizesBySNR(ts.t, g) {
+		// The middle of an observable window: only an unmodelled sky (a
+		// twilight brighter than the model's range) fails, and the window
+		// is then listed without a sizing.
+		if s, err := SizeExposure(en.site, ts.t, g, *in, timeOf(mid)); err == nil {
+			sz = &s
+			g.ExposureS = s.ExposureS
+		}
+	}
 	L := g.ExposureS + g.OverheadS
 	n := 0
-	if d := hi - lo; d >= g.ExposureS {
+	if d := hi - lo; d >= g.ExposureS && (sz == nil || sz.Reached) {
 		n = int(math.Floor((d + g.OverheadS) / L))
 	}
 	return append(ws, QueueWindow{
 		Interval: span{lo, hi}.interval(), Cycle: cycle,
 		PhaseErr: pe, Uncertain: pe > g.HalfWidth,
-		AirmassMin: xlo, AirmassMax: xhi, Exposures: n,
+		AirmassMin: xlo, AirmassMax: xhi, Exposures: n, Sizing: sz,
 	})
 }
 

@@ -35,6 +35,10 @@ every goal left out listed with its reason.
 
 Targets file (CSV), header:
   name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority
+optionally with band,mag,snr,max_smear (and a variable's faint_mag,faint_phase,
+bright_mag,bright_phase): with an instrument (--aperture-m and the flags after it),
+goals with an snr get each block's exposure sized for its sky, capped at max_smear
+of the orbit (default 0.02); see docs/exposure.md.
 phases are goal centres separated by ';' in the convention of T0 (inferior
 conjunction of the companion); each goal takes as many exposures as fit in its
 window. --twilight takes civil, nautical, astronomical, or a Sun altitude in
@@ -53,6 +57,7 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = as many as fit)")
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
+	inf := addPlanInstrumentFlags(fl)
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
@@ -90,6 +95,10 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	if err != nil {
 		return err
 	}
+	inst, err := inf.read()
+	if err != nil {
+		return err
+	}
 	list, err := readTargets(targets)
 	if err != nil {
 		return err
@@ -103,7 +112,7 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	from, to := planner.NightWindow(y, m, d, loc)
 	p, err := planner.PlanNight(planner.NightRequest{
 		Site: site, From: from, To: to, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *fill},
+		Options: planner.Options{StepS: stepS, Fill: *fill}, Instrument: inst,
 	})
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
@@ -314,6 +323,9 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 		if bl.AcquireS > 0 {
 			notes = append(notes, fmt.Sprintf("acquire from %s", lt(bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))))))
 		}
+		if bl.SNROK {
+			notes = append(notes, snrNote(bl))
+		}
 		for _, wn := range bl.Warnings {
 			notes = append(notes, string(wn.Code))
 		}
@@ -368,3 +380,13 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 
 // fmtG formats a number without trailing zeros.
 func fmtG(x float64) string { return strings.TrimSuffix(strings.TrimRight(f(x, 3), "0"), ".") }
+
+// snrNote is the plan sheet's note of a block's S/N per exposure and the sky
+// brightness used.
+func snrNote(bl planner.Block) string {
+	s := fmt.Sprintf("S/N %.1f, sky %.2f mag/″²", bl.SNR, bl.SkyMag)
+	if bl.SizedBySNR {
+		s += " (sized)"
+	}
+	return s
+}

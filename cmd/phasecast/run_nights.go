@@ -63,6 +63,7 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 	rounds := fl.text("rounds", "N", "2", "improvement rounds after the greedy pass, 0..100")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
 	compare := fl.boolean("compare", "also plan every night on its own (as plan does) and show that objective")
+	inf := addPlanInstrumentFlags(fl)
 	asJSON := fl.boolean("json", "print one JSON object")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
@@ -113,6 +114,10 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 	if err != nil {
 		return err
 	}
+	inst, err := inf.read()
+	if err != nil {
+		return err
+	}
 	list, err := readTargets(targets)
 	if err != nil {
 		return err
@@ -129,7 +134,7 @@ func runRun(ctx context.Context, now func() time.Time, args []string, stdout, st
 		}
 	}
 	req := planner.RunRequest{Site: site, Zone: loc, Nights: nights, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *fill}, Bins: nb, Rounds: nr, CompareIndependent: *compare}
+		Options: planner.Options{StepS: stepS, Fill: *fill}, Bins: nb, Rounds: nr, CompareIndependent: *compare, Instrument: inst}
 	if nr == 0 {
 		req.Rounds = -1
 	}

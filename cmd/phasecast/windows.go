@@ -48,6 +48,7 @@ func runWindows(ctx context.Context, now func() time.Time, args []string, stdout
 	step := fl.text("step-s", "S", "60", "constraint scan step, seconds 1..900 (edges are refined to 1 ms)")
 	format := fl.text("format", "text|json|csv|ics", "text", "output format")
 	stamp := fl.text("stamp", "TIME", "--from", "DTSTAMP of the iCalendar events (RFC 3339)")
+	inf := addPlanInstrumentFlags(fl)
 	asJSON := fl.boolean("json", "print one JSON object (the same as --format json)")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
@@ -106,6 +107,10 @@ func runWindows(ctx context.Context, now func() time.Time, args []string, stdout
 			return fromInputError(err, "not a time", map[string]*textValue{"time": stamp})
 		}
 	}
+	inst, err := inf.read()
+	if err != nil {
+		return err
+	}
 	list, err := readTargets(targets)
 	if err != nil {
 		return err
@@ -114,7 +119,7 @@ func runWindows(ctx context.Context, now func() time.Time, args []string, stdout
 		return err
 	}
 	got, err := planner.QueueWindows(ctx, planner.WindowRequest{Site: site, From: t0, To: t1, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS}}, nil)
+		Options: planner.Options{StepS: stepS}, Instrument: inst}, nil)
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
 	}
@@ -134,7 +139,7 @@ func runWindows(ctx context.Context, now func() time.Time, args []string, stdout
 	case "json":
 		return writeJSON(stdout, windowsOutput(got, loc, t0, t1))
 	case "csv":
-		return writeWindowsCSV(stdout, got)
+		return writeWindowsCSV(stdout, got, inst != nil)
 	case "ics":
 		return writeWindowsICS(stdout, got, dtstamp)
 	}
@@ -236,6 +241,25 @@ type queueWindowJSON struct {
 	AirmassMin  float64  `json:"airmass_min"`
 	AirmassMax  float64  `json:"airmass_max"`
 	Exposures   int      `json:"exposures"`
+	// Sizing is the S/N sizing at the window's middle (with an instrument
+	// and an S/N goal only).
+	Sizing *windowSizingJSON `json:"sizing,omitempty"`
+}
+
+// windowSizingJSON is a window's exposure sized for its goal's S/N.
+type windowSizingJSON struct {
+	ExposureS float64 `json:"exposure_s"`
+	SNR       float64 `json:"snr"`
+	SkyMag    float64 `json:"sky_mag_arcsec2"`
+	Reached   bool    `json:"snr_reached"`
+}
+
+// sizingJSON converts a window's sizing (nil stays nil).
+func sizingJSON(sz *planner.ExposureSizing) *windowSizingJSON {
+	if sz == nil {
+		return nil
+	}
+	return &windowSizingJSON{ExposureS: sz.ExposureS, SNR: sz.SNR, SkyMag: sz.SkyMag, Reached: sz.Reached}
 }
 
 // goalWindowsJSON is one goal's list.
@@ -265,7 +289,8 @@ func windowsOutput(got []planner.GoalWindows, loc *time.Location, t0, t1 time.Ti
 			ExposureS: gw.Goal.ExposureS, OverheadS: gw.Goal.OverheadS, Windows: []queueWindowJSON{}}
 		for _, w := range gw.Windows {
 			gj.Windows = append(gj.Windows, queueWindowJSON{Start: planTime(w.Start), End: planTime(w.End), DurationMin: w.Duration().Minutes(),
-				Cycle: w.Cycle, PhaseErr: w.PhaseErr, Uncertain: w.Uncertain, AirmassMin: w.AirmassMin, AirmassMax: w.AirmassMax, Exposures: w.Exposures})
+				Cycle: w.Cycle, PhaseErr: w.PhaseErr, Uncertain: w.Uncertain, AirmassMin: w.AirmassMin, AirmassMax: w.AirmassMax, Exposures: w.Exposures,
+				Sizing: sizingJSON(w.Sizing)})
 		}
 		out.Goals = append(out.Goals, gj)
 	}
@@ -287,9 +312,17 @@ func checkWindowsFinite(got []planner.GoalWindows) error {
 var windowsCSVHeader = []string{"target", "phase_goal", "phase_halfwidth", "start_utc", "end_utc", "duration_min", "cycle",
 	"phase_err", "uncertain", "airmass_min", "airmass_max", "exposures"}
 
-func writeWindowsCSV(w io.Writer, got []planner.GoalWindows) error {
+// windowsCSVSizing are the columns --format csv adds with an instrument: a
+// window's S/N sizing (empty cells for goals without an S/N).
+var windowsCSVSizing = []string{"sized_exposure_s", "snr", "sky_mag_arcsec2", "snr_reached"}
+
+func writeWindowsCSV(w io.Writer, got []planner.GoalWindows, sized bool) error {
 	cw := csv.NewWriter(w)
-	if err := cw.Write(windowsCSVHeader); err != nil {
+	header := windowsCSVHeader
+	if sized {
+		header = append(append([]string(nil), header...), windowsCSVSizing...)
+	}
+	if err := cw.Write(header); err != nil {
 		return err
 	}
 	for _, gw := range got {
@@ -297,6 +330,13 @@ func writeWindowsCSV(w io.Writer, got []planner.GoalWindows) error {
 			rec := []string{planner.SafeCSVCell(gw.Target), f(gw.Goal.Center, 4), f(gw.Goal.HalfWidth, 4), planTime(win.Start).String(), planTime(win.End).String(),
 				f(win.Duration().Minutes(), 2), strconv.FormatInt(win.Cycle, 10), f(win.PhaseErr, 5), strconv.FormatBool(win.Uncertain),
 				f(win.AirmassMin, 3), f(win.AirmassMax, 3), strconv.Itoa(win.Exposures)}
+			switch {
+			case sized && win.Sizing != nil:
+				sz := win.Sizing
+				rec = append(rec, f(sz.ExposureS, -1), f(sz.SNR, 2), f(sz.SkyMag, 3), strconv.FormatBool(sz.Reached))
+			case sized:
+				rec = append(rec, "", "", "", "")
+			}
 			if err := cw.Write(rec); err != nil {
 				return err
 			}
@@ -362,7 +402,7 @@ func printWindows(w io.Writer, got []planner.GoalWindows, site ephem.Site, loc *
 			}
 			tb.row("  "+win.Start.UTC().Format("2006-01-02 15:04:05"), win.End.UTC().Format("15:04:05"), win.Start.In(loc).Format("01-02 15:04"),
 				f(win.Duration().Minutes(), 1), strconv.FormatInt(win.Cycle, 10), f(win.PhaseErr, 4)+mark,
-				fmt.Sprintf("%.2f–%.2f", win.AirmassMin, win.AirmassMax), strconv.Itoa(win.Exposures))
+				fmt.Sprintf("%.2f–%.2f", win.AirmassMin, win.AirmassMax), strconv.Itoa(win.Exposures)+sizingNote(win.Sizing))
 		}
 		if err := tb.flush(); err != nil {
 			return err
@@ -385,4 +425,16 @@ func anyUncertain(got []planner.GoalWindows) bool {
 		}
 	}
 	return false
+}
+
+// sizingNote is the text sheet's note of a window's S/N sizing: the exposure
+// and its S/N, or the best S/N when the smear limit stops it short.
+func sizingNote(sz *planner.ExposureSizing) string {
+	switch {
+	case sz == nil:
+		return ""
+	case sz.Reached:
+		return fmt.Sprintf(" × %ss (S/N %.1f, sky %.2f)", fmtG(sz.ExposureS), sz.SNR, sz.SkyMag)
+	}
+	return fmt.Sprintf(" (S/N at most %.1f in %ss: smear limit)", sz.SNR, fmtG(sz.ExposureS))
 }
