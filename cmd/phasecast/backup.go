@@ -51,8 +51,8 @@ func runBackup(ctx context.Context, now func() time.Time, args []string, stdout,
 	}
 	// Opening a missing file would make an empty database at the mistyped
 	// path and back that up.
-	if fi, err := os.Stat(dbPath); err != nil || !fi.Mode().IsRegular() {
-		return fieldError(db, "no such database file", "the path of an existing phasecast database (the file serve uses)")
+	if err := existingDB(db, dbPath); err != nil {
+		return err
 	}
 	st, err := store.Open(ctx, dbPath, now)
 	if err != nil {
@@ -132,6 +132,7 @@ func pgToolAdvice(stdout io.Writer, cmd, db, file string) error {
 	fmt.Fprintf(stdout, "PostgreSQL's own tools copy a PostgreSQL database (password as in --db, or in PGPASSWORD or ~/.pgpass):\n")
 	fmt.Fprintf(stdout, "  backup (the servers may keep running):\n    pg_dump --format=custom --file=%s --dbname='%s'\n", shellWord(file), u)
 	fmt.Fprintf(stdout, "  restore (stop every phasecast server first):\n    pg_restore --clean --if-exists --no-owner --single-transaction --dbname='%s' %s\n", u, shellWord(file))
+	fmt.Fprintf(stdout, "To move one team between SQLite and PostgreSQL: phasecast export-team and import-team.\n")
 	return usageErrorf("%s: --db %s is a PostgreSQL database; phasecast %s copies only SQLite files: use the pg_dump/pg_restore commands above", cmd, u, cmd)
 }
 

@@ -1,8 +1,16 @@
 package main
 
 import (
+	"context"
+	"database/sql"
+	"encoding/json"
+	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
+	"time"
+
+	"phasecast/store"
 )
 
 func TestDBFlag(t *testing.T) {
@@ -66,4 +74,70 @@ func TestBackupRestoreOnPostgresPrintTheTools(t *testing.T) {
 			t.Errorf("%s: stderr %q does not say why", args[0], errOut)
 		}
 	}
+}
+
+// TestExportImportTeamCommands moves the demo team from one SQLite file to
+// another with the two commands and reads it back there.
+func TestExportImportTeamCommands(t *testing.T) {
+	ctx := context.Background()
+	dir := t.TempDir()
+	src, dst, doc := filepath.Join(dir, "src.db"), filepath.Join(dir, "dst.db"), filepath.Join(dir, "team.json")
+	st, err := store.Open(ctx, src, testClock(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	info, err := st.SeedDemo(ctx, testNow)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st.Close()
+	if _, errOut, code := runCmd(t, "export-team", "--db", src, "--team", strconv.FormatInt(info.Team.ID, 10), "--out", doc); code != 0 {
+		t.Fatalf("export-team: exit %d: %s", code, errOut)
+	}
+	if _, errOut, code := runCmd(t, "export-team", "--db", src, "--team", "1", "--out", doc); code == 0 || !strings.Contains(errOut, "exists already") {
+		t.Errorf("export-team over an existing file: exit %d, %q", code, errOut)
+	}
+	if _, errOut, code := runCmd(t, "export-team", "--db", filepath.Join(dir, "typo.db"), "--team", "1", "--out", "-"); code == 0 || !strings.Contains(errOut, "no such database file") {
+		t.Errorf("export-team of a missing file: exit %d, %q", code, errOut)
+	}
+	out, errOut, code := runCmd(t, "import-team", "--db", dst, "--from", doc, "--json")
+	if code != 0 {
+		t.Fatalf("import-team: exit %d: %s", code, errOut)
+	}
+	var got struct {
+		TeamID int64  `json:"team_id"`
+		Name   string `json:"name"`
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil || got.Name != info.Team.Name || got.TeamID < 1 {
+		t.Fatalf("import-team --json = %q (%v); want the team %q", out, err, info.Team.Name)
+	}
+	link := func() string {
+		st, err := store.Open(ctx, dst, testClock(t))
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer st.Close()
+		l, err := st.CreateSignInLink(ctx, info.Owner.Email, time.Hour)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return l
+	}()
+	if names := demoTargetNames(t, dst, link, firstListID(t, dst)); len(names) != len(info.Targets) {
+		t.Errorf("the moved team's list has %d targets, want %d", len(names), len(info.Targets))
+	}
+}
+
+func firstListID(t *testing.T, db string) int64 {
+	t.Helper()
+	raw, err := sql.Open("sqlite", "file:"+db+"?mode=ro")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer raw.Close()
+	var id int64
+	if err := raw.QueryRow("SELECT min(id) FROM target_lists").Scan(&id); err != nil {
+		t.Fatal(err)
+	}
+	return id
 }
