@@ -1,6 +1,7 @@
 package store
 
 import (
+	"cmp"
 	"context"
 	"database/sql"
 	"encoding/base64"
@@ -8,6 +9,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"slices"
 	"strconv"
 	"strings"
 )
@@ -186,16 +188,8 @@ func exportTeam(t *txn, teamID int64) (TeamDoc, error) {
 		}
 		doc.Users = append(doc.Users, u)
 	}
-	sortUsers(doc.Users)
+	slices.SortFunc(doc.Users, func(a, b teamDocUser) int { return cmp.Compare(a.ID, b.ID) })
 	return doc, nil
-}
-
-func sortUsers(us []teamDocUser) {
-	for i := 1; i < len(us); i++ {
-		for j := i; j > 0 && us[j].ID < us[j-1].ID; j-- {
-			us[j], us[j-1] = us[j-1], us[j]
-		}
-	}
 }
 
 // selectRows reads the rows of table that where selects, in key order, as
@@ -388,7 +382,7 @@ func insertRow(t *txn, table string, r teamRow, tt teamTable, ids map[string]map
 		return 0, err
 	}
 	for c := range r {
-		if !containsStr(names, c) {
+		if !slices.Contains(names, c) {
 			return 0, errInvalid("%s.%s: not a column of %s here", where, c, table)
 		}
 	}
@@ -427,7 +421,7 @@ func insertRow(t *txn, table string, r teamRow, tt teamTable, ids map[string]map
 				return 0, errInvalid("%s.%s: %d is not a row of %s in the document", where, c, src, ref)
 			}
 		}
-		if containsStr(tt.users, c) && v != nil {
+		if slices.Contains(tt.users, c) && v != nil {
 			src, _ := v.(int64)
 			here, ok := users[src]
 			if !ok {
@@ -465,15 +459,6 @@ func wrapRow(where string, err error) error {
 		return &Error{Code: se.Code, Message: where + ": " + se.Message, Err: err}
 	}
 	return fmt.Errorf("%s: %w", where, err)
-}
-
-func containsStr(ss []string, s string) bool {
-	for _, x := range ss {
-		if x == s {
-			return true
-		}
-	}
-	return false
 }
 
 // docValue converts a decoded JSON value (json.Number, string, nil) to the

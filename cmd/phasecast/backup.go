@@ -39,10 +39,7 @@ func runBackup(ctx context.Context, now func() time.Time, args []string, stdout,
 	if err != nil {
 		return err
 	}
-	if !out.set {
-		return missing(out)
-	}
-	outPath, err := pathFlag(out, "")
+	outPath, err := requiredPath(out)
 	if err != nil {
 		return err
 	}
@@ -78,10 +75,7 @@ func runRestore(ctx context.Context, _ func() time.Time, args []string, stdout, 
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
 	}
-	if !from.set {
-		return missing(from)
-	}
-	fromPath, err := pathFlag(from, "")
+	fromPath, err := requiredPath(from)
 	if err != nil {
 		return err
 	}
@@ -108,6 +102,14 @@ func runRestore(ctx context.Context, _ func() time.Time, args []string, stdout, 
 	}
 	_, err = fmt.Fprintf(stdout, "phasecast: %s restored into %s; the previous database is kept as %s\n", fromPath, dbPath, kept)
 	return err
+}
+
+// requiredPath returns a required file-path flag's value.
+func requiredPath(v *textValue) (string, error) {
+	if !v.set {
+		return "", missing(v)
+	}
+	return pathFlag(v, "")
 }
 
 // pathFlag returns a file-path flag's value, or def when it was not given.

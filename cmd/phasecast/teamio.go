@@ -48,10 +48,7 @@ func runExportTeam(ctx context.Context, now func() time.Time, args []string, std
 	if err != nil || teamID < 1 {
 		return fieldError(team, "not a team id", "a whole number from 1")
 	}
-	if !out.set {
-		return missing(out)
-	}
-	outPath, err := pathFlag(out, "")
+	outPath, err := requiredPath(out)
 	if err != nil {
 		return err
 	}
@@ -111,10 +108,7 @@ func runImportTeam(ctx context.Context, now func() time.Time, args []string, std
 	if err != nil {
 		return err
 	}
-	if !from.set {
-		return missing(from)
-	}
-	fromPath, err := pathFlag(from, "")
+	fromPath, err := requiredPath(from)
 	if err != nil {
 		return err
 	}
