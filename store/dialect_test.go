@@ -5,6 +5,8 @@ import (
 	"slices"
 	"strings"
 	"testing"
+
+	"phasecast/store/testdb"
 )
 
 // TestEveryMigrationHasItsPostgresTwin fails when store/migrations and
@@ -37,6 +39,26 @@ func TestEveryMigrationHasItsPostgresTwin(t *testing.T) {
 	for _, n := range pg {
 		if !slices.Contains(lite, n) {
 			t.Errorf("store/migrations/postgres/%s has no SQLite twin store/migrations/%s", n, n)
+		}
+	}
+}
+
+// TestSchemaRefusesTextThatIsNotJSON: the *_json columns' CHECK
+// (json_valid) refuses text that does not parse, on either engine, and
+// accepts JSON.
+func TestSchemaRefusesTextThatIsNotJSON(t *testing.T) {
+	w := newWorld(t)
+	db := rawDB(t, w.s.Path())
+	q := "UPDATE sites SET horizon_json = ? WHERE id = ?"
+	if testdb.Postgres() {
+		q = "UPDATE sites SET horizon_json = $1 WHERE id = $2"
+	}
+	if _, err := db.Exec(q, "[[0, 10], [180, 5]]", w.site.ID); err != nil {
+		t.Errorf("valid JSON refused: %v", err)
+	}
+	for _, bad := range []string{"[1, 2", "not json", ""} {
+		if _, err := db.Exec(q, bad, w.site.ID); err == nil {
+			t.Errorf("horizon_json %q accepted", bad)
 		}
 	}
 }

@@ -189,6 +189,8 @@ func wrap(op string, err error) error {
 			return &Error{Code: ECONFLICT, Message: "it is referred to by other entries, or refers to a missing one", Op: op, Err: err}
 		case "23514", "23502": // check_violation, not_null_violation
 			return &Error{Code: EINVALID, Message: "a value is out of its accepted range", Op: op, Err: err}
+		case "22P02": // invalid_text_representation: json_valid on text that is not JSON
+			return &Error{Code: EINVALID, Message: "a value is not in its accepted form", Op: op, Err: err}
 		}
 	}
 	return &Error{Code: EINTERNAL, Message: "internal error", Op: op, Err: err}
