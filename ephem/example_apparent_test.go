@@ -16,7 +16,7 @@ func fromTT(year int, month time.Month, day, hour, min int, sec float64) time.Ti
 	return tt.Add(-time.Duration(ephem.TTMinusUTC(tt) * float64(time.Second)))
 }
 
-// Meeus, Astronomical Algorithms, Example 23.a.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 23.a, p. 152.
 // Apparent place of θ Persei on 2028 November 13.19 TD from its J2000.0
 // catalogue place α = 2h44m11.986s, δ = +49°13′42.48″ and proper motion
 // μα = +0.03425 s/yr, μδ = −0.0895″/yr. The book: α = 2h46m14.390s,

@@ -10,7 +10,7 @@ import (
 	"phasecast/ephem"
 )
 
-// Meeus, Astronomical Algorithms, Example 15.a.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 15.a, p. 103.
 // Rising and setting of Venus at Boston (φ = +42°20′, L = 71°05′ WEST) on
 // 1988 March 20, from its apparent places at 0h TD on March 19, 20 and 21
 // (interpolated as in the book, Meeus (3.3)), with the standard altitude

@@ -6,7 +6,7 @@ import (
 	"phasecast/ephem"
 )
 
-// Meeus, Astronomical Algorithms, Example 16.a.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 16.a, p. 107.
 // The Sun's lower limb is observed at apparent altitude 0°30′. Bennett's
 // formula gives the refraction R = 28.754′, so the true altitude of the lower
 // limb is 1.246′ and that of the upper limb (adding the Sun's 32′ diameter)

@@ -53,7 +53,7 @@ func dms(deg float64, dec int) string {
 	return fmt.Sprintf("%s%02.0f°%02.0f′%0*.*f″", sign, d, m, w, dec, s)
 }
 
-// Meeus, Astronomical Algorithms, Example 7.a.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 7.a, p. 61.
 // The launch of Sputnik 1, 1957 October 4.81 (UT), is JD 2436116.31.
 func ExampleJDUTC() {
 	t := time.Date(1957, time.October, 4, 19, 26, 24, 0, time.UTC) // 0.81 day
@@ -64,7 +64,7 @@ func ExampleJDUTC() {
 	// JD 2436116.31
 }
 
-// Meeus, Astronomical Algorithms, Example 12.a.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 12.a, p. 88.
 // Sidereal time at Greenwich on 1987 April 10 at 0h UT: mean 13h10m46.3668s,
 // apparent 13h10m46.1351s.
 func ExampleGMSTHours() {
@@ -76,9 +76,11 @@ func ExampleGMSTHours() {
 	// apparent 13h10m46.1351s
 }
 
-// Meeus, Astronomical Algorithms, Example 12.b.
-// Mean sidereal time at Greenwich on 1987 April 10 at 19h21m00s UT:
-// 8h34m57.0896s.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 12.b, p. 89, and
+// Example 13.b, p. 95. Example 12.b is the mean sidereal time at Greenwich on
+// 1987 April 10 at 19h21m00s UT, 8h34m57.0896s; the apparent sidereal time at
+// that instant, 8h34m56.853s, is the θ0 Example 13.b takes (the mean value
+// corrected by the equation of the equinoxes, Δψ cos ε of Example 22.a).
 func ExampleGASTHours() {
 	t := time.Date(1987, time.April, 10, 19, 21, 0, 0, time.UTC)
 	fmt.Println("mean    ", hms(ephem.GMSTHours(t), 4))
@@ -88,7 +90,7 @@ func ExampleGASTHours() {
 	// apparent 08h34m56.853s
 }
 
-// Meeus, Astronomical Algorithms, Example 22.a.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 22.a, p. 148.
 // Nutation on 1987 April 10 at 0h TD (JDE 2446895.5): Δψ = −3.788″,
 // Δε = +9.443″, true obliquity ε = 23°26′36.850″.
 func ExampleNutation() {
@@ -102,7 +104,7 @@ func ExampleNutation() {
 	// ε  = +23°26′36.850″
 }
 
-// Meeus, Astronomical Algorithms, Example 13.b.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 13.b, p. 95.
 // Venus seen from the U.S. Naval Observatory in Washington (φ = +38°55′17″,
 // L = 77°03′56″ WEST, i.e. −77.0656° east) on 1987 April 10 at 19h21m00s UT,
 // at apparent α = 23h09m16.641s, δ = −6°43′11.61″. The book gives azimuth

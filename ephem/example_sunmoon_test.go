@@ -7,7 +7,7 @@ import (
 	"phasecast/ephem"
 )
 
-// Meeus, Astronomical Algorithms, Example 25.a.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 25.a, p. 165.
 // The Sun on 1992 October 13.0 TD, low-accuracy method: apparent
 // α = 13h13m31.4s, δ = −7°47′06″, radius vector R = 0.99766 AU.
 func ExampleSunApparent() {
@@ -21,7 +21,7 @@ func ExampleSunApparent() {
 	// R = 0.99766 AU
 }
 
-// Meeus, Astronomical Algorithms, Example 47.a.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 47.a, p. 342.
 // The Moon on 1992 April 12 at 0h TD: apparent α = 134.688470°,
 // δ = +13.768368°, distance between centres Δ = 368409.7 km.
 //
@@ -39,7 +39,7 @@ func ExampleMoonGeocentric() {
 	// Δ = 368409.7 km
 }
 
-// Meeus, Astronomical Algorithms, Example 48.a.
+// Meeus, Astronomical Algorithms (2nd ed.), Example 48.a, p. 347.
 // Illuminated fraction of the Moon's disk on 1992 April 12 at 0h TD:
 // k = 0.6786.
 func ExampleMoonIlluminated() {

@@ -199,6 +199,28 @@ func (tr Track) AltAzUnix(unixSec float64) (altDeg, azDeg float64) {
 	return altDeg, azDeg
 }
 
+// HorizonUnix returns the target's airless altitude (degrees, −90..90) and
+// its direction as a unit vector in the horizon frame, (north, east,
+// zenith) = (cos h cos A, cos h sin A, sin h) with A the azimuth from north
+// through east, at Unix time unixSec: AltAzUnix without the azimuth's
+// arctangent and without the sines and cosines that rebuild the vector
+// from the angles (equal to them to rounding). The zero Track gives −90°
+// and the nadir.
+func (tr Track) HorizonUnix(unixSec float64) (altDeg float64, dir [3]float64) {
+	x, y, z, ok := tr.hourAngleVec(unixSec)
+	if !ok {
+		return -90, [3]float64{0, 0, -1}
+	}
+	f := tr.f
+	up := f.sinLat*z + f.cosLat*x
+	north := f.cosLat*z - f.sinLat*x
+	east := -y
+	horiz := math.Sqrt(north*north + y*y)
+	altDeg = math.Atan2(up, horiz) * radToDeg
+	inv := 1 / math.Sqrt(horiz*horiz+up*up)
+	return altDeg, [3]float64{north * inv, east * inv, up * inv}
+}
+
 // AltUnix returns only the airless altitude, degrees, at Unix time unixSec:
 // AltAzUnix without the azimuth's arctangent.
 func (tr Track) AltUnix(unixSec float64) float64 {

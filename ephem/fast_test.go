@@ -180,6 +180,15 @@ func TestTrackGrid(t *testing.T) {
 			if a := tr.AltUnix(u); a != wantAlt {
 				t.Fatalf("instant %d: AltUnix %v, AltAzUnix %v", i, a, wantAlt)
 			}
+			// HorizonUnix: the same altitude, and the unit vector of
+			// (altitude, azimuth) built with sines and cosines.
+			a, dir := tr.HorizonUnix(u)
+			sa, ca := math.Sincos(wantAlt * math.Pi / 180)
+			sz, cz := math.Sincos(wantAz * math.Pi / 180)
+			want := [3]float64{ca * cz, ca * sz, sa}
+			if a != wantAlt || math.Abs(dir[0]-want[0]) > 1e-12 || math.Abs(dir[1]-want[1]) > 1e-12 || math.Abs(dir[2]-want[2]) > 1e-12 {
+				t.Fatalf("instant %d: HorizonUnix (%v, %v), want (%v, %v)", i, a, dir, wantAlt, want)
+			}
 		}
 	}
 	t.Run("ErrStep", func(t *testing.T) {
@@ -206,6 +215,9 @@ func TestTrackZero(t *testing.T) {
 	var tr ephem.Track
 	tm := time.Date(2027, time.March, 14, 12, 0, 0, 0, time.UTC)
 	alt, az := tr.AltAz(tm)
+	if a, dir := tr.HorizonUnix(0); a != -90 || dir != [3]float64{0, 0, -1} {
+		t.Errorf("zero Track: HorizonUnix (%v, %v), want (−90, nadir)", a, dir)
+	}
 	if alt != -90 || az != 0 || tr.HourAngleHours(tm) != 0 || tr.ParallacticDeg(tm) != 0 {
 		t.Errorf("zero Track: (%v, %v, %v, %v), want (−90, 0, 0, 0)", alt, az, tr.HourAngleHours(tm), tr.ParallacticDeg(tm))
 	}

@@ -35,8 +35,13 @@ var bennettFloorDeg = math.Sqrt(7.31) - 4.4
 // P = 0 gives 0 (no air). Accepted ranges are those of Site.Validate:
 // 0 ≤ P ≤ 1100, −90 ≤ T ≤ 60.
 func RefractionDeg(altAirlessDeg, pressureHPa, tempC float64) float64 {
+	return refractionScaled(altAirlessDeg, atmosphereScale(pressureHPa, tempC))
+}
+
+// refractionScaled is RefractionDeg for atmosphere scale s (atmosphereScale).
+func refractionScaled(altAirlessDeg, s float64) float64 {
 	h := math.Max(altAirlessDeg, refractionFloorDeg)
-	return refraction.Saemundsson(unit.AngleFromDeg(h)).Deg() * atmosphereScale(pressureHPa, tempC)
+	return refraction.Saemundsson(unit.AngleFromDeg(h)).Deg() * s
 }
 
 // RefractionFromApparentDeg returns the refraction, degrees, to SUBTRACT from

@@ -28,7 +28,7 @@ func benchNight(nTargets int) NightRequest {
 		}
 		exp := float64(120 + 60*r.IntN(5))
 		for _, ph := range []float64{0, 0.25, 0.75} {
-			t.Goals = append(t.Goals, Goal{Center: ph, HalfWidth: 0.05, ExposureS: exp, OverheadS: 20})
+			t.Goals = append(t.Goals, Goal{Center: ph, HalfWidth: 0.05, ExposureS: exp, OverheadS: 20, NExposures: NAsManyAsFit})
 		}
 		req.Targets = append(req.Targets, t)
 	}

@@ -74,9 +74,8 @@ func (en *engine) blockWarnings(b Block) []Warning {
 			add(WarnSmear, "one %gs exposure spans %.4f in phase, %.0f%% of the goal window (%.3f wide)",
 				b.ExposureS, b.Smear, 100*b.Smear/width, width)
 		}
-		if b.PhaseErr > b.Goal.HalfWidth {
-			add(WarnPhaseUncertain, "the ephemeris' phase uncertainty tonight (1σ %.4f) exceeds the window's half-width %.4f: the window may be elsewhere",
-				b.PhaseErr, b.Goal.HalfWidth)
+		if UncertaintyRule(b.PhaseErr, b.Goal.HalfWidth, en.opt.MaxPhaseErr) == PhaseFlagged {
+			add(WarnPhaseUncertain, "the ephemeris' phase uncertainty tonight: %s", UncertaintyNote(b.PhaseErr, b.Goal.HalfWidth, en.opt.MaxPhaseErr))
 		}
 	}
 	if b.MoonUp && b.MoonSepDeg < en.opt.MoonWarnSepDeg {
@@ -181,9 +180,8 @@ func (en *engine) reason(ts *targetState, gi int, g Goal, occs []occMeta, need [
 	if len(en.dark) == 0 {
 		return UnschedNoDarkTime, fmt.Sprintf("no dark time: the Sun's centre stays above %s° (%s twilight) all night", fmtNum(c.SunAltMaxDeg), c.Twilight)
 	}
-	if ts.phaseErr > en.opt.MaxPhaseErr {
-		return UnschedEphemerisUncertain, fmt.Sprintf("the ephemeris' 1σ phase uncertainty tonight is %.3f, above the limit %.3f: the window's place on the orbit is unknown; refine T0 and P first",
-			ts.phaseErr, en.opt.MaxPhaseErr)
+	if UncertaintyRule(ts.phaseErr, g.HalfWidth, en.opt.MaxPhaseErr) >= PhaseRefused {
+		return UnschedEphemerisUncertain, "the ephemeris tonight: " + UncertaintyNote(ts.phaseErr, g.HalfWidth, en.opt.MaxPhaseErr)
 	}
 	if sh, ok := en.short[[2]int{ts.idx, gi}]; ok && len(need) == 0 {
 		return UnschedSNRUnreachable, sh.detail(g, ts.t.Ephem.PeriodDays)

@@ -18,8 +18,9 @@ import (
 // b = ⌊φ·B⌋. Phases are computed on the full path (ephem.PhaseAtUTC:
 // BJD_TDB, then the ephemeris). Failed exposures are not counted.
 //
-// Requirement. A goal wants N exposures (Goal.NExposures; "as many as fit",
-// N = 0, counts as 1) on each of M different nights (Goal.MinNights, at
+// Requirement. A goal wants N exposures (Goal.Wanted: NExposures, by default
+// the exposures that cover its window once, for "as many as fit" the
+// window's capacity) on each of M different nights (Goal.MinNights, at
 // least 1). A night's credit for the goal, from its n exposures in the
 // window that night, is
 //
@@ -75,13 +76,13 @@ func goalUtility(credits []float64, M int) float64 {
 type runGoal struct {
 	ti, gi int
 	g      Goal
-	N, M   int   // exposures per night (0: as many as fit) and nights wanted
+	N, M   int   // exposures per night (Goal.Wanted, ≥ 1) and nights wanted
 	w      int64 // PriorityWeight of the target
 	tolPh  float64
 }
 
 func newRunGoal(ti, gi int, t Target, g Goal) runGoal {
-	return runGoal{ti: ti, gi: gi, g: g, N: g.NExposures, M: max(g.MinNights, 1), w: PriorityWeight(t.Priority),
+	return runGoal{ti: ti, gi: gi, g: g, N: g.Wanted(t.Ephem.PeriodDays), M: max(g.MinNights, 1), w: PriorityWeight(t.Priority),
 		tolPh: coverageTolS / (t.Ephem.PeriodDays * 86400)}
 }
 
@@ -131,7 +132,7 @@ type NightCount struct {
 type GoalCoverage struct {
 	GoalIndex     int  // index in the target's ResolveGoals
 	Goal          Goal // resolved
-	NeedExposures int  // per night (Goal.NExposures; 1 for "as many as fit")
+	NeedExposures int  // per night (Goal.Wanted)
 	NeedNights    int  // Goal.MinNights, at least 1
 	// PerNight has one entry per night of the run.
 	PerNight []NightCount
@@ -148,6 +149,36 @@ type GoalCoverage struct {
 	// ReachableNights counts the nights still to be planned on which the
 	// best-night search finds room for at least one exposure.
 	ReachableNights int
+	// Shortfall says in numbers why a goal not met falls short ("" when
+	// met): see coverageShortfall.
+	Shortfall string
+}
+
+// coverageShortfall explains, in numbers, why a goal's requirement is not
+// met: the window too short for N exposures ((N − 1) × L of mid-times
+// against the window W), no night holding N in one block (bestCap, the
+// most the best-night search finds on a night still to plan, from
+// GoalNight.Capacity), or the nights that can hold N taken by goals worth
+// more.
+func coverageShortfall(gc GoalCoverage, periodDays float64, bestCap, fullNights int) string {
+	if gc.Status == CoverageMet {
+		return ""
+	}
+	g, N := gc.Goal, gc.NeedExposures
+	L := g.ExposureS + g.OverheadS
+	need := fmt.Sprintf("%d exposures of %s s + %s s readout have mid-times over %s s", N, fmtNum(g.ExposureS), fmtNum(g.OverheadS), fmtSeconds(float64(N-1)*L))
+	switch W := g.WindowS(periodDays); {
+	case gc.Status == CoverageUnreachable:
+		return "no night of the run can reach the window"
+	case bestCap == 0 && float64(N-1)*L <= W:
+		return "no night still to plan can reach the window (those that could are over, or none exists)"
+	case float64(N-1)*L > W:
+		return fmt.Sprintf("%s; the window is %s s (±%s in phase): at most %d fit one window", need, fmtSeconds(W), fmtNum(g.HalfWidth), g.Capacity(periodDays))
+	case bestCap < N:
+		return fmt.Sprintf("%s; the window is %s s, but on the nights still to plan at most %d fit in its observable part", need, fmtSeconds(W), bestCap)
+	}
+	return fmt.Sprintf("%d of the %d nights wanted hold %d exposures; %d nights still to plan could hold them: their time went to goals worth more",
+		gc.NightsMet, gc.NeedNights, N, fullNights)
 }
 
 // BinCoverage is one phase bin of a target's orbit: [Lo, Hi) in phase.

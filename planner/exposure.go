@@ -349,6 +349,8 @@ func sizeReach(site ephem.Site, in *Instrument, ts *targetState, gi int, rs []re
 // that the smear limit stopped short.
 func (en *engine) noteShortfall(ti, gi int, sz ExposureSizing, g Goal) {
 	k := [2]int{ti, gi}
+	en.shortMu.Lock()
+	defer en.shortMu.Unlock()
 	if cur, ok := en.short[k]; ok && cur.best >= sz.SNR {
 		return
 	}

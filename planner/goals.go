@@ -2,6 +2,7 @@ package planner
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"phasecast/ephem"
@@ -46,10 +47,65 @@ func (t Target) ResolveGoals() ([]Goal, error) {
 			r := g
 			r.Event = string(ev)
 			r.Center = ph
+			r.ContainEvent = g.Event == EventEclipse || ev == ephem.EventEclipseIngress || ev == ephem.EventEclipseEgress
 			out = append(out, r)
 		}
 	}
 	return out, nil
+}
+
+// NExposuresAccepted is what Goal.NExposures accepts, for error messages.
+const NExposuresAccepted = "0 (enough to cover the window once), −1 (as many as fit) or 1..10000"
+
+// NAsManyAsFit in Goal.NExposures asks for as many exposures as one window
+// holds; 0 (the default) asks for enough to cover the window once.
+const NAsManyAsFit = -1
+
+// WindowS returns the goal window's length in time, seconds: 2 × HalfWidth
+// × the period (periodDays, days).
+func (g Goal) WindowS(periodDays float64) float64 { return 2 * g.HalfWidth * periodDays * 86400 }
+
+// Capacity returns C, the most exposures whose mid-times fit in one window
+// of the goal: ⌊W/L⌋ + 1, W = WindowS, L = ExposureS + OverheadS (mid-times
+// L apart, the first at the window's opening).
+func (g Goal) Capacity(periodDays float64) int {
+	return int(math.Floor(g.WindowS(periodDays)/(g.ExposureS+g.OverheadS))) + 1
+}
+
+// CoverOnce returns the exposures that cover the window once: the fewest n
+// with (n−1)·L + E ≥ W (from the first exposure's start to the last one's
+// end), at least 1, at most Capacity.
+func (g Goal) CoverOnce(periodDays float64) int {
+	L, E, W := g.ExposureS+g.OverheadS, g.ExposureS, g.WindowS(periodDays)
+	n := 1
+	if W > E {
+		n = int(math.Ceil((W-E)/L-1e-9)) + 1
+	}
+	return min(n, g.Capacity(periodDays))
+}
+
+// Wanted returns N, the exposures the goal wants per night: NExposures when
+// set (1..10000), CoverOnce for 0, Capacity for NAsManyAsFit.
+func (g Goal) Wanted(periodDays float64) int {
+	switch {
+	case g.NExposures > 0:
+		return g.NExposures
+	case g.NExposures == NAsManyAsFit:
+		return g.Capacity(periodDays)
+	}
+	return g.CoverOnce(periodDays)
+}
+
+// WantedLabel describes the goal's wanted count in words ("3 wanted",
+// "enough to cover the window once", "as many as fit").
+func (g Goal) WantedLabel() string {
+	switch {
+	case g.NExposures > 0:
+		return fmt.Sprintf("%d wanted", g.NExposures)
+	case g.NExposures == NAsManyAsFit:
+		return "as many as fit"
+	}
+	return "enough to cover the window once"
 }
 
 // EventNames lists the goal events accepted in Goal.Event.
@@ -61,8 +117,10 @@ func EventNames() []string {
 	return names
 }
 
-// validateTarget checks the fields the night planner reads. Field names in
-// errors are prefixed with the target's position and name.
+// validateTarget checks a target before planning: a name, at least one
+// goal, a valid ephemeris, and the rules of TargetProblems (the first one
+// broken is the error). Field names in errors are prefixed with the
+// target's position and name.
 func validateTarget(i int, t Target) error {
 	pre := fmt.Sprintf("targets[%d]", i)
 	if strings.TrimSpace(t.Name) != "" {
@@ -71,19 +129,12 @@ func validateTarget(i int, t Target) error {
 	bad := func(field, value, accepted string) error {
 		return &ephem.InputError{Field: pre + "." + field, Value: value, Accepted: accepted}
 	}
+	ps := TargetProblems(t)
 	switch {
 	case strings.TrimSpace(t.Name) == "":
 		return bad("name", `""`, "a non-empty name")
-	case !finite(t.RADeg) || t.RADeg < 0 || t.RADeg >= 360:
-		return bad("ra", fmtNum(t.RADeg), "0 ≤ RA < 360 degrees")
-	case !finite(t.DecDeg) || t.DecDeg < -90 || t.DecDeg > 90:
-		return bad("dec", fmtNum(t.DecDeg), "−90..90 degrees")
-	case !finite(t.PMRAmasyr) || !finite(t.PMDecmasyr):
-		return bad("proper_motion", fmtNum(t.PMRAmasyr)+", "+fmtNum(t.PMDecmasyr), "finite values, mas/yr")
-	case t.Priority < 1 || t.Priority > 5:
-		return bad("priority", fmt.Sprint(t.Priority), "an integer 1 (highest) to 5")
-	case !finite(t.AcquireS) || t.AcquireS < 0 || t.AcquireS > 3600:
-		return bad("acquire_s", fmtNum(t.AcquireS), "0..3600 seconds")
+	case len(ps) > 0 && !strings.HasPrefix(ps[0].Field, "goals"):
+		return bad(ps[0].Field, ps[0].Value, ps[0].Accepted)
 	case len(t.Goals) == 0:
 		return bad("goals", "none", "at least one phase goal")
 	}
@@ -93,22 +144,8 @@ func validateTarget(i int, t Target) error {
 	if err := validateBrightness(pre, t); err != nil {
 		return err
 	}
-	for k, g := range t.Goals {
-		gp := fmt.Sprintf("goals[%d].", k)
-		switch {
-		case g.Event == "" && (!finite(g.Center) || g.Center < 0 || g.Center >= 1):
-			return bad(gp+"center", fmtNum(g.Center), "0 ≤ phase < 1")
-		case !finite(g.HalfWidth) || g.HalfWidth <= 0 || g.HalfWidth >= 0.5:
-			return bad(gp+"half_width", fmtNum(g.HalfWidth), "0 < half-width < 0.5 (phase)")
-		case !finite(g.ExposureS) || g.ExposureS <= 0 || g.ExposureS > 86400:
-			return bad(gp+"exposure_s", fmtNum(g.ExposureS), "0 < exposure ≤ 86400 seconds")
-		case !finite(g.OverheadS) || g.OverheadS < 0 || g.OverheadS > 86400:
-			return bad(gp+"overhead_s", fmtNum(g.OverheadS), "0 ≤ overhead ≤ 86400 seconds")
-		case g.NExposures < 0 || g.NExposures > 10000:
-			return bad(gp+"n_exposures", fmt.Sprint(g.NExposures), "0 (as many as fit) to 10000")
-		case !finite(g.EclipseDurDays) || g.EclipseDurDays < 0:
-			return bad(gp+"eclipse_duration_days", fmtNum(g.EclipseDurDays), "a duration ≥ 0 days")
-		}
+	if len(ps) > 0 {
+		return bad(ps[0].Field, ps[0].Value, ps[0].Accepted)
 	}
 	return nil
 }

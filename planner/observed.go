@@ -116,27 +116,10 @@ func ParseObservedCSV(r io.Reader) ([]Exposure, error) {
 // observedColumns maps the header's columns, recording unknown, repeated
 // and missing ones.
 func observedColumns(header []string, line int, te *TableError) map[string]int {
-	known := map[string]bool{}
-	for _, c := range ObservedCSVColumns {
-		known[c] = true
-	}
-	col := map[string]int{}
-	for i, h := range header {
-		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
-		switch {
-		case !known[h]:
-			te.add(line, i+1, h, h, "unknown column; accepted: "+strings.Join(ObservedCSVColumns, ","))
-		case hasKey(col, h):
-			te.add(line, i+1, h, h, fmt.Sprintf("column repeated (first at column %d)", col[h]+1))
-		default:
-			col[h] = i
-		}
-	}
-	for _, n := range []string{"target", "exposure_s"} {
-		if !hasKey(col, n) {
-			te.add(line, 0, n, "", "missing column "+n+" (required: target, exposure_s, and start_utc or mid_utc)")
-		}
-	}
+	col := ColumnIndex(header, ObservedCSVColumns, []string{"target", "exposure_s"}, line, te, "accepted: "+strings.Join(ObservedCSVColumns, ","),
+		func(n string) string {
+			return "missing column " + n + " (required: target, exposure_s, and start_utc or mid_utc)"
+		})
 	switch keyCount(col, "start_utc") + keyCount(col, "mid_utc") {
 	case 0:
 		te.add(line, 0, "start_utc", "", "missing column start_utc or mid_utc (exactly one of them)")

@@ -236,7 +236,7 @@ func TestRunReplanAfterLostNight(t *testing.T) {
 	})
 	t.Run("PartialBlock", func(t *testing.T) {
 		if len(rp.Nights[0].Plan.Blocks) == 0 {
-			t.Skip("no block on the first night")
+			t.Fatal("no block on the first night: the case tests nothing")
 		}
 		b := rp.Nights[0].Plan.Blocks[0]
 		exps, err := rp.MarkedExposures([]planner.BlockMark{{Night: 0, Block: 0, Status: planner.BlockDone, Taken: 1}})

@@ -1,8 +1,10 @@
 package planner
 
 import (
+	"context"
 	"fmt"
 	"math"
+	"sync"
 	"time"
 
 	"phasecast/ephem"
@@ -11,6 +13,10 @@ import (
 // SafetyCaution is the caution every night sheet shows.
 const SafetyCaution = "Caution: never point a telescope or its finder near the Sun; blocks in twilight and the " +
 	"Sun-avoidance angle are planning aids only. Check times with your observatory's own tools and follow its safety rules."
+
+// DefaultMaxPhaseErr is Options.MaxPhaseErr's default: the 1σ phase
+// uncertainty above which a goal is refused (UncertaintyRule).
+const DefaultMaxPhaseErr = 0.25
 
 // Options tune the night planner. A zero field takes the default shown.
 type Options struct {
@@ -44,6 +50,17 @@ type Options struct {
 	// MaxOccurrences bounds the goal windows considered per goal and night
 	// (default 2000; a 1-minute orbit has 1440 a day).
 	MaxOccurrences int
+	// PadSigma widens every goal window by k = PadSigma times the
+	// ephemeris' 1σ phase uncertainty on the night, on both sides (0..10,
+	// default 0: none), at most to a half-width of 0.49: the window then
+	// holds the event at k σ. Night plans and queue windows alike.
+	PadSigma float64
+}
+
+// halfWidth is a goal window's half-width for a 1σ phase uncertainty
+// sigma: hw + PadSigma·σ, at most 0.49 (phase).
+func (o Options) halfWidth(hw, sigma float64) float64 {
+	return math.Min(hw+o.PadSigma*sigma, 0.49)
 }
 
 func (o Options) withDefaults() (Options, error) {
@@ -54,7 +71,7 @@ func (o Options) withDefaults() (Options, error) {
 	}
 	def(&o.StepS, 60)
 	def(&o.SmearFrac, 0.25)
-	def(&o.MaxPhaseErr, 0.25)
+	def(&o.MaxPhaseErr, DefaultMaxPhaseErr)
 	def(&o.MoonWarnSepDeg, 30)
 	def(&o.FillMinS, 600)
 	if o.MaxStates == 0 {
@@ -81,6 +98,8 @@ func (o Options) withDefaults() (Options, error) {
 		return o, bad("max_states", float64(o.MaxStates), "≥ 1")
 	case o.MaxOccurrences < 1:
 		return o, bad("max_occurrences", float64(o.MaxOccurrences), "≥ 1")
+	case !finite(o.PadSigma) || o.PadSigma < 0 || o.PadSigma > 10:
+		return o, bad("pad_sigma", o.PadSigma, "0..10 (σ of the phase added to each window's half-width)")
 	}
 	return o, nil
 }
@@ -192,6 +211,7 @@ const (
 	WarnTwilightStart   WarningCode = "twilight_start"    // block starts before astronomical darkness
 	WarnNotOptimal      WarningCode = "not_optimal"       // search stopped at Options.MaxStates
 	WarnSunAvoidApplied WarningCode = "sun_avoid_caution" // the Sun-avoidance angle excluded time
+	WarnShortfall       WarningCode = "shortfall"         // a goal's blocks hold fewer exposures than it wants, with the numbers
 )
 
 // Warning is something the observer should know, about a block, a goal or
@@ -220,7 +240,11 @@ type Plan struct {
 	// counted); GreedyValue the greedy baseline's on the same candidates.
 	Value       int64
 	GreedyValue int64
-	Optimal     bool
+	// Objective and GreedyObjective are Value and GreedyValue by priority,
+	// as the optimiser compares them (Objective.Less). The run planner's
+	// nights put every goal on the first level.
+	Objective, GreedyObjective Objective
+	Optimal                    bool
 	// Rounds is the number of DSSR rounds, States the most optimiser
 	// states alive at once, Candidates the number of candidate blocks.
 	Rounds     int
@@ -237,6 +261,9 @@ func PriorityWeight(p int) int64 {
 	}
 	return w
 }
+
+// priorityLevel is the objective's level of priority p (1..5): 0..4.
+func priorityLevel(p int) int { return min(max(p, 1), levels) - 1 }
 
 // goalValue is v(goal, n) in millionths: ½ + ½·min(n, N)/N (see the notes in
 // schedule.go), N the exposures wanted or the window's capacity.
@@ -265,7 +292,8 @@ type engine struct {
 	c          Constraints
 	opt        Options
 	mask       *horizonMask
-	altAirmass float64 // refracted altitude of the airmass limit, 0 = none
+	altAirmass float64         // refracted altitude of the airmass limit, 0 = none
+	air        *ephem.AirTable // the site's refraction table (sample)
 	sky        *nightSky
 	from, to   float64
 	dark       []span
@@ -276,14 +304,15 @@ type engine struct {
 	presized   map[occKey]ExposureSizing
 	// short holds, per target and goal, the best S/N of the occurrences
 	// whose smear limit stopped the exposure short of the goal's S/N.
-	short map[[2]int]snrShortfall
+	short   map[[2]int]snrShortfall
+	shortMu sync.Mutex // buildProblem lists targets on all cores
 }
 
 // occMeta describes one goal occurrence.
 type occMeta struct {
 	target, goal int
 	occ          occurrence
-	wanted       int     // N, or the window's capacity
+	wanted       int     // N (Goal.Wanted for the occurrence's exposure)
 	exposureS    float64 // the occurrence's exposure: the goal's, or sized for its S/N
 	sized        bool    // exposureS was sized for the goal's S/N
 }
@@ -292,18 +321,31 @@ type occMeta struct {
 // optimal schedule of exposure blocks on the goal windows, blocks' details
 // and warnings, the reason for every goal left out, and optional fillers.
 //
-// The schedule maximises Σ w(priority) × v(goal, n) over its blocks, with
-// w(p) = 3^(5−p) and v = ½ + ½ × (exposures, capped at N wanted)/N, or n/C
-// for "as many as fit" (C the window's capacity): half for reaching a goal
-// window, half for its exposures. Blocks do not overlap, an acquisition
-// overhead precedes every change of target (and the first block) inside dark
-// time, each goal occurrence gets at most one block, and every block meets
-// every constraint from start to end with every exposure's mid-time phase in
-// its window. It is solved exactly (decremental state-space relaxation; see
-// the notes in schedule.go and sweep.go), not greedily: Plan.GreedyValue is
-// what first-fit by priority would reach on the same candidates. (The
-// run planner solves the same problem with its own weight per goal in place
-// of w(priority): see nightModel.)
+// Objective, exactly. Priorities are strict levels: the schedule maximises
+// first V_1, the value of the priority-1 blocks, then their airmass
+// tie-breaker T_1, then V_2 and T_2, and so on to priority 5, where
+//
+//	V_p = Σ over priority-p blocks of w(p) × v(goal, n),   w(p) = 3^(5−p)
+//	v(goal, n) = ½ + ½ × min(n, N)/N
+//	T_p = −Σ 1000·(X − 1) over their exposures (X at each block's middle)
+//
+// with n the block's exposures and N the goal's wanted count per window
+// (Goal.Wanted: NExposures; by default the exposures that cover the window
+// once; NAsManyAsFit for the window's capacity): half for reaching a goal
+// window, half for its exposures. So no amount of lower-priority value buys
+// time from a higher priority, on any night. Blocks do not overlap, an
+// acquisition overhead precedes every change of target (and the first
+// block) inside dark time, each goal occurrence gets at most one block, and
+// every block meets every constraint from start to end with every
+// exposure's mid-time phase in its window (a Continuous goal's block
+// instead covers its whole window without gaps; an eclipse, ingress or
+// egress goal's block has an exposure containing the event's instant,
+// Goal.ContainEvent; no block is shorter than Goal.MinBlockS). It is solved exactly (decremental
+// state-space relaxation over the ordered vectors; see the notes in
+// schedule.go and sweep.go), not greedily: Plan.GreedyObjective is what
+// first-fit by priority reaches on the same candidates, Plan.Objective the
+// optimum, Plan.Value the sum of its V_p. (The run planner solves the same
+// problem on one level with its own weight per goal: see nightModel.)
 //
 // A block never starts with the Sun above the chosen twilight altitude (the
 // whole block is in dark time); a block that starts while the Sun is above
@@ -322,6 +364,7 @@ func PlanNight(req NightRequest) (*Plan, error) {
 		return nil, err
 	}
 	m := buildNightModel(req, en, targets)
+	m.strict = true
 	return m.plan(m.solve(m.priorityWeights())), nil
 }
 
@@ -360,7 +403,7 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 			return nil, nil, err
 		}
 	}
-	en := &engine{site: req.Site, c: c, opt: opt, mask: newHorizonMask(c.Horizon), from: from, to: to,
+	en := &engine{site: req.Site, c: c, opt: opt, mask: newHorizonMask(c.Horizon), air: req.Site.AirTable(), from: from, to: to,
 		instrument: req.Instrument, presized: req.presized, short: map[[2]int]snrShortfall{}}
 	if c.MaxAirmass > 0 {
 		en.altAirmass = altForAirmass(c.MaxAirmass)
@@ -376,10 +419,13 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 	en.fillEnvCache()
 	frame := ephem.NewSkyFrame(req.Site, req.From, req.To)
 	targets := make([]*targetState, len(req.Targets))
-	for i, t := range req.Targets {
+	// The targets are independent: set them up on all cores (the engine is
+	// read-only here; each target's state is its own).
+	err = forEach(context.Background(), len(req.Targets), func(i int) error {
+		t := req.Targets[i]
 		goals, err := t.ResolveGoals()
 		if err != nil {
-			return nil, nil, err
+			return err
 		}
 		ts := &targetState{idx: i, t: t, goals: goals, star: t.Star(), amGrid: make([]float64, int((to-from)/opt.StepS)+2)}
 		ts.track = frame.Track(ts.star)
@@ -397,6 +443,10 @@ func newEngine(req NightRequest) (*engine, []*targetState, error) {
 			ts.phaseErr = t.Ephem.PhaseErr(ts.clock.bjd(mid))
 		}
 		targets[i] = ts
+		return nil
+	}, nil)
+	if err != nil {
+		return nil, nil, err
 	}
 	return en, targets, nil
 }
@@ -424,16 +474,23 @@ const guardS = 1.0
 // buildProblem lists every goal occurrence in dark time and its candidate
 // blocks.
 func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
-	pr := &problem{nTargets: len(targets), cands: make([]candidate, 0, 4096)}
-	var occs []occMeta
-	for _, ts := range targets {
-		if !ts.hasClock || ts.phaseErr > en.opt.MaxPhaseErr {
-			continue
+	// Targets on all cores, each with its own occurrences numbered from 0,
+	// then put together in target order (renumbered), as one loop would.
+	type part struct {
+		occs  []occMeta
+		cands []candidate
+	}
+	parts := make([]part, len(targets))
+	forAll(len(targets), func(i int) {
+		ts := targets[i]
+		if !ts.hasClock || UncertaintyRule(ts.phaseErr, 0, en.opt.MaxPhaseErr) >= PhaseRefused {
+			return
 		}
+		p := &parts[i]
 		for gi, g := range ts.goals {
 			lo, hi := en.dark[0].lo, en.dark[len(en.dark)-1].hi
 			sizing := en.instrument != nil && SizesBySNR(ts.t, g)
-			for _, oc := range ts.clock.occurrences(g.Center, g.HalfWidth, lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences) {
+			for _, oc := range ts.clock.occurrences(g.Center, en.opt.halfWidth(g.HalfWidth, ts.phaseErr), lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences) {
 				og := g
 				if sizing {
 					sz, ok, err := en.sizeOccurrence(ts, gi, g, oc)
@@ -446,15 +503,25 @@ func (en *engine) buildProblem(targets []*targetState) ([]occMeta, *problem) {
 					}
 					og.ExposureS = sz.ExposureS
 				}
-				L := og.ExposureS + og.OverheadS
-				wanted := og.NExposures
-				if wanted == 0 {
-					wanted = int(math.Floor((oc.hi-oc.lo)/L)) + 1
-				}
-				k := len(occs)
-				occs = append(occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted, exposureS: og.ExposureS, sized: sizing})
-				pr.cands = en.appendCandidates(pr.cands, ts, og, oc, k, wanted)
+				wanted := og.Wanted(ts.t.Ephem.PeriodDays)
+				k := len(p.occs)
+				p.occs = append(p.occs, occMeta{target: ts.idx, goal: gi, occ: oc, wanted: wanted, exposureS: og.ExposureS, sized: sizing})
+				p.cands = en.appendCandidates(p.cands, ts, og, oc, k, wanted)
 			}
+		}
+	})
+	n := 0
+	for _, p := range parts {
+		n += len(p.cands)
+	}
+	pr := &problem{nTargets: len(targets), cands: make([]candidate, 0, n)}
+	var occs []occMeta
+	for _, p := range parts {
+		base := len(occs)
+		occs = append(occs, p.occs...)
+		for _, c := range p.cands {
+			c.occ += base
+			pr.cands = append(pr.cands, c)
 		}
 	}
 	pr.nOcc = len(occs)
@@ -475,7 +542,7 @@ func (en *engine) checkOccurrences(targets []*targetState) error {
 			continue
 		}
 		for gi, g := range ts.goals {
-			if n := len(ts.clock.occurrences(g.Center, g.HalfWidth, lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences+1)); n > en.opt.MaxOccurrences {
+			if n := len(ts.clock.occurrences(g.Center, en.opt.halfWidth(g.HalfWidth, ts.phaseErr), lo-g.ExposureS, hi+g.ExposureS, en.opt.MaxOccurrences+1)); n > en.opt.MaxOccurrences {
 				return &ephem.InputError{Field: fmt.Sprintf("targets[%d] %q.goals[%d]", ts.idx, ts.t.Name, gi),
 					Value:    fmt.Sprintf("more than %d windows in the night (period %g d)", en.opt.MaxOccurrences, ts.t.Ephem.PeriodDays),
 					Accepted: fmt.Sprintf("at most %d goal windows per night (Options.MaxOccurrences)", en.opt.MaxOccurrences)}
@@ -494,6 +561,9 @@ func (en *engine) checkOccurrences(targets []*targetState) error {
 // the starts depends on the constraints, so relaxing a constraint only adds
 // candidates (and never lowers the optimum).
 func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc occurrence, occID, wanted int) []candidate {
+	if g.Continuous {
+		return en.appendContinuous(cs, ts, g, oc, occID)
+	}
 	E, L := g.ExposureS, g.ExposureS+g.OverheadS
 	step := en.opt.StepS
 	w := PriorityWeight(ts.t.Priority)
@@ -515,12 +585,16 @@ func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc o
 		nmax := func(s float64) int {
 			return min(wanted, int(math.Floor((oc.hi-E/2-s)/L))+1, int(math.Floor((vhi-s)/L)))
 		}
+		lv := priorityLevel(ts.t.Priority)
 		add := func(s float64, n int) {
+			if float64(n)*L < g.MinBlockS || (g.ContainEvent && !containsInstant(s, n, E, L, oc.mid)) {
+				return
+			}
 			x := en.airmassTie(ts, s+0.5*float64(n)*L)
+			tie := -int64(math.Round(1000 * float64(n) * (x - 1)))
 			cs = append(cs, candidate{
 				start: s, end: s + float64(n)*L, acq: ts.t.AcquireS, acqFloor: floor,
-				target: ts.idx, occ: occID, n: n,
-				val: score{main: w * goalValue(n, wanted), tie: -int64(math.Round(1000 * float64(n) * (x - 1)))},
+				target: ts.idx, occ: occID, n: n, val: at(lv, w*goalValue(n, wanted), tie),
 			})
 		}
 		onGrid := func(s float64) bool { return math.Mod(s, step) == 0 }
@@ -543,6 +617,49 @@ func (en *engine) appendCandidates(cs []candidate, ts *targetState, g Goal, oc o
 				continue
 			}
 			add(s, n)
+		}
+	}
+	return cs
+}
+
+// containsInstant reports whether one of n exposures of E seconds laid
+// every L seconds from s contains the instant u (all Unix seconds).
+func containsInstant(s float64, n int, E, L, u float64) bool {
+	j := math.Floor((u - s) / L)
+	return j >= 0 && int(j) < n && u-s-j*L <= E
+}
+
+// appendContinuous adds the candidate blocks of one occurrence of a
+// continuous goal: blocks whose exposures cover the whole window without
+// gaps (only the readout between them), from a start at or before the
+// window's opening (on the StepS grid within one exposure cycle of it, or
+// at the opening's whole second) to a last exposure ending at or after its
+// close, inside one observable interval. Each such block fills the goal
+// (v = 1); exposures before the opening or after the close are part of
+// the coverage, so mid-times may lie outside the window.
+func (en *engine) appendContinuous(cs []candidate, ts *targetState, g Goal, oc occurrence, occID int) []candidate {
+	E, L := g.ExposureS, g.ExposureS+g.OverheadS
+	step := en.opt.StepS
+	w := PriorityWeight(ts.t.Priority)
+	lv := priorityLevel(ts.t.Priority)
+	starts := []float64{math.Floor(oc.lo)}
+	for s := math.Ceil((oc.lo-L)/step) * step; s < math.Floor(oc.lo); s += step {
+		starts = append(starts, s)
+	}
+	for _, v := range ts.vis {
+		vlo, vhi := v.lo+guardS, v.hi-guardS
+		for _, s := range starts {
+			n := int(math.Ceil((oc.hi-E-s)/L-1e-9)) + 1
+			n = max(n, 1)
+			if s < vlo || s+float64(n)*L > vhi || float64(n)*L < g.MinBlockS {
+				continue
+			}
+			x := en.airmassTie(ts, s+0.5*float64(n)*L)
+			cs = append(cs, candidate{
+				start: s, end: s + float64(n)*L, acq: ts.t.AcquireS, acqFloor: en.darkStart(v.lo),
+				target: ts.idx, occ: occID, n: n,
+				val: at(lv, w*goalValue(1, 1), -int64(math.Round(1000*float64(n)*(x-1)))),
+			})
 		}
 	}
 	return cs

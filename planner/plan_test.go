@@ -208,10 +208,10 @@ func TestPlanRelaxMonotone(t *testing.T) {
 			if !base.Optimal || !p.Optimal {
 				t.Fatalf("night %d: not proven optimal", n)
 			}
-			if p.Value < base.Value {
+			if p.Objective.Less(base.Objective) {
 				t.Errorf("night %d, %s removed: value %d < %d with it", n, rx.name, p.Value, base.Value)
 			}
-			if p.Value > base.Value {
+			if base.Objective.Less(p.Objective) {
 				gains++
 			}
 		}
@@ -257,7 +257,7 @@ func TestPlanBeatsGreedyRealNight(t *testing.T) {
 	if p.Blocks[0].Target != "Short-2" {
 		t.Errorf("first block %s, want Short-2 (its window is short)", p.Blocks[0].Target)
 	}
-	if !(p.GreedyValue < p.Value) {
+	if !p.GreedyObjective.Less(p.Objective) {
 		t.Errorf("optimum %d does not beat greedy %d", p.Value, p.GreedyValue)
 	}
 	t.Logf("optimum %d (2 goals) against greedy %d", p.Value, p.GreedyValue)
@@ -319,12 +319,12 @@ func TestPlanBadInput(t *testing.T) {
 		{"RA", func(r *NightRequest) { r.Targets[0].RADeg = 360 }, `targets[0] "T1".ra`},
 		{"Priority", func(r *NightRequest) { r.Targets[0].Priority = 0 }, `targets[0] "T1".priority`},
 		{"NoGoals", func(r *NightRequest) { r.Targets[0].Goals = nil }, `targets[0] "T1".goals`},
-		{"HalfWidth", func(r *NightRequest) { r.Targets[0].Goals[0].HalfWidth = 0.5 }, `targets[0] "T1".goals[0].half_width`},
+		{"HalfWidth", func(r *NightRequest) { r.Targets[0].Goals[0].HalfWidth = 0.5 }, `targets[0] "T1".goals[0].phase_halfwidth`},
 		{"Center", func(r *NightRequest) { r.Targets[0].Goals[0].Center = 1 }, `targets[0] "T1".goals[0].center`},
 		{"Exposure", func(r *NightRequest) { r.Targets[0].Goals[0].ExposureS = 0 }, `targets[0] "T1".goals[0].exposure_s`},
 		{"Overhead", func(r *NightRequest) { r.Targets[0].Goals[0].OverheadS = -1 }, `targets[0] "T1".goals[0].overhead_s`},
 		{"Period", func(r *NightRequest) { r.Targets[0].Ephem.PeriodDays = 0 }, "period"},
-		{"Event", func(r *NightRequest) { r.Targets[0].Goals[0].Event = "apastron" }, "event"},
+		{"Event", func(r *NightRequest) { r.Targets[0].Goals[0].Event = "apastron" }, `targets[0] "T1".goals[0].event`},
 		{"Step", func(r *NightRequest) { r.Options.StepS = 0.5 }, "step_s"},
 	}
 	for _, tc := range tests {

@@ -176,8 +176,8 @@ func checkPlanRules(tb testing.TB, req NightRequest, p *Plan) {
 			}
 		}
 	}
-	if p.Value < p.GreedyValue {
-		tb.Errorf("objective %d below greedy's %d", p.Value, p.GreedyValue)
+	if p.Objective.Less(p.GreedyObjective) {
+		tb.Errorf("objective %v below greedy's %v", p.Objective, p.GreedyObjective)
 	}
 }
 

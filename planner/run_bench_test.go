@@ -50,12 +50,10 @@ func benchPlanRun(b *testing.B, nTargets, nNights int) {
 func BenchmarkPlanRun50x10(b *testing.B) { benchPlanRun(b, 50, 10) }
 
 // BenchmarkPlanRunScaling measures the growth in targets and nights (10,
-// 100, 1000 × 30, 180, 365). Skipped with -short; the largest cases take
-// minutes: run with -benchtime=1x.
+// 100, 1000 × 30, 180, 365); the largest cases take minutes, so only with
+// PHASECAST_BENCH_LARGE=1 and -benchtime=1x.
 func BenchmarkPlanRunScaling(b *testing.B) {
-	if testing.Short() {
-		b.Skip("scaling benchmarks are long; run without -short")
-	}
+	largeBench(b)
 	for _, nt := range []int{10, 100, 1000} {
 		for _, nn := range []int{30, 180, 365} {
 			b.Run(fmt.Sprintf("targets=%d/nights=%d", nt, nn), func(b *testing.B) { benchPlanRun(b, nt, nn) })

@@ -2,14 +2,16 @@ package planner
 
 // The night planner's exact scheduler, shared by PlanNight and the run
 // planner. PlanNight values a block as PriorityWeight(target) × v(goal, n)
-// (see the notes in schedule.go); the run optimizer needs the same scheduler
+// on its priority's level of the objective (strict, see the notes in
+// schedule.go); the run optimizer needs the same scheduler
 // with its own weight per goal (what covering the goal tonight is worth to
 // the run). nightModel builds a night's engine and candidate blocks once
 // (newEngine, buildProblem: every rule of the night planner), and solves it
 // for any weights by rescaling the candidates' values:
 // value(b) = W(target, goal) × v(goal, n), W an integer ≥ 1 so that sums
-// stay exact. PlanNight is solve with W = PriorityWeight (priorityWeights)
-// followed by plan.
+// stay exact, all on one level (the run's J ranks goals by weight alone).
+// PlanNight is solve with W = PriorityWeight (priorityWeights) and strict
+// levels, followed by plan.
 
 import (
 	"fmt"
@@ -19,6 +21,10 @@ import (
 // nightModel is one night's scheduling problem, ready to be solved for
 // different goal weights.
 type nightModel struct {
+	// strict solves with PlanNight's objective: each priority its own
+	// level, compared in order (score). Otherwise every goal is on one
+	// level and only the weights rank them, as the run planner's J does.
+	strict  bool
 	req     NightRequest
 	en      *engine
 	targets []*targetState
@@ -45,9 +51,24 @@ func buildNightModel(req NightRequest, en *engine, targets []*targetState) *nigh
 	m := &nightModel{req: req, en: en, targets: targets, occs: occs, pr: pr, base: make([]int64, len(pr.cands))}
 	for i := range pr.cands {
 		c := &pr.cands[i]
-		m.base[i] = c.val.main / PriorityWeight(targets[c.target].t.Priority)
+		m.base[i] = c.val.total() / PriorityWeight(targets[c.target].t.Priority)
 	}
 	return m
+}
+
+// setWeights rescales the candidates' values for goal weights w: val =
+// W × v(goal, n) at the target's priority level.
+func (m *nightModel) setWeights(w [][]int64) {
+	for i := range m.pr.cands {
+		c := &m.pr.cands[i]
+		om := m.occs[c.occ]
+		l := 0
+		if m.strict {
+			l = priorityLevel(m.targets[om.target].t.Priority)
+		}
+		tie := c.val.tie[c.val.tieLevel()]
+		c.val = at(l, m.base[i]*w[om.target][om.goal], tie)
+	}
 }
 
 // priorityWeights returns PlanNight's weights: w[target][goal] =
@@ -66,10 +87,11 @@ func (m *nightModel) priorityWeights() [][]int64 {
 // nightSolution is a solved night: the chosen candidates in time order and
 // whether the solver proved them optimal for the weights.
 type nightSolution struct {
-	sol     solution
-	greedy  int64
-	weights [][]int64 // the weights it was solved for
-	tried   [][]int64 // weights since tried without a better result (nil: none)
+	sol         solution
+	greedy      int64
+	greedyScore score
+	weights     [][]int64 // the weights it was solved for
+	tried       [][]int64 // weights since tried without a better result (nil: none)
 }
 
 // solve schedules the night for goal weights w[target][goal] (each ≥ 1):
@@ -78,11 +100,18 @@ type nightSolution struct {
 // then by window opening; with the priority weights that is PlanNight's
 // first-fit by priority.
 func (m *nightModel) solve(w [][]int64) nightSolution {
-	for i := range m.pr.cands {
-		c := &m.pr.cands[i]
-		om := m.occs[c.occ]
-		c.val.main = m.base[i] * w[om.target][om.goal]
-	}
+	greedy := m.weigh(w)
+	gs := m.pr.value(greedy)
+	// The exact optimum, with the candidates no optimum can use removed
+	// first (solvePruned, proof in prune.go).
+	sol := m.pr.solvePruned(greedy, m.en.opt.MaxStates)
+	return nightSolution{sol: sol, greedy: gs.total(), greedyScore: gs, weights: w}
+}
+
+// weigh sets the candidates' values for goal weights w and returns the
+// greedy schedule (see solve).
+func (m *nightModel) weigh(w [][]int64) []int {
+	m.setWeights(w)
 	order := make([]int, len(m.occs))
 	for k := range order {
 		order[k] = k
@@ -95,8 +124,7 @@ func (m *nightModel) solve(w [][]int64) nightSolution {
 		}
 		return oa.occ.lo < ob.occ.lo
 	})
-	greedy := m.pr.greedy(order)
-	return nightSolution{sol: m.pr.solve(greedy, m.en.opt.MaxStates), greedy: m.pr.value(greedy).main, weights: w}
+	return m.pr.greedy(order)
 }
 
 // plan turns a solved night into the Plan PlanNight returns: blocks with
@@ -106,11 +134,7 @@ func (m *nightModel) solve(w [][]int64) nightSolution {
 func (m *nightModel) plan(ns nightSolution) *Plan {
 	en, targets, pr, occs, sol := m.en, m.targets, m.pr, m.occs, ns.sol
 	// The candidates hold the values of the last solve; restore ns's.
-	for i := range pr.cands {
-		c := &pr.cands[i]
-		om := occs[c.occ]
-		c.val.main = m.base[i] * ns.weights[om.target][om.goal]
-	}
+	m.setWeights(ns.weights)
 	req := m.req
 	p := &Plan{Site: req.Site, From: req.From.UTC(), To: req.To.UTC(), Constraints: en.c, Options: en.opt, Dark: toIntervals(en.dark)}
 	if en.c.SunAvoidDeg > 0 {
@@ -122,10 +146,14 @@ func (m *nightModel) plan(ns nightSolution) *Plan {
 	}
 	p.Candidates = len(pr.cands)
 	p.GreedyValue = ns.greedy
-	p.Value, p.Optimal, p.Rounds, p.States = sol.value.main, sol.optimal, sol.nodes, sol.states
+	p.Value, p.Optimal, p.Rounds, p.States = sol.value.total(), sol.optimal, sol.nodes, sol.states
+	p.Objective, p.GreedyObjective = sol.value.objective(), ns.greedyScore.objective()
 	if !sol.optimal {
-		p.Warnings = append(p.Warnings, Warning{Code: WarnNotOptimal, GoalIndex: -1,
-			Message: fmt.Sprintf("the optimiser reached its state limit (%d) in round %d: the schedule is feasible but may fall short of the optimum by up to %d value units", en.opt.MaxStates, sol.nodes, max(sol.gap.main, 0))})
+		msg := fmt.Sprintf("the optimiser reached its state limit (%d) in round %d: the schedule is feasible but may fall short of the optimum", en.opt.MaxStates, sol.nodes)
+		if l, v := sol.gap.leading(); l >= 0 && v > 0 {
+			msg += fmt.Sprintf(" by up to %d value units at priority %d", v, l+1)
+		}
+		p.Warnings = append(p.Warnings, Warning{Code: WarnNotOptimal, GoalIndex: -1, Message: msg})
 	}
 	var prev *candidate
 	for _, i := range sol.chosen {
@@ -138,11 +166,12 @@ func (m *nightModel) plan(ns nightSolution) *Plan {
 		}
 		b := en.block(ts, om.goal, om.exposureS, om.sized, c.start, c.n, acq, false)
 		b.Cycle = om.occ.cycle
-		b.Value = c.val.main
+		b.Value = c.val.total()
 		p.Blocks = append(p.Blocks, b)
 		prev = c
 	}
 	p.Unscheduled, p.Warnings = en.explain(targets, occs, pr, sol.chosen, p.Warnings)
+	p.Warnings = append(p.Warnings, en.shortfalls(targets, occs, p.Blocks)...)
 	if en.opt.Fill {
 		p.Blocks = en.fill(targets, p.Blocks)
 	}

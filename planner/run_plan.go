@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 	"time"
 
 	"phasecast/ephem"
@@ -47,9 +48,11 @@ type RunPlan struct {
 	Rounds, Solves int
 }
 
-// modelBudget bounds the candidate blocks kept in memory across nights
-// (about 100 bytes each); nights beyond it are rebuilt when solved again.
-const modelBudget = 3_000_000
+// modelBudget bounds the candidate blocks of the night models kept in
+// memory between solves (about 100 bytes each, with the engine's share:
+// about 150 MB); nights beyond it are rebuilt when solved again, so the
+// memory of a run does not grow with its nights beyond its output.
+const modelBudget = 1_500_000
 
 // PlanRun plans a run of nights so that the run's coverage requirements are
 // met as far as possible, and reports the coverage and the best nights.
@@ -122,8 +125,7 @@ type runState struct {
 	obs     [][][]int // [night][target][goal] observed counts
 	reach   [][][]goalNightReach
 	sized   []map[occKey]ExposureSizing // per night: S/N-sized exposures by occurrence (reach and models share them)
-	models  []*nightModel
-	kept    int       // candidates kept in models
+	models  modelCache
 	planned [][][]int // [night][target][goal] planned counts (future nights)
 	sols    []nightSolution
 	solves  int
@@ -192,7 +194,7 @@ func (r *runState) rounds() int {
 func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*RunPlan, error) {
 	K, fut := len(r.nights), r.future()
 	F := len(fut)
-	pc := &progressCounter{fn: progress, total: K + F + F + r.rounds()*F + F + 1}
+	pc := &progressCounter{fn: progress, total: K + F + r.rounds()*F + F + 1}
 	if r.req.CompareIndependent {
 		pc.total += F
 	}
@@ -205,21 +207,28 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 	if err != nil {
 		return nil, err
 	}
-	// 3. Night models, in parallel.
-	if err := r.buildModels(ctx, fut, pc); err != nil {
-		return nil, err
-	}
-	// 4. Greedy pass with look-ahead.
+	// 3. Greedy pass with look-ahead, night by night; each night's model is
+	// built (or taken from the cache) on another goroutine while the night
+	// before it is solved.
+	r.models.init(len(r.nights))
 	r.planned = make([][][]int, K)
 	r.sols = make([]nightSolution, K)
-	for _, k := range fut {
+	var next <-chan modelResult
+	if F > 0 {
+		next = r.buildAsync(fut[0])
+	}
+	for i, k := range fut {
+		res := <-next
+		if res.err != nil {
+			return nil, res.err
+		}
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
-		m, err := r.model(k)
-		if err != nil {
-			return nil, err
+		if i+1 < F {
+			next = r.buildAsync(fut[i+1])
 		}
+		m := res.m
 		ns := m.solve(r.weights(k, true))
 		r.solves++
 		r.sols[k], r.planned[k] = ns, m.counts(ns, r.goals)
@@ -227,7 +236,7 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 	}
 	out := &RunPlan{Request: r.req}
 	out.GreedyValue = r.objective(nil)
-	// 5. Improvement rounds.
+	// 4. Improvement rounds.
 	for round := 1; round <= r.rounds(); round++ {
 		out.Rounds = round
 		changed, err := r.improve(ctx, fut, pc)
@@ -239,7 +248,7 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 			break
 		}
 	}
-	// 6. Nights planned on their own, for comparison.
+	// 5. Nights planned on their own, for comparison.
 	if r.req.CompareIndependent {
 		w := make([][]int64, len(r.targets))
 		for ti, ts := range r.targets {
@@ -268,7 +277,8 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 		out.IndependentValue = r.objective(indep)
 	}
 	out.Solves = r.solves
-	// 7. The nights' plans, in parallel.
+	// 6. The nights' plans, in parallel; each model is released once its
+	// plan is made.
 	out.Nights = make([]NightPlan, K)
 	for k, nt := range r.nights {
 		out.Nights[k] = NightPlan{Night: nt, From: timeOf(r.from[k]), To: timeOf(r.to[k]), Past: k < r.past}
@@ -280,27 +290,33 @@ func (r *runState) plan(ctx context.Context, progress func(done, total int)) (*R
 			return err
 		}
 		out.Nights[k].Plan = m.plan(r.sols[k])
+		r.models.release(k)
 		return nil
 	}, pc.tick)
 	if err != nil {
 		return nil, err
 	}
-	r.models = nil
-	// 8. Exposures, coverage, reach.
+	// 7. Exposures, coverage, reach.
 	out.Exposures = append(obsExp, r.plannedExposures(out.Nights)...)
 	out.Coverage = countCoverage(r.targets, r.goals, K, r.req.Bins, out.Exposures)
 	out.Reach = buildReach(r.targets, r.goals, r.reach)
 	for ti := range out.Coverage {
 		for gi := range out.Coverage[ti].Goals {
 			gc := &out.Coverage[ti].Goals[gi]
+			bestCap, fullNights := 0, 0
 			for _, gn := range out.Reach[ti].Goals[gi].Nights {
 				if gn.Night >= r.past {
 					gc.ReachableNights++
+					bestCap = max(bestCap, gn.Capacity)
+					if gn.Capacity >= gc.NeedExposures {
+						fullNights++
+					}
 				}
 			}
 			if gc.Status == CoverageNone && len(out.Reach[ti].Goals[gi].Nights) == 0 {
 				gc.Status = CoverageUnreachable
 			}
+			gc.Shortfall = coverageShortfall(*gc, r.targets[ti].t.Ephem.PeriodDays, bestCap, fullNights)
 			out.Value += gc.Share
 			rg := r.goals[ti][gi]
 			out.RequiredValue += 1e6 * rg.w
@@ -408,34 +424,78 @@ func (r *runState) nightRequest(k int) NightRequest {
 		Constraints: r.req.Constraints, Options: r.req.Options, Instrument: r.req.Instrument, presized: sized}
 }
 
-// buildModels sets up the future nights' problems in parallel, keeping
-// them while the candidate budget allows.
-func (r *runState) buildModels(ctx context.Context, fut []int, pc *progressCounter) error {
-	r.models = make([]*nightModel, len(r.nights))
-	built := make([]*nightModel, len(fut))
-	err := forEach(ctx, len(fut), func(i int) error {
-		m, err := newNightModel(r.nightRequest(fut[i]))
-		built[i] = m
-		return err
-	}, pc.tick)
-	if err != nil {
-		return err
-	}
-	for i, k := range fut {
-		if n := len(built[i].pr.cands); r.kept+n <= modelBudget {
-			r.models[k] = built[i]
-			r.kept += n
-		}
-	}
-	return nil
+// modelCache keeps night models between solves, up to modelBudget
+// candidate blocks in all; it is safe for concurrent use (one goroutine per
+// night at a time, as forEach hands them out).
+type modelCache struct {
+	mu     sync.Mutex
+	models []*nightModel
+	kept   int // candidates in models
 }
 
-// model returns night k's problem, rebuilding it when it was not kept.
+func (c *modelCache) init(n int) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	c.models, c.kept = make([]*nightModel, n), 0
+}
+
+// get returns night k's model when it is kept.
+func (c *modelCache) get(k int) *nightModel {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	return c.models[k]
+}
+
+// offer keeps m as night k's model while the budget allows.
+func (c *modelCache) offer(k int, m *nightModel) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if n := len(m.pr.cands); c.models[k] == nil && c.kept+n <= modelBudget {
+		c.models[k] = m
+		c.kept += n
+	}
+}
+
+// release drops night k's model.
+func (c *modelCache) release(k int) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if m := c.models[k]; m != nil {
+		c.kept -= len(m.pr.cands)
+		c.models[k] = nil
+	}
+}
+
+// model returns night k's problem: the kept one, or a new one (kept while
+// the budget allows). Models are built lazily, so that at most the budget
+// and the models being solved are in memory at once, whatever the number
+// of nights.
 func (r *runState) model(k int) (*nightModel, error) {
-	if m := r.models[k]; m != nil {
+	if m := r.models.get(k); m != nil {
 		return m, nil
 	}
-	return newNightModel(r.nightRequest(k))
+	m, err := newNightModel(r.nightRequest(k))
+	if err != nil {
+		return nil, err
+	}
+	r.models.offer(k, m)
+	return m, nil
+}
+
+type modelResult struct {
+	m   *nightModel
+	err error
+}
+
+// buildAsync returns night k's model (r.model) on a channel, built on its
+// own goroutine.
+func (r *runState) buildAsync(k int) <-chan modelResult {
+	ch := make(chan modelResult, 1)
+	go func() {
+		m, err := r.model(k)
+		ch <- modelResult{m, err}
+	}()
+	return ch
 }
 
 // totals returns the exposure counts per night of goal (ti, gi): observed,

@@ -14,32 +14,42 @@ import (
 // Options.StepS in UTC (whole minutes by default), at the earliest whole
 // second the window allows (first exposure's mid-time at its opening) and,
 // for each n, at the latest (last mid-time at its close); every exposure
-// count n from 1 to N wanted (or to the window's capacity C for "as many as
-// fit") such that the whole block lies inside one observable interval (1 s
-// inside its edges) and every exposure's mid-time inside the window. No start
-// depends on the constraints, so relaxing one only adds candidates.
+// count n from 1 to N wanted (Goal.Wanted: NExposures, or by default the
+// exposures that cover the window once, or for "as many as fit" the window's
+// capacity C) such that the whole block lies inside one observable interval
+// (1 s inside its edges) and every exposure's mid-time inside the window. No
+// start depends on the constraints, so relaxing one only adds candidates.
 //
-// Objective. Maximise Σ value(b) over the chosen blocks, where
+// Objective. A schedule's value is a vector with one level per priority,
 //
-//	value(b) = w(priority) × v(goal, n),   w(p) = 3^(5−p)   (81, 27, 9, 3, 1)
-//	v(goal, n) = ½ + ½ × min(n, N)/N                          (N wanted)
-//	v(goal, n) = ½ + ½ × n/C                                  ("as many as fit")
+//	V_p = Σ over the blocks of priority p of w(p) × v(goal, n),
+//	w(p) = 3^(5−p) (81, 27, 9, 3, 1),  v(goal, n) = ½ + ½ × min(n, N)/N,
 //
-// with C the window's capacity (exposures whose mid-times fit in the phase
-// window). Reaching a goal window at all is worth half, the exposures up to N
-// (or C) the other half; a goal of priority p weighs as much as three goals
-// of priority p+1 served as fully. Each occurrence of a goal in the night
-// counts on its own. Values are integers (v in millionths) so sums are exact.
-// Ties are broken by a second, lexicographically weaker score, lower airmass
-// (−Σ 1000·(X−1) over the exposures, X at each block's middle), and then by
-// the stable order of the candidates (earlier ends first).
+// and T_p = −Σ 1000·(X−1) over the priority-p blocks' exposures (X the
+// airmass at each block's middle), compared lexicographically: V_1, then
+// T_1, then V_2, T_2, … V_5, T_5; the schedule with the larger vector wins
+// (then the stable order of the candidates, earlier ends first). Priorities
+// are therefore strict: no gain at priority p+1 or below outweighs any loss
+// at priority p, and adding a lower-priority target never takes time from a
+// higher one. Within a priority, reaching a goal window is worth half and
+// the exposures up to N the other half; each occurrence of a goal counts on
+// its own. Values are integers (v in millionths) so sums are exact. The run
+// planner's nights (nightModel, strict false) put every goal on one level
+// with its own weight.
 //
 // Subject to: blocks do not overlap; before a block whose predecessor is a
 // different target, or before the first block, the target's acquisition
 // overhead is charged, and it must lie in the block's dark interval; at most
 // one block per goal occurrence.
 //
-// Method. Without the last rule the problem is a weighted interval
+// Method. Vectors under componentwise addition and lexicographic order form
+// an ordered abelian group (a ≤ b implies a + c ≤ b + c), which is all that
+// Bellman's principle needs: every step of the dynamic programme below keeps,
+// per state, the best value, and a best schedule's prefix is a best prefix,
+// exactly as with numbers. So the method, and its proof of optimality, is
+// unchanged from one level to five.
+//
+// Without the last rule the problem is a weighted interval
 // scheduling with a setup time that depends on the previous target, solved
 // exactly by dynamic programming over time. With it, it is a job-interval
 // selection problem (NP-hard in general). The relaxation's optimum tends to
@@ -53,15 +63,96 @@ import (
 // stops pathological cases with the best feasible schedule found (Optimal
 // false, with a warning).
 
-// score is an objective value: main (priority-weighted goal value) compared
-// first, tie second. Both are integers so that sums are exact and the same
-// input always compares the same way.
-type score struct{ main, tie int64 }
+// levels is the number of priority levels of the objective (priorities 1..5).
+const levels = 5
 
-func (a score) plus(b score) score { return score{a.main + b.main, a.tie + b.tie} }
+// score is an objective value, compared lexicographically: the value of the
+// priority-1 blocks first, then their airmass tie-breaker, then priority 2's
+// value and tie-breaker, and so on (main[l] and tie[l] hold level l,
+// priority l+1). All are integers so that sums are exact and the same input
+// always compares the same way. Scores form an ordered abelian group
+// (componentwise sum, lexicographic order), which is all the dynamic
+// programme needs to be exact.
+type score struct{ main, tie [levels]int64 }
+
+func (a score) plus(b score) score {
+	for l := range levels {
+		a.main[l] += b.main[l]
+		a.tie[l] += b.tie[l]
+	}
+	return a
+}
+
+func (a score) minus(b score) score {
+	for l := range levels {
+		a.main[l] -= b.main[l]
+		a.tie[l] -= b.tie[l]
+	}
+	return a
+}
 
 func (a score) less(b score) bool {
-	return a.main < b.main || (a.main == b.main && a.tie < b.tie)
+	for l := range levels {
+		switch {
+		case a.main[l] != b.main[l]:
+			return a.main[l] < b.main[l]
+		case a.tie[l] != b.tie[l]:
+			return a.tie[l] < b.tie[l]
+		}
+	}
+	return false
+}
+
+// total is the sum of the levels' main values (each already weighted by
+// its priority weight): the single figure Plan.Value reports.
+func (a score) total() int64 {
+	var s int64
+	for _, v := range a.main {
+		s += v
+	}
+	return s
+}
+
+// leading returns the first level whose main value is not zero, and that
+// value (−1, 0 for none): how a gap between two scores is reported.
+func (a score) leading() (int, int64) {
+	for l, v := range a.main {
+		if v != 0 {
+			return l, v
+		}
+	}
+	return -1, 0
+}
+
+// tieLevel returns the level holding a candidate's tie-breaker (its only
+// non-zero level; 0 when all are zero).
+func (a score) tieLevel() int {
+	for l := range levels {
+		if a.main[l] != 0 || a.tie[l] != 0 {
+			return l
+		}
+	}
+	return 0
+}
+
+// Objective is a night plan's objective value by priority: Value[p−1] the
+// priority-weighted goal value of the priority-p blocks (millionths), Tie[p−1]
+// their airmass tie-breaker (−Σ 1000·(X−1) over their exposures). Plans
+// compare with Less: Value[0], then Tie[0], then Value[1], and so on.
+type Objective struct{ Value, Tie [levels]int64 }
+
+// Less reports whether o ranks below b in that order.
+func (o Objective) Less(b Objective) bool {
+	return score{o.Value, o.Tie}.less(score{b.Value, b.Tie})
+}
+
+func (a score) objective() Objective { return Objective{a.main, a.tie} }
+
+// at returns a score with main value v and tie-breaker tie at level l.
+func at(l int, v, tie int64) score {
+	var s score
+	s.main[l], s.tie[l] = v, tie
+	return s
 }
 
 // candidate is one possible exposure block on the planner's time axis (Unix

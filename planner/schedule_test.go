@@ -7,8 +7,13 @@ import (
 	"testing"
 )
 
-// bruteForce returns the best feasible schedule value by exhaustive search
-// over start-ordered sequences (small problems only).
+// bruteForce returns the best schedule value by exhaustive search over
+// start-ordered sequences (small problems only). It is written from the
+// problem's statement, not from the solver's helpers: a block may follow
+// another of the same target when it starts at or after its end; after
+// another target (or first) when its acquisition, s − acq, starts at or
+// after both the previous end and the acquisition floor; one block per
+// occurrence. Scores compare priority level by level (score.less).
 func bruteForce(tb testing.TB, pr *problem) score {
 	tb.Helper()
 	idx := make([]int, len(pr.cands))
@@ -18,24 +23,34 @@ func bruteForce(tb testing.TB, pr *problem) score {
 	sort.SliceStable(idx, func(a, b int) bool { return pr.cands[idx[a]].start < pr.cands[idx[b]].start })
 	best := score{}
 	used := make(map[int]bool)
-	var rec func(from int, prev *candidate, acc score)
-	rec = func(from int, prev *candidate, acc score) {
+	var rec func(from int, prevTarget int, prevEnd float64, acc score)
+	rec = func(from int, prevTarget int, prevEnd float64, acc score) {
 		if best.less(acc) {
 			best = acc
 		}
 		for k := from; k < len(idx); k++ {
 			c := &pr.cands[idx[k]]
-			if used[c.occ] || !c.follows(prev) {
+			if used[c.occ] {
+				continue
+			}
+			if prevTarget == c.target {
+				if c.start < prevEnd-1e-6 {
+					continue
+				}
+			} else if c.start-c.acq < c.acqFloor-1e-6 || (prevTarget >= 0 && c.start-c.acq < prevEnd-1e-6) {
 				continue
 			}
 			used[c.occ] = true
-			rec(k+1, c, acc.plus(c.val))
+			rec(k+1, c.target, c.end, acc.plus(c.val))
 			used[c.occ] = false
 		}
 	}
-	rec(0, nil, score{})
+	rec(0, -1, 0, score{})
 	return best
 }
+
+// single is a test candidate's value at priority 1's level only.
+func single(v int64) score { return at(0, v, 0) }
 
 // randomProblem builds a small abstract night: nOcc occurrences spread over
 // nTargets targets, a few candidates each on a 10-unit grid.
@@ -62,7 +77,7 @@ func randomProblem(r *rand.Rand, nTargets, nOcc, perOcc int) (*problem, []int) {
 			pr.cands = append(pr.cands, candidate{
 				start: s, end: s + float64(n)*15, acq: acq[tg], acqFloor: float64(r.IntN(2) * 10),
 				target: tg, occ: k, n: n,
-				val: score{main: int64(math.Pow(3, float64(5-prio[tg]))) * int64(500000+n*100000), tie: -int64(r.IntN(50))},
+				val: at(priorityLevel(prio[tg]), int64(math.Pow(3, float64(5-prio[tg])))*int64(500000+n*100000), -int64(r.IntN(50))),
 			})
 		}
 	}
@@ -113,7 +128,7 @@ func TestSolveMatchesBruteForce(t *testing.T) {
 func TestSolveBeatsGreedy(t *testing.T) {
 	w := func(p int) int64 { return int64(math.Pow(3, float64(5-p))) }
 	c := func(tg, occ int, start, end float64, p int, n int) candidate {
-		return candidate{start: start, end: end, target: tg, occ: occ, n: n, val: score{main: w(p) * int64(500000+500000*n/max(n, 1))}}
+		return candidate{start: start, end: end, target: tg, occ: occ, n: n, val: at(priorityLevel(p), w(p)*int64(500000+500000*n/max(n, 1)), 0)}
 	}
 	tests := []struct {
 		name       string
@@ -138,10 +153,10 @@ func TestSolveBeatsGreedy(t *testing.T) {
 			// acquisition before or after it; placed late, everything fits.
 			name: "AcquisitionBetweenTargets",
 			cands: []candidate{
-				{start: 10, end: 40, acq: 10, target: 0, occ: 0, n: 1, val: score{main: 27 * 1000000}},
-				{start: 40, end: 70, acq: 10, target: 0, occ: 1, n: 1, val: score{main: 27 * 1000000}},
-				{start: 40, end: 60, acq: 10, target: 1, occ: 2, n: 1, val: score{main: 81 * 1000000}},
-				{start: 80, end: 100, acq: 10, target: 1, occ: 2, n: 1, val: score{main: 81 * 1000000}},
+				{start: 10, end: 40, acq: 10, target: 0, occ: 0, n: 1, val: single(27 * 1000000)},
+				{start: 40, end: 70, acq: 10, target: 0, occ: 1, n: 1, val: single(27 * 1000000)},
+				{start: 40, end: 60, acq: 10, target: 1, occ: 2, n: 1, val: single(81 * 1000000)},
+				{start: 80, end: 100, acq: 10, target: 1, occ: 2, n: 1, val: single(81 * 1000000)},
 			},
 			nTargets: 2, order: []int{2, 0, 1}, wantBlocks: 3,
 		},
@@ -165,7 +180,7 @@ func TestSolveBeatsGreedy(t *testing.T) {
 			if want := bruteForce(t, pr); ov != want {
 				t.Errorf("optimiser %v, brute force %v", ov, want)
 			}
-			t.Logf("greedy %d blocks value %d; optimiser %d blocks value %d", len(g), gv.main, len(sol.chosen), ov.main)
+			t.Logf("greedy %d blocks value %d; optimiser %d blocks value %d", len(g), gv.total(), len(sol.chosen), ov.total())
 		})
 	}
 }
@@ -174,18 +189,18 @@ func TestSolveBeatsGreedy(t *testing.T) {
 // window twice around another target's block; the answer serves it once.
 func TestSolveOneBlockPerOccurrence(t *testing.T) {
 	pr := &problem{nTargets: 2, nOcc: 2, cands: []candidate{
-		{start: 0, end: 10, target: 0, occ: 0, n: 1, val: score{main: 10}},
-		{start: 20, end: 30, target: 0, occ: 0, n: 1, val: score{main: 10}},
-		{start: 10, end: 20, target: 1, occ: 1, n: 1, val: score{main: 1}},
-		{start: 0, end: 30, target: 0, occ: 0, n: 3, val: score{main: 15}},
+		{start: 0, end: 10, target: 0, occ: 0, n: 1, val: single(10)},
+		{start: 20, end: 30, target: 0, occ: 0, n: 1, val: single(10)},
+		{start: 10, end: 20, target: 1, occ: 1, n: 1, val: single(1)},
+		{start: 0, end: 30, target: 0, occ: 0, n: 3, val: single(15)},
 	}}
 	sortCandidates(pr.cands)
 	relaxed := pr.sweep(pr.sweepStatic(), make([]bool, pr.nOcc), 100, &sweepScratch{})
-	if relaxed.value.main != 21 || len(relaxed.chosen) != 3 {
+	if relaxed.value.total() != 21 || len(relaxed.chosen) != 3 {
 		t.Fatalf("relaxation: got %v with %d blocks, want 21 with 3 (the occurrence served twice)", relaxed.value, len(relaxed.chosen))
 	}
 	sol := pr.solve(nil, 100)
-	if sol.value.main != 15 || !sol.optimal || !pr.feasible(sol.chosen) {
+	if sol.value.total() != 15 || !sol.optimal || !pr.feasible(sol.chosen) {
 		t.Fatalf("solve: got %v optimal=%v chosen=%v, want 15 (one long block)", sol.value, sol.optimal, sol.chosen)
 	}
 }

@@ -410,7 +410,7 @@ func (pr *problem) solve(incumbent []int, maxBuckets int) solution {
 		best.nodes = round
 		best.states = max(best.states, res.buckets)
 		if !res.ok {
-			best.gap = score{bound.main - best.value.main, bound.tie - best.value.tie}
+			best.gap = bound.minus(best.value)
 			return best
 		}
 		bound = res.value
@@ -430,7 +430,7 @@ func (pr *problem) solve(incumbent []int, maxBuckets int) solution {
 		if !added {
 			if !pr.feasible(res.chosen) {
 				// Cannot happen: critical occurrences are never repeated.
-				best.gap = score{bound.main - best.value.main, bound.tie - best.value.tie}
+				best.gap = bound.minus(best.value)
 				return best
 			}
 			// No occurrence served twice: the relaxation's optimum is

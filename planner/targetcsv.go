@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -270,23 +271,20 @@ func csvReadError(err error) error {
 	return fmt.Errorf("read targets CSV: %w", err)
 }
 
-// columnIndex maps each required (and each optional column present) name to
-// its index in header, recording missing, repeated and unknown columns in te.
-func columnIndex(header, required []string, line int, te *TableError, optional ...string) map[string]int {
-	want := map[string]bool{}
-	for _, n := range append(append([]string(nil), required...), optional...) {
-		want[n] = true
-	}
+// ColumnIndex is the one column-index helper of the CSV readers (the plan
+// targets file, the observed log, the store's team file): it maps each
+// column of header to its 0-based index, ignoring a byte-order mark and
+// blanks around names, and records in te, at line, every column not in
+// known ("unknown column; " + accepted), every repeated one, and every
+// name of required missing from the header (missing(name) says what to
+// write).
+func ColumnIndex(header, known, required []string, line int, te *TableError, accepted string, missing func(name string) string) map[string]int {
 	col := map[string]int{}
-	expected := strings.Join(required, ",")
-	if len(optional) > 0 {
-		expected += " (optional: " + strings.Join(optional, ",") + ")"
-	}
 	for i, h := range header {
 		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
 		switch {
-		case !want[h]:
-			te.add(line, i+1, h, h, "unknown column; the header must be "+expected)
+		case !slices.Contains(known, h):
+			te.add(line, i+1, h, h, "unknown column; "+accepted)
 		case hasKey(col, h):
 			te.add(line, i+1, h, h, fmt.Sprintf("column repeated (first at column %d)", col[h]+1))
 		default:
@@ -295,10 +293,24 @@ func columnIndex(header, required []string, line int, te *TableError, optional .
 	}
 	for _, n := range required {
 		if !hasKey(col, n) {
-			te.add(line, 0, n, "", "missing column "+n+"; the header must be "+strings.Join(required, ","))
+			te.add(line, 0, n, "", missing(n))
 		}
 	}
 	return col
+}
+
+// columnIndex is ColumnIndex for the plan CSV: every required column, and
+// each optional one when present.
+func columnIndex(header, required []string, line int, te *TableError, optional ...string) map[string]int {
+	expected := strings.Join(required, ",")
+	if len(optional) > 0 {
+		expected += " (optional: " + strings.Join(optional, ",") + ")"
+	}
+	known := append(append([]string(nil), required...), optional...)
+	return ColumnIndex(header, known, required, line, te, "the header must be "+expected,
+		func(n string) string {
+			return "missing column " + n + "; the header must be " + strings.Join(required, ",")
+		})
 }
 
 func hasKey(m map[string]int, k string) bool { _, ok := m[k]; return ok }
@@ -353,7 +365,7 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 	{
 		v := get("phase_halfwidth")
 		w, ok := parseFinite(v)
-		if !ok || w <= 0 || w >= 0.5 {
+		if !ok {
 			bad("phase_halfwidth", v, "a phase half-width, 0 < w < 0.5")
 		}
 		hw = w
@@ -362,7 +374,7 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 	{
 		v := get("exposure_s")
 		e, ok := parseFinite(v)
-		if !ok || e <= 0 || e > MaxExposureS {
+		if !ok {
 			bad("exposure_s", v, fmt.Sprintf("one exposure in seconds, 0 < t ≤ %g", MaxExposureS))
 		}
 		exp = e
@@ -371,7 +383,7 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 	{
 		v := get("overhead_s")
 		o, ok := parseFinite(v)
-		if !ok || o < 0 || o > MaxExposureS {
+		if !ok {
 			bad("overhead_s", v, fmt.Sprintf("readout overhead per exposure in seconds, 0 ≤ t ≤ %g", MaxExposureS))
 		}
 		ovh = o
@@ -379,7 +391,7 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 	{
 		v := get("priority")
 		p, err := strconv.Atoi(v)
-		if err != nil || p < 1 || p > 5 {
+		if err != nil {
 			bad("priority", v, "an integer 1 (highest) to 5")
 		}
 		t.Priority = p
@@ -395,7 +407,42 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 			t.Goals = append(t.Goals, Goal{Center: c, HalfWidth: hw, ExposureS: exp, OverheadS: ovh, SNR: snr, MaxSmear: smear})
 		}
 	}
+	// The rules of a target are TargetProblems', given at the column that
+	// holds the value, once per column (the goals share phase_halfwidth,
+	// exposure_s and overhead_s) and not for a cell that did not parse.
+	seen := map[string]bool{}
+	for _, c := range te.Cells[n0:] {
+		seen[c.Column] = true
+	}
+	checked := t
+	if len(checked.Goals) == 0 { // phases did not parse: check the shared goal cells on their own
+		checked.Goals = []Goal{{HalfWidth: hw, ExposureS: exp, OverheadS: ovh}}
+	}
+	for _, p := range TargetProblems(checked) {
+		c := planColumn(p.Field)
+		if seen[c] {
+			continue
+		}
+		seen[c] = true
+		if _, ok := col[c]; ok {
+			bad(c, get(c), p.Accepted)
+		} else {
+			te.add(line, 0, p.Field, p.Value, p.Accepted)
+		}
+	}
 	return t, len(te.Cells) == n0
+}
+
+// planColumn is the plan CSV's column of a TargetProblems field
+// ("goals[1].exposure_s" → "exposure_s", a goal's centre → "phases").
+func planColumn(field string) string {
+	if _, sub, ok := strings.Cut(field, "]."); ok && strings.HasPrefix(field, "goals[") {
+		if sub == "center" {
+			return "phases"
+		}
+		return sub
+	}
+	return field
 }
 
 // parseBrightnessCells reads the optional columns of PlanCSVOptional into t

@@ -50,7 +50,9 @@ type Goal struct {
 	HalfWidth float64 // half-width of the window in phase, 0 < w < 0.5
 	ExposureS float64 // one exposure, s (> 0)
 	OverheadS float64 // readout after each exposure, s (≥ 0)
-	// NExposures wanted; 0 means as many as fit.
+	// NExposures wanted per night: 1..10000, 0 for enough to cover the
+	// window once (Goal.CoverOnce), NAsManyAsFit (−1) for as many as one
+	// window holds (Goal.Capacity). See Goal.Wanted.
 	NExposures int
 	// MinNights asks for the goal to be covered on at least this many
 	// different nights over a run (0 or 1: one night is enough).
@@ -58,6 +60,18 @@ type Goal struct {
 	// EclipseDurDays is the eclipse's full duration (first to last
 	// contact), days, for the events eclipse_ingress and eclipse_egress.
 	EclipseDurDays float64
+	// Continuous asks for the whole window, Center ± HalfWidth, in one
+	// gap-free block (photometry): the first exposure starts at or before
+	// the window's opening, the last ends at or after its close, and the
+	// exposures follow each other with only the readout between them.
+	Continuous bool
+	// MinBlockS is the shortest block worth taking for the goal, seconds
+	// (0: no minimum).
+	MinBlockS float64
+	// ContainEvent, set by ResolveGoals for eclipse, eclipse_ingress and
+	// eclipse_egress goals, gives credit to a block only when one of its
+	// exposures contains the event's instant (the window's centre).
+	ContainEvent bool
 	// SNR, when positive, is the wanted signal-to-noise per exposure: with
 	// an Instrument in the request and a Band on the target, each block's
 	// exposure is sized for its own sky (SizeExposure) and ExposureS is

@@ -283,14 +283,25 @@ func altForAirmass(x float64) float64 {
 
 // targetSample is what the constraints see of a target at an instant.
 type targetSample struct {
-	altAirless, altRefr, az float64
-	dir                     vec3
+	altAirless, altRefr float64
+	dir                 vec3
 }
 
-// sample returns the target's place at u on the fast path.
+// azDeg returns the sample's azimuth, degrees from north through east,
+// [0, 360).
+func (s targetSample) azDeg() float64 {
+	az := math.Atan2(s.dir[1], s.dir[0]) * radToDeg
+	if az < 0 {
+		az += 360
+	}
+	return az
+}
+
+// sample returns the target's place at u on the fast path, refracted by the
+// site's table (ephem.AirTable: Site.RefractedAltDeg to 1e-9°).
 func (en *engine) sample(ts *targetState, u float64) targetSample {
-	alt, az := ts.track.AltAzUnix(u)
-	return targetSample{altAirless: alt, altRefr: en.site.RefractedAltDeg(alt), az: az, dir: horizonVec(alt, az)}
+	alt, dir := ts.track.HorizonUnix(u)
+	return targetSample{altAirless: alt, altRefr: en.air.RefractedAltDeg(alt), dir: dir}
 }
 
 // margin returns the smallest margin, degrees, by which the target meets the
@@ -350,7 +361,7 @@ func (en *engine) marginAt(ts *targetState, u float64, ev env) (float64, reasonB
 		add(s.altRefr-c.MinAltDeg, bitMinAlt)
 	}
 	if en.mask != nil {
-		add(s.altRefr-en.mask.minAltDeg(s.az), bitHorizonMask)
+		add(s.altRefr-en.mask.minAltDeg(s.azDeg()), bitHorizonMask)
 	}
 	if c.ZenithExclDeg > 0 {
 		add(90-s.altRefr-c.ZenithExclDeg, bitZenith)
@@ -359,15 +370,24 @@ func (en *engine) marginAt(ts *targetState, u float64, ev env) (float64, reasonB
 		ha := ts.track.HourAngleHours(timeOf(u))
 		add(15*math.Min(ha-c.HAMinHours, c.HAMaxHours-ha), bitHourAngle)
 	}
+	// The angle between two directions is at least the difference of their
+	// altitudes, so a separation margin is at least lb = |h − h_body| − limit.
+	// When lb is at least the smallest margin so far and not negative, the
+	// separation can set neither the minimum nor a reason: it is skipped,
+	// and the result is the same (1e-9° spares the rounding of sepDeg).
+	sepNeeded := func(bodyAlt, limit float64) bool {
+		lb := math.Abs(s.altAirless-bodyAlt) - limit - 1e-9
+		return lb < m || lb < 0
+	}
 	if ev.moonUp() {
-		if c.MinMoonSepDeg > 0 {
+		if c.MinMoonSepDeg > 0 && sepNeeded(ev.moonAlt, c.MinMoonSepDeg) {
 			add(sepDeg(s.dir, ev.moon)-c.MinMoonSepDeg, bitMoonSep)
 		}
 		if c.MaxMoonIllum > 0 {
 			add(100*(c.MaxMoonIllum-ev.illum), bitMoonIllum)
 		}
 	}
-	if c.SunAvoidDeg > 0 {
+	if c.SunAvoidDeg > 0 && sepNeeded(ev.sunAlt, c.SunAvoidDeg) {
 		add(sepDeg(s.dir, ev.sun)-c.SunAvoidDeg, bitSunAvoid)
 	}
 	if why&bitBelowHorizon != 0 {

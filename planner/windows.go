@@ -45,9 +45,10 @@ type QueueWindow struct {
 	Interval       // UTC, edges to about 0.1 s (see the notes in windows_core.go)
 	Cycle    int64 // the orbital cycle of the window's centre
 	// PhaseErr is the ephemeris' 1σ phase uncertainty at the window's
-	// middle (ephem.Ephemeris.PhaseErr); Uncertain is true when it exceeds
-	// the goal's half-width (the window's place on the orbit is then in
-	// doubt).
+	// middle (ephem.Ephemeris.PhaseErr); Uncertain is true when the rule
+	// of the night planner flags it (UncertaintyRule: 3σ beyond the goal's
+	// half-width, the window's place on the orbit then in doubt). Windows
+	// the rule refuses are not listed (GoalWindows.Refused).
 	PhaseErr  float64
 	Uncertain bool
 	// AirmassMin and AirmassMax over the window (fast path, 60 s samples
@@ -72,6 +73,11 @@ type GoalWindows struct {
 	GoalIndex   int  // index in the target's ResolveGoals
 	Goal        Goal // resolved (Center set)
 	Windows     []QueueWindow
+	// Refused counts the windows left out because the night planner would
+	// refuse them (UncertaintyRule: 1σ above Options.MaxPhaseErr), and
+	// RefusedNote says why, in words.
+	Refused     int
+	RefusedNote string
 }
 
 // QueueWindows lists, for every goal of every target, each UTC interval in
@@ -141,7 +147,12 @@ func QueueWindows(ctx context.Context, req WindowRequest, progress func(done, to
 			}
 			for gi, rs := range spans {
 				for _, r := range rs {
-					lists[gi].Windows = appendWindow(lists[gi].Windows, en, ts, &clock, gi, r, req.Instrument)
+					var refused string
+					lists[gi].Windows, refused = appendWindow(lists[gi].Windows, en, ts, &clock, gi, r, req.Instrument)
+					if refused != "" {
+						lists[gi].Refused++
+						lists[gi].RefusedNote = refused
+					}
 				}
 				if len(lists[gi].Windows) > MaxWindowsPerGoal {
 					return fmt.Errorf("target %q goal at phase %.4f: more than %d windows in the range; shorten the range", ts.t.Name, ts.goals[gi].Center, MaxWindowsPerGoal)
@@ -165,7 +176,10 @@ func QueueWindows(ctx context.Context, req WindowRequest, progress func(done, to
 // with the previous window when they touch (within 1 ms, e.g. across a day
 // boundary). With an instrument, an S/N goal's exposure is sized at the
 // window's middle.
-func appendWindow(ws []QueueWindow, en *engine, ts *targetState, clock *phaseClock, gi int, r reachSpan, in *Instrument) []QueueWindow {
+//
+// A window the night planner would refuse (UncertaintyRule) is not added
+// (with the window it merged into); the reason is returned instead.
+func appendWindow(ws []QueueWindow, en *engine, ts *targetState, clock *phaseClock, gi int, r reachSpan, in *Instrument) ([]QueueWindow, string) {
 	g := ts.goals[gi]
 	lo, hi := r.lo, r.hi
 	xlo, xhi := en.airmassRangeLean(ts, lo, hi)
@@ -178,6 +192,10 @@ func appendWindow(ws []QueueWindow, en *engine, ts *targetState, clock *phaseClo
 	}
 	mid := 0.5 * (lo + hi)
 	pe := ts.t.Ephem.PhaseErr(clock.bjd(mid))
+	trust := UncertaintyRule(pe, g.HalfWidth, en.opt.MaxPhaseErr)
+	if trust >= PhaseRefused {
+		return ws, UncertaintyNote(pe, g.HalfWidth, en.opt.MaxPhaseErr)
+	}
 	var sz *ExposureSizing
 	if in != nil && SizesBySNR(ts.t, g) {
 		// The middle of an observable window: only an unmodelled sky (a
@@ -195,9 +213,9 @@ func appendWindow(ws []QueueWindow, en *engine, ts *targetState, clock *phaseClo
 	}
 	return append(ws, QueueWindow{
 		Interval: span{lo, hi}.interval(), Cycle: cycle,
-		PhaseErr: pe, Uncertain: pe > g.HalfWidth,
+		PhaseErr: pe, Uncertain: trust == PhaseFlagged,
 		AirmassMin: xlo, AirmassMax: xhi, Exposures: n, Sizing: sz,
-	})
+	}), ""
 }
 
 // dayBounds cuts [from, to] (Unix seconds) at the site's mean solar noons.

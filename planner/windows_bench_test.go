@@ -82,11 +82,10 @@ func (c cpuMeter) report(b *testing.B) {
 func BenchmarkQueueWindows300x180(b *testing.B) { benchWindows(b, 300, 180) }
 
 // BenchmarkQueueWindowsScaling measures the growth in targets and nights
-// (10, 100, 1000 × 30, 180, 365). Skipped with -short.
+// (10, 100, 1000 × 30, 180, 365); long, so only with
+// PHASECAST_BENCH_LARGE=1 (see BenchmarkScale for the scaling table).
 func BenchmarkQueueWindowsScaling(b *testing.B) {
-	if testing.Short() {
-		b.Skip("scaling benchmarks are long; run without -short")
-	}
+	largeBench(b)
 	for _, nt := range []int{10, 100, 1000} {
 		for _, nn := range []int{30, 180, 365} {
 			b.Run(fmt.Sprintf("targets=%d/nights=%d", nt, nn), func(b *testing.B) { benchWindows(b, nt, nn) })

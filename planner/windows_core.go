@@ -69,7 +69,7 @@ func newLeanBase(site ephem.Site, c Constraints, opt Options) (*leanBase, error)
 // night returns the engine of one night [from, to] (Unix seconds): the Sun
 // and the Moon and the dark spans, as newEngine computes them.
 func (b *leanBase) night(from, to float64) *engine {
-	en := &engine{site: b.site, c: b.c, opt: b.opt, mask: b.mask, altAirmass: b.altAirmass, from: from, to: to}
+	en := &engine{site: b.site, c: b.c, opt: b.opt, mask: b.mask, altAirmass: b.altAirmass, air: b.site.AirTable(), from: from, to: to}
 	en.sky = newNightSky(b.site, from, to)
 	en.dark, en.day = scan(from, to, b.opt.StepS, func(u float64) (float64, reasonBits) {
 		m := b.c.SunAltMaxDeg - en.sky.sunAlt(u)
@@ -78,6 +78,10 @@ func (b *leanBase) night(from, to float64) *engine {
 		}
 		return m, 0
 	})
+	// Every target's scan samples the Sun and the Moon on the same grid:
+	// compute them once per night for all (the values are those en.sky.at
+	// gives, so nothing changes but the time).
+	en.fillEnvCache()
 	return en
 }
 
@@ -204,7 +208,7 @@ func (en *engine) reach(ts *targetState, clock *phaseClock, pad float64) ([][]re
 	occs := make([][]occurrence, len(ts.goals))
 	var want []span
 	for gi, g := range ts.goals {
-		occs[gi] = clock.occurrences(g.Center, g.HalfWidth, lo, hi, en.opt.MaxOccurrences+1)
+		occs[gi] = clock.occurrences(g.Center, en.opt.halfWidth(g.HalfWidth, phaseErr), lo, hi, en.opt.MaxOccurrences+1)
 		if len(occs[gi]) > en.opt.MaxOccurrences {
 			return nil, 0, &errTooManyOccurrences{ts.t.Name, en.opt.MaxOccurrences}
 		}
@@ -373,6 +377,24 @@ func forEach(ctx context.Context, n int, fn func(i int) error, tick func()) erro
 		return err
 	}
 	return firstErr
+}
+
+// forAll runs fn(i) for i in 0..n−1 on a bounded pool of workers
+// (GOMAXPROCS, at most n), for work that cannot fail or be cancelled.
+func forAll(n int, fn func(i int)) {
+	workers := min(runtime.GOMAXPROCS(0), n)
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := int(next.Add(1) - 1); i < n; i = int(next.Add(1) - 1) {
+				fn(i)
+			}
+		}()
+	}
+	wg.Wait()
 }
 
 // progressCounter calls progress(done, total) as items complete.

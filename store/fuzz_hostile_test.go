@@ -177,15 +177,15 @@ func checkStored(tb testing.TB, ts []store.StoredTarget) {
 			tb.Fatalf("name %q empty or padded", t.Name)
 		case t.RADeg < 0 || t.RADeg >= 360 || t.DecDeg < -90 || t.DecDeg > 90:
 			tb.Fatalf("%q: RA %v Dec %v out of range", t.Name, t.RADeg, t.DecDeg)
-		case math.Abs(t.PMRAmasyr) > store.MaxPMmasyr || math.Abs(t.PMDecmasyr) > store.MaxPMmasyr:
+		case math.Abs(t.PMRAmasyr) > planner.MaxPMmasyr || math.Abs(t.PMDecmasyr) > planner.MaxPMmasyr:
 			tb.Fatalf("%q: proper motion out of range", t.Name)
-		case t.Mag < store.MinMag || t.Mag > store.MaxMag:
+		case t.Mag < planner.MinMag || t.Mag > planner.MaxMag:
 			tb.Fatalf("%q: mag %v out of range", t.Name, t.Mag)
 		case t.Priority < 1 || t.Priority > 5:
 			tb.Fatalf("%q: priority %d", t.Name, t.Priority)
-		case t.AcquireS < 0 || t.AcquireS > store.MaxAcquireS:
+		case t.AcquireS < 0 || t.AcquireS > planner.MaxAcquireS:
 			tb.Fatalf("%q: acquire_s %v", t.Name, t.AcquireS)
-		case len(t.Goals) > store.MaxGoals || len(t.Tags) > store.MaxTags:
+		case len(t.Goals) > planner.MaxGoals || len(t.Tags) > store.MaxTags:
 			tb.Fatalf("%q: %d goals, %d tags", t.Name, len(t.Goals), len(t.Tags))
 		}
 		if err := e.Validate(); err != nil {

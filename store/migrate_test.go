@@ -3,9 +3,6 @@ package store_test
 import (
 	"context"
 	"database/sql"
-	"go/parser"
-	"go/token"
-	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
@@ -158,29 +155,6 @@ func TestOpenRejectsMemory(t *testing.T) {
 	_, err := store.Open(context.Background(), ":memory:", func() time.Time { return t0 })
 	wantCode(t, err, store.EINVALID)
 }
-
-// TestImportDirection fails if store imports web or cmd (imports flow
-// ephem ← planner ← store ← web ← cmd).
-func TestImportDirection(t *testing.T) {
-	files, err := filepath.Glob("*.go")
-	if err != nil {
-		t.Fatal(err)
-	}
-	fset := token.NewFileSet()
-	for _, f := range files {
-		af, err := parser.ParseFile(fset, f, nil, parser.ImportsOnly)
-		if err != nil {
-			t.Fatal(err)
-		}
-		for _, imp := range af.Imports {
-			p := strings.Trim(imp.Path.Value, `"`)
-			if strings.HasPrefix(p, "phasecast/web") || strings.HasPrefix(p, "phasecast/cmd") {
-				t.Errorf("%s imports %s; store may import only ephem and planner of phasecast", f, p)
-			}
-		}
-	}
-}
-
 // TestMigrateConcurrentOpens: servers starting together on one empty
 // database apply each migration once (on PostgreSQL under the advisory
 // lock; on SQLite under its write lock).

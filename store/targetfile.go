@@ -13,6 +13,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 // The team target file formats are described in FORMAT.md.
@@ -212,23 +213,10 @@ func parseTeamCSV(b []byte) (parsedFile, error) {
 		return parsedFile{}, tableErr(te)
 	}
 	headerLine, _ := cr.FieldPos(0)
-	col := map[string]int{}
-	for i, h := range header {
-		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
-		switch {
-		case !slices.Contains(csvColumns, h):
-			add(headerLine, i+1, h, h, "unknown column; accepted columns: "+strings.Join(csvColumns, ","))
-		case hasKey(col, h):
-			add(headerLine, i+1, h, h, fmt.Sprintf("column repeated (first at column %d)", col[h]+1))
-		default:
-			col[h] = i
-		}
-	}
-	for _, n := range csvRequired {
-		if !hasKey(col, n) {
-			add(headerLine, 0, n, "", "missing required column "+n+"; required: "+strings.Join(csvRequired, ","))
-		}
-	}
+	col := planner.ColumnIndex(header, csvColumns, csvRequired, headerLine, te, "accepted columns: "+strings.Join(csvColumns, ","),
+		func(n string) string {
+			return "missing required column " + n + "; required: " + strings.Join(csvRequired, ",")
+		})
 	if len(te.Cells) > 0 {
 		return parsedFile{}, tableErr(te)
 	}
@@ -311,7 +299,7 @@ func (c *cellReader) get(name string) string {
 	if !ok {
 		return ""
 	}
-	return planner.UnquoteCSVCell(strings.TrimSpace(c.rec[i]))
+	return export.UnquoteCSVCell(strings.TrimSpace(c.rec[i]))
 }
 
 func (c *cellReader) bad(name, value, reason string) {
@@ -592,7 +580,7 @@ func writeTeamCSV(w io.Writer, targets []StoredTarget) error {
 			strconv.Itoa(t.Priority), numOrEmpty(t.AcquireS), strings.Join(t.Tags, ";"), t.Notes,
 		}
 		for i := range rec {
-			rec[i] = planner.SafeCSVCell(rec[i])
+			rec[i] = export.SafeCSVCell(rec[i])
 		}
 		if err := cw.Write(rec); err != nil {
 			return err

@@ -6,7 +6,6 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -106,15 +105,10 @@ type EphemerisInput struct {
 
 // Limits on targets.
 const (
-	MaxTags     = 30
-	MaxTagLen   = 40
-	MaxGoals    = 20
-	MaxNameLen  = 200
-	MaxTargets  = planner.MaxTargetRows // per list, and per imported file (50000)
-	MaxPMmasyr  = 20000                 // |proper motion| accepted, mas/yr
-	MinMag      = -30.0
-	MaxMag      = 40.0
-	MaxAcquireS = 3600.0
+	MaxTags    = 30
+	MaxTagLen  = 40
+	MaxNameLen = 200
+	MaxTargets = planner.MaxTargetRows // per list, and per imported file (50000)
 )
 
 // ephemField maps ephem.Ephemeris.Validate's field names to the names the
@@ -177,27 +171,7 @@ func validateTargetInput(in TargetInput) (TargetInput, *ValidationError) {
 	v := &ValidationError{}
 	t := &in.Target
 	validName(v, "name", t.Name)
-	if !finite(t.RADeg) || t.RADeg < 0 || t.RADeg >= 360 {
-		v.add("ra", num(t.RADeg), "right ascension 0 ≤ RA < 360 degrees (ICRS)")
-	}
-	if !finite(t.DecDeg) || t.DecDeg < -90 || t.DecDeg > 90 {
-		v.add("dec", num(t.DecDeg), "declination −90..90 degrees (ICRS)")
-	}
-	if !finite(t.PMRAmasyr) || t.PMRAmasyr < -MaxPMmasyr || t.PMRAmasyr > MaxPMmasyr {
-		v.add("pm_ra_masyr", num(t.PMRAmasyr), fmt.Sprintf("proper motion in RA·cos δ, −%d..%d mas/yr", MaxPMmasyr, MaxPMmasyr))
-	}
-	if !finite(t.PMDecmasyr) || t.PMDecmasyr < -MaxPMmasyr || t.PMDecmasyr > MaxPMmasyr {
-		v.add("pm_dec_masyr", num(t.PMDecmasyr), fmt.Sprintf("proper motion in Dec, −%d..%d mas/yr", MaxPMmasyr, MaxPMmasyr))
-	}
-	if !finite(t.Mag) || t.Mag < MinMag || t.Mag > MaxMag {
-		v.add("mag", num(t.Mag), fmt.Sprintf("a magnitude %g..%g (0 = unknown)", MinMag, MaxMag))
-	}
-	if t.Priority < 1 || t.Priority > 5 {
-		v.add("priority", strconv.Itoa(t.Priority), "an integer 1 (highest) to 5")
-	}
-	if !finite(t.AcquireS) || t.AcquireS < 0 || t.AcquireS > MaxAcquireS {
-		v.add("acquire_s", num(t.AcquireS), fmt.Sprintf("acquisition overhead per visit, 0..%g seconds", MaxAcquireS))
-	}
+	addProblems(v, planner.TargetProblems(*t), false) // the target's own fields; its goals after the ephemeris
 	validateTags(v, t.Tags)
 	validNotes(v, "notes", t.Notes, MaxNotes)
 	ephemOK := false
@@ -215,7 +189,13 @@ func validateTargetInput(in TargetInput) (TargetInput, *ValidationError) {
 		CovPPdot: t.Ephem.CovPPdot}).Validate(); err != nil {
 		addEphemError(v, err) // the rest of the ephemeris, checked with a stand-in T0
 	}
-	validateGoals(v, *t, ephemOK)
+	// The goals once T0 is resolved: the rulebook resolves goal events
+	// against a valid ephemeris only, so without one it must resolve none.
+	checked := *t
+	if !ephemOK {
+		checked.Ephem.T0 = ephem.JD2{}
+	}
+	addProblems(v, planner.TargetProblems(checked), true)
 	validNotes(v, "ephem_note", in.EphemNote, MaxNotes)
 	return in, v
 }
@@ -235,52 +215,12 @@ func validateTags(v *ValidationError, tags []string) {
 	}
 }
 
-// validateGoals checks the goals of t (whose ephemeris is valid) with the
-// planner's limits, resolving named events to catch impossible ones
-// (periastron of a circular orbit, an eclipse contact without a duration).
-func validateGoals(v *ValidationError, t planner.Target, resolve bool) {
-	if len(t.Goals) > MaxGoals {
-		v.add("goals", strconv.Itoa(len(t.Goals))+" goals", fmt.Sprintf("at most %d goals", MaxGoals))
-		return
-	}
-	events := planner.EventNames()
-	for i, g := range t.Goals {
-		f := fmt.Sprintf("goals[%d].", i)
-		n0 := len(v.Fields)
-		switch {
-		case g.Event != "" && !slices.Contains(events, g.Event):
-			v.add(f+"event", g.Event, "a phase, or one of "+strings.Join(events, ", "))
-		case g.Event == "" && (!finite(g.Center) || g.Center < 0 || g.Center >= 1):
-			v.add(f+"center", num(g.Center), "a phase 0 ≤ φ < 1")
-		}
-		if !finite(g.HalfWidth) || g.HalfWidth <= 0 || g.HalfWidth >= 0.5 {
-			v.add(f+"phase_halfwidth", num(g.HalfWidth), "a phase half-width 0 < w < 0.5")
-		}
-		if !finite(g.ExposureS) || g.ExposureS <= 0 || g.ExposureS > planner.MaxExposureS {
-			v.add(f+"exposure_s", num(g.ExposureS), fmt.Sprintf("one exposure, 0 < t ≤ %g seconds", planner.MaxExposureS))
-		}
-		if !finite(g.OverheadS) || g.OverheadS < 0 || g.OverheadS > planner.MaxExposureS {
-			v.add(f+"overhead_s", num(g.OverheadS), fmt.Sprintf("readout per exposure, 0 ≤ t ≤ %g seconds", planner.MaxExposureS))
-		}
-		if g.NExposures < 0 || g.NExposures > 10000 {
-			v.add(f+"n_exposures", strconv.Itoa(g.NExposures), "0 (as many as fit) to 10000")
-		}
-		if g.MinNights < 0 || g.MinNights > 366 {
-			v.add(f+"min_nights", strconv.Itoa(g.MinNights), "0 to 366 nights")
-		}
-		if !finite(g.EclipseDurDays) || g.EclipseDurDays < 0 || (t.Ephem.PeriodDays > 0 && g.EclipseDurDays >= t.Ephem.PeriodDays) {
-			v.add(f+"eclipse_duration_days", num(g.EclipseDurDays), "the eclipse's full duration in days, ≥ 0 and shorter than the period")
-		}
-		if resolve && len(v.Fields) == n0 && g.Event != "" {
-			one := planner.Target{Name: t.Name, Ephem: t.Ephem, Goals: []planner.Goal{g}}
-			if _, err := one.ResolveGoals(); err != nil {
-				var ie *ephem.InputError
-				if errors.As(err, &ie) {
-					v.add(f+"event", g.Event, ie.Field+": "+ie.Accepted)
-				} else {
-					v.add(f+"event", g.Event, err.Error())
-				}
-			}
+// addProblems adds to v the rules a target breaks (planner.TargetProblems,
+// the one rulebook for targets): those of its goals, or of its own fields.
+func addProblems(v *ValidationError, ps []planner.TargetProblem, goals bool) {
+	for _, p := range ps {
+		if strings.HasPrefix(p.Field, "goals") == goals {
+			v.add(p.Field, p.Value, p.Accepted)
 		}
 	}
 }

@@ -127,6 +127,13 @@ func apiFieldName(f string) string {
 	return f
 }
 
+// writeDoc sends a document package export wrote (JSON) with status 200.
+func writeDoc(w http.ResponseWriter, doc []byte) {
+	w.Header().Set("Content-Type", "application/json")
+	w.Header().Set("Cache-Control", "no-store")
+	_, _ = w.Write(doc) // dropped: the status is sent; a client that has gone cannot be told more
+}
+
 // writeJSON writes v as indented JSON with status.
 func writeJSON(w http.ResponseWriter, status int, v any) {
 	var buf bytes.Buffer

@@ -16,7 +16,5 @@ func (s *Server) apiNight(w http.ResponseWriter, r *http.Request, u *user) {
 		s.apiError(w, r, err)
 		return
 	}
-	w.Header().Set("Content-Type", "application/json")
-	w.Header().Set("Cache-Control", "no-store")
-	_, _ = w.Write(append(b, '\n')) // dropped: the status is sent; a client that has gone cannot be told more
+	writeDoc(w, b)
 }

@@ -4,6 +4,7 @@ import (
 	"net/http"
 	"strconv"
 
+	"phasecast/planner/export"
 	"phasecast/store"
 )
 
@@ -17,18 +18,22 @@ func (s *Server) apiRunPlan(w http.ResponseWriter, r *http.Request, u *user) {
 		return
 	}
 	want, err := queryID(r.URL.Query(), "plan")
-	var doc *runDoc
+	var doc *export.Run
 	if err == nil {
 		_, doc, _, err = s.runPlanDoc(r.Context(), u.actor, id, want)
 	}
 	if err == nil && doc == nil {
 		err = errNotFound("the run has no saved plan yet: POST /api/v1/runs/{id}/plan makes one")
 	}
+	var b []byte
+	if err == nil {
+		b, err = export.JSON(doc)
+	}
 	if err != nil {
 		s.apiError(w, r, err)
 		return
 	}
-	writeJSON(w, http.StatusOK, doc)
+	writeDoc(w, b)
 }
 
 // apiRunCoverage returns only the coverage part of a run's saved plan
@@ -40,9 +45,11 @@ func (s *Server) apiRunCoverage(w http.ResponseWriter, r *http.Request, u *user)
 		return
 	}
 	want, err := queryID(r.URL.Query(), "plan")
-	var doc *runDoc
+	var doc *export.Run
+	var plans []store.SavedPlan
+	var planID int64
 	if err == nil {
-		_, doc, _, err = s.runPlanDoc(r.Context(), u.actor, id, want)
+		plans, doc, planID, err = s.runPlanDoc(r.Context(), u.actor, id, want)
 	}
 	if err == nil && doc == nil {
 		err = errNotFound("the run has no saved plan yet: POST /api/v1/runs/{id}/plan makes one")
@@ -51,7 +58,7 @@ func (s *Server) apiRunCoverage(w http.ResponseWriter, r *http.Request, u *user)
 		s.apiError(w, r, err)
 		return
 	}
-	writeJSON(w, http.StatusOK, map[string]any{"run": doc.Run, "made_at": doc.MadeAt, "past_nights": doc.Past,
+	writeJSON(w, http.StatusOK, map[string]any{"run": doc.Run, "made_at": planMade(plans, planID), "past_nights": doc.Past,
 		"targets": doc.Targets, "objective": doc.Objective})
 }
 

@@ -49,17 +49,8 @@ func newDemo(t *testing.T) *demo {
 	t.Cleanup(ts.Close)
 	jar, _ := cookiejar.New(nil)
 	c := &http.Client{Jar: jar}
-	post := func(path string) *http.Response {
-		req, _ := http.NewRequest(http.MethodPost, ts.URL+path, nil)
-		req.Header.Set("Sec-Fetch-Site", "same-origin")
-		resp, err := c.Do(req)
-		if err != nil {
-			t.Fatal(err)
-		}
-		resp.Body.Close()
-		return resp
-	}
-	if resp := post("/login/link/" + info.SignInToken); resp.StatusCode != http.StatusOK {
+	resp, _ := send(t, c, http.MethodPost, ts.URL+"/login/link/"+info.SignInToken, nil, http.Header{"Sec-Fetch-Site": {"same-origin"}})
+	if resp.StatusCode != http.StatusOK {
 		t.Fatalf("sign in with the demo link: %d", resp.StatusCode)
 	}
 	return &demo{ts: ts, c: c, info: info, st: st}
@@ -92,17 +83,22 @@ func TestDemoPagesRender(t *testing.T) {
 	}
 	for _, p := range pages {
 		t.Run(strings.TrimPrefix(p.path, "/"), func(t *testing.T) {
-			resp, err := c.Get(ts.URL + p.path)
-			if err != nil {
-				t.Fatal(err)
-			}
-			b, _ := io.ReadAll(resp.Body)
-			resp.Body.Close()
+			resp, b := send(t, c, http.MethodGet, ts.URL+p.path, nil, nil)
 			if resp.StatusCode != http.StatusOK || !hasTestID(string(b), p.testid) {
 				t.Errorf("GET %s = %d, %s present %v", p.path, resp.StatusCode, p.testid, hasTestID(string(b), p.testid))
 			}
 			if m := regexp.MustCompile(`NaN|Inf\b`).FindString(string(b)); m != "" {
 				t.Errorf("GET %s shows %q", p.path, m)
+			}
+			if p.testid == "upcoming" {
+				// Every predicted event time carries its ±.
+				body := string(b)
+				table := body[strings.Index(body, `data-testid="upcoming"`):]
+				table = table[:strings.Index(table, "</table>")]
+				times, sigmas := strings.Count(table, "(in "), strings.Count(table, " ± ")
+				if times == 0 || times != sigmas {
+					t.Errorf("GET %s: %d predicted event times, %d with their ±", p.path, times, sigmas)
+				}
 			}
 		})
 	}

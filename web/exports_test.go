@@ -9,8 +9,8 @@ import (
 	"strings"
 	"testing"
 
+	"phasecast/planner/export/exporttest"
 	"phasecast/store"
-	"phasecast/web/ical"
 )
 
 func TestNightExportsParseBack(t *testing.T) {
@@ -58,7 +58,7 @@ func TestNightExportsParseBack(t *testing.T) {
 		if ct := resp.Header.Get("Content-Type"); !strings.HasPrefix(ct, "text/calendar") {
 			t.Errorf("Content-Type = %q", ct)
 		}
-		cal, err := ical.Parse(strings.NewReader(first))
+		cal, err := exporttest.ParseICal(strings.NewReader(first))
 		if err != nil {
 			t.Fatalf("night.ics does not parse: %v", err)
 		}
@@ -109,7 +109,7 @@ func TestWindowsExportsParseBack(t *testing.T) {
 		t.Errorf("windows.csv: %v, %d rows for %d windows", err, len(rows), len(out.Windows))
 	}
 	_, ics := h.get(c, "/windows.ics"+q)
-	cal, err := ical.Parse(strings.NewReader(ics))
+	cal, err := exporttest.ParseICal(strings.NewReader(ics))
 	if err != nil || len(cal.Events) != len(out.Windows) {
 		t.Errorf("windows.ics: %v, %d events for %d windows", err, len(cal.Events), len(out.Windows))
 	}

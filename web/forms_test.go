@@ -152,17 +152,7 @@ func TestImportPreviewAndErrors(t *testing.T) {
 		fw.Write([]byte(content))
 		mw.WriteField("format", "")
 		mw.Close()
-		req, _ := http.NewRequest(http.MethodPost, h.ts.URL+path, &buf)
-		req.Header.Set("Content-Type", mw.FormDataContentType())
-		req.Header.Set("Sec-Fetch-Site", "same-origin")
-		resp, err := c.Do(req)
-		if err != nil {
-			t.Fatal(err)
-		}
-		defer resp.Body.Close()
-		var b bytes.Buffer
-		b.ReadFrom(resp.Body)
-		return resp, b.String()
+		return send(t, c, http.MethodPost, h.ts.URL+path, &buf, http.Header{"Content-Type": {mw.FormDataContentType()}, "Sec-Fetch-Site": {"same-origin"}})
 	}
 	preview := "/lists/" + i64s(f.listID) + "/import/preview"
 	good := "name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority\n" +

@@ -5,7 +5,7 @@ package web
 // night plan) are checked for formula-like cells with invented targets whose
 // names are formulas; uploads over the limit, deep JSON and oversize cells
 // are refused with a short answer and nothing written. The cell neutraliser
-// itself, planner.SafeCSVCell, is fuzzed in planner (FuzzSafeCSVCell).
+// itself, export.SafeCSVCell, is fuzzed in planner/export (FuzzSafeCSVCell).
 
 import (
 	"bytes"

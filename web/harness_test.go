@@ -124,16 +124,7 @@ func (h *harness) client(name string) *http.Client {
 // get fetches path and returns the response with its body read.
 func (h *harness) get(c *http.Client, path string) (*http.Response, string) {
 	h.t.Helper()
-	resp, err := c.Get(h.ts.URL + path)
-	if err != nil {
-		h.t.Fatal(err)
-	}
-	defer resp.Body.Close()
-	b, err := io.ReadAll(resp.Body)
-	if err != nil {
-		h.t.Fatal(err)
-	}
-	return resp, string(b)
+	return send(h.t, c, http.MethodGet, h.ts.URL+path, nil, nil)
 }
 
 // post submits a form as a same-origin browser would.
@@ -143,24 +134,40 @@ func (h *harness) post(c *http.Client, path string, form url.Values) *http.Respo
 	return resp
 }
 
+// postBody is post with the response body read.
 func (h *harness) postBody(c *http.Client, path string, form url.Values) (*http.Response, string) {
 	h.t.Helper()
-	req, err := http.NewRequest(http.MethodPost, h.ts.URL+path, strings.NewReader(form.Encode()))
+	return send(h.t, c, http.MethodPost, h.ts.URL+path, strings.NewReader(form.Encode()), formHeader())
+}
+
+// send is the one HTTP client of the web tests: it does method on target
+// (a full URL) with c, body and the header fields given, and returns the
+// response with its body read and closed.
+func send(tb testing.TB, c *http.Client, method, target string, body io.Reader, header http.Header) (*http.Response, string) {
+	tb.Helper()
+	req, err := http.NewRequest(method, target, body)
 	if err != nil {
-		h.t.Fatal(err)
+		tb.Fatal(err)
 	}
-	req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
-	req.Header.Set("Sec-Fetch-Site", "same-origin")
+	for k, vs := range header {
+		req.Header[k] = vs
+	}
 	resp, err := c.Do(req)
 	if err != nil {
-		h.t.Fatal(err)
+		tb.Fatal(err)
 	}
 	defer resp.Body.Close()
 	b, err := io.ReadAll(resp.Body)
 	if err != nil {
-		h.t.Fatal(err)
+		tb.Fatal(err)
 	}
 	return resp, string(b)
+}
+
+// formHeader is the header of a form a same-origin browser page submits
+// (the cross-origin protection lets it through).
+func formHeader() http.Header {
+	return http.Header{"Content-Type": {"application/x-www-form-urlencoded"}, "Sec-Fetch-Site": {"same-origin"}}
 }
 
 // hasTestID reports whether body has an element with data-testid=id.

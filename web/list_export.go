@@ -12,7 +12,7 @@ import (
 // listExport downloads a list as team CSV or JSON (GET
 // /lists/{id}/export.csv and .json). CSV cells that a spreadsheet would
 // run as formulas are neutralised by the store's export
-// (planner.SafeCSVCell), which its import undoes; they are not quoted again
+// (export.SafeCSVCell), which its import undoes; they are not quoted again
 // here, so that the file round-trips.
 func (s *Server) listExport(format store.FileFormat) func(http.ResponseWriter, *http.Request, *user) {
 	return func(w http.ResponseWriter, r *http.Request, u *user) {

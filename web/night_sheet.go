@@ -2,7 +2,9 @@ package web
 
 import (
 	"net/http"
+	"slices"
 
+	"phasecast/planner"
 	"phasecast/web/page"
 )
 
@@ -19,6 +21,12 @@ func (s *Server) nightSheet(w http.ResponseWriter, r *http.Request, u *user) {
 		return
 	}
 	v.Chart.Now = n.req.From.Add(-1) // a printed sheet has no "now"
+	// The sheet at the telescope leaves out the shortfall notes (how many
+	// exposures a goal misses and why): they are for planning, on the
+	// Night page.
+	sp := *n.plan
+	sp.Warnings = slices.DeleteFunc(slices.Clone(sp.Warnings), func(w planner.Warning) bool { return w.Code == planner.WarnShortfall })
+	v.Warnings = warningGroups(&sp, n.loc)
 	switch rows := len(v.Blocks) + len(v.Unscheduled)/2; {
 	case rows > 34:
 		v.Density = "denser"

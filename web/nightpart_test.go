@@ -10,6 +10,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
 )
 
@@ -39,7 +40,7 @@ func halfWindowOn(tb testing.TB, part planner.NightPart, y int, m time.Month, d 
 }
 
 // nightJSON fetches a night's JSON export and checks its file name.
-func nightJSON(tb testing.TB, h *harness, c *http.Client, query, wantName string) planner.PlanDoc {
+func nightJSON(tb testing.TB, h *harness, c *http.Client, query, wantName string) export.PlanDoc {
 	tb.Helper()
 	resp, body := h.get(c, "/night.json?"+query)
 	if resp.StatusCode != http.StatusOK {
@@ -48,7 +49,7 @@ func nightJSON(tb testing.TB, h *harness, c *http.Client, query, wantName string
 	if cd := resp.Header.Get("Content-Disposition"); !strings.Contains(cd, `filename="`+wantName+`"`) {
 		tb.Errorf("Content-Disposition %q, want file name %q", cd, wantName)
 	}
-	var doc planner.PlanDoc
+	var doc export.PlanDoc
 	if err := json.Unmarshal([]byte(body), &doc); err != nil {
 		tb.Fatal(err)
 	}
@@ -106,7 +107,7 @@ func TestNightPageOfRunHalf(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	rv := runView(in, &runDoc{Nights: []runNightDoc{{Date: "2026-03-14", Part: "second"}, {Date: "2026-03-15", Part: "full"}}}, nil, 0, testNow)
+	rv := runView(in, &export.Run{Nights: []export.RunNight{{Date: "2026-03-14", Part: "second"}, {Date: "2026-03-15", Part: "full"}}}, nil, 0, testNow)
 	link := "/night?date=2026-03-14&run=" + i64s(run.ID)
 	if len(rv.Schedules) != 2 || rv.Schedules[0].Href != link {
 		t.Fatalf("run page night links %+v, want the first %q", rv.Schedules, link)

@@ -2,11 +2,11 @@ package web
 
 import (
 	"fmt"
-	"math"
 	"strconv"
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/web/chart"
 	"phasecast/web/page"
 )
@@ -137,7 +137,7 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 	if !b.MoonUp {
 		r.MoonSep += " (down)"
 	}
-	r.GoalShort = fmt.Sprintf("φ %s ± %s", phaseNum(b.Goal.Center), phaseNum(b.Goal.HalfWidth))
+	r.GoalShort = fmt.Sprintf("φ %s ± %s", export.PhaseText(b.Goal.Center), export.PhaseText(b.Goal.HalfWidth))
 	r.ExpShort = fmt.Sprintf("%d×%s s", b.N, num(b.ExposureS))
 	if b.Filler {
 		r.Goal, r.GoalShort = "filler", "filler"
@@ -152,11 +152,7 @@ func goalLabel(g planner.Goal) string { return goalLabelConv(g, "") }
 // convention: an ascending-node (pulsar-timing) ephemeris says whose
 // conjunction or quadrature it is (eventName).
 func goalLabelConv(g planner.Goal, conv planner.Convention) string {
-	s := fmt.Sprintf("φ %s ± %s", phaseNum(g.Center), phaseNum(g.HalfWidth))
-	if g.Event != "" {
-		s = eventName(g.Event, conv) + ", " + s
-	}
-	return s
+	return export.GoalLabelNamed(g, eventName(g.Event, conv))
 }
 
 // convOf is the T0 convention of the night's target i ("" if unknown).
@@ -165,15 +161,6 @@ func (n *night) convOf(i int) planner.Convention {
 		return ""
 	}
 	return n.req.Targets[i].Ephem.Convention
-}
-
-// phaseNum formats a phase: as typed when short ("0.25"), else to four
-// decimals (an event's derived phase such as 0.9773).
-func phaseNum(x float64) string {
-	if r := math.Round(x*1e4) / 1e4; math.Abs(r-x) < 1e-12 {
-		return num(r)
-	}
-	return strconv.FormatFloat(x, 'f', 4, 64)
 }
 
 // num formats a number compactly.

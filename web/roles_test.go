@@ -120,14 +120,8 @@ func TestWritesByRole(t *testing.T) {
 	})
 	t.Run("CrossSite", func(t *testing.T) {
 		c := h.client("owner")
-		req, _ := http.NewRequest(http.MethodPost, h.ts.URL+"/lists", strings.NewReader("name=Evil"))
-		req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
-		req.Header.Set("Sec-Fetch-Site", "cross-site")
-		resp, err := c.Do(req)
-		if err != nil {
-			t.Fatal(err)
-		}
-		resp.Body.Close()
+		resp, _ := send(t, c, http.MethodPost, h.ts.URL+"/lists", strings.NewReader("name=Evil"),
+			http.Header{"Content-Type": {"application/x-www-form-urlencoded"}, "Sec-Fetch-Site": {"cross-site"}})
 		if resp.StatusCode != http.StatusForbidden {
 			t.Errorf("cross-site POST = %d, want 403", resp.StatusCode)
 		}

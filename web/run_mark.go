@@ -5,6 +5,7 @@ import (
 	"strconv"
 	"time"
 
+	"phasecast/planner/export"
 	"phasecast/store"
 )
 
@@ -71,7 +72,7 @@ func (s *Server) runMark(w http.ResponseWriter, r *http.Request, u *user) {
 // blockObservations are the exposures of a block marked done, back to back
 // from its start, or one failed record spanning a lost block's first
 // exposure.
-func blockObservations(runID int64, b runBlockDoc, status string) []store.ObservationInput {
+func blockObservations(runID int64, b export.RunBlock, status string) []store.ObservationInput {
 	start := time.Time(b.Start)
 	step := time.Duration((b.ExposureS + b.OverheadS) * float64(time.Second))
 	var goal *float64
@@ -95,7 +96,7 @@ func blockObservations(runID int64, b runBlockDoc, status string) []store.Observ
 
 // unmarkedLost is one failed record for each block of a night that has no
 // mark yet, for the "whole night lost" action.
-func (s *Server) unmarkedLost(r *http.Request, u *user, runID int64, blocks []runBlockDoc) ([]store.ObservationInput, error) {
+func (s *Server) unmarkedLost(r *http.Request, u *user, runID int64, blocks []export.RunBlock) ([]store.ObservationInput, error) {
 	in, err := s.loadRun(r.Context(), u.actor, runID)
 	if err != nil {
 		return nil, err

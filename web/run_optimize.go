@@ -8,6 +8,7 @@ import (
 	"strconv"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
 )
 
@@ -60,14 +61,17 @@ func (s *Server) planRunJob(ctx context.Context, a store.Actor, in *runInputs, p
 	if err != nil {
 		return "", err
 	}
-	doc := newRunDoc(in, rp, s.now())
+	doc, err := newRunDoc(in, rp)
+	if err != nil {
+		return "", err
+	}
 	out, err := json.Marshal(doc)
 	if err != nil {
 		return "", err
 	}
 	inputs, err := json.Marshal(map[string]any{"run_id": in.run.ID, "site_id": in.site.ID, "site_version": in.site.Version,
 		"list_id": in.run.ListID, "targets": len(in.targets), "observed": len(req.Observed), "past_nights": past,
-		"constraints": planner.NewConstraintsDoc(req.Constraints, largestAcquire(req.Targets))})
+		"constraints": export.NewConstraintsDoc(req.Constraints, largestAcquire(req.Targets))})
 	if err != nil {
 		return "", err
 	}

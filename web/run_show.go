@@ -6,6 +6,7 @@ import (
 	"net/http"
 	"slices"
 
+	"phasecast/planner/export"
 	"phasecast/store"
 	"phasecast/web/page"
 )
@@ -55,7 +56,7 @@ func (s *Server) memberRunView(r *http.Request, u *user, in *runInputs) (page.Ru
 
 // runPlanDoc returns the run's saved plans and the document of the one
 // want names (the newest when want is 0 or unknown; nil when there is none).
-func (s *Server) runPlanDoc(ctx context.Context, a store.Actor, runID, want int64) ([]store.SavedPlan, *runDoc, int64, error) {
+func (s *Server) runPlanDoc(ctx context.Context, a store.Actor, runID, want int64) ([]store.SavedPlan, *export.Run, int64, error) {
 	plans, err := s.store.ListPlans(ctx, a, runID)
 	if err != nil || len(plans) == 0 {
 		return plans, nil, 0, err

@@ -3,7 +3,6 @@ package web
 import (
 	"encoding/csv"
 	"encoding/json"
-	"io"
 	"net/http"
 	"net/http/cookiejar"
 	"net/url"
@@ -12,33 +11,30 @@ import (
 	"testing"
 	"time"
 
-	"phasecast/web/ical"
+	"phasecast/planner/export"
+	"phasecast/planner/export/exporttest"
 )
 
+// get fetches path with the demo's client (following redirects).
 func (d *demo) get(t *testing.T, path string) (*http.Response, string) {
 	t.Helper()
-	resp, err := d.c.Get(d.ts.URL + path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer resp.Body.Close()
-	b, _ := io.ReadAll(resp.Body)
-	return resp, string(b)
+	return send(t, d.c, http.MethodGet, d.ts.URL+path, nil, nil)
 }
 
+// post submits a form as a same-origin browser would, without following
+// a redirect.
 func (d *demo) post(t *testing.T, path string, form url.Values) *http.Response {
 	t.Helper()
-	req, _ := http.NewRequest(http.MethodPost, d.ts.URL+path, strings.NewReader(form.Encode()))
-	req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
-	req.Header.Set("Sec-Fetch-Site", "same-origin")
+	resp, _ := d.postBody(t, path, form)
+	return resp
+}
+
+// postBody is post with the response body read.
+func (d *demo) postBody(t *testing.T, path string, form url.Values) (*http.Response, string) {
+	t.Helper()
 	c := *d.c
 	c.CheckRedirect = func(*http.Request, []*http.Request) error { return http.ErrUseLastResponse }
-	resp, err := c.Do(req)
-	if err != nil {
-		t.Fatal(err)
-	}
-	resp.Body.Close()
-	return resp
+	return send(t, &c, http.MethodPost, d.ts.URL+path, strings.NewReader(form.Encode()), formHeader())
 }
 
 // TestRunPlanMarkReplan plans the demo run in the background, follows the
@@ -117,7 +113,7 @@ func TestRunPlanMarkReplan(t *testing.T) {
 	}
 	t.Run("Exports", func(t *testing.T) {
 		_, js := d.get(t, run+"/plan.json")
-		var doc runDoc
+		var doc export.Run
 		if err := json.Unmarshal([]byte(js), &doc); err != nil || len(doc.Nights) != len(d.info.Run.Nights) {
 			t.Fatalf("plan.json: %v, %d nights", err, len(doc.Nights))
 		}
@@ -131,7 +127,7 @@ func TestRunPlanMarkReplan(t *testing.T) {
 			t.Errorf("plan.csv: %v, %d rows for %d blocks", err, len(rows), blocks)
 		}
 		_, ics := d.get(t, run+"/plan.ics")
-		cal, err := ical.Parse(strings.NewReader(ics))
+		cal, err := exporttest.ParseICal(strings.NewReader(ics))
 		if err != nil || len(cal.Events) != blocks {
 			t.Errorf("plan.ics: %v, %d events for %d blocks", err, len(cal.Events), blocks)
 		}
@@ -203,15 +199,7 @@ func TestRunOptimizeCancel(t *testing.T) {
 func TestRunShare(t *testing.T) {
 	d := newDemo(t)
 	run := "/runs/" + i64s(d.info.Run.ID)
-	req, _ := http.NewRequest(http.MethodPost, d.ts.URL+run+"/share", strings.NewReader("label=collaborator&ttl_days=7"))
-	req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
-	req.Header.Set("Sec-Fetch-Site", "same-origin")
-	resp, err := d.c.Do(req)
-	if err != nil {
-		t.Fatal(err)
-	}
-	b, _ := io.ReadAll(resp.Body)
-	resp.Body.Close()
+	resp, b := send(t, d.c, http.MethodPost, d.ts.URL+run+"/share", strings.NewReader("label=collaborator&ttl_days=7"), formHeader())
 	m := regexp.MustCompile(`data-testid="new-share">[^<]*(/share/[^<]+)<`).FindStringSubmatch(string(b))
 	if m == nil {
 		t.Fatalf("share = %d, no link shown", resp.StatusCode)
@@ -257,15 +245,11 @@ func TestAPIRuns(t *testing.T) {
 	owner, viewer := tok(d.info.Owner.Email), tok(d.info.Viewer.Email)
 	call := func(token, method, path string) (int, map[string]any) {
 		t.Helper()
-		req, _ := http.NewRequest(method, d.ts.URL+path, nil)
-		req.Header.Set("Authorization", "Bearer "+token)
-		resp, err := http.DefaultClient.Do(req)
-		if err != nil {
-			t.Fatal(err)
-		}
-		defer resp.Body.Close()
+		resp, b := send(t, http.DefaultClient, method, d.ts.URL+path, nil, http.Header{"Authorization": {"Bearer " + token}})
 		var out map[string]any
-		json.NewDecoder(resp.Body).Decode(&out)
+		if err := json.Unmarshal([]byte(b), &out); b != "" && err != nil {
+			t.Fatalf("%s %s: %v: %s", method, path, err, b)
+		}
 		return resp.StatusCode, out
 	}
 	run := "/api/v1/runs/" + i64s(d.info.Run.ID)
@@ -301,16 +285,8 @@ func TestRunObservedLog(t *testing.T) {
 	bad := "target,start_utc,exposure_s,n_exposures\n" + name + "," + night + "T05:00:00Z,60,3\nNo such star," + night + "T05:10:00Z,60,1\n" +
 		name + ",yesterday,60,1\n"
 	post := func(content string) (int, string) {
-		req, _ := http.NewRequest(http.MethodPost, d.ts.URL+run+"/observed", strings.NewReader(url.Values{"content": {content}}.Encode()))
-		req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
-		req.Header.Set("Sec-Fetch-Site", "same-origin")
-		resp, err := d.c.Do(req)
-		if err != nil {
-			t.Fatal(err)
-		}
-		defer resp.Body.Close()
-		b, _ := io.ReadAll(resp.Body)
-		return resp.StatusCode, string(b)
+		resp, b := send(t, d.c, http.MethodPost, d.ts.URL+run+"/observed", strings.NewReader(url.Values{"content": {content}}.Encode()), formHeader())
+		return resp.StatusCode, b
 	}
 	code, body := post(bad)
 	if code != http.StatusUnprocessableEntity || !hasTestID(body, "log-errors") || !strings.Contains(body, "line 4") {

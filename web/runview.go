@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
 	"phasecast/web/chart"
 	"phasecast/web/page"
@@ -16,7 +17,7 @@ import (
 
 // runView builds a run's page from its inputs and a saved plan document
 // (nil: not planned yet).
-func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, now time.Time) page.RunView {
+func runView(in *runInputs, doc *export.Run, plans []store.SavedPlan, planID int64, now time.Time) page.RunView {
 	run := in.run
 	v := page.RunView{ID: run.ID, Name: run.Name, NightsN: len(in.nights), Past: in.nightsOver(now), PlanID: planID}
 	v.Zone = zoneLabel(in.loc, now)
@@ -30,7 +31,7 @@ func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, 
 		return v
 	}
 	v.HasPlan = true
-	v.PlanNote = fmt.Sprintf("Plan made %s with the first %d nights over.", doc.MadeAt, doc.Past)
+	v.PlanNote = fmt.Sprintf("Plan made %s with the first %d nights over.", planMade(plans, planID), doc.Past)
 	for _, n := range doc.Nights {
 		v.Nights = append(v.Nights, nightHeading(n))
 	}
@@ -38,7 +39,7 @@ func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, 
 		v.Overview = append(v.Overview, reachRow(t, doc))
 		v.Rings = append(v.Rings, page.RingView{Target: t.Target, Ring: ringOf(t)})
 		for _, g := range t.Goals {
-			v.Coverage = append(v.Coverage, page.CoverageRow{Target: t.Target, Goal: goalLabel(planner.Goal{Center: g.PhaseGoal, HalfWidth: g.PhaseHalfWidth, Event: g.Event}),
+			v.Coverage = append(v.Coverage, page.CoverageRow{Target: t.Target, Goal: export.GoalLabel(planner.Goal{Center: g.PhaseGoal, HalfWidth: g.PhaseHalfWidth, Event: g.Event}),
 				Need: fmt.Sprintf("%s on %d night(s)", needText(g.NeedExposures), g.NeedNights), Observed: g.Observed, Planned: g.Planned,
 				Nights: fmt.Sprintf("%d (%d wanted)", g.NightsMet, g.NeedNights), Status: statusText(g)})
 		}
@@ -62,9 +63,24 @@ func runView(in *runInputs, doc *runDoc, plans []store.SavedPlan, planID int64, 
 	if o.MaxValue > 0 {
 		most = fmt.Sprintf(", at most %.3f in all", float64(o.MaxValue)/1e6)
 	}
-	v.Objective = fmt.Sprintf("Run objective %.3f; meeting every requirement exactly is worth %.3f, coverage beyond the requirements adds to it%s (greedy pass %.3f; nights planned on their own %.3f).",
-		float64(o.Value)/1e6, float64(o.RequiredValue)/1e6, most, float64(o.GreedyValue)/1e6, float64(o.IndependentValue)/1e6)
+	alone := ""
+	if o.IndependentValue != nil {
+		alone = fmt.Sprintf("; nights planned on their own %.3f", float64(*o.IndependentValue)/1e6)
+	}
+	v.Objective = fmt.Sprintf("Run objective %.3f; meeting every requirement exactly is worth %.3f, coverage beyond the requirements adds to it%s (greedy pass %.3f%s).",
+		float64(o.Value)/1e6, float64(o.RequiredValue)/1e6, most, float64(o.GreedyValue)/1e6, alone)
 	return v
+}
+
+// planMade is when the saved plan planID was made (RFC 3339 UTC), "" when
+// plans do not hold it.
+func planMade(plans []store.SavedPlan, planID int64) string {
+	for _, p := range plans {
+		if p.ID == planID {
+			return utcString(p.CreatedAt)
+		}
+	}
+	return ""
 }
 
 func needText(n int) string {
@@ -74,15 +90,18 @@ func needText(n int) string {
 	return strconv.Itoa(n) + " exposures"
 }
 
-func statusText(g runGoalDoc) string {
-	if g.Unreachable != "" {
+func statusText(g export.RunGoal) string {
+	switch {
+	case g.Unreachable != "":
 		return g.Status + ": " + g.Unreachable
+	case g.Shortfall != "":
+		return g.Status + ": " + g.Shortfall
 	}
 	return g.Status
 }
 
 // nightHeading labels a night: "2026-03-14" or "2026-03-14 (first half)".
-func nightHeading(n runNightDoc) string {
+func nightHeading(n export.RunNight) string {
 	if n.Part == "" || n.Part == string(planner.PartFull) {
 		return n.Date
 	}
@@ -90,7 +109,7 @@ func nightHeading(n runNightDoc) string {
 }
 
 // reachRow is a target's row of the nights × targets overview.
-func reachRow(t runTargetDoc, doc *runDoc) page.ReachRow {
+func reachRow(t export.RunTarget, doc *export.Run) page.ReachRow {
 	row := page.ReachRow{Target: t.Target}
 	for k := range doc.Nights {
 		n := 0
@@ -110,10 +129,10 @@ func reachRow(t runTargetDoc, doc *runDoc) page.ReachRow {
 }
 
 // ringOf is a target's phase ring.
-func ringOf(t runTargetDoc) chart.Ring {
+func ringOf(t export.RunTarget) chart.Ring {
 	r := chart.Ring{Title: "Phase coverage of " + t.Target, Planned: t.Planned, Observed: t.Observed}
 	for _, g := range t.Goals {
-		label := phaseNum(g.PhaseGoal)
+		label := export.PhaseText(g.PhaseGoal)
 		if g.Event != "" {
 			label = strings.ReplaceAll(g.Event, "_", " ")
 		}
@@ -126,11 +145,11 @@ func ringOf(t runTargetDoc) chart.Ring {
 }
 
 // runBlockRow formats a block of a run night with its outcome.
-func runBlockRow(in *runInputs, i int, b runBlockDoc) page.RunBlockRow {
+func runBlockRow(in *runInputs, i int, b export.RunBlock) page.RunBlockRow {
 	start, end := time.Time(b.Start), time.Time(b.End)
 	goal := "filler"
 	if b.PhaseGoal != nil {
-		goal = goalLabel(planner.Goal{Center: *b.PhaseGoal, HalfWidth: *b.PhaseHalfWidth, Event: b.Event})
+		goal = export.GoalLabel(planner.Goal{Center: *b.PhaseGoal, HalfWidth: *b.PhaseHalfWidth, Event: b.Event})
 	}
 	row := page.RunBlockRow{Index: i, Target: b.Target, Goal: goal,
 		Local: start.In(in.loc).Format("15:04") + "–" + end.In(in.loc).Format("15:04"), UTC: start.UTC().Format("15:04") + "–" + end.UTC().Format("15:04"),
@@ -149,8 +168,8 @@ func runBlockRow(in *runInputs, i int, b runBlockDoc) page.RunBlockRow {
 }
 
 // loadDoc reads a saved plan's document.
-func loadDoc(p store.SavedPlan) (*runDoc, error) {
-	var d runDoc
+func loadDoc(p store.SavedPlan) (*export.Run, error) {
+	var d export.Run
 	if err := json.Unmarshal(p.Output, &d); err != nil {
 		return nil, fmt.Errorf("saved plan %d: %w", p.ID, err)
 	}

@@ -68,12 +68,7 @@ func (s *Server) targetDetail(ctx context.Context, u *user, id int64) (page.Targ
 	return v, nil
 }
 
-func wantLabel(n int) string {
-	if n == 0 {
-		return "as many as fit"
-	}
-	return strconv.Itoa(n) + " wanted"
-}
+func wantLabel(n int) string { return planner.Goal{NExposures: n}.WantedLabel() }
 
 // targetFacts lists a target's position and settings.
 func targetFacts(t store.StoredTarget) []page.KV {
@@ -163,11 +158,24 @@ func upcomingEvents(site planner.Site, t store.StoredTarget, now time.Time) []pa
 			if i == 3 {
 				break
 			}
-			row.Next = append(row.Next, at.UTC().Format("2006-01-02 15:04:05")+" (in "+fmtDuration(at.Sub(now))+")")
+			sigma := planner.PhaseSigmaAt(site, t.Target.Star(), e, at)
+			next := at.UTC().Format("2006-01-02 15:04:05") + " ± " + fmtSigmaS(sigma*e.PeriodDays*86400) + " (in " + fmtDuration(at.Sub(now)) + ")"
+			if planner.UncertaintyRule(sigma, 0, planner.DefaultMaxPhaseErr) >= planner.PhaseRefused {
+				next += ": " + planner.UncertaintyNote(sigma, 0, planner.DefaultMaxPhaseErr)
+			}
+			row.Next = append(row.Next, next)
 		}
 		out = append(out, row)
 	}
 	return out
+}
+
+// fmtSigmaS writes a predicted time's 1σ, seconds: "0.8 s (1σ)", "42 s (1σ)".
+func fmtSigmaS(x float64) string {
+	if x < 10 {
+		return strconv.FormatFloat(x, 'f', 1, 64) + " s (1σ)"
+	}
+	return strconv.FormatFloat(x, 'f', 0, 64) + " s (1σ)"
 }
 
 // sigmaChart is the phase uncertainty from a year before now to three

@@ -6,6 +6,7 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
 )
 
@@ -29,7 +30,7 @@ func (s *Server) followSavedPlan(ctx context.Context, a store.Actor, n *night, r
 	if doc == nil {
 		return "Run " + run.Name + " has no saved plan yet: planned now with the run's constraints.", nil
 	}
-	var nd *runNightDoc
+	var nd *export.RunNight
 	for k := range doc.Nights {
 		d := &doc.Nights[k]
 		if d.Date == n.q.date && (planner.NightPart(d.Part) == n.part || (d.Part == "" && n.part == planner.PartFull)) {
@@ -62,7 +63,7 @@ func (s *Server) followSavedPlan(ctx context.Context, a store.Actor, n *night, r
 	}
 	p.Blocks = blocks
 	n.plan = &p
-	note := fmt.Sprintf("Following the saved plan “%s” of run %s (made %s)", plans[0].Name, run.Name, doc.MadeAt)
+	note := fmt.Sprintf("Following the saved plan “%s” of run %s (made %s)", plans[0].Name, run.Name, planMade(plans, plans[0].ID))
 	switch marked {
 	case 0:
 		return note + "; blocks marked done or lost there drop out of this page.", nil
@@ -74,7 +75,7 @@ func (s *Server) followSavedPlan(ctx context.Context, a store.Actor, n *night, r
 
 // savedBlock is a saved plan's block as the planner's, for the Tonight
 // page; ti is the target's index in the night's targets.
-func savedBlock(b runBlockDoc, ti int) planner.Block {
+func savedBlock(b export.RunBlock, ti int) planner.Block {
 	out := planner.Block{Target: b.Target, TargetIndex: ti, GoalIndex: -1, Filler: b.Filler || b.PhaseGoal == nil, Priority: b.Priority,
 		Cycle: b.Cycle, Start: time.Time(b.Start), End: time.Time(b.End), AcquireS: b.AcquireS, N: b.NExposures,
 		ExposureS: b.ExposureS, OverheadS: b.OverheadS, PhaseStart: b.PhaseStart, PhaseMid: b.PhaseMid, PhaseEnd: b.PhaseEnd,

@@ -12,12 +12,13 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
 )
 
 // planRunNow plans a run through its optimize form as c, waits for the
 // background job and returns the saved plan's document and id.
-func (h *harness) planRunNow(t *testing.T, c *http.Client, runID int64, past int) (*runDoc, string) {
+func (h *harness) planRunNow(t *testing.T, c *http.Client, runID int64, past int) (*export.Run, string) {
 	t.Helper()
 	resp := h.post(c, "/runs/"+i64s(runID)+"/optimize", url.Values{"past": {i64s(int64(past))}})
 	job := resp.Header.Get("Location")
@@ -41,7 +42,7 @@ func (h *harness) planRunNow(t *testing.T, c *http.Client, runID int64, past int
 				t.Fatalf("finished with %q: %s", p.Next, p.Message)
 			}
 			_, doc := h.get(c, "/runs/"+i64s(runID)+"/plan.json?plan="+m[1])
-			var d runDoc
+			var d export.Run
 			if err := json.Unmarshal([]byte(doc), &d); err != nil {
 				t.Fatal(err)
 			}
@@ -114,7 +115,7 @@ func TestTonightFollowsRunPlan(t *testing.T) {
 	if len(ahead) < 2 {
 		t.Fatalf("tonight's saved plan has %d blocks after %s, want 2 or more", len(ahead), testNow)
 	}
-	span := func(b runBlockDoc) string {
+	span := func(b export.RunBlock) string {
 		loc, _ := time.LoadLocation("America/Phoenix")
 		return time.Time(b.Start).In(loc).Format("15:04") + "–" + time.Time(b.End).In(loc).Format("15:04")
 	}

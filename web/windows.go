@@ -1,12 +1,7 @@
 package web
 
 import (
-	"bytes"
 	"context"
-	"crypto/sha256"
-	"encoding/csv"
-	"encoding/hex"
-	"encoding/json"
 	"fmt"
 	"net/url"
 	"strconv"
@@ -14,8 +9,8 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 	"phasecast/store"
-	"phasecast/web/ical"
 	"phasecast/web/page"
 )
 
@@ -147,9 +142,9 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 		v.Goals = []page.Option{{Value: "", Label: "every goal", Selected: w.req.goal == ""}}
 		for i, g := range n.targets[0].Target.Goals {
 			k := strconv.Itoa(i + 1)
-			label := goalLabel(g)
+			label := export.GoalLabel(g)
 			if g.Event != "" { // an event goal's phase is found per window, not stored
-				label = fmt.Sprintf("%s ± %s", strings.ReplaceAll(g.Event, "_", " "), phaseNum(g.HalfWidth))
+				label = fmt.Sprintf("%s ± %s", strings.ReplaceAll(g.Event, "_", " "), export.PhaseText(g.HalfWidth))
 			}
 			v.Goals = append(v.Goals, page.Option{Value: k, Label: k + ": " + label, Selected: w.req.goal == k})
 		}
@@ -164,7 +159,10 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 	}
 	v.Zone = zoneLabel(n.loc, w.from)
 	for _, g := range w.groups {
-		grp := page.WindowGroup{Target: g.Target, Goal: goalLabel(g.Goal)}
+		grp := page.WindowGroup{Target: g.Target, Goal: export.GoalLabel(g.Goal)}
+		if g.Refused > 0 {
+			grp.Refused = fmt.Sprintf("%d window(s) left out: %s", g.Refused, g.RefusedNote)
+		}
 		for _, qw := range g.Windows {
 			grp.Rows = append(grp.Rows, page.WindowRow{StartUTC: qw.Start.UTC().Format("2006-01-02 15:04:05"), EndUTC: qw.End.UTC().Format("15:04:05"),
 				Local:  qw.Start.In(n.loc).Format("Jan 02 15:04") + "–" + qw.End.In(n.loc).Format("15:04"),
@@ -178,91 +176,18 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 	return v
 }
 
-// windowJSON is one window in the JSON export.
-type windowJSON struct {
-	Target     string  `json:"target"`
-	PhaseGoal  float64 `json:"phase_goal"`
-	Event      string  `json:"event,omitempty"`
-	Start      string  `json:"start"`
-	End        string  `json:"end"`
-	Cycle      int64   `json:"cycle"`
-	AirmassMin float64 `json:"airmass_min"`
-	AirmassMax float64 `json:"airmass_max"`
-	PhaseErr   float64 `json:"phase_err"`
-	Uncertain  bool    `json:"uncertain"`
-	Exposures  int     `json:"whole_exposures"`
+// doc is the windows' document (export.Windows).
+func (w *windows) doc() export.Windows {
+	return export.NewWindows(w.site.Name, w.site.Zone, w.from, w.to, w.req.goalN, w.groups)
 }
 
-// flat lists every window in target, goal, time order.
-func (w *windows) flat() []windowJSON {
-	out := []windowJSON{}
-	for _, g := range w.groups {
-		for _, qw := range g.Windows {
-			out = append(out, windowJSON{Target: g.Target, PhaseGoal: g.Goal.Center, Event: g.Goal.Event, Start: utcString(qw.Start),
-				End: utcString(qw.End), Cycle: qw.Cycle, AirmassMin: qw.AirmassMin, AirmassMax: qw.AirmassMax, PhaseErr: qw.PhaseErr,
-				Uncertain: qw.Uncertain, Exposures: qw.Exposures})
-		}
-	}
-	return out
-}
+func (w *windows) exportJSON() ([]byte, error) { return export.JSON(w.doc()) }
 
-// windowsDoc is the JSON export; Goal is the chosen goal's number, absent
-// when every goal is listed.
-type windowsDoc struct {
-	Site    string       `json:"site"`
-	From    string       `json:"from"`
-	To      string       `json:"to"`
-	Goal    int          `json:"goal,omitempty"`
-	Windows []windowJSON `json:"windows"`
-	Caution string       `json:"caution"`
-}
+func (w *windows) exportCSV() ([]byte, error) { return export.WindowsCSV(w.doc(), false) }
 
-func (w *windows) exportJSON() ([]byte, error) {
-	return json.MarshalIndent(windowsDoc{Site: w.site.Name, From: utcString(w.from), To: utcString(w.to), Goal: w.req.goalN,
-		Windows: w.flat(), Caution: cautionText}, "", "  ")
-}
-
-func (w *windows) exportCSV() ([]byte, error) {
-	var buf bytes.Buffer
-	cw := csv.NewWriter(&buf)
-	if err := cw.Write([]string{"target", "phase_goal", "event", "start_utc", "end_utc", "cycle", "airmass_min", "airmass_max", "phase_err", "uncertain", "whole_exposures"}); err != nil {
-		return nil, err
-	}
-	for _, r := range w.flat() {
-		if err := cw.Write([]string{planner.SafeCSVCell(r.Target), num(r.PhaseGoal), planner.SafeCSVCell(r.Event), r.Start, r.End, strconv.FormatInt(r.Cycle, 10),
-			strconv.FormatFloat(r.AirmassMin, 'f', 3, 64), strconv.FormatFloat(r.AirmassMax, 'f', 3, 64),
-			strconv.FormatFloat(r.PhaseErr, 'g', 3, 64), strconv.FormatBool(r.Uncertain), strconv.Itoa(r.Exposures)}); err != nil {
-			return nil, err
-		}
-	}
-	cw.Flush()
-	return buf.Bytes(), cw.Error()
-}
-
-// exportICS writes the windows as events; UIDs come from the site, target,
-// goal and cycle, DTSTAMP from the inputs' last change.
-func (w *windows) exportICS() ([]byte, error) {
-	stamp := w.site.UpdatedAt
-	for _, t := range w.targets {
-		if t.UpdatedAt.After(stamp) {
-			stamp = t.UpdatedAt
-		}
-	}
-	cal := ical.Calendar{ProdID: "-//phasecast//queue windows//EN", Name: "Queue windows at " + w.site.Name}
-	for _, g := range w.groups {
-		for _, qw := range g.Windows {
-			sum := sha256.Sum256([]byte(fmt.Sprintf("%d|%s|%s|%s|%d", w.site.ID, g.Target, num(g.Goal.Center), g.Goal.Event, qw.Cycle)))
-			desc := fmt.Sprintf("%s; cycle %d; airmass %.2f–%.2f; phase 1σ %s; %d whole exposures fit\n%s", goalLabel(g.Goal), qw.Cycle,
-				qw.AirmassMin, qw.AirmassMax, fmtPhaseErr(qw.PhaseErr), qw.Exposures, cautionText)
-			cal.Events = append(cal.Events, ical.Event{UID: "window-" + hex.EncodeToString(sum[:12]) + "@phasecast", Stamp: stamp,
-				Start: qw.Start, End: qw.End, Summary: g.Target + " — " + goalLabel(g.Goal), Description: desc, Location: w.site.Name,
-				Categories: []string{"phasecast", "queue window"}})
-		}
-	}
-	var buf bytes.Buffer
-	err := ical.Encode(&buf, cal)
-	return buf.Bytes(), err
-}
+// exportICS writes the windows as events; DTSTAMP is the inputs' last
+// change.
+func (w *windows) exportICS() ([]byte, error) { return export.WindowsICS(w.doc(), w.lastChange()) }
 
 func (w *windows) exportName(ext string) string {
 	name := w.site.Name + "-" + w.req.from + "-" + w.req.to

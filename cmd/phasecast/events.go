@@ -64,6 +64,10 @@ type eventsJSON struct {
 	Truncated    bool          `json:"truncated"`
 	WindowCenter *float64      `json:"window_center,omitempty"`
 	WindowHalf   *float64      `json:"window_halfwidth,omitempty"`
+	// Warning says in words when the ephemeris' phase uncertainty over
+	// the range makes the predictions meaningless or the planner would
+	// refuse them (planner.UncertaintyRule).
+	Warning string `json:"warning,omitempty"`
 }
 
 // eventPhase is where a named event falls in the ephemeris' convention.
@@ -123,6 +127,8 @@ func runEvents(ctx context.Context, now func() time.Time, args []string, stdout,
 
 	out := eventsJSON{FromUTC: utcMillis(start), ToUTC: utcMillis(end), Convention: string(e.Convention),
 		T0BJDTDB: jdValue(e.T0), PeriodDays: e.PeriodDays}
+	sigma := max(e.PhaseErr(ephem.BJDTDB(site, star, start)), e.PhaseErr(ephem.BJDTDB(site, star, end)))
+	out.Warning = uncertaintyWarning(sigma, e.PeriodDays)
 	if phaseC.set && event.set {
 		return usageErrorf("--event and --phase exclude each other: give named events or a phase, not both")
 	}
@@ -351,6 +357,9 @@ func printEvents(w io.Writer, site ephem.Site, star ephem.Star, e ephem.Ephemeri
 	}
 	if o.Truncated {
 		fmt.Fprintln(w, "(list cut at --max rows)")
+	}
+	if o.Warning != "" {
+		fmt.Fprintln(w, "Warning: "+o.Warning)
 	}
 	_, err := fmt.Fprintln(w, safetyNote)
 	return err

@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"phasecast/ephem"
+	"phasecast/planner/export"
 )
 
 // exposureArgs is an invented site, target and instrument at an instant with
@@ -227,35 +228,31 @@ func TestWindowsSizeBySNR(t *testing.T) {
 	base := args([]string{"windows"}, siteArgs, []string{"--tz", "America/Santiago", "--targets", csvPath,
 		"--from", "2026-12-01", "--to", "2026-12-03"}, planInstrumentArgs)
 	m := runJSON(t, base...)
-	goals := m["goals"].([]any)
 	sized, short := 0, 0
-	for _, gv := range goals {
-		g := gv.(map[string]any)
-		for _, wv := range g["windows"].([]any) {
-			w := wv.(map[string]any)
-			sz, ok := w["sizing"].(map[string]any)
-			if !ok {
-				t.Fatalf("%s window without sizing: %v", g["target"], w)
+	for _, wv := range m["windows"].([]any) {
+		w := wv.(map[string]any)
+		sz, ok := w["sizing"].(map[string]any)
+		if !ok {
+			t.Fatalf("%s window without sizing: %v", w["target"], w)
+		}
+		switch w["target"] {
+		case "SNR-A":
+			if sz["snr_reached"] != true || num(t, sz, "snr") < 40 || num(t, w, "whole_exposures") == 0 {
+				t.Errorf("SNR-A window %v", w)
 			}
-			switch g["target"] {
-			case "SNR-A":
-				if sz["snr_reached"] != true || num(t, sz, "snr") < 40 || num(t, w, "exposures") == 0 {
-					t.Errorf("SNR-A window %v", w)
-				}
-				sized++
-			case "SNR-B":
-				if sz["snr_reached"] != false || num(t, sz, "snr") >= 100 || num(t, w, "exposures") != 0 {
-					t.Errorf("SNR-B window %v", w)
-				}
-				short++
+			sized++
+		case "SNR-B":
+			if sz["snr_reached"] != false || num(t, sz, "snr") >= 100 || num(t, w, "whole_exposures") != 0 {
+				t.Errorf("SNR-B window %v", w)
 			}
+			short++
 		}
 	}
 	if sized == 0 || short == 0 {
 		t.Errorf("%d sized and %d short windows", sized, short)
 	}
 	stdout, stderr, code := runCmd(t, append(base, "--format", "csv")...)
-	if code != 0 || stderr != "" || !strings.HasPrefix(stdout, strings.Join(append(append([]string(nil), windowsCSVHeader...), windowsCSVSizing...), ",")+"\n") {
+	if code != 0 || stderr != "" || !strings.HasPrefix(stdout, strings.Join(append(append([]string(nil), export.WindowsCSVHeader...), export.WindowsCSVSizing...), ",")+"\n") {
 		t.Errorf("csv: exit %d, stderr %q\n%.300s", code, stderr, stdout)
 	}
 }

@@ -208,6 +208,12 @@ func number(v *textValue, required bool, def, lo, hi float64, accepted string) (
 	return x, nil
 }
 
+// addSiteNameFlag is --site-name, the site's name the documents of plan,
+// run and windows carry (the web writes its site's name there).
+func addSiteNameFlag(f *flags) *textValue {
+	return f.text("site-name", "NAME", "none", "the site's name, written into the JSON, CSV and iCalendar documents")
+}
+
 // siteFlags are --lat, --lon and --elev.
 type siteFlags struct{ lat, lon, elev *textValue }
 

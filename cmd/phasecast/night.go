@@ -9,14 +9,14 @@ import (
 	"time"
 
 	"phasecast/ephem"
-	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
-// nightJSON is the `night --json` contract (planner.NightDoc, also the
+// nightJSON is the `night --json` contract (export.NightDoc, also the
 // `night` object of `plan --json` and of the web's night export): RFC 3339
 // UTC instants to the second, null for an event that does not happen between
 // local noon on DATE and local noon the next day.
-type nightJSON = planner.NightDoc
+type nightJSON = export.NightDoc
 
 const nightSynopsis = `The night that begins on the evening of local date DATE in time zone ZONE, from
 local noon to the next local noon: sunset and sunrise (Sun's centre at −0.833°),
@@ -25,7 +25,7 @@ moonset (upper limb, refracted), and the Moon's illuminated fraction at local
 midnight. An event that does not happen that night is shown as absent (null).`
 
 // nightObject is the `night --json` object for a night's events.
-func nightObject(ev ephem.NightEvents) nightJSON { return planner.NewNightDoc(ev) }
+func nightObject(ev ephem.NightEvents) nightJSON { return export.NewNightDoc(ev) }
 
 func runNight(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("night", nightSynopsis)
@@ -117,7 +117,7 @@ func printNight(w io.Writer, site ephem.Site, loc *time.Location, y int, m time.
 			continue
 		}
 		lt := r.t.In(loc).Round(time.Second)
-		tb.row(r.name, lt.Format("Mon 15:04:05 MST"), planner.DocSecond(*r.t).String())
+		tb.row(r.name, lt.Format("Mon 15:04:05 MST"), export.DocSecond(*r.t).String())
 	}
 	if err := tb.flush(); err != nil {
 		return err

@@ -5,12 +5,14 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"text/tabwriter"
 	"time"
 
 	"phasecast/ephem"
+	"phasecast/planner/export"
 )
 
 // jdDecimals is the number of decimals of a day printed for Julian dates:
@@ -40,16 +42,47 @@ func (t utcMillis) String() string {
 
 func (t utcMillis) MarshalJSON() ([]byte, error) { return json.Marshal(t.String()) }
 
-// writeJSON prints v as one indented JSON object. encoding/json refuses NaN
-// and infinities, so a non-finite value becomes an error, never output.
+// writeJSON prints v as one indented JSON object (export.JSON: the same
+// bytes the web and the API write for a document). encoding/json refuses
+// NaN and infinities, so a non-finite value becomes an error, never output.
 func writeJSON(w io.Writer, v any) error {
-	b, err := json.MarshalIndent(v, "", "  ")
+	return writeBytes(w, func() ([]byte, error) { return export.JSON(v) })
+}
+
+// writeBytes prints the document make writes.
+func writeBytes(w io.Writer, make func() ([]byte, error)) error {
+	b, err := make()
 	if err != nil {
-		return fmt.Errorf("writing JSON: %w", err)
+		return err
 	}
-	b = append(b, '\n')
 	_, err = w.Write(b)
 	return err
+}
+
+// outputFormat reads --format (text, json, csv or ics; default text) and
+// --json (the same as --format json).
+func outputFormat(format *textValue, asJSON bool) (string, error) {
+	return outputFormatOf(format, asJSON, "text", "json", "csv", "ics")
+}
+
+// outputFormatOf is outputFormat for a command that writes the formats
+// accepted only (text first).
+func outputFormatOf(format *textValue, asJSON bool, accepted ...string) (string, error) {
+	name := strings.ToLower(strings.TrimSpace(format.value))
+	if !format.set {
+		name = "text"
+	}
+	if !slices.Contains(accepted, name) {
+		last := len(accepted) - 1
+		return "", fieldError(format, "not a format", strings.Join(accepted[:last], ", ")+" or "+accepted[last])
+	}
+	if asJSON {
+		if format.set && name != "json" {
+			return "", usageErrorf("--json and --format %s: give one output format", shown(format.value))
+		}
+		name = "json"
+	}
+	return name, nil
 }
 
 // table is a two- or three-column human table.

@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"phasecast/ephem"
+	"phasecast/planner"
 )
 
 // phaseJSON is the `phase --json` contract.
@@ -17,6 +18,19 @@ type phaseJSON struct {
 	PhaseErr float64 `json:"phase_err"` // 1σ, in phase
 	// TimeScaleNote: see skyJSON.
 	TimeScaleNote string `json:"time_scale_note,omitempty"`
+	// Warning says in words when the uncertainty makes the phase
+	// meaningless or the planner would refuse it (planner.UncertaintyRule).
+	Warning string `json:"warning,omitempty"`
+}
+
+// uncertaintyWarning is the warning of phase and events for a 1σ phase
+// uncertainty sigma (cycles) of an orbit of periodDays: the planner's rule
+// at its default limit, with the timing error in seconds.
+func uncertaintyWarning(sigma, periodDays float64) string {
+	if planner.UncertaintyRule(sigma, 0, planner.DefaultMaxPhaseErr) < planner.PhaseRefused {
+		return ""
+	}
+	return fmt.Sprintf("%s (1σ of a predicted time: %.0f s, the period %.0f s)", planner.UncertaintyNote(sigma, 0, planner.DefaultMaxPhaseErr), sigma*periodDays*86400, periodDays*86400)
 }
 
 const phaseSynopsis = `The orbital cycle and phase of a binary at an instant: the instant is turned
@@ -52,6 +66,7 @@ func runPhase(ctx context.Context, now func() time.Time, args []string, stdout, 
 	if err := checkFinite([]string{"phase", "phase uncertainty"}, out.Phase, out.PhaseErr); err != nil {
 		return err
 	}
+	out.Warning = uncertaintyWarning(out.PhaseErr, e.PeriodDays)
 	if *asJSON {
 		return writeJSON(stdout, out)
 	}
@@ -66,6 +81,9 @@ func runPhase(ctx context.Context, now func() time.Time, args []string, stdout, 
 	tb.row("phase", f(out.Phase, 5), fmt.Sprintf("± %.5f (1σ, %.1f s)", out.PhaseErr, out.PhaseErr*e.PeriodDays*86400))
 	if err := tb.flush(); err != nil {
 		return err
+	}
+	if out.Warning != "" {
+		fmt.Fprintln(stdout, "Warning: "+out.Warning)
 	}
 	if err := printTimeScaleNote(stdout, out.TimeScaleNote); err != nil {
 		return err

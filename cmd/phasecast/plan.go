@@ -12,20 +12,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
-)
-
-// The `plan --json` document is planner.PlanDoc, shared with the web; these
-// names stay for run_nights.go, which prints the same objects per night.
-type (
-	planJSON        = planner.PlanDoc
-	planBlockJSON   = planner.BlockDoc
-	unscheduledJSON = planner.UnscheduledDoc
-	warningJSON     = planner.WarningDoc
-	intervalJSON    = planner.IntervalDoc
-	constraintsJSON = planner.ConstraintsDoc
-	// planTime is an instant in RFC 3339 UTC, with the fraction of a second
-	// written only when there is one (to the microsecond).
-	planTime = planner.DocTime
+	"phasecast/planner/export"
 )
 
 const planSynopsis = `Plan one night: for every target of a CSV list, the observable intervals under the
@@ -54,12 +41,18 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, header above); required")
 	cf := addConstraintFlags(fl)
 	acquire := fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
-	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = as many as fit)")
+	nExp := fl.text("n-exposures", "N", "0", "exposures wanted per goal window (0 = cover the window once, -1 = as many as fit)")
 	step := fl.text("step-s", "S", "60", "time resolution of the plan, seconds 1..900")
 	fill := fl.boolean("fill", "fill idle dark time with filler blocks of the most valuable observable target")
 	inf := addPlanInstrumentFlags(fl)
-	asJSON := fl.boolean("json", "print one JSON object")
+	siteName := addSiteNameFlag(fl)
+	format := fl.text("format", "text|json|csv", "text", "output format: the sheet, or the night document (docs/formats.md)")
+	asJSON := fl.boolean("json", "print one JSON object (the night document; the same as --format json)")
 	if help, err := fl.parse(args, stdout); help || err != nil {
+		return err
+	}
+	fmtName, err := outputFormatOf(format, *asJSON, "text", "json", "csv")
+	if err != nil {
 		return err
 	}
 	site, err := sf.site()
@@ -80,13 +73,17 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	if err != nil {
 		return err
 	}
+	pad, err := cf.pad()
+	if err != nil {
+		return err
+	}
 	acq, err := number(acquire, false, 120, 0, 3600, "seconds 0..3600")
 	if err != nil {
 		return err
 	}
-	n, err := number(nExp, false, 0, 0, 10000, "a whole number 0..10000 (0 = as many as fit)")
+	n, err := number(nExp, false, 0, planner.NAsManyAsFit, 10000, "a whole number -1..10000 (0 = cover the window once, -1 = as many as fit)")
 	if err == nil && n != math.Trunc(n) {
-		err = fieldError(nExp, "not a whole number", "a whole number 0..10000 (0 = as many as fit)")
+		err = fieldError(nExp, "not a whole number", "a whole number -1..10000 (0 = cover the window once, -1 = as many as fit)")
 	}
 	if err != nil {
 		return err
@@ -112,18 +109,21 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	from, to := planner.NightWindow(y, m, d, loc)
 	p, err := planner.PlanNight(planner.NightRequest{
 		Site: site, From: from, To: to, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *fill}, Instrument: inst,
+		Options: planner.Options{StepS: stepS, Fill: *fill, PadSigma: pad}, Instrument: inst,
 	})
 	if err != nil {
 		return fromInputError(err, "not accepted", nil)
 	}
 	ev := ephem.Night(site, y, m, d, loc)
-	out := planOutput(p, ev, acq)
-	if err := checkPlanFinite(out); err != nil {
+	out := export.NewNight(export.NewSite(siteName.value, site), fmt.Sprintf("%04d-%02d-%02d", y, int(m), d), loc.String(), p, ev, acq)
+	if err := checkPlanFinite(out.PlanDoc); err != nil {
 		return err
 	}
-	if *asJSON {
+	switch fmtName {
+	case "json":
 		return writeJSON(stdout, out)
+	case "csv":
+		return writeBytes(stdout, func() ([]byte, error) { return export.NightCSV(out, loc) })
 	}
 	return printPlan(stdout, p, ev, loc, y, m, d, acq)
 }
@@ -132,6 +132,13 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 // windows.
 type constraintFlags struct {
 	twilight, maxAirmass, minAlt, minMoonSep, maxMoonIllum, haMin, haMax, zenith, sunAvoid, horizon *textValue
+	// padSigma widens the goal windows by k σ of phase (planner.Options.PadSigma).
+	padSigma *textValue
+}
+
+// pad reads --pad-sigma.
+func (cf constraintFlags) pad() (float64, error) {
+	return number(cf.padSigma, false, 0, 0, 10, "0..10 (σ of the phase added to each goal window's half-width)")
 }
 
 // addConstraintFlags registers the observing-limit flags on fl.
@@ -147,6 +154,7 @@ func addConstraintFlags(fl *flags) constraintFlags {
 		zenith:       fl.text("zenith-excl", "DEG", "0", "no tracking within this distance of the zenith (alt-az mounts), degrees 0..30"),
 		sunAvoid:     fl.text("sun-avoid", "DEG", "30", "never point closer than this to the Sun, degrees 0..90 (safety)"),
 		horizon:      fl.text("horizon", "FILE", "", "horizon mask file: lines of \"azimuth altitude\" in degrees"),
+		padSigma:     fl.text("pad-sigma", "K", "0", "widen every goal window by K times the ephemeris' 1σ phase uncertainty that night, 0..10"),
 	}
 }
 
@@ -249,13 +257,8 @@ func readTargets(v *textValue) ([]planner.Target, error) {
 	return list, nil
 }
 
-// planOutput is the `plan --json` document; acq is the --acquire-s value.
-func planOutput(p *planner.Plan, ev ephem.NightEvents, acq float64) planJSON {
-	return planner.NewPlanDoc(p, ev, acq)
-}
-
 // checkPlanFinite makes sure no NaN reaches the output.
-func checkPlanFinite(out planJSON) error {
+func checkPlanFinite(out export.PlanDoc) error {
 	for _, b := range out.Blocks {
 		if err := checkFinite([]string{"phase", "phase", "airmass", "airmass", "phase", "smear", "phase error", "Moon separation", "parallactic angle", "hour angle", "Sun altitude"},
 			b.PhaseStart, b.PhaseEnd, b.AirmassMax, b.AirmassMin, b.PhaseMid, b.Smear, b.PhaseErr, b.MoonSepDeg, b.ParallacticDeg, b.HourAngleHours, b.SunAltStartDeg); err != nil {
@@ -267,37 +270,51 @@ func checkPlanFinite(out planJSON) error {
 
 // printPlan writes the human night sheet.
 func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Location, y int, m time.Month, d int, acq float64) error {
-	evening := time.Date(y, m, d, 12, 0, 0, 0, loc)
+	var b strings.Builder
+	printPlanHeader(&b, p, ev, loc, time.Date(y, m, d, 12, 0, 0, 0, loc), acq)
+	if _, err := io.WriteString(w, b.String()); err != nil {
+		return err
+	}
+	if err := printPlanBlocks(w, p, loc); err != nil {
+		return err
+	}
+	b.Reset()
+	printPlanNotes(&b, p)
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// printPlanHeader writes the night, site, limits, dark time and Moon.
+func printPlanHeader(b *strings.Builder, p *planner.Plan, ev ephem.NightEvents, loc *time.Location, evening time.Time, acq float64) {
 	lt := func(t time.Time) string { return t.In(loc).Format("15:04") }
 	ut := func(t time.Time) string { return t.UTC().Format("15:04") }
-	var b strings.Builder
-	fmt.Fprintf(&b, "Night plan for %s (%s), site %s\n", evening.Format("Monday 2006-01-02"), loc, siteLine(p.Site))
+	fmt.Fprintf(b, "Night plan for %s (%s), site %s\n", evening.Format("Monday 2006-01-02"), loc, siteLine(p.Site))
 	c := p.Constraints
-	fmt.Fprintf(&b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
+	fmt.Fprintf(b, "Limits: Sun below %s° (%s), airmass ≤ %s", fmtG(c.SunAltMaxDeg), c.Twilight, fmtG(c.MaxAirmass))
 	if c.MinAltDeg != 0 {
-		fmt.Fprintf(&b, ", altitude ≥ %s°", fmtG(c.MinAltDeg))
+		fmt.Fprintf(b, ", altitude ≥ %s°", fmtG(c.MinAltDeg))
 	}
 	if c.MinMoonSepDeg > 0 {
-		fmt.Fprintf(&b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
+		fmt.Fprintf(b, ", Moon ≥ %s° away", fmtG(c.MinMoonSepDeg))
 	}
 	if c.MaxMoonIllum > 0 {
-		fmt.Fprintf(&b, ", Moon ≤ %s%% lit when up", fmtG(100*c.MaxMoonIllum))
+		fmt.Fprintf(b, ", Moon ≤ %s%% lit when up", fmtG(100*c.MaxMoonIllum))
 	}
 	if c.HAMinHours != 0 || c.HAMaxHours != 0 {
-		fmt.Fprintf(&b, ", hour angle %s..%s h", fmtG(c.HAMinHours), fmtG(c.HAMaxHours))
+		fmt.Fprintf(b, ", hour angle %s..%s h", fmtG(c.HAMinHours), fmtG(c.HAMaxHours))
 	}
 	if c.ZenithExclDeg > 0 {
-		fmt.Fprintf(&b, ", zenith exclusion %s°", fmtG(c.ZenithExclDeg))
+		fmt.Fprintf(b, ", zenith exclusion %s°", fmtG(c.ZenithExclDeg))
 	}
 	if len(c.Horizon) > 0 {
-		fmt.Fprintf(&b, ", horizon mask (%d points)", len(c.Horizon))
+		fmt.Fprintf(b, ", horizon mask (%d points)", len(c.Horizon))
 	}
-	fmt.Fprintf(&b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
+	fmt.Fprintf(b, ", Sun avoidance %s°; acquisition %s s per visit\n", fmtG(c.SunAvoidDeg), fmtG(acq))
 	if len(p.Dark) == 0 {
-		fmt.Fprintf(&b, "Dark time: none (the Sun stays above %s°)\n", fmtG(c.SunAltMaxDeg))
+		fmt.Fprintf(b, "Dark time: none (the Sun stays above %s°)\n", fmtG(c.SunAltMaxDeg))
 	}
 	for _, dk := range p.Dark {
-		fmt.Fprintf(&b, "Dark time: %s–%s local (%s–%s UTC), %.1f h\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End), dk.End.Sub(dk.Start).Hours())
+		fmt.Fprintf(b, "Dark time: %s–%s local (%s–%s UTC), %.1f h\n", lt(dk.Start), lt(dk.End), ut(dk.Start), ut(dk.End), dk.End.Sub(dk.Start).Hours())
 	}
 	moon := fmt.Sprintf("Moon: %.0f%% illuminated at midnight", 100*ev.MoonIlluminated)
 	if ev.Moonrise != nil {
@@ -307,10 +324,10 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 		moon += ", sets " + lt(*ev.Moonset) + " local"
 	}
 	b.WriteString(moon + "\n\n")
-	if _, err := io.WriteString(w, b.String()); err != nil {
-		return err
-	}
-	b.Reset()
+}
+
+// printPlanBlocks writes the table of blocks.
+func printPlanBlocks(w io.Writer, p *planner.Plan, loc *time.Location) error {
 	tb := newTable(w)
 	tb.row("start", "", "end", "", "target", "goal", "exposures", "phase start→end", "airmass", "Moon", "par.angle", "notes")
 	tb.row("local", "UTC", "local", "UTC", "", "", "", "", "", "", "", "")
@@ -321,7 +338,7 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 		}
 		notes := []string{}
 		if bl.AcquireS > 0 {
-			notes = append(notes, fmt.Sprintf("acquire from %s", lt(bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))))))
+			notes = append(notes, fmt.Sprintf("acquire from %s", bl.Start.Add(-time.Duration(bl.AcquireS*float64(time.Second))).In(loc).Format("15:04")))
 		}
 		if bl.SNROK {
 			notes = append(notes, snrNote(bl))
@@ -338,13 +355,16 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 	if len(p.Blocks) == 0 {
 		tb.row("(no block can be scheduled)", "", "", "", "", "", "", "", "", "", "", "")
 	}
-	if err := tb.flush(); err != nil {
-		return err
-	}
+	return tb.flush()
+}
+
+// printPlanNotes writes the goals left out, the warnings (each once), the
+// schedule's value and the caution.
+func printPlanNotes(b *strings.Builder, p *planner.Plan) {
 	if len(p.Unscheduled) > 0 {
 		b.WriteString("\nNot scheduled:\n")
 		for _, u := range p.Unscheduled {
-			fmt.Fprintf(&b, "  %s, phase %.3f: %s\n", u.Target, u.Goal.Center, u.Detail)
+			fmt.Fprintf(b, "  %s, phase %.3f: %s\n", u.Target, u.Goal.Center, u.Detail)
 		}
 	}
 	var notes []string
@@ -372,10 +392,8 @@ func printPlan(w io.Writer, p *planner.Plan, ev ephem.NightEvents, loc *time.Loc
 	if !p.Optimal {
 		state = "best found, not proven optimal"
 	}
-	fmt.Fprintf(&b, "\nSchedule value %d (%s; greedy first-fit would give %d), %d candidate blocks.\n", p.Value, state, p.GreedyValue, p.Candidates)
+	fmt.Fprintf(b, "\nSchedule value %d (%s; greedy first-fit would give %d), %d candidate blocks.\n", p.Value, state, p.GreedyValue, p.Candidates)
 	b.WriteString(planner.SafetyCaution + "\n")
-	_, err := io.WriteString(w, b.String())
-	return err
 }
 
 // fmtG formats a number without trailing zeros.

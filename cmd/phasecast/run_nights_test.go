@@ -1,11 +1,15 @@
 package main
 
 import (
+	"encoding/csv"
 	"encoding/json"
 	"math"
 	"strings"
 	"testing"
 	"time"
+
+	"phasecast/planner/export"
+	"phasecast/planner/export/exporttest"
 )
 
 // runCSV is an invented target list for the test site (27.85° S) in May.
@@ -18,59 +22,14 @@ Suvi-7,16:10:05,-12:30:00,2461119.77310,0.4105,0.25;0.75,0.04,240,20,3
 
 var runArgs = []string{"--tz", "America/Santiago", "--dates", "2026-05-12,2026-05-13:first,2026-05-14"}
 
-// runOut decodes `run --json`.
-type runOutTest struct {
-	Nights []struct {
-		Date   string `json:"date"`
-		Part   string `json:"part"`
-		From   string `json:"from"`
-		To     string `json:"to"`
-		Past   bool   `json:"past"`
-		Blocks []struct {
-			Target     string  `json:"target"`
-			Start      string  `json:"start"`
-			End        string  `json:"end"`
-			NExposures int     `json:"n_exposures"`
-			ExposureS  float64 `json:"exposure_s"`
-			OverheadS  float64 `json:"overhead_s"`
-		} `json:"blocks"`
-	} `json:"nights"`
-	Coverage []struct {
-		Target string `json:"target"`
-		Goals  []struct {
-			PhaseGoal float64 `json:"phase_goal"`
-			Observed  int     `json:"observed"`
-			Planned   int     `json:"planned"`
-			PerNight  []struct {
-				Observed int `json:"observed"`
-				Planned  int `json:"planned"`
-			} `json:"per_night"`
-			Status string `json:"status"`
-		} `json:"goals"`
-		Bins []struct {
-			Observed int `json:"observed"`
-			Planned  int `json:"planned"`
-		} `json:"bins"`
-	} `json:"coverage"`
-	BestNights []struct {
-		Target string `json:"target"`
-	} `json:"best_nights"`
-	Objective struct {
-		Fraction float64 `json:"fraction"`
-		Value    int64   `json:"value"`
-	} `json:"objective"`
-	Observed []struct {
-		Target string `json:"target"`
-	} `json:"observed"`
-}
-
-func decodeRun(t *testing.T, argv ...string) runOutTest {
+// decodeRun runs `run --json` and decodes the run document.
+func decodeRun(t *testing.T, argv ...string) export.Run {
 	t.Helper()
 	stdout, stderr, code := runCmd(t, append(argv, "--json")...)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	var out runOutTest
+	var out export.Run
 	if err := json.Unmarshal([]byte(stdout), &out); err != nil {
 		t.Fatalf("not JSON: %v\n%s", err, stdout)
 	}
@@ -86,10 +45,8 @@ func TestRunCommandJSON(t *testing.T) {
 	blocks := 0
 	for _, n := range out.Nights {
 		for _, b := range n.Blocks {
-			s, _ := time.Parse(time.RFC3339, b.Start)
-			e, _ := time.Parse(time.RFC3339, b.End)
-			from, _ := time.Parse(time.RFC3339, n.From)
-			to, _ := time.Parse(time.RFC3339, n.To)
+			s, e := time.Time(b.Start), time.Time(b.End)
+			from, to := time.Time(n.From), time.Time(n.To)
 			if want := float64(b.NExposures) * (b.ExposureS + b.OverheadS); math.Abs(e.Sub(s).Seconds()-want) > 1e-6 {
 				t.Errorf("%s block %s: %v long, want %g s", n.Date, b.Target, e.Sub(s), want)
 			}
@@ -104,7 +61,7 @@ func TestRunCommandJSON(t *testing.T) {
 	}
 	// Coverage per night adds up to the blocks' exposures in each window;
 	// here every total is checked against the per-night list.
-	for _, c := range out.Coverage {
+	for _, c := range out.Targets {
 		binTotal := 0
 		for _, b := range c.Bins {
 			binTotal += b.Observed + b.Planned
@@ -122,8 +79,14 @@ func TestRunCommandJSON(t *testing.T) {
 			}
 		}
 	}
-	if len(out.BestNights) != 4 || out.Objective.Fraction <= 0 {
-		t.Errorf("best nights for %d targets, objective %+v", len(out.BestNights), out.Objective)
+	ranked := 0
+	for _, c := range out.Targets {
+		if len(c.BestNights) > 0 {
+			ranked++
+		}
+	}
+	if len(out.Targets) != 4 || ranked == 0 || out.Objective.Fraction <= 0 {
+		t.Errorf("%d targets, %d with best nights, objective %+v", len(out.Targets), ranked, out.Objective)
 	}
 }
 
@@ -156,7 +119,7 @@ func TestRunCommandObserved(t *testing.T) {
 			t.Errorf("%d observed exposures, want 3", len(out.Observed))
 		}
 		obs := 0
-		for _, c := range out.Coverage {
+		for _, c := range out.Targets {
 			for _, g := range c.Goals {
 				obs += g.Observed
 			}
@@ -219,7 +182,7 @@ func TestRunCommandBadFlags(t *testing.T) {
 func TestRunCommandBinGoals(t *testing.T) {
 	csvPath := writeFile(t, "targets.csv", runCSV)
 	out := decodeRun(t, args([]string{"run"}, siteArgs, []string{"--tz", "UTC", "--from", "2026-05-12", "--nights", "2", "--targets", csvPath, "--bins", "5", "--bin-goals"})...)
-	for _, c := range out.Coverage {
+	for _, c := range out.Targets {
 		if len(c.Goals) != 5 {
 			t.Errorf("%s: %d goals, want the 5 bins", c.Target, len(c.Goals))
 		}
@@ -228,5 +191,43 @@ func TestRunCommandBinGoals(t *testing.T) {
 				t.Errorf("%s goal %d at %g, want %g", c.Target, i, g.PhaseGoal, want)
 			}
 		}
+	}
+}
+
+// TestRunCommandFormats checks --format csv and ics against the JSON
+// document: one row and one event per block, the same every time.
+func TestRunCommandFormats(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runCSV)
+	base := args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--name", "Test run"})
+	out := decodeRun(t, base...)
+	blocks := 0
+	for _, n := range out.Nights {
+		blocks += len(n.Blocks)
+	}
+	if blocks == 0 || out.Run != "Test run" {
+		t.Fatalf("%d blocks, run %q", blocks, out.Run)
+	}
+	get := func(extra ...string) string {
+		t.Helper()
+		stdout, stderr, code := runCmd(t, append(append([]string{}, base...), extra...)...)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		return stdout
+	}
+	rows, err := csv.NewReader(strings.NewReader(get("--format", "csv"))).ReadAll()
+	if err != nil || len(rows) != blocks+1 || strings.Join(rows[0], ",") != strings.Join(export.RunCSVHeader, ",") {
+		t.Errorf("CSV: %v, %d rows for %d blocks, header %v", err, len(rows), blocks, rows[0])
+	}
+	ics := get("--format", "ics", "--stamp", "2026-05-01T00:00:00Z")
+	cal, err := exporttest.ParseICal(strings.NewReader(ics))
+	if err != nil || len(cal.Events) != blocks || !cal.Events[0].Stamp.Equal(time.Date(2026, 5, 1, 0, 0, 0, 0, time.UTC)) {
+		t.Errorf("iCalendar: %v, %d events for %d blocks", err, len(cal.Events), blocks)
+	}
+	if again := get("--format", "ics", "--stamp", "2026-05-01T00:00:00Z"); again != ics {
+		t.Error("the same command gives another calendar")
+	}
+	if _, stderr, code := runCmd(t, append(append([]string{}, base...), "--format", "csv", "--json")...); code != 2 || !strings.Contains(stderr, "give one output format") {
+		t.Errorf("--format csv with --json: exit %d, %s", code, stderr)
 	}
 }

@@ -15,7 +15,7 @@ import (
 	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/chromedp"
 
-	"phasecast/web/ical"
+	"phasecast/planner/export/exporttest"
 )
 
 // chromiumPath is Debian's headless-capable browser.
@@ -142,7 +142,7 @@ func TestBrowserEndToEnd(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	cal, err := ical.Parse(f)
+	cal, err := exporttest.ParseICal(f)
 	f.Close()
 	if err != nil {
 		t.Fatalf("the downloaded %s does not parse: %v", filepath.Base(ics), err)

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"strconv"
@@ -11,7 +10,7 @@ import (
 
 	"phasecast/ephem"
 	"phasecast/planner"
-	"phasecast/web/ical"
+	"phasecast/planner/export"
 )
 
 const windowsSynopsis = `Queue phase windows: for targets of a CSV list (the plan command's), every UTC
@@ -27,123 +26,171 @@ the window's half-width for --goal (default: the CSV's phase_halfwidth).
 --from and --to take a date YYYY-MM-DD (local midnight in --tz) or an instant
 (RFC 3339).
 
---format text (default), json, csv (one window per row, header
+--format text (default), json (the queue-windows document of the web and the
+API), csv (one window per row, header
 target,phase_goal,phase_halfwidth,start_utc,end_utc,duration_min,cycle,phase_err,
-uncertain,airmass_min,airmass_max,exposures), or ics (iCalendar, RFC 5545: one
-event per window, UTC times, stable UIDs; DTSTAMP is --stamp, default --from, so
-the same command gives the same file).`
+uncertain,airmass_min,airmass_max,exposures,event), or ics (iCalendar, RFC 5545:
+one event per window, UTC times, stable UIDs; DTSTAMP is --stamp, default --from,
+so the same command gives the same file). The documents are described in
+docs/formats.md.`
 
 func runWindows(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
+	wf := addWindowsFlags()
+	if help, err := wf.fl.parse(args, stdout); help || err != nil {
+		return err
+	}
+	job, err := wf.read()
+	if err != nil {
+		return err
+	}
+	got, err := job.compute(ctx, stderr)
+	if err != nil {
+		return err
+	}
+	return job.write(stdout, got)
+}
+
+// windowsFlags are the windows command's flags, as typed.
+type windowsFlags struct {
+	fl                                   *flags
+	sf                                   siteFlags
+	cf                                   constraintFlags
+	tz, targets, target, goal, halfWidth *textValue
+	from, to, minExp, step, format       *textValue
+	stamp, siteName                      *textValue
+	asJSON                               *bool
+	inf                                  planInstrumentFlags
+}
+
+func addWindowsFlags() windowsFlags {
 	fl := newFlags("windows", windowsSynopsis)
-	sf := addSiteFlags(fl)
-	tz := fl.text("tz", "ZONE", "UTC", "IANA time zone for dates and local times, e.g. America/Santiago")
-	targets := fl.text("targets", "FILE.csv", "", "targets file (CSV, as for plan); required")
-	target := fl.text("target", "NAME", "all", "the target, by its name in the file")
-	goal := fl.text("goal", "PHASE|EVENT", "the CSV's phases", "the goal: a phase 0..1 or an event name")
-	halfWidth := fl.text("halfwidth", "W", "the CSV's", "half-width of the --goal window in phase, 0 < w < 0.5")
-	from := fl.text("from", "DATE|TIME", "", "start of the range: YYYY-MM-DD (local midnight) or RFC 3339; required")
-	to := fl.text("to", "DATE|TIME", "", "end of the range, at most 366 days after --from; required")
-	cf := addConstraintFlags(fl)
-	minExp := fl.text("min-exposures", "N", "0", "list only windows that hold at least N whole exposures (0 = every window)")
-	step := fl.text("step-s", "S", "60", "constraint scan step, seconds 1..900 (edges are refined to 1 ms)")
-	format := fl.text("format", "text|json|csv|ics", "text", "output format")
-	stamp := fl.text("stamp", "TIME", "--from", "DTSTAMP of the iCalendar events (RFC 3339)")
-	inf := addPlanInstrumentFlags(fl)
-	asJSON := fl.boolean("json", "print one JSON object (the same as --format json)")
-	if help, err := fl.parse(args, stdout); help || err != nil {
-		return err
+	wf := windowsFlags{fl: fl, sf: addSiteFlags(fl)}
+	wf.tz = fl.text("tz", "ZONE", "UTC", "IANA time zone for dates and local times, e.g. America/Santiago")
+	wf.targets = fl.text("targets", "FILE.csv", "", "targets file (CSV, as for plan); required")
+	wf.target = fl.text("target", "NAME", "all", "the target, by its name in the file")
+	wf.goal = fl.text("goal", "PHASE|EVENT", "the CSV's phases", "the goal: a phase 0..1 or an event name")
+	wf.halfWidth = fl.text("halfwidth", "W", "the CSV's", "half-width of the --goal window in phase, 0 < w < 0.5")
+	wf.from = fl.text("from", "DATE|TIME", "", "start of the range: YYYY-MM-DD (local midnight) or RFC 3339; required")
+	wf.to = fl.text("to", "DATE|TIME", "", "end of the range, at most 366 days after --from; required")
+	wf.cf = addConstraintFlags(fl)
+	wf.minExp = fl.text("min-exposures", "N", "0", "list only windows that hold at least N whole exposures (0 = every window)")
+	wf.step = fl.text("step-s", "S", "60", "constraint scan step, seconds 1..900 (edges are refined to 1 ms)")
+	wf.format = fl.text("format", "text|json|csv|ics", "text", "output format")
+	wf.stamp = fl.text("stamp", "TIME", "--from", "DTSTAMP of the iCalendar events (RFC 3339)")
+	wf.inf = addPlanInstrumentFlags(fl)
+	wf.siteName = addSiteNameFlag(fl)
+	wf.asJSON = fl.boolean("json", "print one JSON object (the same as --format json)")
+	return wf
+}
+
+// windowsJob is a parsed windows command: what to compute and how to write
+// it.
+type windowsJob struct {
+	site     ephem.Site
+	siteName string
+	loc      *time.Location
+	t0, t1   time.Time
+	c        planner.Constraints
+	nMin     int
+	stepS    float64
+	pad      float64 // --pad-sigma
+	stamp    time.Time
+	inst     *planner.Instrument // nil: no exposure sizing
+	targets  []planner.Target
+	format   string
+}
+
+// read parses and checks the flags (the targets file included).
+func (wf windowsFlags) read() (windowsJob, error) {
+	j := windowsJob{loc: time.UTC, siteName: wf.siteName.value}
+	var err error
+	if j.site, err = wf.sf.site(); err != nil {
+		return j, err
 	}
-	site, err := sf.site()
-	if err != nil {
-		return err
-	}
-	loc := time.UTC
-	if tz.set {
-		if loc, err = zone(tz); err != nil {
-			return err
+	if wf.tz.set {
+		if j.loc, err = zone(wf.tz); err != nil {
+			return j, err
 		}
 	}
-	fmtName := strings.ToLower(strings.TrimSpace(format.value))
-	if !format.set {
-		fmtName = "text"
+	if j.format, err = outputFormat(wf.format, *wf.asJSON); err != nil {
+		return j, err
 	}
-	switch fmtName {
-	case "text", "json", "csv", "ics":
-	default:
-		return fieldError(format, "not a format", "text, json, csv or ics")
+	if j.t0, err = rangeEnd(wf.from, j.loc); err != nil {
+		return j, err
 	}
-	if *asJSON {
-		if format.set && fmtName != "json" {
-			return usageErrorf("--json and --format %s: give one output format", shown(format.value))
-		}
-		fmtName = "json"
+	if j.t1, err = rangeEnd(wf.to, j.loc); err != nil {
+		return j, err
 	}
-	t0, err := rangeEnd(from, loc)
-	if err != nil {
-		return err
+	if !j.t1.After(j.t0) || j.t1.Sub(j.t0) > planner.MaxWindowDays*24*time.Hour {
+		return j, fieldError(wf.to, "out of range", fmt.Sprintf("an instant after --from, at most %d days later", planner.MaxWindowDays))
 	}
-	t1, err := rangeEnd(to, loc)
-	if err != nil {
-		return err
+	if j.c, err = wf.cf.constraints(); err != nil {
+		return j, err
 	}
-	if !t1.After(t0) || t1.Sub(t0) > planner.MaxWindowDays*24*time.Hour {
-		return fieldError(to, "out of range", fmt.Sprintf("an instant after --from, at most %d days later", planner.MaxWindowDays))
+	if j.pad, err = wf.cf.pad(); err != nil {
+		return j, err
 	}
-	c, err := cf.constraints()
-	if err != nil {
-		return err
+	if j.nMin, err = wholeNumber(wf.minExp, 0, 0, 10000, "a whole number 0..10000"); err != nil {
+		return j, err
 	}
-	nMin, err := wholeNumber(minExp, 0, 0, 10000, "a whole number 0..10000")
-	if err != nil {
-		return err
+	if j.stepS, err = number(wf.step, false, 60, 1, 900, "seconds 1..900"); err != nil {
+		return j, err
 	}
-	stepS, err := number(step, false, 60, 1, 900, "seconds 1..900")
-	if err != nil {
-		return err
-	}
-	dtstamp := t0
-	if stamp.set {
-		if dtstamp, err = ephem.ParseTime(stamp.value); err != nil {
-			return fromInputError(err, "not a time", map[string]*textValue{"time": stamp})
+	j.stamp = j.t0
+	if wf.stamp.set {
+		if j.stamp, err = ephem.ParseTime(wf.stamp.value); err != nil {
+			return j, fromInputError(err, "not a time", map[string]*textValue{"time": wf.stamp})
 		}
 	}
-	inst, err := inf.read()
-	if err != nil {
-		return err
+	if j.inst, err = wf.inf.read(); err != nil {
+		return j, err
 	}
-	list, err := readTargets(targets)
+	list, err := readTargets(wf.targets)
 	if err != nil {
-		return err
+		return j, err
 	}
-	if list, err = pickTargets(list, target, goal, halfWidth); err != nil {
-		return err
-	}
-	got, err := planner.QueueWindows(ctx, planner.WindowRequest{Site: site, From: t0, To: t1, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS}, Instrument: inst}, nil)
+	j.targets, err = pickTargets(list, wf.target, wf.goal, wf.halfWidth)
+	return j, err
+}
+
+// compute lists the windows, keeping those that hold at least nMin whole
+// exposures.
+// A progress line goes to stderr when it is a terminal.
+func (j windowsJob) compute(ctx context.Context, stderr io.Writer) ([]planner.GoalWindows, error) {
+	prog := newProgress(stderr, "windows")
+	got, err := planner.QueueWindows(ctx, planner.WindowRequest{Site: j.site, From: j.t0, To: j.t1, Targets: j.targets, Constraints: j.c,
+		Options: planner.Options{StepS: j.stepS, PadSigma: j.pad}, Instrument: j.inst}, prog.callback())
+	prog.finish()
 	if err != nil {
-		return fromInputError(err, "not accepted", nil)
+		if ctx.Err() != nil {
+			return nil, interrupted(err, "windows")
+		}
+		return nil, fromInputError(err, "not accepted", nil)
 	}
 	for i := range got {
 		kept := got[i].Windows[:0]
 		for _, w := range got[i].Windows {
-			if w.Exposures >= nMin {
+			if w.Exposures >= j.nMin {
 				kept = append(kept, w)
 			}
 		}
 		got[i].Windows = kept
 	}
-	if err := checkWindowsFinite(got); err != nil {
-		return err
-	}
-	switch fmtName {
+	return got, checkWindowsFinite(got)
+}
+
+// write prints the windows in the chosen format.
+func (j windowsJob) write(w io.Writer, got []planner.GoalWindows) error {
+	doc := export.NewWindows(j.siteName, j.loc.String(), j.t0, j.t1, 0, got)
+	switch j.format {
 	case "json":
-		return writeJSON(stdout, windowsOutput(got, loc, t0, t1))
+		return writeJSON(w, doc)
 	case "csv":
-		return writeWindowsCSV(stdout, got, inst != nil)
+		return writeBytes(w, func() ([]byte, error) { return export.WindowsCSV(doc, j.inst != nil) })
 	case "ics":
-		return writeWindowsICS(stdout, got, dtstamp)
+		return writeBytes(w, func() ([]byte, error) { return export.WindowsICS(doc, j.stamp) })
 	}
-	return printWindows(stdout, got, site, loc, t0, t1, c)
+	return printWindows(w, got, j.site, j.loc, j.t0, j.t1, j.c)
 }
 
 // rangeEnd parses --from or --to: a date (local midnight in loc) or an
@@ -230,73 +277,6 @@ func pickTargets(list []planner.Target, target, goal, halfWidth *textValue) ([]p
 	return list, nil
 }
 
-// queueWindowJSON is one window.
-type queueWindowJSON struct {
-	Start       planTime `json:"start"`
-	End         planTime `json:"end"`
-	DurationMin float64  `json:"duration_min"`
-	Cycle       int64    `json:"cycle"`
-	PhaseErr    float64  `json:"phase_err"`
-	Uncertain   bool     `json:"uncertain"`
-	AirmassMin  float64  `json:"airmass_min"`
-	AirmassMax  float64  `json:"airmass_max"`
-	Exposures   int      `json:"exposures"`
-	// Sizing is the S/N sizing at the window's middle (with an instrument
-	// and an S/N goal only).
-	Sizing *windowSizingJSON `json:"sizing,omitempty"`
-}
-
-// windowSizingJSON is a window's exposure sized for its goal's S/N.
-type windowSizingJSON struct {
-	ExposureS float64 `json:"exposure_s"`
-	SNR       float64 `json:"snr"`
-	SkyMag    float64 `json:"sky_mag_arcsec2"`
-	Reached   bool    `json:"snr_reached"`
-}
-
-// sizingJSON converts a window's sizing (nil stays nil).
-func sizingJSON(sz *planner.ExposureSizing) *windowSizingJSON {
-	if sz == nil {
-		return nil
-	}
-	return &windowSizingJSON{ExposureS: sz.ExposureS, SNR: sz.SNR, SkyMag: sz.SkyMag, Reached: sz.Reached}
-}
-
-// goalWindowsJSON is one goal's list.
-type goalWindowsJSON struct {
-	Target         string            `json:"target"`
-	PhaseGoal      float64           `json:"phase_goal"`
-	PhaseHalfWidth float64           `json:"phase_halfwidth"`
-	Event          string            `json:"event,omitempty"`
-	ExposureS      float64           `json:"exposure_s"`
-	OverheadS      float64           `json:"overhead_s"`
-	Windows        []queueWindowJSON `json:"windows"`
-}
-
-// windowsJSONOut is the `windows --format json` object.
-type windowsJSONOut struct {
-	From    planTime          `json:"from"`
-	To      planTime          `json:"to"`
-	Zone    string            `json:"zone"`
-	Goals   []goalWindowsJSON `json:"goals"`
-	Caution string            `json:"caution"`
-}
-
-func windowsOutput(got []planner.GoalWindows, loc *time.Location, t0, t1 time.Time) windowsJSONOut {
-	out := windowsJSONOut{From: planTime(t0), To: planTime(t1), Zone: loc.String(), Goals: []goalWindowsJSON{}, Caution: planner.SafetyCaution}
-	for _, gw := range got {
-		gj := goalWindowsJSON{Target: gw.Target, PhaseGoal: gw.Goal.Center, PhaseHalfWidth: gw.Goal.HalfWidth, Event: gw.Goal.Event,
-			ExposureS: gw.Goal.ExposureS, OverheadS: gw.Goal.OverheadS, Windows: []queueWindowJSON{}}
-		for _, w := range gw.Windows {
-			gj.Windows = append(gj.Windows, queueWindowJSON{Start: planTime(w.Start), End: planTime(w.End), DurationMin: w.Duration().Minutes(),
-				Cycle: w.Cycle, PhaseErr: w.PhaseErr, Uncertain: w.Uncertain, AirmassMin: w.AirmassMin, AirmassMax: w.AirmassMax, Exposures: w.Exposures,
-				Sizing: sizingJSON(w.Sizing)})
-		}
-		out.Goals = append(out.Goals, gj)
-	}
-	return out
-}
-
 func checkWindowsFinite(got []planner.GoalWindows) error {
 	for _, gw := range got {
 		for _, w := range gw.Windows {
@@ -306,74 +286,6 @@ func checkWindowsFinite(got []planner.GoalWindows) error {
 		}
 	}
 	return nil
-}
-
-// windowsCSVHeader is the header of --format csv.
-var windowsCSVHeader = []string{"target", "phase_goal", "phase_halfwidth", "start_utc", "end_utc", "duration_min", "cycle",
-	"phase_err", "uncertain", "airmass_min", "airmass_max", "exposures"}
-
-// windowsCSVSizing are the columns --format csv adds with an instrument: a
-// window's S/N sizing (empty cells for goals without an S/N).
-var windowsCSVSizing = []string{"sized_exposure_s", "snr", "sky_mag_arcsec2", "snr_reached"}
-
-func writeWindowsCSV(w io.Writer, got []planner.GoalWindows, sized bool) error {
-	cw := csv.NewWriter(w)
-	header := windowsCSVHeader
-	if sized {
-		header = append(append([]string(nil), header...), windowsCSVSizing...)
-	}
-	if err := cw.Write(header); err != nil {
-		return err
-	}
-	for _, gw := range got {
-		for _, win := range gw.Windows {
-			rec := []string{planner.SafeCSVCell(gw.Target), f(gw.Goal.Center, 4), f(gw.Goal.HalfWidth, 4), planTime(win.Start).String(), planTime(win.End).String(),
-				f(win.Duration().Minutes(), 2), strconv.FormatInt(win.Cycle, 10), f(win.PhaseErr, 5), strconv.FormatBool(win.Uncertain),
-				f(win.AirmassMin, 3), f(win.AirmassMax, 3), strconv.Itoa(win.Exposures)}
-			switch {
-			case sized && win.Sizing != nil:
-				sz := win.Sizing
-				rec = append(rec, f(sz.ExposureS, -1), f(sz.SNR, 2), f(sz.SkyMag, 3), strconv.FormatBool(sz.Reached))
-			case sized:
-				rec = append(rec, "", "", "", "")
-			}
-			if err := cw.Write(rec); err != nil {
-				return err
-			}
-		}
-	}
-	cw.Flush()
-	return cw.Error()
-}
-
-// windowUID is a window's stable iCalendar UID: the same target, goal and
-// window always give the same UID (RFC 5545 §3.8.4.7), so a calendar
-// updates an imported window instead of duplicating it.
-func windowUID(gw planner.GoalWindows, w planner.QueueWindow) string {
-	name := strings.Map(func(r rune) rune {
-		if r < 0x21 || r > 0x7e || r == '@' {
-			return '_'
-		}
-		return r
-	}, gw.Target)
-	return fmt.Sprintf("window-%s-%s-%d-%d@phasecast", name, strconv.FormatFloat(gw.Goal.Center, 'f', -1, 64), w.Cycle, w.Start.Unix())
-}
-
-func writeWindowsICS(w io.Writer, got []planner.GoalWindows, stamp time.Time) error {
-	cal := ical.Calendar{ProdID: "-//phasecast//queue windows//EN", Name: "phasecast queue windows"}
-	for _, gw := range got {
-		for _, win := range gw.Windows {
-			desc := fmt.Sprintf("Phase window %.4f ± %.4f of %s (cycle %d), %.1f min; phase uncertainty 1σ %.4f; airmass %.2f–%.2f; %d exposure(s) of %ss fit. %s",
-				gw.Goal.Center, gw.Goal.HalfWidth, gw.Target, win.Cycle, win.Duration().Minutes(), win.PhaseErr, win.AirmassMin, win.AirmassMax,
-				win.Exposures, fmtG(gw.Goal.ExposureS), planner.SafetyCaution)
-			cal.Events = append(cal.Events, ical.Event{
-				UID: windowUID(gw, win), Stamp: stamp, Start: win.Start, End: win.End,
-				Summary:     fmt.Sprintf("%s phase %.3f", gw.Target, gw.Goal.Center),
-				Description: desc, Categories: []string{"phasecast", "queue window"},
-			})
-		}
-	}
-	return ical.Encode(w, cal)
 }
 
 func printWindows(w io.Writer, got []planner.GoalWindows, site ephem.Site, loc *time.Location, t0, t1 time.Time, c planner.Constraints) error {

@@ -8,7 +8,8 @@ import (
 	"testing"
 	"time"
 
-	"phasecast/web/ical"
+	"phasecast/planner/export"
+	"phasecast/planner/export/exporttest"
 )
 
 var windowsArgs = []string{"--from", "2026-05-01", "--to", "2026-05-21"}
@@ -23,34 +24,36 @@ func windowsRun(t *testing.T, extra ...string) string {
 	return stdout
 }
 
-type windowsOutTest struct {
-	Goals []struct {
-		Target    string  `json:"target"`
-		PhaseGoal float64 `json:"phase_goal"`
-		Windows   []struct {
-			Start     string `json:"start"`
-			End       string `json:"end"`
-			Exposures int    `json:"exposures"`
-		} `json:"windows"`
-	} `json:"goals"`
+// windowGroups decodes the windows document out and groups its flat list
+// by goal (target, phase and event, in the document's order).
+func windowGroups(t *testing.T, out string) [][]export.Window {
+	t.Helper()
+	var d export.Windows
+	if err := json.Unmarshal([]byte(out), &d); err != nil {
+		t.Fatal(err)
+	}
+	var groups [][]export.Window
+	for i, w := range d.Windows {
+		if i == 0 || w.Target != d.Windows[i-1].Target || w.PhaseGoal != d.Windows[i-1].PhaseGoal || w.Event != d.Windows[i-1].Event {
+			groups = append(groups, nil)
+		}
+		groups[len(groups)-1] = append(groups[len(groups)-1], w)
+	}
+	return groups
 }
 
 // TestWindowsFormats checks that the JSON, CSV and iCalendar outputs carry
 // the same windows, sorted and disjoint per goal.
 func TestWindowsFormats(t *testing.T) {
-	var js windowsOutTest
-	if err := json.Unmarshal([]byte(windowsRun(t, "--format", "json", "--target", "Mirel-9")), &js); err != nil {
-		t.Fatal(err)
-	}
-	if len(js.Goals) != 2 || js.Goals[0].Target != "Mirel-9" {
-		t.Fatalf("goals %+v", js.Goals)
+	groups := windowGroups(t, windowsRun(t, "--format", "json", "--target", "Mirel-9"))
+	if len(groups) != 2 || groups[0][0].Target != "Mirel-9" {
+		t.Fatalf("goals %+v", groups)
 	}
 	n := 0
-	for _, g := range js.Goals {
+	for _, g := range groups {
 		var prev time.Time
-		for _, w := range g.Windows {
-			s, _ := time.Parse(time.RFC3339, w.Start)
-			e, _ := time.Parse(time.RFC3339, w.End)
+		for _, w := range g {
+			s, e := time.Time(w.Start), time.Time(w.End)
 			if !e.After(s) || !s.After(prev) {
 				t.Errorf("window %s–%s not after the previous one (%v) or empty", w.Start, w.End, prev)
 			}
@@ -65,10 +68,10 @@ func TestWindowsFormats(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if strings.Join(rows[0], ",") != strings.Join(windowsCSVHeader, ",") || len(rows)-1 != n {
-		t.Errorf("CSV header %v and %d rows; want %v and %d", rows[0], len(rows)-1, windowsCSVHeader, n)
+	if strings.Join(rows[0], ",") != strings.Join(export.WindowsCSVHeader, ",") || len(rows)-1 != n {
+		t.Errorf("CSV header %v and %d rows; want %v and %d", rows[0], len(rows)-1, export.WindowsCSVHeader, n)
 	}
-	cal, err := ical.Parse(strings.NewReader(windowsRun(t, "--format", "ics", "--target", "Mirel-9")))
+	cal, err := exporttest.ParseICal(strings.NewReader(windowsRun(t, "--format", "ics", "--target", "Mirel-9")))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -76,9 +79,9 @@ func TestWindowsFormats(t *testing.T) {
 		t.Errorf("%d events, want %d", len(cal.Events), n)
 	}
 	k := 0
-	for _, g := range js.Goals {
-		for _, w := range g.Windows {
-			s, _ := time.Parse(time.RFC3339, w.Start)
+	for _, g := range groups {
+		for _, w := range g {
+			s := time.Time(w.Start)
 			if !cal.Events[k].Start.Equal(s.Truncate(time.Second)) {
 				t.Errorf("event %d starts %v, JSON window %v", k, cal.Events[k].Start, s)
 			}
@@ -162,18 +165,12 @@ func TestWindowsICSRules(t *testing.T) {
 // TestWindowsGoalAndTarget checks --target and --goal: an event name gives
 // its windows, a phase its own, and the human sheet names them.
 func TestWindowsGoalAndTarget(t *testing.T) {
-	var js windowsOutTest
-	if err := json.Unmarshal([]byte(windowsRun(t, "--format", "json", "--target", "Tarn-4", "--goal", "0.5", "--halfwidth", "0.02")), &js); err != nil {
-		t.Fatal(err)
+	groups := windowGroups(t, windowsRun(t, "--format", "json", "--target", "Tarn-4", "--goal", "0.5", "--halfwidth", "0.02"))
+	if len(groups) != 1 || groups[0][0].PhaseGoal != 0.5 || groups[0][0].PhaseHalfWidth != 0.02 {
+		t.Fatalf("goals %+v", groups)
 	}
-	if len(js.Goals) != 1 || js.Goals[0].PhaseGoal != 0.5 || len(js.Goals[0].Windows) == 0 {
-		t.Fatalf("goals %+v", js.Goals)
-	}
-	if err := json.Unmarshal([]byte(windowsRun(t, "--format", "json", "--target", "Tarn-4", "--goal", "quadratures")), &js); err != nil {
-		t.Fatal(err)
-	}
-	if len(js.Goals) != 2 {
-		t.Errorf("quadratures gave %d lists, want 2", len(js.Goals))
+	if groups = windowGroups(t, windowsRun(t, "--format", "json", "--target", "Tarn-4", "--goal", "quadratures")); len(groups) != 2 {
+		t.Errorf("quadratures gave %d lists, want 2", len(groups))
 	}
 	human := windowsRun(t, "--target", "Suvi-7", "--tz", "America/Santiago")
 	for _, want := range []string{"Suvi-7, phase 0.250 ± 0.040", "Start UTC", "Caution"} {

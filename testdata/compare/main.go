@@ -147,8 +147,8 @@ func run(args []string, stdout io.Writer) error {
 		LatDeg:         site.LatDeg,
 		LonEastDeg:     site.LonEastDeg,
 		ElevM:          site.ElevM,
-		Refraction:     "Saemundsson, Meeus (16.4), standard 1010 hPa and 10 °C (ephem.Site.RefractedAltDeg)",
-		AirmassFormula: "Kasten & Young (1989), eq. 3 (ephem.Airmass)",
+		Refraction:     "Saemundsson, Meeus (16.4), standard 1010 hPa and 10 °C (ephem.Site.RefractedAltDeg; the fast paths read it from ephem.AirTable)",
+		AirmassFormula: "Kasten & Young (1989), eq. 3 (ephem.Airmass; the fast paths read it from ephem.AirTable)",
 		NightDate:      nightDate,
 		NightZone:      nightZone,
 		From:           from.Format(time.RFC3339),
@@ -169,9 +169,9 @@ func run(args []string, stdout io.Writer) error {
 	scratch := newResult(n)
 	var gridErr error
 	o.Timings = []timing{
-		bestOf("fast", "phasecast fast path: NewSkyFrame + 100 Track + Track.AltAzUnix per sample, RefractedAltDeg, Airmass",
+		bestOf("fast", "phasecast fast path: NewSkyFrame + 100 Track + Track.AltAzUnix per sample, AirTable.RefractedAirmass",
 			*reps, func() { fastPath(stars, from, to, unix, fast) }),
-		bestOf("grid", "phasecast fast path with a shared TimeGrid: NewSkyFrame + Grid + 100 Track + Track.AltAzGrid, RefractedAltDeg, Airmass",
+		bestOf("grid", "phasecast fast path with a shared TimeGrid: NewSkyFrame + Grid + 100 Track + Track.AltAzGrid, AirTable.RefractedAirmass",
 			*reps, func() {
 				if err := gridPath(stars, from, to, len(unix), grid); err != nil {
 					gridErr = err
@@ -193,6 +193,18 @@ func run(args []string, stdout io.Writer) error {
 	// full alt/az; say so if not rather than compare the wrong numbers.
 	if d := maxAbsDiff(fast.AltDeg, grid.AltDeg); d > 1e-9 {
 		return fmt.Errorf("AltAzUnix and AltAzGrid differ by %.3g° (expected rounding only)", d)
+	}
+	// The table must match the formulas on the fast path's own altitudes.
+	byFormula := newResult(n)
+	copy(byFormula.AltDeg, fast.AltDeg)
+	for k := range n {
+		byFormula.finish(k)
+	}
+	if d := maxAbsDiff(fast.AltRefractedDeg, byFormula.AltRefractedDeg); d*3600 > 0.01 {
+		return fmt.Errorf("AirTable refraction differs from Site.RefractedAltDeg by %.3g″ (limit 0.01″)", d*3600)
+	}
+	if d := maxAbsDiff(fast.Airmass, byFormula.Airmass); d > 1e-6 {
+		return fmt.Errorf("AirTable airmass differs from Airmass by %.3g (limit 1e-6)", d)
 	}
 	if d := maxAbsDiff(full.AltDeg, obs.AltDeg); d > 1e-12 {
 		return fmt.Errorf("ApparentPlace+Horizontal and Observe differ by %.3g°", d)
@@ -267,8 +279,19 @@ func bestOf(key, what string, reps int, f func()) timing {
 	return t
 }
 
+// finishFast fills the refracted altitude and airmass of sample k from its
+// airless altitude with the fast path's table (ephem.AirTable).
+func (r *result) finishFast(tab *ephem.AirTable, k int) {
+	h, x, ok := tab.RefractedAirmass(r.AltDeg[k])
+	r.AltRefractedDeg[k] = h
+	if !ok {
+		x = 0
+	}
+	r.Airmass[k] = x
+}
+
 // finish fills the refracted altitude and airmass of sample k from its
-// airless altitude.
+// airless altitude by the full formulas.
 func (r *result) finish(k int) {
 	h := site.RefractedAltDeg(r.AltDeg[k])
 	r.AltRefractedDeg[k] = h
@@ -281,13 +304,14 @@ func (r *result) finish(k int) {
 
 func fastPath(stars []ephem.Star, from, to time.Time, unix []float64, r *result) {
 	frame := ephem.NewSkyFrame(site, from, to)
+	tab := site.AirTable()
 	for j, st := range stars {
 		tr := frame.Track(st)
 		base := j * len(unix)
 		for i, u := range unix {
 			k := base + i
 			r.AltDeg[k], r.AzDeg[k] = tr.AltAzUnix(u)
-			r.finish(k)
+			r.finishFast(tab, k)
 		}
 	}
 }
@@ -309,11 +333,12 @@ func gridPath(stars []ephem.Star, from, to time.Time, n int, r *result) error {
 	if err != nil {
 		return err
 	}
+	tab := site.AirTable()
 	for j, st := range stars {
 		base := j * n
 		frame.Track(st).AltAzGrid(g, r.AltDeg[base:base+n], r.AzDeg[base:base+n])
 		for k := base; k < base+n; k++ {
-			r.finish(k)
+			r.finishFast(tab, k)
 		}
 	}
 	return nil

@@ -1307,7 +1307,7 @@ func TargetEdit(c Chrome, v TargetForm) templ.Component {
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}
-			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 102, "<div class=\"tablewrap\"><table><thead><tr><th>Phase or event</th><th>± half-width</th><th>Exposure (s)</th><th>Readout (s)</th><th>Exposures (0 = as many as fit)</th><th>Nights</th><th>Eclipse length (d)</th></tr></thead> <tbody>")
+			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 102, "<div class=\"tablewrap\"><table><thead><tr><th>Phase or event</th><th>± half-width</th><th>Exposure (s)</th><th>Readout (s)</th><th>Exposures (0 = cover the window once, −1 = as many as fit)</th><th>Nights</th><th>Eclipse length (d)</th></tr></thead> <tbody>")
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}

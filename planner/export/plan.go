@@ -1,4 +1,4 @@
-package planner
+package export
 
 import (
 	"encoding/json"
@@ -6,7 +6,7 @@ import (
 	"fmt"
 	"time"
 
-	"phasecast/ephem"
+	"phasecast/planner"
 )
 
 // PlanDoc is the JSON document of one planned night, shared by
@@ -145,7 +145,7 @@ type ConstraintsDoc struct {
 	AcquireS      float64  `json:"acquire_s"`
 }
 
-// ObjectiveDoc is the schedule's value (Plan.Value), the greedy baseline's,
+// ObjectiveDoc is the schedule's value (planner.Plan.Value), the greedy baseline's,
 // whether the optimum was proven, and the size of the search.
 type ObjectiveDoc struct {
 	Value       int64 `json:"value"`
@@ -203,14 +203,14 @@ func (t *DocSecond) UnmarshalJSON(b []byte) error {
 func parseDocTime(b []byte) (time.Time, error) {
 	var s string
 	if err := json.Unmarshal(b, &s); err != nil {
-		return time.Time{}, fmt.Errorf("time %s: not a JSON string; want RFC 3339", ClipValue(string(b)))
+		return time.Time{}, fmt.Errorf("time %s: not a JSON string; want RFC 3339", planner.ClipValue(string(b)))
 	}
-	u, err := ephem.ParseTimeLayout(time.RFC3339Nano, s)
-	if errors.Is(err, ErrNotLeapSecond) {
-		return time.Time{}, fmt.Errorf("time %q: %w", ClipValue(s), err)
+	u, err := planner.ParseTimeLayout(time.RFC3339Nano, s)
+	if errors.Is(err, planner.ErrNotLeapSecond) {
+		return time.Time{}, fmt.Errorf("time %q: %w", planner.ClipValue(s), err)
 	}
 	if err != nil {
-		return time.Time{}, fmt.Errorf("time %q: not RFC 3339 (e.g. 2026-12-01T23:18:56Z)", ClipValue(s))
+		return time.Time{}, fmt.Errorf("time %q: not RFC 3339 (e.g. 2026-12-01T23:18:56Z)", planner.ClipValue(s))
 	}
 	return u.UTC(), nil
 }
@@ -225,7 +225,7 @@ func optSecond(t *time.Time) *DocSecond {
 }
 
 // NewNightDoc is the document of a night's events.
-func NewNightDoc(ev NightEvents) NightDoc {
+func NewNightDoc(ev planner.NightEvents) NightDoc {
 	return NightDoc{
 		Sunset: optSecond(ev.Sunset), CivilDusk: optSecond(ev.CivilDusk),
 		NauticalDusk: optSecond(ev.NauticalDusk), AstronomicalDusk: optSecond(ev.AstronomicalDusk),
@@ -237,7 +237,7 @@ func NewNightDoc(ev NightEvents) NightDoc {
 }
 
 // NewBlockDoc is the document of one block, with every figure.
-func NewBlockDoc(b Block) BlockDoc {
+func NewBlockDoc(b planner.Block) BlockDoc {
 	bd := BlockDoc{
 		Target: b.Target, Event: b.Goal.Event, Start: DocTime(b.Start), End: DocTime(b.End), NExposures: b.N,
 		ExposureS: b.ExposureS, OverheadS: b.OverheadS, PhaseStart: b.PhaseStart, PhaseEnd: b.PhaseEnd,
@@ -265,14 +265,14 @@ func NewBlockDoc(b Block) BlockDoc {
 }
 
 // NewUnscheduledDoc is the document of a goal left out.
-func NewUnscheduledDoc(u Unscheduled) UnscheduledDoc {
+func NewUnscheduledDoc(u planner.Unscheduled) UnscheduledDoc {
 	return UnscheduledDoc{Target: u.Target, PhaseGoal: u.Goal.Center, Reason: u.Detail, Code: string(u.Reason)}
 }
 
 // NewConstraintsDoc is the document of resolved constraints c; acquireS is
 // the acquisition overhead per visit in seconds the caller applied to every
 // target (each block carries its own in BlockDoc.AcquireS).
-func NewConstraintsDoc(c Constraints, acquireS float64) ConstraintsDoc {
+func NewConstraintsDoc(c planner.Constraints, acquireS float64) ConstraintsDoc {
 	d := ConstraintsDoc{Twilight: string(c.Twilight), SunAltMaxDeg: c.SunAltMaxDeg, MaxAirmass: c.MaxAirmass,
 		MinAltDeg: c.MinAltDeg, MinMoonSepDeg: c.MinMoonSepDeg, MaxMoonIllum: c.MaxMoonIllum, ZenithExclDeg: c.ZenithExclDeg,
 		SunAvoidDeg: c.SunAvoidDeg, HorizonPoints: len(c.Horizon), AcquireS: acquireS}
@@ -286,8 +286,8 @@ func NewConstraintsDoc(c Constraints, acquireS float64) ConstraintsDoc {
 // NewPlanDoc is the document of plan p, whose night has events ev;
 // acquireS is as for NewConstraintsDoc. Repeated warnings (same code, target
 // and message) are given once; a warning about one goal carries its centre.
-// Caution is SafetyCaution.
-func NewPlanDoc(p *Plan, ev NightEvents, acquireS float64) PlanDoc {
+// Caution is the package's Caution.
+func NewPlanDoc(p *planner.Plan, ev planner.NightEvents, acquireS float64) PlanDoc {
 	d := PlanDoc{
 		Night:       NewNightDoc(ev),
 		Blocks:      []BlockDoc{},
@@ -298,7 +298,7 @@ func NewPlanDoc(p *Plan, ev NightEvents, acquireS float64) PlanDoc {
 		Constraints: NewConstraintsDoc(p.Constraints, acquireS),
 		Objective: ObjectiveDoc{Value: p.Value, GreedyValue: p.GreedyValue, Optimal: p.Optimal,
 			Candidates: p.Candidates, Rounds: p.Rounds, States: p.States},
-		Caution: SafetyCaution,
+		Caution: Caution,
 	}
 	for _, dk := range p.Dark {
 		d.Dark = append(d.Dark, IntervalDoc{DocTime(dk.Start), DocTime(dk.End)})
@@ -350,4 +350,16 @@ func NewPlanDoc(p *Plan, ev NightEvents, acquireS float64) PlanDoc {
 		d.Visibility = append(d.Visibility, vd)
 	}
 	return d
+}
+
+// UnmarshalJSON reads a warning, or a bare message (the saved run plans
+// of earlier versions gave a night's warnings as messages only).
+func (w *WarningDoc) UnmarshalJSON(b []byte) error {
+	var msg string
+	if json.Unmarshal(b, &msg) == nil {
+		*w = WarningDoc{Message: msg}
+		return nil
+	}
+	type plain WarningDoc
+	return json.Unmarshal(b, (*plain)(w))
 }

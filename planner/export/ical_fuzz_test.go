@@ -1,10 +1,10 @@
-package ical_test
+package export_test
 
 // Hostile input for the iCalendar encoder and reader (issue "Proof under
 // load, faults and hostile input"). Seed corpora are committed under
-// testdata/fuzz/ so that `go test ./web/ical/` replays them; run longer with
+// testdata/fuzz/ so that `go test ./planner/export/` replays them; run longer with
 //
-//	go test -run='^$' -fuzz='^FuzzHostileICalRoundTrip$' -fuzztime=60s ./web/ical/
+//	go test -run='^$' -fuzz='^FuzzHostileICalRoundTrip$' -fuzztime=60s ./planner/export/
 
 import (
 	"bytes"
@@ -14,7 +14,8 @@ import (
 	"time"
 	"unicode/utf8"
 
-	"phasecast/web/ical"
+	"phasecast/planner/export"
+	"phasecast/planner/export/exporttest"
 )
 
 // hostileText is what a TEXT value becomes on the way through Encode (RFC
@@ -66,11 +67,11 @@ func FuzzHostileICalRoundTrip(f *testing.F) {
 		// Keep times within a few centuries of now: the encoder's callers
 		// (plans, queue windows) never go further.
 		start := base.Add(time.Duration(offsetS%(200*365*86400)) * time.Second)
-		ev := ical.Event{UID: uid, Stamp: base, Start: start, End: start.Add(time.Duration(durS) * time.Second),
+		ev := export.Event{UID: uid, Stamp: base, Start: start, End: start.Add(time.Duration(durS) * time.Second),
 			Summary: summary, Description: desc, Location: loc, Categories: []string{cat1, cat2}}
-		in := ical.Calendar{ProdID: "-//phasecast//hostile//EN", Name: summary, Events: []ical.Event{ev}}
+		in := export.Calendar{ProdID: "-//phasecast//hostile//EN", Name: summary, Events: []export.Event{ev}}
 		var buf bytes.Buffer
-		if err := ical.Encode(&buf, in); err != nil {
+		if err := export.EncodeICal(&buf, in); err != nil {
 			if strings.TrimSpace(hostileText(uid)) != "" {
 				t.Fatalf("Encode refused an event with UID %q: %v", uid, err)
 			}
@@ -80,14 +81,14 @@ func FuzzHostileICalRoundTrip(f *testing.F) {
 		if strings.TrimSpace(hostileText(uid)) == "" {
 			t.Fatalf("Encode wrote an event whose UID %q is empty once escaped (RFC 5545 §3.8.4.7 requires one)", uid)
 		}
-		got, err := ical.Parse(bytes.NewReader(buf.Bytes()))
+		got, err := exporttest.ParseICal(bytes.NewReader(buf.Bytes()))
 		if err != nil {
 			t.Fatalf("Parse of Encode's output: %v\n%s", err, buf.String())
 		}
 		if len(got.Events) != 1 {
 			t.Fatalf("%d events read back, want 1", len(got.Events))
 		}
-		want := ical.Event{UID: hostileText(uid), Stamp: base, Start: start.Truncate(time.Second), End: ev.End.Truncate(time.Second),
+		want := export.Event{UID: hostileText(uid), Stamp: base, Start: start.Truncate(time.Second), End: ev.End.Truncate(time.Second),
 			Summary: hostileText(summary), Description: hostileText(desc), Location: hostileText(loc),
 			Categories: []string{hostileText(cat1), hostileText(cat2)}}
 		if !reflect.DeepEqual(got.Events[0], want) {
@@ -104,7 +105,7 @@ func FuzzHostileICalRoundTrip(f *testing.F) {
 // refused by Encode with an error).
 func FuzzHostileICalParse(f *testing.F) {
 	var buf bytes.Buffer
-	if err := ical.Encode(&buf, sample()); err != nil {
+	if err := export.EncodeICal(&buf, sample()); err != nil {
 		f.Fatal(err)
 	}
 	f.Add(buf.Bytes())
@@ -115,9 +116,9 @@ func FuzzHostileICalParse(f *testing.F) {
 	f.Add([]byte("SUMMARY:\\\r\n"))
 	f.Add([]byte("CATEGORIES:a\\,b,\\\r\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		c, err := ical.Parse(bytes.NewReader(data))
+		c, err := exporttest.ParseICal(bytes.NewReader(data))
 		if err != nil {
-			if !strings.HasPrefix(err.Error(), "ical: ") {
+			if !strings.HasPrefix(err.Error(), "iCalendar: ") {
 				t.Fatalf("error %q does not say where it comes from", err)
 			}
 			return
@@ -128,7 +129,7 @@ func FuzzHostileICalParse(f *testing.F) {
 			}
 		}
 		var out bytes.Buffer
-		if err := ical.Encode(&out, c); err == nil {
+		if err := export.EncodeICal(&out, c); err == nil {
 			checkPhysicalLines(t, out.Bytes())
 		}
 	})
@@ -140,16 +141,16 @@ func TestHostileICalOversize(t *testing.T) {
 	stamp := time.Date(2026, 3, 14, 12, 0, 0, 0, time.UTC)
 	desc := strings.Repeat("é✓x", 10<<20/6)
 	var buf bytes.Buffer
-	err := ical.Encode(&buf, ical.Calendar{Events: []ical.Event{{UID: "u@phasecast", Stamp: stamp, Start: stamp, End: stamp, Description: desc}}})
+	err := export.EncodeICal(&buf, export.Calendar{Events: []export.Event{{UID: "u@phasecast", Stamp: stamp, Start: stamp, End: stamp, Description: desc}}})
 	if err != nil {
 		t.Fatalf("Encode: %v", err)
 	}
 	checkPhysicalLines(t, buf.Bytes())
-	c, err := ical.Parse(bytes.NewReader(buf.Bytes()))
+	c, err := exporttest.ParseICal(bytes.NewReader(buf.Bytes()))
 	if err != nil || len(c.Events) != 1 || c.Events[0].Description != desc {
 		t.Fatalf("10 MB description did not read back: %v", err)
 	}
-	_, err = ical.Parse(strings.NewReader("BEGIN:VCALENDAR\r\n" + strings.Repeat("X", 10<<20) + "\r\n"))
+	_, err = exporttest.ParseICal(strings.NewReader("BEGIN:VCALENDAR\r\n" + strings.Repeat("X", 10<<20) + "\r\n"))
 	if err == nil || !strings.Contains(err.Error(), "physical line 2") || len(err.Error()) > 200 {
 		t.Fatalf("a 10 MB line: err = %.300v, want a short error naming physical line 2", err)
 	}

@@ -1,11 +1,11 @@
-package planner_test
+package export_test
 
 import (
 	"regexp"
 	"strings"
 	"testing"
 
-	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 // TestSafeCSVCell checks what SafeCSVCell makes of each cell and that
@@ -43,11 +43,11 @@ func TestSafeCSVCell(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			got := planner.SafeCSVCell(tc.in)
+			got := export.SafeCSVCell(tc.in)
 			if got != tc.out {
 				t.Errorf("SafeCSVCell(%q) = %q, want %q", tc.in, got, tc.out)
 			}
-			if back := planner.UnquoteCSVCell(got); back != tc.in {
+			if back := export.UnquoteCSVCell(got); back != tc.in {
 				t.Errorf("UnquoteCSVCell(%q) = %q, want %q", got, back, tc.in)
 			}
 		})
@@ -67,21 +67,21 @@ func runnable(cell string) bool {
 // apostrophe, what it returns is never runnable, and UnquoteCSVCell gives
 // the cell back. Run longer with
 //
-//	go test -run='^$' -fuzz='^FuzzSafeCSVCell$' -fuzztime=30s ./planner/
+//	go test -run='^$' -fuzz='^FuzzSafeCSVCell$' -fuzztime=30s ./planner/export/
 func FuzzSafeCSVCell(f *testing.F) {
 	for _, s := range []string{"=cmd|' /C calc'!A0", "+1+cmd|' /C calc'!A0", "-1+1", "@SUM(A1:A2)", "=HYPERLINK(\"http://x\")", "-2-3",
 		"", "-12.5", "+1e5", "-12:30:00", "-12 30", "\t=1", "\r=1", "'=x", "''-1", "'-12:30", "=", "-", "+-1", "-1e", "\xff", "-٣"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {
-		out := planner.SafeCSVCell(s)
+		out := export.SafeCSVCell(s)
 		if out != s && out != "'"+s {
 			t.Fatalf("SafeCSVCell(%q) = %q: neither the cell nor the cell after an apostrophe", s, out)
 		}
 		if runnable(out) {
 			t.Fatalf("SafeCSVCell(%q) = %q is still runnable", s, out)
 		}
-		if back := planner.UnquoteCSVCell(out); back != s {
+		if back := export.UnquoteCSVCell(out); back != s {
 			t.Fatalf("UnquoteCSVCell(SafeCSVCell(%q)) = %q", s, back)
 		}
 	})

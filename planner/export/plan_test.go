@@ -1,4 +1,4 @@
-package planner_test
+package export_test
 
 import (
 	"encoding/json"
@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"phasecast/planner"
+	"phasecast/planner/export"
 )
 
 func TestDocTime(t *testing.T) {
@@ -23,14 +24,14 @@ func TestDocTime(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			b, err := json.Marshal(planner.DocTime(tt.in))
+			b, err := json.Marshal(export.DocTime(tt.in))
 			if err != nil {
 				t.Fatal(err)
 			}
 			if got := string(b); got != tt.want {
 				t.Fatalf("got %s, want %s", got, tt.want)
 			}
-			var back planner.DocTime
+			var back export.DocTime
 			if err := json.Unmarshal(b, &back); err != nil {
 				t.Fatal(err)
 			}
@@ -52,7 +53,7 @@ func TestDocSecond(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			b, err := json.Marshal(planner.DocSecond(tt.in))
+			b, err := json.Marshal(export.DocSecond(tt.in))
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -66,7 +67,7 @@ func TestDocSecond(t *testing.T) {
 func TestDocTimeBadInput(t *testing.T) {
 	for _, in := range []string{`12`, `"2026-12-01 23:18:56"`, `"yesterday"`} {
 		t.Run(in, func(t *testing.T) {
-			var d planner.DocTime
+			var d export.DocTime
 			err := json.Unmarshal([]byte(in), &d)
 			if err == nil || !strings.Contains(err.Error(), "RFC 3339") {
 				t.Errorf("got %v, want an error naming RFC 3339", err)
@@ -97,7 +98,7 @@ func TestNewPlanDoc(t *testing.T) {
 		},
 		Value: 7,
 	}
-	b, err := json.Marshal(planner.NewPlanDoc(p, planner.NightEvents{Sunset: &sunset, MoonIlluminated: 0.5}, 120))
+	b, err := json.Marshal(export.NewPlanDoc(p, planner.NightEvents{Sunset: &sunset, MoonIlluminated: 0.5}, 120))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -160,7 +161,7 @@ func TestNewPlanDoc(t *testing.T) {
 // leap-second day (RFC 3339 §5.6), read as the instant it ends; elsewhere
 // it is refused, saying why.
 func TestDocTimeLeapSecond(t *testing.T) {
-	var got planner.DocTime
+	var got export.DocTime
 	if err := json.Unmarshal([]byte(`"2016-12-31T23:59:60Z"`), &got); err != nil {
 		t.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package ical_test
+package export_test
 
 import (
 	"bytes"
@@ -10,16 +10,17 @@ import (
 	"time"
 	"unicode/utf8"
 
-	"phasecast/web/ical"
+	"phasecast/planner/export"
+	"phasecast/planner/export/exporttest"
 )
 
-func sample() ical.Calendar {
+func sample() export.Calendar {
 	stamp := time.Date(2026, 3, 14, 12, 0, 0, 0, time.UTC)
 	start := time.Date(2026, 3, 14, 21, 30, 0, 0, time.UTC)
-	return ical.Calendar{
+	return export.Calendar{
 		ProdID: "-//phasecast//night plan//EN",
 		Name:   "Night 2026-03-14, Hill station",
-		Events: []ical.Event{{
+		Events: []export.Event{{
 			UID:   "block-1a2b3c@phasecast",
 			Stamp: stamp, Start: start, End: start.Add(42 * time.Minute),
 			Summary: "PX-7; quadrature, φ 0.25",
@@ -40,7 +41,7 @@ func sample() ical.Calendar {
 // single whitespace. We also check that no fold splits a UTF-8 character.
 func TestEncodeLineRules(t *testing.T) {
 	var buf bytes.Buffer
-	if err := ical.Encode(&buf, sample()); err != nil {
+	if err := export.EncodeICal(&buf, sample()); err != nil {
 		t.Fatal(err)
 	}
 	out := buf.String()
@@ -71,7 +72,7 @@ func TestEncodeLineRules(t *testing.T) {
 // §3.3.5 (UTC date-time form).
 func TestEncodeRequiredProperties(t *testing.T) {
 	var buf bytes.Buffer
-	if err := ical.Encode(&buf, sample()); err != nil {
+	if err := export.EncodeICal(&buf, sample()); err != nil {
 		t.Fatal(err)
 	}
 	out := buf.String()
@@ -89,10 +90,10 @@ func TestEncodeRequiredProperties(t *testing.T) {
 
 func TestEncodeIsStable(t *testing.T) {
 	var a, b bytes.Buffer
-	if err := ical.Encode(&a, sample()); err != nil {
+	if err := export.EncodeICal(&a, sample()); err != nil {
 		t.Fatal(err)
 	}
-	if err := ical.Encode(&b, sample()); err != nil {
+	if err := export.EncodeICal(&b, sample()); err != nil {
 		t.Fatal(err)
 	}
 	if a.String() != b.String() {
@@ -103,10 +104,10 @@ func TestEncodeIsStable(t *testing.T) {
 func TestRoundTrip(t *testing.T) {
 	var buf bytes.Buffer
 	in := sample()
-	if err := ical.Encode(&buf, in); err != nil {
+	if err := export.EncodeICal(&buf, in); err != nil {
 		t.Fatal(err)
 	}
-	got, err := ical.Parse(&buf)
+	got, err := exporttest.ParseICal(&buf)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -119,19 +120,19 @@ func TestEncodeRejects(t *testing.T) {
 	base := sample().Events[1]
 	tests := []struct {
 		name string
-		edit func(*ical.Event)
+		edit func(*export.Event)
 		want string
 	}{
-		{"ErrNoUID", func(e *ical.Event) { e.UID = " " }, "UID"},
-		{"ErrUIDOnlyControls", func(e *ical.Event) { e.UID = "\x01\x7f\r \x00" }, "UID"},
-		{"ErrNoStamp", func(e *ical.Event) { e.Stamp = time.Time{} }, "DTSTAMP"},
-		{"ErrEndBeforeStart", func(e *ical.Event) { e.End = e.Start.Add(-time.Minute) }, "end must not be before"},
+		{"ErrNoUID", func(e *export.Event) { e.UID = " " }, "UID"},
+		{"ErrUIDOnlyControls", func(e *export.Event) { e.UID = "\x01\x7f\r \x00" }, "UID"},
+		{"ErrNoStamp", func(e *export.Event) { e.Stamp = time.Time{} }, "DTSTAMP"},
+		{"ErrEndBeforeStart", func(e *export.Event) { e.End = e.Start.Add(-time.Minute) }, "end must not be before"},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			e := base
 			tt.edit(&e)
-			err := ical.Encode(&bytes.Buffer{}, ical.Calendar{Events: []ical.Event{e}})
+			err := export.EncodeICal(&bytes.Buffer{}, export.Calendar{Events: []export.Event{e}})
 			if err == nil || !strings.Contains(err.Error(), tt.want) {
 				t.Errorf("Encode error = %v, want one mentioning %q", err, tt.want)
 			}
@@ -150,7 +151,7 @@ func TestParseRejects(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			if _, err := ical.Parse(strings.NewReader(tt.in)); err == nil {
+			if _, err := exporttest.ParseICal(strings.NewReader(tt.in)); err == nil {
 				t.Error("Parse accepted a malformed calendar")
 			}
 		})
@@ -161,12 +162,12 @@ func TestParseRejects(t *testing.T) {
 // excluding the line break."
 func Example() {
 	start := time.Date(2026, 3, 14, 21, 30, 0, 0, time.UTC)
-	cal := ical.Calendar{ProdID: "-//phasecast//example//EN", Events: []ical.Event{{
+	cal := export.Calendar{ProdID: "-//phasecast//example//EN", Events: []export.Event{{
 		UID: "block-1@phasecast", Stamp: start.Add(-10 * time.Hour), Start: start, End: start.Add(30 * time.Minute),
 		Summary: "T-3 quadrature; 10 × 150 s",
 	}}}
 	var buf bytes.Buffer
-	if err := ical.Encode(&buf, cal); err != nil {
+	if err := export.EncodeICal(&buf, cal); err != nil {
 		fmt.Println(err)
 		return
 	}
@@ -194,14 +195,14 @@ func TestParseLeapSecond(t *testing.T) {
 		return "BEGIN:VCALENDAR\r\nPRODID:-//t//t//EN\r\nVERSION:2.0\r\nBEGIN:VEVENT\r\nUID:a\r\nDTSTAMP:" + stamp +
 			"\r\nDTSTART:20170101T000000Z\r\nDTEND:20170101T001000Z\r\nSUMMARY:s\r\nEND:VEVENT\r\nEND:VCALENDAR\r\n"
 	}
-	c, err := ical.Parse(strings.NewReader(cal("20161231T235960Z")))
+	c, err := exporttest.ParseICal(strings.NewReader(cal("20161231T235960Z")))
 	if err != nil {
 		t.Fatalf("leap second refused: %v", err)
 	}
 	if want := time.Date(2017, 1, 1, 0, 0, 0, 0, time.UTC); len(c.Events) != 1 || !c.Events[0].Stamp.Equal(want) {
 		t.Errorf("events %+v, want DTSTAMP %v", c.Events, want)
 	}
-	if _, err := ical.Parse(strings.NewReader(cal("20170630T235960Z"))); err == nil || !strings.Contains(err.Error(), "leap second") {
+	if _, err := exporttest.ParseICal(strings.NewReader(cal("20170630T235960Z"))); err == nil || !strings.Contains(err.Error(), "leap second") {
 		t.Errorf("second 60 on an ordinary day: %v", err)
 	}
 }

@@ -1,6 +1,5 @@
-// Package ical writes iCalendar (RFC 5545) files of events, for exporting
-// planned blocks and queue windows to calendars, and reads back the subset it
-// writes (for tests and round trips).
+// iCalendar (RFC 5545) files of events, for exporting planned blocks and
+// queue windows to calendars.
 //
 // What it follows from RFC 5545:
 //   - §3.1: content lines end in CRLF and are folded so that no line exceeds
@@ -13,18 +12,15 @@
 //     Callers pass stable UIDs and a stable DTSTAMP (the time the plan was
 //     made), so that exporting the same plan twice gives the same file and a
 //     calendar updates events instead of duplicating them.
-package ical
+package export
 
 import (
 	"bufio"
-	"errors"
 	"fmt"
 	"io"
 	"strings"
 	"time"
 	"unicode/utf8"
-
-	"phasecast/planner"
 )
 
 // Calendar is one iCalendar object.
@@ -48,18 +44,18 @@ type Event struct {
 // utcFormat is the UTC DATE-TIME form of RFC 5545 §3.3.5 (FORM #2).
 const utcFormat = "20060102T150405Z"
 
-// Encode writes c to w. It refuses an event without UID (once its control
+// EncodeICal writes c to w. It refuses an event without UID (once its control
 // characters, which TEXT cannot hold, are dropped), without DTSTAMP or
 // ending before it starts.
-func Encode(w io.Writer, c Calendar) error {
+func EncodeICal(w io.Writer, c Calendar) error {
 	for i, e := range c.Events {
 		switch {
 		case strings.TrimSpace(dropControls(e.UID)) == "":
-			return fmt.Errorf("ical: event %d (%q): UID is empty once control characters are dropped; a stable unique id is required (RFC 5545 §3.8.4.7)", i+1, e.Summary)
+			return fmt.Errorf("iCalendar: event %d (%q): UID is empty once control characters are dropped; a stable unique id is required (RFC 5545 §3.8.4.7)", i+1, e.Summary)
 		case e.Stamp.IsZero():
-			return fmt.Errorf("ical: event %d (%q): DTSTAMP is zero; required (RFC 5545 §3.8.7.2)", i+1, e.Summary)
+			return fmt.Errorf("iCalendar: event %d (%q): DTSTAMP is zero; required (RFC 5545 §3.8.7.2)", i+1, e.Summary)
 		case e.Start.IsZero() || e.End.Before(e.Start):
-			return fmt.Errorf("ical: event %d (%q): start %s, end %s: the end must not be before the start", i+1, e.Summary,
+			return fmt.Errorf("iCalendar: event %d (%q): start %s, end %s: the end must not be before the start", i+1, e.Summary,
 				e.Start.UTC().Format(time.RFC3339), e.End.UTC().Format(time.RFC3339))
 		}
 	}
@@ -157,136 +153,4 @@ func writeLine(w *bufio.Writer, line string) {
 	}
 	w.WriteString(line)
 	w.WriteString("\r\n")
-}
-
-// Parse reads the events of an iCalendar object of the kind Encode writes:
-// it unfolds lines (RFC 5545 §3.1), requires CRLF line ends, and reads the
-// properties Encode uses. Unknown properties are ignored.
-func Parse(r io.Reader) (Calendar, error) {
-	data, err := io.ReadAll(r)
-	if err != nil {
-		return Calendar{}, fmt.Errorf("ical: read: %w", err)
-	}
-	text := string(data)
-	if !strings.HasSuffix(text, "\r\n") {
-		return Calendar{}, errors.New("ical: the last line does not end in CRLF")
-	}
-	raw := strings.Split(strings.TrimSuffix(text, "\r\n"), "\r\n")
-	// Unfold into a builder per content line: appending to a string would
-	// copy it again for every continuation (quadratic in a long value).
-	var lines []string
-	var cur strings.Builder
-	for i, l := range raw {
-		if strings.ContainsAny(l, "\r\n") {
-			return Calendar{}, fmt.Errorf("ical: physical line %d: a bare CR or LF; lines must end in CRLF", i+1)
-		}
-		if len(l) > 75 {
-			return Calendar{}, fmt.Errorf("ical: physical line %d is %d octets; at most 75 allowed", i+1, len(l))
-		}
-		if strings.HasPrefix(l, " ") || strings.HasPrefix(l, "\t") {
-			if i == 0 {
-				return Calendar{}, errors.New("ical: the first line is a continuation")
-			}
-			cur.WriteString(l[1:])
-			continue
-		}
-		if i > 0 {
-			lines = append(lines, cur.String())
-			cur.Reset()
-		}
-		cur.WriteString(l)
-	}
-	lines = append(lines, cur.String())
-	var c Calendar
-	var ev *Event
-	for i, l := range lines {
-		name, value, ok := strings.Cut(l, ":")
-		if !ok {
-			return Calendar{}, fmt.Errorf("ical: content line %d %q has no colon", i+1, l)
-		}
-		name, _, _ = strings.Cut(name, ";") // parameters are not used
-		switch name {
-		case "BEGIN":
-			if value == "VEVENT" {
-				ev = &Event{}
-			}
-		case "END":
-			if value == "VEVENT" && ev != nil {
-				if ev.UID == "" || ev.Stamp.IsZero() {
-					return Calendar{}, fmt.Errorf("ical: event %d lacks UID or DTSTAMP", len(c.Events)+1)
-				}
-				c.Events = append(c.Events, *ev)
-				ev = nil
-			}
-		case "PRODID":
-			c.ProdID = unescapeText(value)
-		case "X-WR-CALNAME":
-			c.Name = unescapeText(value)
-		}
-		if ev == nil {
-			continue
-		}
-		var perr error
-		switch name {
-		case "UID":
-			ev.UID = unescapeText(value)
-		case "DTSTAMP":
-			ev.Stamp, perr = planner.ParseTimeLayout(utcFormat, value)
-		case "DTSTART":
-			ev.Start, perr = planner.ParseTimeLayout(utcFormat, value)
-		case "DTEND":
-			ev.End, perr = planner.ParseTimeLayout(utcFormat, value)
-		case "SUMMARY":
-			ev.Summary = unescapeText(value)
-		case "DESCRIPTION":
-			ev.Description = unescapeText(value)
-		case "LOCATION":
-			ev.Location = unescapeText(value)
-		case "CATEGORIES":
-			for _, p := range splitUnescaped(value) {
-				ev.Categories = append(ev.Categories, unescapeText(p))
-			}
-		}
-		if errors.Is(perr, planner.ErrNotLeapSecond) {
-			return Calendar{}, fmt.Errorf("ical: content line %d: %s %q: %w", i+1, name, value, perr)
-		}
-		if perr != nil {
-			return Calendar{}, fmt.Errorf("ical: content line %d: %s %q is not a UTC date-time like 20260314T213000Z", i+1, name, value)
-		}
-	}
-	return c, nil
-}
-
-func unescapeText(s string) string {
-	var b strings.Builder
-	for i := 0; i < len(s); i++ {
-		if s[i] == '\\' && i+1 < len(s) {
-			i++
-			switch s[i] {
-			case 'n', 'N':
-				b.WriteByte('\n')
-			default:
-				b.WriteByte(s[i])
-			}
-			continue
-		}
-		b.WriteByte(s[i])
-	}
-	return b.String()
-}
-
-// splitUnescaped splits a list value at commas that are not escaped.
-func splitUnescaped(s string) []string {
-	var out []string
-	start := 0
-	for i := 0; i < len(s); i++ {
-		switch s[i] {
-		case '\\':
-			i++
-		case ',':
-			out = append(out, s[start:i])
-			start = i + 1
-		}
-	}
-	return append(out, s[start:])
 }
