@@ -155,6 +155,7 @@ func TestOpenRejectsMemory(t *testing.T) {
 	_, err := store.Open(context.Background(), ":memory:", func() time.Time { return t0 })
 	wantCode(t, err, store.EINVALID)
 }
+
 // TestMigrateConcurrentOpens: servers starting together on one empty
 // database apply each migration once (on PostgreSQL under the advisory
 // lock; on SQLite under its write lock).
