@@ -28,6 +28,10 @@ event T0 marks, e.g. mid-eclipse), read from a CSV file with a header line:
             HJD_TT, HJD_UTC or JD_UTC (never guessed)
   err_s     its 1σ uncertainty in seconds, or err_days in days (one of them)
   form      optional: JD (default), MJD or RJD
+  cycle     optional: the timing's whole cycle number counted from --t0
+            (cycle 0), fixed by hand; empty = numbered by the fit. Timings
+            numbered by hand help number the others; with two or more
+            distinct hand cycles the alias check is not made
   note      optional free text, ignored
 
 Lines starting with # are comments. Rows not in BJD_TDB are converted with the
@@ -118,7 +122,7 @@ func runFit(ctx context.Context, _ func() time.Time, args []string, stdout, stde
 	}
 	timings := make([]ephem.Timing, len(rows))
 	for i, r := range rows {
-		timings[i] = ephem.Timing{Value: r.bjd, Std: ephem.StdBJDTDB, ErrDays: r.errDays}
+		timings[i] = ephem.Timing{Value: r.bjd, Std: ephem.StdBJDTDB, ErrDays: r.errDays, Cycle: r.cycle}
 	}
 	res, err := ephem.FitEphemeris(timings, guess, *quadratic)
 	if err != nil {
@@ -161,12 +165,13 @@ type timingRow struct {
 	form    ephem.EpochForm
 	bjd     ephem.JD2
 	errDays float64
+	cycle   *int64 // fixed by hand (the cycle column), nil = numbered by the fit
 }
 
 // maxTimings bounds the file: a refinement needs far fewer.
 const maxTimings = 100000
 
-var timingColumns = []string{"time", "std", "err_s", "err_days", "form", "note"}
+var timingColumns = []string{"time", "std", "err_s", "err_days", "form", "cycle", "note"}
 
 // readTimings reads and converts the CSV file named by the flag.
 func readTimings(file *textValue, site *ephem.Site, star *ephem.Star) ([]timingRow, error) {
@@ -276,6 +281,13 @@ func parseTimingRow(get func(string) string, site *ephem.Site, star *ephem.Star)
 	}
 	row.errDays = e * scale
 	row.bjd = jd
+	if v := get("cycle"); v != "" {
+		c, err := strconv.ParseInt(v, 10, 64)
+		if err != nil || c < -ephem.MaxFixedCycle || c > ephem.MaxFixedCycle {
+			return row, fmt.Errorf("cycle %s: not accepted; accepted: a whole cycle number −%d..%d counted from --t0, or empty", shown(v), ephem.MaxFixedCycle, ephem.MaxFixedCycle)
+		}
+		row.cycle = &c
+	}
 	if row.std != ephem.StdBJDTDB {
 		if star == nil {
 			return row, fmt.Errorf("std %s: converting to BJD_TDB needs the target's position: give --ra and --dec", row.std)
