@@ -3,19 +3,24 @@ package store_test
 import (
 	"context"
 	"database/sql"
-	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
 	"time"
 
 	"phasecast/store"
+	"phasecast/store/testdb"
 )
 
-// rawDB opens the store's file directly, for inspecting the schema.
+// rawDB opens the store's database directly (the SQLite file, or the
+// PostgreSQL database of a URL), for inspecting the schema.
 func rawDB(tb testing.TB, path string) *sql.DB {
 	tb.Helper()
-	db, err := sql.Open("sqlite", "file:"+path+"?_pragma=busy_timeout(5000)")
+	driver, dsn := "sqlite", "file:"+path+"?_pragma=busy_timeout(5000)"
+	if store.IsPostgresURL(path) {
+		driver, dsn = "pgx", path
+	}
+	db, err := sql.Open(driver, dsn)
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -25,7 +30,11 @@ func rawDB(tb testing.TB, path string) *sql.DB {
 
 func columns(tb testing.TB, db *sql.DB, table string) []string {
 	tb.Helper()
-	rows, err := db.Query("SELECT name FROM pragma_table_info(?)", table)
+	q := "SELECT name FROM pragma_table_info(?)"
+	if testdb.Postgres() {
+		q = "SELECT column_name FROM information_schema.columns WHERE table_schema = 'public' AND table_name = $1"
+	}
+	rows, err := db.Query(q, table)
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -105,6 +114,9 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 			}
 		})
 	}
+	if testdb.Postgres() {
+		return
+	}
 	var mode string
 	if err := db.QueryRow("PRAGMA journal_mode").Scan(&mode); err != nil || mode != "wal" {
 		t.Errorf("journal_mode = %q (%v), want wal", mode, err)
@@ -113,7 +125,7 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 
 func TestMigrateIsIdempotentAndRefusesNewer(t *testing.T) {
 	ctx := context.Background()
-	path := filepath.Join(t.TempDir(), "db.sqlite")
+	path := testdb.Target(t, "db.sqlite")
 	s, err := store.Open(ctx, path, func() time.Time { return t0 })
 	if err != nil {
 		t.Fatal(err)
@@ -143,4 +155,41 @@ func TestMigrateIsIdempotentAndRefusesNewer(t *testing.T) {
 func TestOpenRejectsMemory(t *testing.T) {
 	_, err := store.Open(context.Background(), ":memory:", func() time.Time { return t0 })
 	wantCode(t, err, store.EINVALID)
+}
+
+// TestMigrateConcurrentOpens: servers starting together on one empty
+// database apply each migration once (on PostgreSQL under the advisory
+// lock; on SQLite under its write lock).
+func TestMigrateConcurrentOpens(t *testing.T) {
+	ctx := context.Background()
+	path := testdb.Target(t, "db.sqlite")
+	const n = 4
+	errs := make(chan error, n)
+	stores := make(chan *store.Store, n)
+	for range n {
+		go func() {
+			s, err := store.Open(ctx, path, func() time.Time { return t0 })
+			errs <- err
+			stores <- s
+		}()
+	}
+	for range n {
+		if err := <-errs; err != nil {
+			t.Errorf("concurrent Open: %v", err)
+		}
+		if s := <-stores; s != nil {
+			defer s.Close()
+		}
+	}
+	var rows, distinct int
+	if err := rawDB(t, path).QueryRow("SELECT count(*), count(DISTINCT version) FROM schema_migrations").Scan(&rows, &distinct); err != nil {
+		t.Fatal(err)
+	}
+	want, err := store.MigrationCount()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rows != want || distinct != want {
+		t.Errorf("schema_migrations has %d rows, %d versions; want %d and %d (every migration once)", rows, distinct, want, want)
+	}
 }

@@ -289,17 +289,13 @@ func createSite(t *txn, teamID int64, in SiteInput) (SiteRecord, error) {
 		return SiteRecord{}, err
 	}
 	now := fmtTime(t.now)
-	res, err := t.exec(`INSERT INTO sites (team_id, name, lat_deg, lon_east_deg, elev_m, pressure_hpa, temp_c, zone,
+	id, err := t.insertID(`INSERT INTO sites (team_id, name, lat_deg, lon_east_deg, elev_m, pressure_hpa, temp_c, zone,
 		horizon_json, constraints_json, instruments_json, notes, created_at, updated_at, version)
 		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
 		teamID, in.Name, in.Site.LatDeg, in.Site.LonEastDeg, in.Site.ElevM, in.Site.PressureHPa, in.Site.TempC, in.Zone,
 		hj, cj, ij, in.Notes, now, now)
 	if err != nil {
 		return SiteRecord{}, fmt.Errorf("insert site: %w", err)
-	}
-	id, err := res.LastInsertId()
-	if err != nil {
-		return SiteRecord{}, err
 	}
 	r, err := getSite(t, id)
 	if err != nil {

@@ -347,14 +347,10 @@ func createList(t *txn, teamID int64, in ListInput) (TargetList, error) {
 		return TargetList{}, err
 	}
 	now := fmtTime(t.now)
-	res, err := t.exec("INSERT INTO target_lists (team_id, name, description, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, 1)",
+	id, err := t.insertID("INSERT INTO target_lists (team_id, name, description, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, 1)",
 		teamID, in.Name, in.Description, now, now)
 	if err != nil {
 		return TargetList{}, fmt.Errorf("insert list: %w", err)
-	}
-	id, err := res.LastInsertId()
-	if err != nil {
-		return TargetList{}, err
 	}
 	l, err := getList(t, id)
 	if err != nil {
@@ -653,7 +649,7 @@ func insertTarget(t *txn, listID int64, in TargetInput, src EphemerisSource) (in
 	now := fmtTime(t.now)
 	tg := in.Target
 	rv := rvColumns(tg.RV)
-	res, err := t.exec(`INSERT INTO targets (list_id, name, ra_deg, dec_deg, pm_ra_masyr, pm_dec_masyr, mag, band, faint_mag,
+	id, err := t.insertID(`INSERT INTO targets (list_id, name, ra_deg, dec_deg, pm_ra_masyr, pm_dec_masyr, mag, band, faint_mag,
 		faint_phase, bright_mag, bright_phase, priority, acquire_s, goals_json, tags_json, notes, rv_model, rv_k_kms, rv_sigma_kms,
 		rv_want_rel_k, created_at, updated_at, version)
 		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
@@ -661,10 +657,6 @@ func insertTarget(t *txn, listID int64, in TargetInput, src EphemerisSource) (in
 		tg.BrightMag, tg.BrightPhase, tg.Priority, tg.AcquireS, goals, tags, tg.Notes, rv[0], rv[1], rv[2], rv[3], now, now)
 	if err != nil {
 		return 0, fmt.Errorf("insert target: %w", err)
-	}
-	id, err := res.LastInsertId()
-	if err != nil {
-		return 0, err
 	}
 	if _, err := insertEphemeris(t, id, EphemerisInput{Ephem: tg.Ephem, T0: in.T0, Source: src, Note: in.EphemNote}); err != nil {
 		return 0, err
@@ -683,7 +675,7 @@ func insertEphemeris(t *txn, targetID int64, in EphemerisInput) (int64, error) {
 		fit = string(b)
 	}
 	e := in.Ephem
-	res, err := t.exec(`INSERT INTO ephemerides (target_id, t0_day, t0_frac, t0_in_day, t0_in_frac, t0_in_form, t0_in_standard,
+	id, err := t.insertID(`INSERT INTO ephemerides (target_id, t0_day, t0_frac, t0_in_day, t0_in_frac, t0_in_form, t0_in_standard,
 		t0_in_text, t0_err_days, period_days, period_err_days, cov_t0_period, pdot, pdot_err, cov_t0_pdot, cov_p_pdot,
 		convention, phase_offset, ecc, omega_deg, source, fit_json, note, created_by, created_at)
 		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
@@ -693,7 +685,7 @@ func insertEphemeris(t *txn, targetID int64, in EphemerisInput) (int64, error) {
 	if err != nil {
 		return 0, fmt.Errorf("insert ephemeris: %w", err)
 	}
-	return res.LastInsertId()
+	return id, nil
 }
 
 // CreateTarget adds a target to a list (editors and owners). Its

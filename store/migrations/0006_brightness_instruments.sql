@@ -1,4 +1,4 @@
--- 0005_brightness_instruments: a target's brightness for exposures sized
+-- 0006_brightness_instruments: a target's brightness for exposures sized
 -- by signal-to-noise (band, and a variable's faint and bright magnitudes
 -- at their phases; mag is already a column), and the instruments of a
 -- site (a JSON array of planner.Instrument, in the order given; the
