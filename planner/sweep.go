@@ -82,11 +82,12 @@ func (b *bucket) live() *bucket {
 	return b
 }
 
-// label is one schedule: its last candidate, value and the label before it.
+// label is one schedule: its last candidate and the label before it (its
+// value lives in the bucket entries and pendings that name it; the label
+// only rebuilds the schedule, so it holds no score).
 type label struct {
 	cand int32
 	pred int32
-	val  score
 }
 
 // pending is, for one candidate, the best predecessor found in one bucket;
@@ -203,7 +204,7 @@ type sweepResult struct {
 // limited to one block (plus, for all, no two consecutive blocks of one
 // occurrence). maxBuckets bounds the number of states alive at once.
 func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *sweepScratch) sweepResult {
-	sc.size(len(pr.cands), st.nGroups)
+	sc.size(len(pr.cands), st.nGroups, pr.nTargets)
 	labels, pool, slab := sc.labels[:0], sc.pool[:0], sc.per[:0]
 	var buckets []*bucket // alive, in creation order (deterministic)
 	byKey := map[string]*bucket{}
@@ -340,7 +341,7 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 				}
 				v := p.val.plus(c.val)
 				id := int32(len(labels))
-				labels = append(labels, label{cand: e.idx, pred: p.pred, val: v})
+				labels = append(labels, label{cand: e.idx, pred: p.pred})
 				b.all.add(topEntry{val: v, key: int32(c.target), cand: id, ok: true})
 				perAdd(b, int32(c.target)).add(topEntry{val: v, key: int32(c.occ), cand: id, ok: true})
 			}
@@ -401,13 +402,15 @@ type sweepScratch struct {
 	order  []pendingKey
 }
 
-// size gives the buffers a first capacity from the night's size (every
-// candidate makes at least one label and each group at least one pending
-// in a sweep with any schedule), so the first round does not grow them
-// step by step; later rounds reuse what the largest needed.
-func (sc *sweepScratch) size(nCands, nGroups int) {
-	if cap(sc.labels) < 2*nCands {
-		sc.labels = make([]label, 0, 2*nCands)
+// size gives the buffers a first capacity from the night's size, so the
+// first round does not grow them step by step: labels 8 per candidate (8
+// bytes each), pendings 2 per group (the query of another target's and of
+// the same target's schedules), per-target pairs 4 per target. These are
+// starting guesses (common practice: size from the input, let append grow
+// the rest); later rounds reuse what the largest round needed.
+func (sc *sweepScratch) size(nCands, nGroups, nTargets int) {
+	if cap(sc.labels) < 8*nCands {
+		sc.labels = make([]label, 0, 8*nCands)
 	}
 	if cap(sc.pool) < 2*nGroups {
 		sc.pool = make([]pending, 0, 2*nGroups)
@@ -415,8 +418,8 @@ func (sc *sweepScratch) size(nCands, nGroups int) {
 	if cap(sc.head) < nGroups {
 		sc.head = make([]int32, 0, nGroups)
 	}
-	if cap(sc.per) < nCands {
-		sc.per = make([]prefixBest, 0, nCands)
+	if cap(sc.per) < 4*nTargets {
+		sc.per = make([]prefixBest, 0, 4*nTargets)
 	}
 }
 

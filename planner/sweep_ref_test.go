@@ -11,9 +11,16 @@ import (
 // insert, an all-pairs dominance check), kept here unchanged apart from its
 // names as the oracle of TestSweepMatchesReference.
 
+// refLabel is the reference sweep's label, which also held the value.
+type refLabel struct {
+	cand int32
+	pred int32
+	val  score
+}
+
 // refScratch is the reference sweep's reused buffers.
 type refScratch struct {
-	labels []label
+	labels []refLabel
 	pool   []refPending
 	head   []int32
 }
@@ -142,7 +149,7 @@ func (pr *problem) refSweep(st *sweepStatic, critical []bool, maxBuckets int, sc
 				}
 				v := p.val.plus(c.val)
 				id := int32(len(labels))
-				labels = append(labels, label{cand: e.idx, pred: p.pred, val: v})
+				labels = append(labels, refLabel{cand: e.idx, pred: p.pred, val: v})
 				b.all.add(topEntry{val: v, key: int32(c.target), cand: id, ok: true})
 				b.per[c.target].add(topEntry{val: v, key: int32(c.occ), cand: id, ok: true})
 			}
