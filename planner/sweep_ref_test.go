@@ -226,8 +226,6 @@ func refPrunePending(pool []refPending, head int32, root *refBucket) {
 	}
 }
 
-// subset reports whether sorted a ⊆ sorted b.
-
 // TestSweepMatchesReference runs DSSR on 200 random nights (randomNight, up
 // to 12 targets, every rule drawn at random) for PlanNight's priority
 // weights and for random run weights (1..5000 per goal) with the sweep and
@@ -236,24 +234,9 @@ func refPrunePending(pool []refPending, head int32, root *refBucket) {
 // identical, and so the solve's result.
 func TestSweepMatchesReference(t *testing.T) {
 	r := rand.New(rand.NewPCG(21, 2021))
-	nights, rounds := 0, 0
-	for nights < 200 {
-		m, err := newNightModel(randomNight(r, 12))
-		if err != nil {
-			t.Fatal(err)
-		}
-		if len(m.pr.cands) == 0 {
-			continue
-		}
-		nights++
-		random := make([][]int64, len(m.targets))
-		for ti, ts := range m.targets {
-			random[ti] = make([]int64, len(ts.goals))
-			for gi := range random[ti] {
-				random[ti][gi] = 1 + r.Int64N(5000)
-			}
-		}
-		for name, w := range map[string][][]int64{"priority": m.priorityWeights(), "random": random} {
+	rounds := 0
+	nights := eachRandomNight(t, r, 200, func(nights int, m *nightModel, weightings map[string][][]int64) {
+		for name, w := range weightings {
 			m.setWeights(w)
 			pr := m.pr
 			st := pr.sweepStatic()
@@ -283,6 +266,6 @@ func TestSweepMatchesReference(t *testing.T) {
 				}
 			}
 		}
-	}
+	})
 	t.Logf("%d nights × 2 weightings, %d rounds identical", nights, rounds)
 }
