@@ -29,17 +29,25 @@ import (
 //     at first are retried after refitting the ones that could (a bootstrap
 //     outwards from the guess' epoch); whatever is still left is reported as an
 //     *AmbiguityError naming the timing;
+//   - a timing whose cycle is given by hand (Timing.Cycle) keeps it: it is
+//     numbered from the start and helps number the others;
 //   - once all are numbered, the alias one cycle more and one cycle fewer
 //     across the whole span (P' = P·N/(N±1)) is refitted: if it fits about as
 //     well (Δχ² < 9 after scaling by the reduced χ², with the guess period's
 //     uncertainty as a prior when it is given), the count is ambiguous and an
-//     *AmbiguityError says so.
+//     *AmbiguityError says so. When two or more timings have distinct
+//     cycles given by hand the count across them is the observer's, and the
+//     alias check is not made.
 
 // Timing is one measured time of the ephemeris' reference event.
 type Timing struct {
 	Value   JD2          // the measured time, in Std
 	Std     TimeStandard // must be BJD_TDB for FitEphemeris: convert others first with ConvertEpoch
 	ErrDays float64      // 1σ, days (> 0)
+	// Cycle, when not nil, fixes the timing's whole cycle number by hand,
+	// counted from the guess' T0 (cycle 0): FitEphemeris takes it as given
+	// instead of numbering the timing itself.
+	Cycle *int64
 }
 
 // FitResult is a refined ephemeris and what went into it.
@@ -114,6 +122,7 @@ func FitEphemeris(timings []Timing, guess Ephemeris, quadratic bool) (FitResult,
 	}
 	t := make([]JD2, len(timings))
 	sig := make([]float64, len(timings))
+	fixed := make([]*int64, len(timings))
 	earliest := 0
 	for i, tm := range timings {
 		field := fmt.Sprintf("timings[%d]", i)
@@ -130,6 +139,12 @@ func FitEphemeris(timings []Timing, guess Ephemeris, quadratic bool) (FitResult,
 			return FitResult{}, &InputError{field + ".err", fmtNum(tm.ErrDays), "a 1σ uncertainty > 0 days"}
 		}
 		t[i], sig[i] = tm.Value, tm.ErrDays
+		if tm.Cycle != nil {
+			if c := *tm.Cycle; c < -MaxFixedCycle || c > MaxFixedCycle {
+				return FitResult{}, &InputError{field + ".cycle", strconv.FormatInt(c, 10), fmt.Sprintf("a whole cycle number −%d..%d from T0", MaxFixedCycle, MaxFixedCycle)}
+			}
+			fixed[i] = tm.Cycle
+		}
 		if tm.Value.SubDays(t[earliest]) < 0 {
 			earliest = i
 		}
@@ -146,7 +161,7 @@ func FitEphemeris(timings []Timing, guess Ephemeris, quadratic bool) (FitResult,
 		return FitResult{}, err
 	}
 
-	cycles, err := fitNumber(t, sig, guess, quadratic)
+	cycles, err := fitNumber(t, sig, fixed, guess, quadratic)
 	if err != nil {
 		return FitResult{}, err
 	}
@@ -154,8 +169,16 @@ func FitEphemeris(timings []Timing, guess Ephemeris, quadratic bool) (FitResult,
 	if err != nil {
 		return FitResult{}, err
 	}
-	if err := fitCheckAlias(t, sig, cycles, quadratic, best, guess); err != nil {
-		return FitResult{}, err
+	var given []int64
+	for _, c := range fixed {
+		if c != nil {
+			given = append(given, *c)
+		}
+	}
+	if fitDistinct(given) < 2 {
+		if err := fitCheckAlias(t, sig, cycles, quadratic, best, guess); err != nil {
+			return FitResult{}, err
+		}
 	}
 
 	res := FitResult{Quadratic: quadratic, ChiSq: best.chi2, CycleShift: best.n0, Residuals: best.resid}
@@ -203,7 +226,9 @@ func FitEphemeris(timings []Timing, guess Ephemeris, quadratic bool) (FitResult,
 // bootstrapping outwards from the guess epoch, or reports the first timing
 // that cannot be numbered. A timing is numbered when the guess or the current
 // refit numbers it unambiguously; if both do and disagree, that is reported.
-func fitNumber(t []JD2, sig []float64, guess Ephemeris, quadratic bool) ([]int64, error) {
+// Timings with a cycle in fixed (non-nil) are numbered with it from the
+// start.
+func fitNumber(t []JD2, sig []float64, fixed []*int64, guess Ephemeris, quadratic bool) ([]int64, error) {
 	type model struct {
 		e     Ephemeris
 		shift int64 // guess-numbering cycle of e's T0
@@ -213,7 +238,18 @@ func fitNumber(t []JD2, sig []float64, guess Ephemeris, quadratic bool) ([]int64
 	cycles := make([]int64, n)
 	done := make([]bool, n)
 	left := n
-	for {
+	given := 0
+	for i, c := range fixed {
+		if c != nil {
+			cycles[i], done[i] = *c, true
+			left--
+			given++
+		}
+	}
+	if left == 0 {
+		return cycles, nil
+	}
+	for pass := 0; ; pass++ {
 		added := 0
 		firstBad, badReason := -1, ""
 		for i := range n {
@@ -247,7 +283,9 @@ func fitNumber(t []JD2, sig []float64, guess Ephemeris, quadratic bool) ([]int64
 		if left == 0 {
 			return cycles, nil
 		}
-		if added == 0 {
+		// On the first pass, timings numbered by hand on two or more
+		// cycles give a refit even when the guess numbered nothing more.
+		if added == 0 && (pass > 0 || given < 2) {
 			return nil, &AmbiguityError{Index: firstBad, Value: t[firstBad], Reason: badReason}
 		}
 		// Refit the numbered timings and retry the others with it.
@@ -282,6 +320,9 @@ func fitNumber(t []JD2, sig []float64, guess Ephemeris, quadratic bool) ([]int64
 		models = []model{{guess, 0}, {cur, f.n0}}
 	}
 }
+
+// MaxFixedCycle bounds a cycle number given by hand (Timing.Cycle).
+const MaxFixedCycle = 1_000_000_000
 
 // fitVerdict says whether e can number a timing: Cycle (e's numbering)
 // when Why is empty, else why not.

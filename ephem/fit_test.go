@@ -318,3 +318,80 @@ func TestFitNeverNaN(t *testing.T) {
 	}
 	t.Logf("%d of 300 random sets refused with an error", fails)
 }
+
+// TestFitFixedCycles: timings far from a poorly known guess cannot be
+// numbered (an *AmbiguityError); with the cycle of two of them given by
+// hand the fit numbers the rest from them and recovers the true period, and
+// reports the hand cycles as given. With every cycle given by hand, a wrong
+// one is honoured too (the fit then goes through it, with a much worse χ²). A cycle out of range
+// is refused naming the timing.
+func TestFitFixedCycles(t *testing.T) {
+	truth := testEphem()
+	rng := rand.New(rand.NewPCG(14, 14))
+	tm := synthTimings(t, rng, truth, 12, 4000, 6000, 2e-5, 5e-5)
+	guess := truth
+	guess.PeriodDays += 3e-7 // 3e-7 d × 5000 cycles = 0.0015 d: well inside a quarter cycle,
+	guess.PeriodErr = 2e-5   // but σP × 5000 = 0.1 d: the neighbouring cycles are not excluded
+	_, err := ephem.FitEphemeris(tm, guess, false)
+	var ae *ephem.AmbiguityError
+	if !errors.As(err, &ae) {
+		t.Fatalf("without hand cycles: err = %v, want an AmbiguityError", err)
+	}
+	cycleOf := func(i int) int64 {
+		c, _ := truth.CyclePhase(tm[i].Value)
+		if _, ph := truth.CyclePhase(tm[i].Value); ph > 0.5 {
+			c++
+		}
+		return c
+	}
+	lo, hi := 0, 0
+	for i := range tm {
+		if tm[i].Value.SubDays(tm[lo].Value) < 0 {
+			lo = i
+		}
+		if tm[i].Value.SubDays(tm[hi].Value) > 0 {
+			hi = i
+		}
+	}
+	fixed := append([]ephem.Timing(nil), tm...)
+	cl, ch := cycleOf(lo), cycleOf(hi)
+	fixed[lo].Cycle, fixed[hi].Cycle = &cl, &ch
+	res, err := ephem.FitEphemeris(fixed, guess, false)
+	if err != nil {
+		t.Fatalf("with the first and last cycles by hand: %v", err)
+	}
+	if d := math.Abs(res.Ephem.PeriodDays - truth.PeriodDays); d > 3*res.Ephem.PeriodErr {
+		t.Errorf("P = %.12f ± %.2g, truth %.12f (off %.2g)", res.Ephem.PeriodDays, res.Ephem.PeriodErr, truth.PeriodDays, d)
+	}
+	for i := range tm {
+		if got, want := res.Cycles[i]+res.CycleShift, cycleOf(i); got != want {
+			t.Errorf("timing %d: cycle %d, want %d", i, got, want)
+		}
+	}
+	// Every cycle by hand, the last one wrong by one: the fit takes them
+	// as given.
+	wrong := append([]ephem.Timing(nil), tm...)
+	for i := range wrong {
+		c := cycleOf(i)
+		wrong[i].Cycle = &c
+	}
+	cw := ch + 1
+	wrong[hi].Cycle = &cw
+	resW, err := ephem.FitEphemeris(wrong, guess, false)
+	if err != nil {
+		t.Fatalf("wrong hand cycle: %v", err)
+	}
+	if got := resW.Cycles[hi] + resW.CycleShift; got != cw {
+		t.Errorf("the hand cycle %d is not honoured: fitted cycle %d", cw, got)
+	}
+	if resW.ChiSq < 100*res.ChiSq {
+		t.Errorf("a wrong hand cycle fits as well (χ² %.3g against %.3g)", resW.ChiSq, res.ChiSq)
+	}
+	bad := append([]ephem.Timing(nil), tm...)
+	huge := int64(ephem.MaxFixedCycle + 1)
+	bad[3].Cycle = &huge
+	var ie *ephem.InputError
+	if _, err := ephem.FitEphemeris(bad, guess, false); !errors.As(err, &ie) || ie.Field != "timings[3].cycle" {
+		t.Errorf("cycle %d: err = %v, want an InputError on timings[3].cycle", huge, err)
+	}
+}

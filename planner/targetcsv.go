@@ -29,6 +29,12 @@ var PlanCSVHeader = []string{
 // before; an empty cell means "not given".
 var PlanCSVOptional = []string{"band", "mag", "snr", "max_smear", "faint_mag", "faint_phase", "bright_mag", "bright_phase"}
 
+// PlanCSVRV are the optional columns of a target's radial-velocity goal
+// (RVGoal). With rv_model, rv_k_kms and rv_sigma_kms are required columns
+// too; a row with rv_model empty has no RV goal and its other rv_ cells must
+// be empty.
+var PlanCSVRV = []string{"rv_model", "rv_k_kms", "rv_sigma_kms", "rv_want_rel_k"}
+
 // CellError is one rejected cell of a table file: the 1-based line of the
 // file, the 1-based column number and the column's header name (both 0 and ""
 // when the whole line is at fault), the value as written, and what is
@@ -120,7 +126,7 @@ const (
 
 // ParseTargetsCSV reads the `plan` command's targets file: a header line
 // naming the columns of PlanCSVHeader (any order, each exactly once) and any
-// of PlanCSVOptional, no others, then one target per line. Blank lines and lines starting with '#'
+// of PlanCSVOptional and PlanCSVRV, no others, then one target per line. Blank lines and lines starting with '#'
 // are skipped.
 //
 //   - name: non-empty text.
@@ -152,6 +158,12 @@ const (
 //   - faint_mag, faint_phase, bright_mag, bright_phase: a variable's
 //     extremes in band (−2..30, bright not fainter than faint) and their
 //     phases (0 ≤ φ < 1); all four or none (Target.MagAtPhase).
+//   - rv_model: "circular" or "eccentric" (the eccentric model takes e and
+//     ω of the ephemeris: 0 in this file, which has no such columns), or
+//     empty for no RV goal.
+//   - rv_k_kms, rv_sigma_kms, rv_want_rel_k (with rv_model): the rough K and
+//     the velocity error of one exposure, km/s, and the wanted σK/K as a
+//     fraction (empty or 0 for none); RVGoal.Validate's ranges.
 //
 // The file has no convention column: T0 is recorded as the companion's
 // inferior conjunction (ephem.ConvInferiorConjunction), and the phases are
@@ -196,7 +208,20 @@ func ReadTargetsCSV(r io.Reader) ([]TargetRow, error) {
 	}
 	headerLine, _ := cr.FieldPos(0)
 	te := &TableError{}
-	col := columnIndex(header, PlanCSVHeader, headerLine, te, PlanCSVOptional...)
+	col := columnIndex(header, PlanCSVHeader, headerLine, te, slices.Concat(PlanCSVOptional, PlanCSVRV)...)
+	if hasKey(col, "rv_model") {
+		for _, n := range PlanCSVRV[1:3] {
+			if !hasKey(col, n) {
+				te.add(headerLine, 0, n, "", "missing column "+n+": rv_model needs rv_k_kms and rv_sigma_kms")
+			}
+		}
+	} else {
+		for _, n := range PlanCSVRV[1:] {
+			if hasKey(col, n) {
+				te.add(headerLine, col[n]+1, n, n, "column without rv_model: an RV goal needs rv_model, rv_k_kms and rv_sigma_kms")
+			}
+		}
+	}
 	if len(te.Cells) > 0 {
 		return nil, te
 	}
@@ -407,6 +432,9 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 			t.Goals = append(t.Goals, Goal{Center: c, HalfWidth: hw, ExposureS: exp, OverheadS: ovh, SNR: snr, MaxSmear: smear})
 		}
 	}
+	if hasKey(col, "rv_model") {
+		t.RV = parseRVCells(get, bad, func(n string) bool { return hasKey(col, n) })
+	}
 	// The rules of a target are TargetProblems', given at the column that
 	// holds the value, once per column (the goals share phase_halfwidth,
 	// exposure_s and overhead_s) and not for a cell that did not parse.
@@ -431,6 +459,48 @@ func parsePlanRow(rec []string, col map[string]int, line int, te *TableError) (T
 		}
 	}
 	return t, len(te.Cells) == n0
+}
+
+// parseRVCells reads a row's RV goal (nil for none), reporting bad cells.
+func parseRVCells(get func(string) string, bad func(name, value, reason string), has func(string) bool) *RVGoal {
+	cell := func(n string) string {
+		if !has(n) {
+			return ""
+		}
+		return get(n)
+	}
+	if cell("rv_model") == "" {
+		for _, n := range PlanCSVRV[1:] {
+			if v := cell(n); v != "" {
+				bad(n, v, "empty: this row has no rv_model, so no RV goal")
+			}
+		}
+		return nil
+	}
+	g := RVGoal{Model: RVModel(cell("rv_model"))}
+	num := func(n string, dst *float64) {
+		v := cell(n)
+		if v == "" && n == "rv_want_rel_k" {
+			return
+		}
+		x, ok := parseFinite(v)
+		if !ok {
+			bad(n, v, "a number")
+			return
+		}
+		*dst = x
+	}
+	num("rv_k_kms", &g.KKms)
+	num("rv_sigma_kms", &g.SigmaVKms)
+	num("rv_want_rel_k", &g.WantRelK)
+	if err := g.Validate(); err != nil {
+		var ie *ephem.InputError
+		if errors.As(err, &ie) {
+			bad(ie.Field, cell(ie.Field), ie.Accepted)
+		}
+		return nil
+	}
+	return &g
 }
 
 // planColumn is the plan CSV's column of a TargetProblems field

@@ -103,3 +103,38 @@ func TestParseTargetsCSV_Errors(t *testing.T) {
 		})
 	}
 }
+
+func TestParseTargetsCSV_RVColumns(t *testing.T) {
+	head := strings.TrimSuffix(planHeader, "\n") + ",rv_model,rv_k_kms,rv_sigma_kms,rv_want_rel_k\n"
+	t.Run("OK", func(t *testing.T) {
+		in := head +
+			"A,8.1,37.7,2460123.45,0.1352,0.25;0.75,0.05,120,8,1,circular,85,4.5,0.03\n" +
+			"B,8.1,37.7,2460123.45,0.1352,0.25,0.05,120,8,1,,,,\n"
+		got, err := planner.ParseTargetsCSV(strings.NewReader(in))
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := planner.RVGoal{Model: planner.RVCircular, KKms: 85, SigmaVKms: 4.5, WantRelK: 0.03}
+		if got[0].RV == nil || *got[0].RV != want || got[1].RV != nil {
+			t.Errorf("RV goals %+v and %+v, want %+v and none", got[0].RV, got[1].RV, want)
+		}
+	})
+	for _, c := range []struct{ name, in, want string }{
+		{"KZero", head + "A,8.1,37.7,2460123.45,0.1352,0.25,0.05,120,8,1,circular,0,4.5,\n",
+			`line 2, column 12 (rv_k_kms): "0": a semi-amplitude K > 0 km/s, at most 2000`},
+		{"SigmaNegative", head + "A,8.1,37.7,2460123.45,0.1352,0.25,0.05,120,8,1,eccentric,10,-1,\n",
+			`line 2, column 13 (rv_sigma_kms): "-1": a velocity error of one exposure σv > 0 km/s`},
+		{"CellsWithoutModel", head + "A,8.1,37.7,2460123.45,0.1352,0.25,0.05,120,8,1,,10,1,\n",
+			`line 2, column 12 (rv_k_kms): "10": empty: this row has no rv_model`},
+		{"ColumnWithoutModel", strings.TrimSuffix(planHeader, "\n") + ",rv_k_kms\nA,8.1,37.7,2460123.45,0.1352,0.25,0.05,120,8,1,10\n",
+			`column without rv_model`},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := planner.ParseTargetsCSV(strings.NewReader(c.in))
+			var te *planner.TableError
+			if !errors.As(err, &te) || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("error %v, want one containing %q", err, c.want)
+			}
+		})
+	}
+}

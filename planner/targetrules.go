@@ -122,5 +122,11 @@ func TargetProblems(t Target) []TargetProblem {
 			}
 		}
 	}
+	if t.RV != nil {
+		var ie *ephem.InputError
+		if err := t.RV.Validate(); errors.As(err, &ie) {
+			bad(ie.Field, ie.Value, ie.Accepted)
+		}
+	}
 	return ps
 }

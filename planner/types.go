@@ -34,6 +34,9 @@ type Target struct {
 	AcquireS               float64 // acquisition overhead per visit (slew, centring), s
 	Tags                   []string
 	Notes                  string
+	// RV is the target's radial-velocity goal (nil: none): what its
+	// velocities are wanted for, and the precision predicted from them.
+	RV *RVGoal
 }
 
 // Star returns the target's catalogue place for the ephem package.

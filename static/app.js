@@ -6,6 +6,10 @@
 // - data-countdown="RFC3339": ticks a countdown each second.
 // - data-progress="URL": polls a JSON progress endpoint and updates a
 //   <progress> element, then follows data-done when finished.
+// - .countdown[data-until="RFC3339"]: keeps the Night page's "starts in …"
+//   countdown running, in the server's form (page.Countdown).
+// - svg.lanes g.block: keyboard or pointer focus shows the block's figures
+//   (its <title>) in the #chart-tip box beside it.
 // - button[data-copy="ID"]: copies the text of element ID to the clipboard
 //   (the button stays hidden without script; the text is selectable).
 (function () {
@@ -38,6 +42,55 @@
       el.textContent = sign + h + ":" + pad(m) + ":" + pad(sec);
     });
   }
+
+  function untilText(s) {
+    s = Math.max(0, s);
+    if (s < 60) { return s + " s"; }
+    if (s < 3600) { return Math.floor(s / 60) + " min"; }
+    if (s < 86400) { return Math.floor(s / 3600) + " h " + pad(Math.floor((s % 3600) / 60)) + " min"; }
+    return Math.floor(s / 86400) + " d " + Math.floor((s % 86400) / 3600) + " h";
+  }
+
+  function tickUntil() {
+    var now = Date.now();
+    document.querySelectorAll(".countdown[data-until]").forEach(function (el) {
+      var t = Date.parse(el.getAttribute("data-until"));
+      if (isNaN(t)) { return; }
+      var m = /^(\D*?)\s*\d/.exec(el.textContent);
+      var s = Math.round((t - now) / 1000);
+      el.textContent = (m ? m[1] + " " : "") + untilText(s);
+    });
+  }
+
+  function showTip(g) {
+    var tip = document.getElementById("chart-tip");
+    var title = g.querySelector("title");
+    if (!tip || !title) { return; }
+    tip.textContent = title.textContent;
+    tip.hidden = false;
+    var r = g.getBoundingClientRect();
+    var x = Math.min(r.left, window.innerWidth - tip.offsetWidth - 8);
+    var y = r.bottom + 6;
+    if (y + tip.offsetHeight > window.innerHeight) { y = Math.max(0, r.top - tip.offsetHeight - 6); }
+    tip.style.left = Math.max(0, x) + "px";
+    tip.style.top = y + "px";
+  }
+
+  function hideTip() {
+    var tip = document.getElementById("chart-tip");
+    if (tip) { tip.hidden = true; }
+  }
+
+  function blockOf(ev) {
+    var t = ev.target;
+    return t && t.closest ? t.closest("svg.lanes g.block") : null;
+  }
+
+  document.addEventListener("focusin", function (ev) { var g = blockOf(ev); if (g) { showTip(g); } });
+  document.addEventListener("focusout", function (ev) { if (blockOf(ev)) { hideTip(); } });
+  document.addEventListener("mouseover", function (ev) { var g = blockOf(ev); if (g) { showTip(g); } });
+  document.addEventListener("mouseout", function (ev) { if (blockOf(ev)) { hideTip(); } });
+  document.addEventListener("keydown", function (ev) { if (ev.key === "Escape") { hideTip(); } });
 
   function refresh(el) {
     var url = el.getAttribute("data-refresh");
@@ -82,6 +135,9 @@
     if (document.querySelector("[data-countdown]")) {
       tickCountdowns();
       window.setInterval(tickCountdowns, 1000);
+    }
+    if (document.querySelector(".countdown[data-until]")) {
+      window.setInterval(tickUntil, 15000);
     }
     document.querySelectorAll("[data-progress]").forEach(pollProgress);
     document.querySelectorAll("button[data-copy]").forEach(function (b) { b.hidden = false; });

@@ -42,6 +42,7 @@ type demoTarget struct {
 	priority      int
 	tags          []string
 	notes         string
+	rv            *planner.RVGoal // a radial-velocity goal (invented)
 }
 
 func demoGoal(event string, center, hw, expS, ovhS float64) planner.Goal {
@@ -80,7 +81,8 @@ func demoTargets() []demoTarget {
 		{name: "PCX J0814-1133", ra: "08:14:40.18", dec: "-11:33:05.2", mag: 15.6, t0: "2459215.5523", std: ephem.StdBJDTDB,
 			ephem:    ephem.Ephemeris{T0ErrDays: 0.0008, PeriodDays: 0.438221, PeriodErr: 2e-6, Convention: inf},
 			goals:    []planner.Goal{demoGoal("quadratures", 0, 0.04, 180, 8), demoGoal("inferior_conjunction", 0, 0.04, 180, 8)},
-			priority: 3, tags: []string{"ellipsoidal"}, notes: "Ellipsoidal variable: light maxima at the quadratures."},
+			priority: 3, tags: []string{"ellipsoidal"}, notes: "Ellipsoidal variable: light maxima at the quadratures.",
+			rv: &planner.RVGoal{Model: planner.RVCircular, KKms: 120, SigmaVKms: 6, WantRelK: 0.02}},
 		{name: "PCX J1027+4418", ra: "10:27:33.60", dec: "+44:18:47.1", mag: 17.8, t0: "2455612.70231", std: ephem.StdBJDTDB,
 			ephem: ephem.Ephemeris{T0ErrDays: 0.0004, PeriodDays: 0.0884127, PeriodErr: 4e-7, Convention: inf},
 			goals: []planner.Goal{demoGoal("", 0, 0.05, 120, 8)}, priority: 3, tags: []string{"drifted", "needs-timing"},
@@ -93,7 +95,8 @@ func demoTargets() []demoTarget {
 			ephem: ephem.Ephemeris{T0ErrDays: 0.002, PeriodDays: 0.873114, PeriodErr: 5e-6, Convention: inf, Ecc: 0.28, OmegaDeg: 142},
 			goals: []planner.Goal{demoGoal("periastron", 0, 0.03, 300, 10), demoGoal("max_recession", 0, 0.04, 300, 10),
 				demoGoal("max_approach", 0, 0.04, 300, 10)},
-			priority: 2, tags: []string{"eccentric", "spectroscopic"}, notes: "Eccentric orbit, e = 0.28, ω = 142°: the quadratures are not half an orbit apart."},
+			priority: 2, tags: []string{"eccentric", "spectroscopic"}, notes: "Eccentric orbit, e = 0.28, ω = 142°: the quadratures are not half an orbit apart.",
+			rv: &planner.RVGoal{Model: planner.RVEccentric, KKms: 42, SigmaVKms: 1.5, WantRelK: 0.01}},
 		{name: "PCX J1843+0327", ra: "18:43:26.30", dec: "+03:27:58.9", mag: 18.6, t0: "2459810.61734", std: ephem.StdBJDTDB,
 			ephem: ephem.Ephemeris{T0ErrDays: 5e-5, PeriodDays: 0.0072917, PeriodErr: 2e-10, Convention: inf},
 			goals: []planner.Goal{demoGoal("", 0, 0.05, 15, 3), demoGoal("", 0.25, 0.05, 15, 3), demoGoal("", 0.5, 0.05, 15, 3),
@@ -107,7 +110,8 @@ func demoTargets() []demoTarget {
 		{name: "PCX J2339-0541", ra: "23:39:02.66", dec: "-05:41:37.3", mag: 18.9, t0: "2459904.55520", std: ephem.StdBJDTDB,
 			ephem: ephem.Ephemeris{T0ErrDays: 2e-5, PeriodDays: 0.0290344, PeriodErr: 1e-10, Pdot: -2.1e-12, PdotErr: 3e-13, Convention: inf},
 			goals: []planner.Goal{demoGoal("quadratures", 0, 0.04, 30, 4)}, priority: 1, tags: []string{"double-white-dwarf", "decaying"},
-			notes: "Detached double white dwarf, 41.8-minute orbit shrinking (Ṗ < 0)."},
+			notes: "Detached double white dwarf, 41.8-minute orbit shrinking (Ṗ < 0).",
+			rv:    &planner.RVGoal{Model: planner.RVCircular, KKms: 310, SigmaVKms: 25, WantRelK: 0.03}},
 	}
 }
 
@@ -214,7 +218,7 @@ func seedDemo(t *txn, now time.Time) (DemoInfo, error) {
 		}
 		in := TargetInput{
 			Target: planner.Target{Name: d.name, RADeg: ra, DecDeg: dec, Mag: d.mag, Ephem: d.ephem, Goals: d.goals,
-				Priority: d.priority, AcquireS: 180, Tags: d.tags, Notes: d.notes},
+				Priority: d.priority, AcquireS: 180, Tags: d.tags, Notes: d.notes, RV: d.rv},
 			T0:        Epoch{Text: d.t0, Form: form, Standard: d.std},
 			EphemNote: "invented for the demo",
 		}

@@ -202,6 +202,9 @@ func changedFields(st StoredTarget, in TargetInput) []string {
 	if a.Notes != b.Notes {
 		out = append(out, "notes")
 	}
+	if (a.RV == nil) != (b.RV == nil) || (a.RV != nil && *a.RV != *b.RV) {
+		out = append(out, "rv_goal")
+	}
 	return out
 }
 

@@ -51,8 +51,8 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if v != 4 {
-		t.Errorf("schema version = %d, want 4", v)
+	if v != 5 {
+		t.Errorf("schema version = %d, want 5", v)
 	}
 	db := rawDB(t, s.Path())
 	rows, err := db.Query("SELECT version, name FROM schema_migrations ORDER BY version")
@@ -69,7 +69,7 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 		got = append(got, n)
 	}
 	rows.Close()
-	want := []string{"accounts", "sites_targets", "runs_sharing", "audit"}
+	want := []string{"accounts", "sites_targets", "runs_sharing", "audit", "rv_goals"}
 	if !slices.Equal(got, want) {
 		t.Errorf("migrations = %v, want %v", got, want)
 	}
@@ -84,7 +84,8 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 		"invitations":  {"team_id", "token_hash", "role", "accepted_by", "revoked_at"},
 		"sites":        {"team_id", "lat_deg", "lon_east_deg", "elev_m", "zone", "horizon_json", "constraints_json", "version"},
 		"target_lists": {"team_id", "name", "version"},
-		"targets":      {"list_id", "ra_deg", "dec_deg", "pm_ra_masyr", "mag", "priority", "goals_json", "tags_json", "notes", "version"},
+		"targets": {"list_id", "ra_deg", "dec_deg", "pm_ra_masyr", "mag", "priority", "goals_json", "tags_json", "notes", "version",
+			"rv_model", "rv_k_kms", "rv_sigma_kms", "rv_want_rel_k"},
 		"ephemerides": {"target_id", "t0_day", "t0_frac", "t0_in_text", "t0_in_standard", "convention", "period_err_days",
 			"pdot", "ecc", "omega_deg", "source", "fit_json", "created_by", "created_at"},
 		"timings":      {"target_id", "event", "t_day", "t_in_standard", "err_days", "version"},
@@ -125,8 +126,8 @@ func TestMigrateIsIdempotentAndRefusesNewer(t *testing.T) {
 		t.Fatalf("reopen: %v", err)
 	}
 	var n int
-	if err := rawDB(t, path).QueryRow("SELECT count(*) FROM schema_migrations").Scan(&n); err != nil || n != 4 {
-		t.Errorf("schema_migrations rows = %d (%v), want 4", n, err)
+	if err := rawDB(t, path).QueryRow("SELECT count(*) FROM schema_migrations").Scan(&n); err != nil || n != 5 {
+		t.Errorf("schema_migrations rows = %d (%v), want 5", n, err)
 	}
 	if err := s.Close(); err != nil {
 		t.Fatal(err)

@@ -39,7 +39,7 @@ var csvColumns = []string{
 	"t0", "t0_form", "t0_standard", "t0_convention", "t0_err_days", "period_days", "period_err_days",
 	"cov_t0_period", "pdot", "pdot_err", "cov_t0_pdot", "cov_period_pdot", "phase_offset", "ecc", "omega_deg",
 	"goals", "phase_halfwidth", "exposure_s", "overhead_s", "n_exposures", "min_nights", "eclipse_duration_days",
-	"priority", "acquire_s", "tags", "notes",
+	"priority", "acquire_s", "tags", "notes", "rv_model", "rv_k_kms", "rv_sigma_kms", "rv_want_rel_k",
 }
 
 var csvRequired = []string{"name", "ra", "dec", "t0", "t0_standard", "t0_convention", "period_days"}
@@ -169,6 +169,7 @@ func parsePlanCSV(b []byte) (parsedFile, error) {
 	planCol := map[string]string{
 		"t0": "t0_bjd_tdb", "period_days": "period_days", "priority": "priority", "name": "name", "ra": "ra", "dec": "dec",
 		"phase_halfwidth": "phase_halfwidth", "exposure_s": "exposure_s", "overhead_s": "overhead_s",
+		"rv_model": "rv_model", "rv_k_kms": "rv_k_kms", "rv_sigma_kms": "rv_sigma_kms", "rv_want_rel_k": "rv_want_rel_k",
 	}
 	pf.column = func(field string) (string, int) {
 		if c, ok := planCol[goalSubfield(field)]; ok {
@@ -427,7 +428,23 @@ func parseTeamRow(rec []string, col map[string]int, line int) (TargetInput, []pl
 		}
 	}
 	t.Notes = c.get("notes")
+	t.RV = c.rvGoal()
 	return in, c.cells
+}
+
+// rvGoal reads the rv_ cells: nil when rv_model is empty (then the others
+// must be empty too). Ranges are left to validateTargetInput.
+func (c *cellReader) rvGoal() *planner.RVGoal {
+	if c.get("rv_model") == "" {
+		for _, n := range []string{"rv_k_kms", "rv_sigma_kms", "rv_want_rel_k"} {
+			if v := c.get(n); v != "" {
+				c.bad(n, v, "empty: the row has no rv_model, so no RV goal (give rv_model circular or eccentric)")
+			}
+		}
+		return nil
+	}
+	return &planner.RVGoal{Model: planner.RVModel(c.get("rv_model")), KKms: c.float("rv_k_kms", 0),
+		SigmaVKms: c.float("rv_sigma_kms", 0), WantRelK: c.float("rv_want_rel_k", 0)}
 }
 
 // acceptedOf returns what an *ephem.InputError says is accepted.
@@ -577,7 +594,10 @@ func writeTeamCSV(w io.Writer, targets []StoredTarget) error {
 			numOrEmpty(e.CovPPdot), numOrEmpty(e.PhaseOffset), numOrEmpty(e.Ecc), numOrEmpty(e.OmegaDeg),
 			formatGoals(t.Goals, base), numOrEmpty(base.HalfWidth), numOrEmpty(base.ExposureS), numOrEmpty(base.OverheadS),
 			intOrEmpty(base.NExposures), intOrEmpty(base.MinNights), numOrEmpty(base.EclipseDurDays),
-			strconv.Itoa(t.Priority), numOrEmpty(t.AcquireS), strings.Join(t.Tags, ";"), t.Notes,
+			strconv.Itoa(t.Priority), numOrEmpty(t.AcquireS), strings.Join(t.Tags, ";"), t.Notes, "", "", "", "",
+		}
+		if g := t.RV; g != nil {
+			copy(rec[len(rec)-4:], []string{string(g.Model), num(g.KKms), num(g.SigmaVKms), numOrEmpty(g.WantRelK)})
 		}
 		for i := range rec {
 			rec[i] = export.SafeCSVCell(rec[i])
@@ -661,6 +681,15 @@ type jsonTarget struct {
 	AcquireS   float64    `json:"acquire_s,omitempty"`
 	Tags       []string   `json:"tags"`
 	Notes      string     `json:"notes,omitempty"`
+	RV         *jsonRV    `json:"rv,omitempty"`
+}
+
+// jsonRV is a target's RV goal (planner.RVGoal): km/s and a fraction.
+type jsonRV struct {
+	Model     string  `json:"model"`
+	KKms      float64 `json:"k_kms"`
+	SigmaVKms float64 `json:"sigma_kms"`
+	WantRelK  float64 `json:"want_rel_k,omitempty"`
 }
 
 // lineAt returns the 1-based line of byte offset off in b.
@@ -736,6 +765,9 @@ func parseJSONFile(b []byte) (parsedFile, error) {
 	pf.column = func(field string) (string, int) {
 		if _, ok := ephemMember[field]; ok {
 			return "ephemeris." + field, 0
+		}
+		if m, ok := strings.CutPrefix(field, "rv_"); ok {
+			return "rv." + m, 0
 		}
 		return field, 0
 	}
@@ -855,6 +887,9 @@ func jsonToInput(jt jsonTarget, line, i int) (TargetInput, []planner.CellError) 
 		t.Priority = *jt.Priority
 	}
 	t.AcquireS, t.Tags, t.Notes = jt.AcquireS, jt.Tags, jt.Notes
+	if r := jt.RV; r != nil {
+		t.RV = &planner.RVGoal{Model: planner.RVModel(r.Model), KKms: r.KKms, SigmaVKms: r.SigmaVKms, WantRelK: r.WantRelK}
+	}
 	return in, cells
 }
 
@@ -877,6 +912,9 @@ func writeJSONFile(w io.Writer, listName string, targets []StoredTarget) error {
 			},
 			Goals:    []jsonGoal{},
 			Priority: &prio, AcquireS: t.AcquireS, Tags: append([]string{}, t.Tags...), Notes: t.Notes,
+		}
+		if g := t.RV; g != nil {
+			jt.RV = &jsonRV{Model: string(g.Model), KKms: g.KKms, SigmaVKms: g.SigmaVKms, WantRelK: g.WantRelK}
 		}
 		for _, g := range t.Goals {
 			jt.Goals = append(jt.Goals, jsonGoal{Event: g.Event, Center: g.Center, PhaseHalfwidth: g.HalfWidth,

@@ -483,7 +483,8 @@ const ephemCols = `e.id, e.target_id, e.t0_day, e.t0_frac, e.t0_in_day, e.t0_in_
 	coalesce(e.created_by, 0), coalesce(u.name, ''), e.created_at`
 
 const targetSelect = `SELECT t.id, t.list_id, l.team_id, t.name, t.ra_deg, t.dec_deg, t.pm_ra_masyr, t.pm_dec_masyr, t.mag,
-	t.priority, t.acquire_s, t.goals_json, t.tags_json, t.notes, t.created_at, t.updated_at, t.version, ` + ephemCols + `
+	t.priority, t.acquire_s, t.goals_json, t.tags_json, t.notes, t.rv_model, t.rv_k_kms, t.rv_sigma_kms, t.rv_want_rel_k,
+	t.created_at, t.updated_at, t.version, ` + ephemCols + `
 	FROM targets t
 	JOIN target_lists l ON l.id = t.list_id
 	JOIN ephemerides e ON e.id = (SELECT max(id) FROM ephemerides WHERE target_id = t.id)
@@ -518,11 +519,12 @@ func (s *ephemScan) finish(r *EphemerisRecord) error {
 
 func scanTarget(sc interface{ Scan(...any) error }) (StoredTarget, error) {
 	var st StoredTarget
-	var goals, tags, c, u string
+	var goals, tags, c, u, rvModel string
+	var rv planner.RVGoal
 	var es ephemScan
 	tg := &st.Target
 	dest := []any{&st.ID, &st.ListID, &st.TeamID, &tg.Name, &tg.RADeg, &tg.DecDeg, &tg.PMRAmasyr, &tg.PMDecmasyr, &tg.Mag,
-		&tg.Priority, &tg.AcquireS, &goals, &tags, &tg.Notes, &c, &u, &st.Version}
+		&tg.Priority, &tg.AcquireS, &goals, &tags, &tg.Notes, &rvModel, &rv.KKms, &rv.SigmaVKms, &rv.WantRelK, &c, &u, &st.Version}
 	dest = append(dest, ephemDest(&st.Ephemeris, &es)...)
 	if err := sc.Scan(dest...); err != nil {
 		return StoredTarget{}, err
@@ -535,6 +537,10 @@ func scanTarget(sc interface{ Scan(...any) error }) (StoredTarget, error) {
 	}
 	if err := json.Unmarshal([]byte(tags), &tg.Tags); err != nil {
 		return StoredTarget{}, fmt.Errorf("target %d tags: %w", st.ID, err)
+	}
+	if rvModel != "" {
+		rv.Model = planner.RVModel(rvModel)
+		tg.RV = &rv
 	}
 	tg.Ephem = st.Ephemeris.Ephem
 	var err error
@@ -608,6 +614,15 @@ func targetJSON(tg planner.Target) (goals, tags string, err error) {
 	return string(gb), string(tb), nil
 }
 
+// rvColumns returns the rv_ columns of a target's RV goal (model ” and
+// zeros for none).
+func rvColumns(g *planner.RVGoal) [4]any {
+	if g == nil {
+		return [4]any{"", 0.0, 0.0, 0.0}
+	}
+	return [4]any{string(g.Model), g.KKms, g.SigmaVKms, g.WantRelK}
+}
+
 func targetNameTaken(t *txn, listID int64, name string, except int64) error {
 	var n int
 	if err := t.queryRow("SELECT count(*) FROM targets WHERE list_id = ? AND name = ? AND id != ?", listID, name, except).Scan(&n); err != nil {
@@ -628,9 +643,12 @@ func insertTarget(t *txn, listID int64, in TargetInput, src EphemerisSource) (in
 	}
 	now := fmtTime(t.now)
 	tg := in.Target
+	rv := rvColumns(tg.RV)
 	res, err := t.exec(`INSERT INTO targets (list_id, name, ra_deg, dec_deg, pm_ra_masyr, pm_dec_masyr, mag, priority, acquire_s,
-		goals_json, tags_json, notes, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
-		listID, tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Priority, tg.AcquireS, goals, tags, tg.Notes, now, now)
+		goals_json, tags_json, notes, rv_model, rv_k_kms, rv_sigma_kms, rv_want_rel_k, created_at, updated_at, version)
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
+		listID, tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Priority, tg.AcquireS, goals, tags, tg.Notes,
+		rv[0], rv[1], rv[2], rv[3], now, now)
 	if err != nil {
 		return 0, fmt.Errorf("insert target: %w", err)
 	}
@@ -798,11 +816,13 @@ func applyTargetUpdate(t *txn, before StoredTarget, in TargetInput, src Ephemeri
 		return StoredTarget{}, err
 	}
 	tg := in.Target
+	rv := rvColumns(tg.RV)
 	if _, err := t.exec(`UPDATE targets SET name = ?, ra_deg = ?, dec_deg = ?, pm_ra_masyr = ?, pm_dec_masyr = ?, mag = ?,
-		priority = ?, acquire_s = ?, goals_json = ?, tags_json = ?, notes = ?, updated_at = ?, version = version + 1
+		priority = ?, acquire_s = ?, goals_json = ?, tags_json = ?, notes = ?, rv_model = ?, rv_k_kms = ?, rv_sigma_kms = ?,
+		rv_want_rel_k = ?, updated_at = ?, version = version + 1
 		WHERE id = ? AND version = ?`,
 		tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Priority, tg.AcquireS, goals, tags, tg.Notes,
-		fmtTime(t.now), before.ID, before.Version); err != nil {
+		rv[0], rv[1], rv[2], rv[3], fmtTime(t.now), before.ID, before.Version); err != nil {
 		return StoredTarget{}, fmt.Errorf("update target: %w", err)
 	}
 	after, err := getTarget(t, before.ID)

@@ -10,6 +10,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"phasecast/planner"
 	"phasecast/store"
 )
 
@@ -62,6 +63,8 @@ type apiErrorBody struct {
 		Code    string          `json:"code"`
 		Message string          `json:"message"`
 		Fields  []apiFieldError `json:"fields,omitempty"`
+		// Cells lists every rejected cell of an uploaded file.
+		Cells []apiCellError `json:"cells,omitempty"`
 	} `json:"error"`
 	// Current is the row as it is now, after a stale-version update.
 	Current any `json:"current,omitempty"`
@@ -93,6 +96,12 @@ func (s *Server) apiError(w http.ResponseWriter, r *http.Request, err error) {
 			body.Error.Fields = append(body.Error.Fields, apiFieldError{apiFieldName(f.Field), f.Value, f.Accepted})
 		}
 	}
+	var te *planner.TableError
+	if errors.As(err, &te) {
+		for _, c := range te.Cells {
+			body.Error.Cells = append(body.Error.Cells, apiCellError{Line: c.Line, Column: c.Column, Value: c.Value, Reason: c.Reason})
+		}
+	}
 	var se *store.Error
 	if errors.As(err, &se) && se.Current != nil {
 		if t, ok := se.Current.(store.StoredTarget); ok {
@@ -108,6 +117,16 @@ type apiFieldError struct {
 	Field    string `json:"field"`
 	Value    string `json:"value"`
 	Accepted string `json:"accepted"`
+}
+
+// apiCellError is one rejected cell of an uploaded file: its line (1 =
+// the header), the column's name ("" for the whole line), the value as
+// written and why it is refused (what is accepted).
+type apiCellError struct {
+	Line   int    `json:"line"`
+	Column string `json:"column"`
+	Value  string `json:"value"`
+	Reason string `json:"reason"`
 }
 
 // ephemFields are the store's names of ephemeris fields, which the API

@@ -28,7 +28,17 @@ type targetJSON struct {
 	Tags       []string   `json:"tags,omitempty"`
 	Notes      string     `json:"notes,omitempty"`
 	EphemNote  string     `json:"ephem_note,omitempty"`
+	RV         *rvJSON    `json:"rv,omitempty"`
 	UpdatedAt  string     `json:"updated_at,omitempty"`
+}
+
+// rvJSON is a target's radial-velocity goal (planner.RVGoal), with the
+// member names of the JSON target file's "rv" object.
+type rvJSON struct {
+	Model     string  `json:"model"`
+	KKms      float64 `json:"k_kms"`
+	SigmaVKms float64 `json:"sigma_kms"`
+	WantRelK  float64 `json:"want_rel_k,omitempty"`
 }
 
 // ephemJSON is an ephemeris in the JSON API: T0 as written (every digit
@@ -74,6 +84,9 @@ func targetToJSON(t store.StoredTarget) targetJSON {
 			T0Convention: string(e.Convention), T0BJDTDB: planner.FormatEpoch(e.T0, planner.FormJD, 10), T0ErrDays: e.T0ErrDays,
 			PeriodDays: e.PeriodDays, PeriodErrDays: e.PeriodErr, CovT0Period: e.CovT0P, Pdot: e.Pdot, PdotErr: e.PdotErr,
 			PhaseOffset: e.PhaseOffset, Ecc: e.Ecc, OmegaDeg: e.OmegaDeg, Source: string(r.Source)}}
+	if g := tg.RV; g != nil {
+		out.RV = &rvJSON{Model: string(g.Model), KKms: g.KKms, SigmaVKms: g.SigmaVKms, WantRelK: g.WantRelK}
+	}
 	for _, g := range tg.Goals {
 		gj := goalJSON{Event: g.Event, PhaseHalfWidth: g.HalfWidth, ExposureS: g.ExposureS, OverheadS: g.OverheadS,
 			NExposures: g.NExposures, MinNights: g.MinNights, EclipseDurDays: g.EclipseDurDays}
@@ -127,6 +140,9 @@ func (j targetJSON) input() (store.TargetInput, error) {
 			pg.Center = *g.Phase
 		}
 		tg.Goals = append(tg.Goals, pg)
+	}
+	if r := j.RV; r != nil {
+		tg.RV = &planner.RVGoal{Model: planner.RVModel(r.Model), KKms: r.KKms, SigmaVKms: r.SigmaVKms, WantRelK: r.WantRelK}
 	}
 	return store.TargetInput{Target: tg, T0: t0, EphemNote: j.EphemNote}, nil
 }

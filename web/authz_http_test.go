@@ -169,6 +169,9 @@ func authzTable() []authzRow {
 		{method: "GET", pattern: "/tonight/body", path: p("/tonight/body"), want: teamPage},
 		{method: "GET", pattern: "/night", path: func(w authzWorld) string { return "/night" + night(w) }, want: teamPage},
 		{method: "GET", pattern: "/night/sheet", path: func(w authzWorld) string { return "/night/sheet" + night(w) }, want: teamThing},
+		{method: "GET", pattern: "/night/telescope", path: func(w authzWorld) string { return "/night/telescope" + night(w) }, want: teamThing},
+		{method: "GET", pattern: "/night/telescope.csv", path: func(w authzWorld) string { return "/night/telescope.csv" + night(w) }, want: teamThing},
+		{method: "GET", pattern: "/night/telescope.json", path: func(w authzWorld) string { return "/night/telescope.json" + night(w) }, want: teamThing},
 		{method: "GET", pattern: "/night.csv", path: func(w authzWorld) string { return "/night.csv" + night(w) }, want: teamThing},
 		{method: "GET", pattern: "/night.json", path: func(w authzWorld) string { return "/night.json" + night(w) }, want: teamThing},
 		{method: "GET", pattern: "/night.ics", path: func(w authzWorld) string { return "/night.ics" + night(w) }, want: teamThing},
@@ -187,6 +190,10 @@ func authzTable() []authzRow {
 		{method: "POST", pattern: "/targets/{id}/delete", fresh: true, path: pf("/targets/%d/delete", "target"),
 			form: func(w authzWorld) url.Values { return url.Values{"version": {fmt.Sprint(w.targetVersion)}} }, want: teamWrite},
 		{method: "POST", pattern: "/targets/{id}/timings", path: pf("/targets/%d/timings", "target"), form: form("event", "nonsense"),
+			want: want{bad, bad, bad, nf, see, see, see, see}},
+		{method: "POST", pattern: "/targets/{id}/timings/preview", path: pf("/targets/%d/timings/preview", "target"), form: form("content", ""),
+			want: want{bad, bad, bad, nf, see, see, see, see}},
+		{method: "POST", pattern: "/targets/{id}/timings/upload", path: pf("/targets/%d/timings/upload", "target"), form: form("content", ""),
 			want: want{bad, bad, bad, nf, see, see, see, see}},
 		{method: "POST", pattern: "/targets/{id}/refine", fresh: true, path: pf("/targets/%d/refine", "target"),
 			form: func(w authzWorld) url.Values { return url.Values{"version": {fmt.Sprint(w.targetVersion)}} },
@@ -235,6 +242,12 @@ func authzTable() []authzRow {
 		{method: "GET", pattern: "/windows.json", path: windowsQuery("/windows.json"), want: windowsWant},
 		{method: "GET", pattern: "/windows.ics", path: windowsQuery("/windows.ics"), want: windowsWant},
 
+		// Proposal sizing: computed for the caller's own team, like windows.
+		{method: "GET", pattern: "/propose", path: p("/propose"), want: teamPage},
+		{method: "GET", pattern: "/propose.json", path: func(w authzWorld) string {
+			return fmt.Sprintf("/propose.json?site=%d&list=%d&t=%d&from=2026-03-14&to=2026-03-15&n=2", w.site, w.list, w.target)
+		}, want: windowsWant},
+
 		// Sites.
 		{method: "GET", pattern: "/sites", path: p("/sites"), want: teamPage},
 		{method: "GET", pattern: "/sites/new", path: p("/sites/new"), want: want{ok, ok, ok, ok, see, see, see, see}},
@@ -266,6 +279,8 @@ func authzTable() []authzRow {
 			want: want{unau, unau, unau, unau, unau, unau, bad, bad}},
 		{method: "DELETE", pattern: "/api/v1/targets/{id}", fresh: true, path: pf("/api/v1/targets/%d?version=VERSION", "target"),
 			want: want{unau, unau, unau, unau, unau, unau, nf, http.StatusNoContent}},
+		{method: "POST", pattern: "/api/v1/targets/{id}/timings", path: pf("/api/v1/targets/%d/timings", "target"), json: func(authzWorld) string { return `{}` },
+			want: want{unau, unau, unau, unau, unau, unau, bad, bad}},
 		{method: "GET", pattern: "/api/v1/night", path: func(w authzWorld) string { return "/api/v1/night" + night(w) }, want: apiThing},
 		{method: "GET", pattern: "/api/v1/windows", path: windowsQuery("/api/v1/windows"), want: want{unau, unau, unau, unau, unau, unau, bad, ok}},
 		{method: "GET", pattern: "/api/v1/runs", path: p("/api/v1/runs"), want: want{unau, unau, unau, unau, unau, unau, ok, ok}},

@@ -68,7 +68,7 @@ func TestNightFormErrorsVisible(t *testing.T) {
 					t.Errorf("summary lacks the %s message %q", fld, msg)
 				}
 			}
-			if !regexp.MustCompile(`<details[^>]* open`).MatchString(body) {
+			if !regexp.MustCompile(`<details[^>]* open[^>]*><summary>Constraints`).MatchString(body) {
 				t.Error("the Constraints box stays closed over its errors")
 			}
 		})
@@ -78,7 +78,7 @@ func TestNightFormErrorsVisible(t *testing.T) {
 		if resp.StatusCode != http.StatusOK || summary(body) != "" {
 			t.Errorf("status %d, summary %q", resp.StatusCode, summary(body))
 		}
-		if regexp.MustCompile(`<details[^>]* open`).MatchString(body) {
+		if regexp.MustCompile(`<details[^>]* open[^>]*><summary>Constraints`).MatchString(body) {
 			t.Error("the Constraints box is open without an error")
 		}
 	})

@@ -156,6 +156,8 @@ type night struct {
 	plan    *planner.Plan
 	events  planner.NightEvents
 	source  string // Tonight: whose blocks are shown (a run's saved plan, or planned now)
+	// replanned: Tonight shows the rest of the night planned again from now
+	replanned bool
 }
 
 // loadNight resolves the request's site, list and targets for the actor

@@ -58,7 +58,7 @@ func (n *night) view(now time.Time) (page.NightView, error) {
 	}
 	zone := zoneLabel(n.loc, at)
 	v := page.NightView{HasPlan: true, Title: n.title(), Zone: zone, Query: n.q.encode(), PartNote: n.partNote()}
-	v.Events = n.eventRows()
+	v.Summary = n.summary()
 	for _, b := range p.Blocks {
 		v.Blocks = append(v.Blocks, n.blockRow(b))
 	}
@@ -98,26 +98,6 @@ func objectiveText(p *planner.Plan) string {
 		return s + "; optimal for the planner's objective."
 	}
 	return s + "; the search stopped early, so the schedule may fall short of the optimum."
-}
-
-// eventRows lists the Sun and Moon events that happen.
-func (n *night) eventRows() []page.EventRow {
-	ev := n.events
-	var out []page.EventRow
-	for _, e := range []struct {
-		name string
-		t    *time.Time
-	}{{"Sunset", ev.Sunset}, {"Civil dusk", ev.CivilDusk}, {"Nautical dusk", ev.NauticalDusk}, {"Astro. dusk", ev.AstronomicalDusk},
-		{"Astro. dawn", ev.AstronomicalDawn}, {"Nautical dawn", ev.NauticalDawn}, {"Civil dawn", ev.CivilDawn}, {"Sunrise", ev.Sunrise},
-		{"Moonrise", ev.Moonrise}, {"Moonset", ev.Moonset}} {
-		if e.t == nil {
-			out = append(out, page.EventRow{Name: e.name, Local: "—", UTC: "—"})
-			continue
-		}
-		out = append(out, page.EventRow{Name: e.name, Local: e.t.In(n.loc).Format("15:04"), UTC: e.t.UTC().Format("15:04")})
-	}
-	out = append(out, page.EventRow{Name: "Moon lit", Local: fmt.Sprintf("%.0f%%", ev.MoonIlluminated*100), UTC: ""})
-	return out
 }
 
 // blockRow formats one block with every figure.
@@ -189,9 +169,13 @@ func (n *night) chart(now time.Time) (chart.Night, error) {
 	}
 	for i, t := range samples.Times {
 		c.Moon = append(c.Moon, chart.AltPoint{T: t, AltDeg: samples.MoonAltDeg[i]})
+		c.Sun = append(c.Sun, chart.AltPoint{T: t, AltDeg: samples.SunAltDeg[i]})
 	}
-	for _, ts := range samples.Targets {
+	for k, ts := range samples.Targets {
 		tr := chart.Track{Name: ts.Name, Points: make([]chart.TrackPoint, len(samples.Times))}
+		if k < len(n.req.Targets) {
+			tr.Events = trackEvents(n.req.Targets[k])
+		}
 		for i, t := range samples.Times {
 			tr.Points[i] = chart.TrackPoint{T: t, AltDeg: ts.AltDeg[i], Phase: ts.Phase[i]}
 		}
@@ -205,7 +189,8 @@ func (n *night) chart(now time.Time) (chart.Night, error) {
 		if b.Filler {
 			label = fmt.Sprintf("fill ×%d", b.N)
 		}
-		c.Blocks = append(c.Blocks, chart.Block{Target: b.Target, Start: b.Start, End: b.End, Label: label, Filler: b.Filler})
+		c.Blocks = append(c.Blocks, chart.Block{Target: b.Target, Start: b.Start, End: b.End, Label: label, Filler: b.Filler,
+			Detail: blockDetail(n.blockRow(b), zoneLabel(n.loc, b.Start))})
 	}
 	for _, x := range []float64{1.0, 1.2, 1.5, 2.0, 3.0} {
 		c.Airmass = append(c.Airmass, chart.Tick{AltDeg: planner.AirmassAltDeg(x), Label: strconv.FormatFloat(x, 'f', 1, 64)})

@@ -93,6 +93,9 @@ func (s *Server) router() chi.Router {
 		g.get("/tonight/body", s.heavy(s.tonightBody))
 		g.get("/night", s.heavy(s.nightShow))
 		g.get("/night/sheet", s.heavy(s.nightSheet))
+		g.get("/night/telescope", s.heavy(s.nightTelescope))
+		g.get("/night/telescope.csv", s.heavy(s.nightTelescopeExport("csv")))
+		g.get("/night/telescope.json", s.heavy(s.nightTelescopeExport("json")))
 		g.get("/night.csv", s.heavy(s.nightExport("csv")))
 		g.get("/night.json", s.heavy(s.nightExport("json")))
 		g.get("/night.ics", s.heavy(s.nightExport("ics")))
@@ -106,6 +109,8 @@ func (s *Server) router() chi.Router {
 		g.post("/targets/{id}", s.targetUpdate)
 		g.post("/targets/{id}/delete", s.targetDelete)
 		g.post("/targets/{id}/timings", s.timingAdd)
+		g.post("/targets/{id}/timings/preview", s.timingsPreview)
+		g.post("/targets/{id}/timings/upload", s.timingsCommit)
 		g.post("/targets/{id}/refine", s.targetRefine)
 		g.post("/timings/{id}/delete", s.timingDelete)
 		g.post("/lists", s.listCreate)
@@ -137,6 +142,10 @@ func (s *Server) router() chi.Router {
 		g.get("/windows.json", s.heavy(s.windowsExport("json")))
 		g.get("/windows.ics", s.heavy(s.windowsExport("ics")))
 
+		// Proposal sizing.
+		g.get("/propose", s.heavy(s.proposeShow))
+		g.get("/propose.json", s.heavy(s.proposeExport))
+
 		// Sites.
 		g.get("/sites", s.sitesList)
 		g.get("/sites/new", s.siteNew)
@@ -158,6 +167,7 @@ func (s *Server) router() chi.Router {
 		g.get("/targets/{id}", s.apiTargetGet)
 		g.put("/targets/{id}", s.apiTargetUpdate)
 		g.del("/targets/{id}", s.apiTargetDelete)
+		g.post("/targets/{id}/timings", s.apiTimingsUpload)
 		g.get("/night", s.heavy(s.apiNight))
 		g.get("/windows", s.heavy(s.apiWindows))
 		g.get("/runs", s.apiRuns)

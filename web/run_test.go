@@ -83,7 +83,7 @@ func TestRunPlanMarkReplan(t *testing.T) {
 	}
 	next := plan("0")
 	resp, body := d.get(t, next)
-	for _, id := range []string{"reach", "coverage", "rings", "run-night"} {
+	for _, id := range []string{"reach", "coverage", "rings", "run-night", "precision", "precision-chart"} {
 		if !hasTestID(body, id) {
 			t.Errorf("run page lacks %s", id)
 		}
@@ -265,6 +265,26 @@ func TestAPIRuns(t *testing.T) {
 	code, body := call(owner, "POST", run+"/plan?past=1")
 	if code != http.StatusCreated || body["past_nights"] != 1.0 || len(body["nights"].([]any)) != len(d.info.Run.Nights) {
 		t.Fatalf("plan = %d, past %v", code, body["past_nights"])
+	}
+	// The demo's three RV targets and its timed target carry a forecast;
+	// the RV targets lie about 8 h apart in RA, so on any date at least one
+	// is planned enough to measure K.
+	prec, _ := body["precision"].([]any)
+	rvN, rvDetermined, timingN := 0, 0, 0
+	for _, p := range prec {
+		m := p.(map[string]any)
+		if r, ok := m["rv"].(map[string]any); ok {
+			rvN++
+			if r["after_plan"].(map[string]any)["determined"] == true {
+				rvDetermined++
+			}
+		}
+		if _, ok := m["timing"].(map[string]any); ok {
+			timingN++
+		}
+	}
+	if rvN != 3 || rvDetermined == 0 || timingN != 1 {
+		t.Errorf("precision: %d RV targets (%d determined), %d timing targets; want 3 (≥ 1) and 1: %v", rvN, rvDetermined, timingN, prec)
 	}
 	code, body = call(viewer, "GET", run+"/coverage")
 	if code != http.StatusOK || len(body["targets"].([]any)) != len(d.info.Targets) {

@@ -17,5 +17,5 @@ func newRunDoc(in *runInputs, rp *planner.RunPlan) (export.Run, error) {
 		ids[i] = t.ID
 	}
 	return export.NewRun(export.RunInput{Name: in.run.Name, Site: export.NewSite(in.site.Name, in.site.Site), Loc: in.loc,
-		AcquireS: largestAcquire(rp.Request.Targets), TargetIDs: ids}, rp)
+		AcquireS: largestAcquire(rp.Request.Targets), TargetIDs: ids, Timings: in.timings}, rp)
 }

@@ -18,6 +18,9 @@ type runInputs struct {
 	obs     []store.Observation
 	nights  []planner.RunNight
 	windows []planner.Interval
+	// timings are the measured timings of each target's reference event
+	// (BJD_TDB), by target name, for the timing precision.
+	timings map[string][]planner.EphemTiming
 }
 
 // loadRun loads a run with its site, targets and observations.
@@ -38,7 +41,18 @@ func (s *Server) loadRun(ctx context.Context, a store.Actor, id int64) (*runInpu
 	if err != nil {
 		return nil, err
 	}
-	in := &runInputs{run: run, site: site, targets: targets, obs: obs}
+	in := &runInputs{run: run, site: site, targets: targets, obs: obs, timings: map[string][]planner.EphemTiming{}}
+	for _, t := range targets {
+		tms, err := s.store.ListTimings(ctx, a, t.ID)
+		if err != nil {
+			return nil, err
+		}
+		for _, tm := range tms {
+			if tm.Event == "" {
+				in.timings[t.Target.Name] = append(in.timings[t.Target.Name], planner.EphemTiming{Value: tm.BJD, Std: planner.StdBJDTDB, ErrDays: tm.ErrDays})
+			}
+		}
+	}
 	if in.loc, err = time.LoadLocation(site.Zone); err != nil {
 		in.loc = time.UTC
 	}

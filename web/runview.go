@@ -44,6 +44,7 @@ func runView(in *runInputs, doc *export.Run, plans []store.SavedPlan, planID int
 				Nights: fmt.Sprintf("%d (%d wanted)", g.NightsMet, g.NeedNights), Status: statusText(g)})
 		}
 	}
+	v.Precision, v.PrecisionChart = precisionView(doc)
 	for k, n := range doc.Nights {
 		ns := page.NightSchedule{Index: k, Label: nightHeading(n), Past: n.Past, Href: "/night?" + url.Values{"run": {i64s(run.ID)}, "date": {n.Date}}.Encode()}
 		switch {

@@ -57,6 +57,7 @@ func (s *Server) targetDetail(ctx context.Context, u *user, id int64) (page.Targ
 		v.Goals = append(v.Goals, goalLabelConv(g, t.Ephemeris.Ephem.Convention)+fmt.Sprintf(": %s s exposures + %s s readout, %s", num(g.ExposureS), num(g.OverheadS), wantLabel(g.NExposures)))
 	}
 	v.Sigma = sigmaChart(site, t, now)
+	v.Altitude, v.HasAltitude = altitudeTonight(sites, tg, now)
 	v.Timings, v.OC = timingRows(t, timings)
 	fit, note := proposeFit(t, timings)
 	if fit != nil {
@@ -87,6 +88,13 @@ func targetFacts(t store.StoredTarget) []page.KV {
 		page.KV{Key: "Acquisition", Value: num(tg.AcquireS) + " s per visit"})
 	if len(tg.Tags) > 0 {
 		kv = append(kv, page.KV{Key: "Tags", Value: strings.Join(tg.Tags, ", ")})
+	}
+	if g := tg.RV; g != nil {
+		v := fmt.Sprintf("%s, K %s km/s, σv %s km/s per exposure", g.Model, num(g.KKms), num(g.SigmaVKms))
+		if g.WantRelK > 0 {
+			v += ", wanted σK/K ≤ " + planner.FormatRelPercent(g.WantRelK, true)
+		}
+		kv = append(kv, page.KV{Key: "Radial-velocity goal", Value: v})
 	}
 	return append(kv, page.KV{Key: "Saved", Value: fmtUTC(t.UpdatedAt) + " (version " + strconv.FormatInt(t.Version, 10) + ")"})
 }

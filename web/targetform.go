@@ -34,7 +34,7 @@ func parseTargetForm(r *http.Request) targetFormIn {
 		T0: f("t0"), T0Std: f("t0_standard"), T0Form: f("t0_form"), T0Err: f("t0_err_days"), Period: f("period_days"),
 		PerErr: f("period_err_days"), Pdot: f("pdot"), Conv: f("t0_convention"), PhOffset: f("phase_offset"), Ecc: f("ecc"),
 		Omega: f("omega_deg"), Priority: f("priority"), AcquireS: f("acquire_s"), Tags: f("tags"), Notes: r.PostFormValue("notes"),
-		EphNote: f("ephem_note")}
+		EphNote: f("ephem_note"), RVModel: f("rv_model"), RVK: f("rv_k_kms"), RVSigma: f("rv_sigma_kms"), RVWant: f("rv_want_rel_k")}
 	t := planner.Target{Name: p.form.Name, Notes: p.form.Notes}
 	if v, err := planner.ParseRA(p.form.RA); err != nil {
 		p.errs["ra"] = fmt.Sprintf("“%s” is not a right ascension; accepted: hours as 12:34:56.7 or degrees 0 ≤ RA < 360", p.form.RA)
@@ -69,6 +69,7 @@ func parseTargetForm(r *http.Request) targetFormIn {
 		}
 	}
 	t.Goals = p.goals(r)
+	t.RV = p.rvGoal()
 	epoch, err := store.ParseEpoch(p.form.T0, planner.TimeStandard(p.form.T0Std), planner.EpochForm(p.form.T0Form))
 	if err != nil {
 		var ie *planner.InputError
@@ -83,6 +84,23 @@ func parseTargetForm(r *http.Request) targetFormIn {
 		p.addStoreChecks()
 	}
 	return p
+}
+
+// rvGoal reads the RV goal's inputs: none when the model is empty and the
+// numbers too; numbers without a model are refused by name.
+func (p *targetFormIn) rvGoal() *planner.RVGoal {
+	f := p.form
+	if f.RVModel == "" {
+		if f.RVK != "" || f.RVSigma != "" || f.RVWant != "" {
+			p.errs["rv_model"] = "an RV goal needs its model: choose circular or eccentric, or clear K, σv and σK/K"
+		}
+		return nil
+	}
+	g := &planner.RVGoal{Model: planner.RVModel(f.RVModel)}
+	p.num("rv_k_kms", f.RVK, &g.KKms)
+	p.num("rv_sigma_kms", f.RVSigma, &g.SigmaVKms)
+	p.num("rv_want_rel_k", f.RVWant, &g.WantRelK)
+	return g
 }
 
 // addStoreChecks adds the store's messages for the fields that parsed but
@@ -199,6 +217,7 @@ var knownTargetField = map[string]bool{
 	"name": true, "ra": true, "dec": true, "pm_ra_masyr": true, "pm_dec_masyr": true, "mag": true, "priority": true,
 	"acquire_s": true, "tags": true, "notes": true, "ephem_note": true, "t0": true, "t0_err_days": true, "period_days": true,
 	"period_err_days": true, "pdot": true, "phase_offset": true, "ecc": true, "omega_deg": true, "": true,
+	"rv_model": true, "rv_k_kms": true, "rv_sigma_kms": true, "rv_want_rel_k": true,
 }
 
 // formFromTarget fills the form from a stored target.
@@ -211,6 +230,9 @@ func formFromTarget(t store.StoredTarget) page.TargetForm {
 		T0Err: optNum(e.T0ErrDays), Period: optNum(e.PeriodDays), PerErr: optNum(e.PeriodErr), Pdot: optNum(e.Pdot),
 		Conv: string(e.Convention), PhOffset: optNum(e.PhaseOffset), Ecc: optNum(e.Ecc), Omega: optNum(e.OmegaDeg),
 		Priority: strconv.Itoa(tg.Priority), AcquireS: optNum(tg.AcquireS), Tags: strings.Join(tg.Tags, ", "), Notes: tg.Notes}
+	if g := tg.RV; g != nil {
+		f.RVModel, f.RVK, f.RVSigma, f.RVWant = string(g.Model), optNum(g.KKms), optNum(g.SigmaVKms), optNum(g.WantRelK)
+	}
 	for _, g := range tg.Goals {
 		c := strconv.FormatFloat(g.Center, 'f', -1, 64)
 		if g.Event != "" {
@@ -235,6 +257,7 @@ func withChoices(f page.TargetForm) page.TargetForm {
 	f.Std = options(planner.TimeStandards, f.T0Std, string(planner.StdBJDTDB))
 	f.Forms = options(planner.EpochForms, f.T0Form, string(planner.FormJD))
 	f.Convs = options(planner.Conventions, f.Conv, string(planner.ConvInferiorConjunction))
+	f.RVModels = append([]page.Option{{Value: "", Label: "none", Selected: f.RVModel == ""}}, options(planner.RVModels, f.RVModel, "")...)
 	f.Events = planner.EventNames()
 	for len(f.Goals) < 3 || f.Goals[len(f.Goals)-1] != (page.GoalRow{}) {
 		f.Goals = append(f.Goals, page.GoalRow{})

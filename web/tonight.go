@@ -59,7 +59,14 @@ func (s *Server) tonightNight(ctx context.Context, u *user, q url.Values) (*nigh
 		if err := n.planIt(errs); err != nil {
 			return nil, nil, nil, err
 		}
-		if len(errs) == 0 {
+		switch {
+		case len(errs) > 0:
+		case q.Get("replan") == "1":
+			n.replanned = true
+			if n.source, err = s.replanTonight(ctx, u.actor, n); err != nil {
+				return nil, nil, nil, err
+			}
+		default:
 			if n.source, err = s.followSavedPlan(ctx, u.actor, n, run); err != nil {
 				return nil, nil, nil, err
 			}
@@ -92,6 +99,10 @@ func (s *Server) tonightView(n *night, runs []store.Run, run *store.Run, now tim
 		return v
 	}
 	v.Source = n.source
+	v.Replanned, v.CanReplan = n.replanned, true
+	if run != nil {
+		v.Replan = "run=" + i64s(run.ID)
+	}
 	q := n.q
 	v.NightLink = "/night?" + q.encode()
 	zone := zoneLabel(n.loc, now)

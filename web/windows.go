@@ -168,7 +168,7 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 				Local:  qw.Start.In(n.loc).Format("Jan 02 15:04") + "–" + qw.End.In(n.loc).Format("15:04"),
 				Length: fmtDuration(qw.End.Sub(qw.Start)), Cycle: strconv.FormatInt(qw.Cycle, 10),
 				Airmass: fmt.Sprintf("%.2f–%.2f", qw.AirmassMin, qw.AirmassMax), PhaseErr: fmtPhaseErr(qw.PhaseErr), Uncertain: qw.Uncertain,
-				Exposures: strconv.Itoa(qw.Exposures)})
+				Exposures: strconv.Itoa(qw.Exposures), Night: nightOf(qw.Start, n.loc)})
 			v.Total++
 		}
 		v.Groups = append(v.Groups, grp)

@@ -28,6 +28,10 @@ event T0 marks, e.g. mid-eclipse), read from a CSV file with a header line:
             HJD_TT, HJD_UTC or JD_UTC (never guessed)
   err_s     its 1σ uncertainty in seconds, or err_days in days (one of them)
   form      optional: JD (default), MJD or RJD
+  cycle     optional: the timing's whole cycle number counted from --t0
+            (cycle 0), fixed by hand; empty = numbered by the fit. Timings
+            numbered by hand help number the others; with two or more
+            distinct hand cycles the alias check is not made
   note      optional free text, ignored
 
 Lines starting with # are comments. Rows not in BJD_TDB are converted with the
@@ -112,13 +116,13 @@ func runFit(ctx context.Context, _ func() time.Time, args []string, stdout, stde
 	if !file.set {
 		return missing(file)
 	}
-	rows, err := readTimings(file, site, star)
+	rows, err := readTimings(file, site, star, nil)
 	if err != nil {
 		return err
 	}
 	timings := make([]ephem.Timing, len(rows))
 	for i, r := range rows {
-		timings[i] = ephem.Timing{Value: r.bjd, Std: ephem.StdBJDTDB, ErrDays: r.errDays}
+		timings[i] = ephem.Timing{Value: r.bjd, Std: ephem.StdBJDTDB, ErrDays: r.errDays, Cycle: r.cycle}
 	}
 	res, err := ephem.FitEphemeris(timings, guess, *quadratic)
 	if err != nil {
@@ -156,20 +160,25 @@ func runFit(ctx context.Context, _ func() time.Time, args []string, stdout, stde
 // timingRow is one parsed CSV row.
 type timingRow struct {
 	line    int
+	target  string // the row's target (run's timings file only)
 	text    string
 	std     ephem.TimeStandard
 	form    ephem.EpochForm
 	bjd     ephem.JD2
 	errDays float64
+	cycle   *int64 // fixed by hand (the cycle column), nil = numbered by the fit
 }
 
 // maxTimings bounds the file: a refinement needs far fewer.
 const maxTimings = 100000
 
-var timingColumns = []string{"time", "std", "err_s", "err_days", "form", "note"}
+var timingColumns = []string{"time", "std", "err_s", "err_days", "form", "cycle", "note"}
 
-// readTimings reads and converts the CSV file named by the flag.
-func readTimings(file *textValue, site *ephem.Site, star *ephem.Star) ([]timingRow, error) {
+// readTimings reads and converts the CSV file named by the flag. With
+// targets (run's file of several targets' timings) a target column is
+// required, naming a target of the list, whose position converts the row;
+// otherwise star does.
+func readTimings(file *textValue, site *ephem.Site, star *ephem.Star, targets map[string]ephem.Star) ([]timingRow, error) {
 	f, err := os.Open(file.value)
 	if err != nil {
 		return nil, fmt.Errorf("--timings %s: %w", shown(file.value), errors.Unwrap(err))
@@ -186,17 +195,25 @@ func readTimings(file *textValue, site *ephem.Site, star *ephem.Star) ([]timingR
 		return nil, usageErrorf("--timings %s: no header line: %v; accepted: a header such as time,std,err_s", shown(file.value), oneLine(err.Error()))
 	}
 	col := map[string]int{}
+	accepted := timingColumns
+	if targets != nil {
+		accepted = append([]string{"target"}, timingColumns...)
+	}
 	for i, h := range header {
 		name := strings.ToLower(strings.TrimSpace(strings.TrimPrefix(h, "\ufeff")))
-		if !slices.Contains(timingColumns, name) {
-			return nil, usageErrorf("%s: unknown column %q; accepted: %s", where(1), name, strings.Join(timingColumns, ", "))
+		if !slices.Contains(accepted, name) {
+			return nil, usageErrorf("%s: unknown column %q; accepted: %s", where(1), name, strings.Join(accepted, ", "))
 		}
 		if _, dup := col[name]; dup {
 			return nil, usageErrorf("%s: column %q appears twice", where(1), name)
 		}
 		col[name] = i
 	}
-	for _, need := range []string{"time", "std"} {
+	need := []string{"time", "std"}
+	if targets != nil {
+		need = append(need, "target")
+	}
+	for _, need := range need {
 		if _, ok := col[need]; !ok {
 			return nil, usageErrorf("%s: no %q column; accepted: a header with time, std and err_s or err_days", where(1), need)
 		}
@@ -228,11 +245,19 @@ func readTimings(file *textValue, site *ephem.Site, star *ephem.Star) ([]timingR
 			}
 			return ""
 		}
-		row, err := parseTimingRow(get, site, star)
+		rowStar := star
+		if targets != nil {
+			st, ok := targets[get("target")]
+			if !ok {
+				return nil, usageErrorf("%s: target %s is not in the targets file", where(line), shown(get("target")))
+			}
+			rowStar = &st
+		}
+		row, err := parseTimingRow(get, site, rowStar)
 		if err != nil {
 			return nil, usageErrorf("%s: %s", where(line), oneLine(err.Error()))
 		}
-		row.line = line
+		row.line, row.target = line, get("target")
 		rows = append(rows, row)
 	}
 	if len(rows) == 0 {
@@ -276,6 +301,13 @@ func parseTimingRow(get func(string) string, site *ephem.Site, star *ephem.Star)
 	}
 	row.errDays = e * scale
 	row.bjd = jd
+	if v := get("cycle"); v != "" {
+		c, err := strconv.ParseInt(v, 10, 64)
+		if err != nil || c < -ephem.MaxFixedCycle || c > ephem.MaxFixedCycle {
+			return row, fmt.Errorf("cycle %s: not accepted; accepted: a whole cycle number −%d..%d counted from --t0, or empty", shown(v), ephem.MaxFixedCycle, ephem.MaxFixedCycle)
+		}
+		row.cycle = &c
+	}
 	if row.std != ephem.StdBJDTDB {
 		if star == nil {
 			return row, fmt.Errorf("std %s: converting to BJD_TDB needs the target's position: give --ra and --dec", row.std)

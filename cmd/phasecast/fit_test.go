@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
@@ -118,4 +119,24 @@ func TestFitBadInput(t *testing.T) {
 			checkBad(t, tc.argv, tc.want)
 		})
 	}
+}
+
+// TestFitHandCycle: the "Ambiguous" file of TestFitBadInput (two timings a
+// cycle apart, a third 11,024 cycles on with a loose guess) is refused
+// without help; with the cycles given by hand in a cycle column the fit
+// takes them and reports them. A bad cycle is refused on its line.
+func TestFitHandCycle(t *testing.T) {
+	loose := []string{"--t0-err", "0.001", "--period-err", "1e-4"}
+	file := writeFile(t, "k.csv", "time,std,err_s,cycle\n2460500.4322443,BJD_TDB,60,0\n2460500.4934789,BJD_TDB,60,1\n2461175.4820787,BJD_TDB,3.2,11024\n")
+	m := runJSON(t, fitArgs(file, loose...)...)
+	tms := m["timings"].([]any)
+	shift := int64(num(t, m, "cycle_shift"))
+	for i, want := range []int64{0, 1, 11024} {
+		c, _ := tms[i].(map[string]any)["cycle"].(json.Number).Int64()
+		if c+shift != want {
+			t.Errorf("timing %d: cycle %d (+ shift %d), want %d as given", i, c, shift, want)
+		}
+	}
+	checkBad(t, fitArgs(writeFile(t, "l.csv", "time,std,err_s,cycle\n2460500.4322443,BJD_TDB,60,zero\n2460500.4934789,BJD_TDB,60,1\n"), loose...),
+		"line 2: cycle zero: not accepted; accepted: a whole cycle number")
 }

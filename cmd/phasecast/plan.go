@@ -31,7 +31,14 @@ conjunction of the companion); each goal takes as many exposures as fit in its
 window. --twilight takes civil, nautical, astronomical, or a Sun altitude in
 degrees (e.g. -15). The horizon file (--horizon) has one "azimuth altitude" pair
 of degrees per line, azimuth from north through east; the mask is interpolated
-linearly between points, wrapping through north.`
+linearly between points, wrapping through north.
+
+Replanning the rest of a night: --start TIME (RFC 3339) plans only from TIME
+on (no block or acquisition starts before it), and --observed LOG.csv (the run
+command's log: target,start_utc|mid_utc,exposure_s,n_exposures,overhead_s,status)
+gives the exposures already taken tonight: they stay as they were, and the goals
+they served are not planned again (a goal wanting N with k done wants N − k; with
+--n-exposures 0, one exposure serves it).`
 
 func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	fl := newFlags("plan", planSynopsis)
@@ -47,6 +54,9 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	inf := addPlanInstrumentFlags(fl)
 	siteName := addSiteNameFlag(fl)
 	format := fl.text("format", "text|json|csv", "text", "output format: the sheet, or the night document (docs/formats.md)")
+	start := fl.text("start", "TIME", "", "replan the rest of the night from TIME (RFC 3339): nothing starts before it")
+	observed := fl.text("observed", "LOG.csv", "", "with --start: exposures already taken tonight (the run command's log)")
+	sheet := fl.text("sheet", "csv|json", "", "print the telescope sheet of the blocks instead (columns in docs/sheet.md)")
 	asJSON := fl.boolean("json", "print one JSON object (the night document; the same as --format json)")
 	if help, err := fl.parse(args, stdout); help || err != nil {
 		return err
@@ -54,6 +64,16 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	fmtName, err := outputFormatOf(format, *asJSON, "text", "json", "csv")
 	if err != nil {
 		return err
+	}
+	sheetFmt := strings.ToLower(strings.TrimSpace(sheet.value))
+	if sheet.set && sheetFmt != "csv" && sheetFmt != "json" {
+		return fieldError(sheet, "not a sheet format", "csv or json")
+	}
+	if sheet.set && (*asJSON || format.set) {
+		return usageErrorf("--sheet %s with --json or --format: give one output", shown(sheet.value))
+	}
+	if observed.set && !start.set {
+		return usageErrorf("--observed goes with --start TIME: the instant the night is planned again from")
 	}
 	site, err := sf.site()
 	if err != nil {
@@ -107,15 +127,26 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 		}
 	}
 	from, to := planner.NightWindow(y, m, d, loc)
-	p, err := planner.PlanNight(planner.NightRequest{
-		Site: site, From: from, To: to, Targets: list, Constraints: c,
-		Options: planner.Options{StepS: stepS, Fill: *fill, PadSigma: pad}, Instrument: inst,
-	})
-	if err != nil {
+	req := planner.NightRequest{Site: site, From: from, To: to, Targets: list, Constraints: c,
+		Options: planner.Options{StepS: stepS, Fill: *fill, PadSigma: pad}, Instrument: inst}
+	ev := ephem.Night(site, y, m, d, loc)
+	var rp *planner.Replan
+	var p *planner.Plan
+	if start.set {
+		if rp, err = replanRest(req, start, observed); err != nil {
+			return err
+		}
+		p, list = rp.Plan, rp.Targets
+	} else if p, err = planner.PlanNight(req); err != nil {
 		return fromInputError(err, "not accepted", nil)
 	}
-	ev := ephem.Night(site, y, m, d, loc)
+	if sheet.set {
+		return writeSheet(stdout, site, list, p.Blocks, sheetFmt)
+	}
 	out := export.NewNight(export.NewSite(siteName.value, site), fmt.Sprintf("%04d-%02d-%02d", y, int(m), d), loc.String(), p, ev, acq)
+	if rp != nil {
+		out.PlanDoc.Replan = export.NewReplanDoc(rp)
+	}
 	if err := checkPlanFinite(out.PlanDoc); err != nil {
 		return err
 	}
@@ -125,7 +156,96 @@ func runPlan(ctx context.Context, now func() time.Time, args []string, stdout, s
 	case "csv":
 		return writeBytes(stdout, func() ([]byte, error) { return export.NightCSV(out, loc) })
 	}
+	if rp != nil {
+		if err := printReplanHead(stdout, rp, loc); err != nil {
+			return err
+		}
+	}
 	return printPlan(stdout, p, ev, loc, y, m, d, acq)
+}
+
+// writeSheet prints the telescope sheet of blocks (planned from targets)
+// as CSV or JSON (export.SheetDoc).
+func writeSheet(w io.Writer, site ephem.Site, targets []planner.Target, blocks []planner.Block, format string) error {
+	rows, err := planner.TelescopeSheet(site, targets, blocks)
+	if err != nil {
+		return fromInputError(err, "not accepted", nil)
+	}
+	doc := export.NewSheetDoc(rows)
+	if format == "json" {
+		return writeJSON(w, doc)
+	}
+	return writeBytes(w, func() ([]byte, error) { return export.SheetCSV(doc) })
+}
+
+// replanRest plans the rest of the night from --start, keeping the
+// exposures of --observed and not repeating the goals they served.
+func replanRest(req planner.NightRequest, start, observed *textValue) (*planner.Replan, error) {
+	at, err := ephem.ParseTime(start.value)
+	if err != nil {
+		return nil, fromInputError(err, "not a time", map[string]*textValue{"time": start})
+	}
+	if at.Before(req.From) || !at.Before(req.To) {
+		return nil, fieldError(start, "outside the night", fmt.Sprintf("an instant from %s to %s (local noon to local noon of --date)",
+			req.From.UTC().Format(time.RFC3339), req.To.UTC().Format(time.RFC3339)))
+	}
+	var done []planner.Exposure
+	if observed.set {
+		fh, err := os.Open(observed.value)
+		if err != nil {
+			return nil, fmt.Errorf("--observed %s: %w", shown(observed.value), err)
+		}
+		defer fh.Close()
+		if done, err = planner.ParseObservedCSV(fh); err != nil {
+			var te *planner.TableError
+			if errors.As(err, &te) {
+				return nil, usageErrorf("--observed %s: %s", shown(observed.value), te.Error())
+			}
+			return nil, fmt.Errorf("--observed %s: %w", shown(observed.value), err)
+		}
+		for _, e := range done {
+			if e.Mid.Before(req.From) || !e.Mid.Before(at) {
+				return nil, usageErrorf("--observed %s line %d: mid-time %s is not tonight before --start; accepted: exposures from %s to %s",
+					shown(observed.value), e.Line, e.Mid.UTC().Format(time.RFC3339), req.From.UTC().Format(time.RFC3339), at.UTC().Format(time.RFC3339))
+			}
+		}
+	}
+	rp, err := planner.ReplanNight(req, at, done)
+	if err != nil {
+		return nil, fromInputError(err, "not accepted", nil)
+	}
+	return rp, nil
+}
+
+// printReplanHead says, above a replanned night's sheet, from when it was
+// planned and what was kept.
+func printReplanHead(w io.Writer, rp *planner.Replan, loc *time.Location) error {
+	var b strings.Builder
+	fmt.Fprintf(&b, "Replanned from %s UTC (%s local): nothing new starts before it.\n", rp.Start.UTC().Format("2006-01-02 15:04:05"), rp.Start.In(loc).Format("15:04:05"))
+	if len(rp.Done) > 0 {
+		fmt.Fprintf(&b, "Kept: %d exposure(s) already taken tonight.\n", len(rp.Done))
+		tb := newTable(&b)
+		tb.row("  Target", "Goal", "Done", "Wanted", "Still wanted")
+		for _, gs := range rp.Served {
+			if gs.Done == 0 {
+				continue
+			}
+			wanted, left := fmt.Sprint(gs.Wanted), fmt.Sprint(gs.Remaining)
+			if gs.Wanted == 0 {
+				wanted = "as many as fit"
+			}
+			if gs.Remaining == 0 {
+				left = "0 (served: not planned again)"
+			}
+			tb.row("  "+gs.Target, fmt.Sprintf("%.3f", gs.Goal.Center), fmt.Sprint(gs.Done), wanted, left)
+		}
+		if err := tb.flush(); err != nil {
+			return err
+		}
+	}
+	b.WriteString("\n")
+	_, err := io.WriteString(w, b.String())
+	return err
 }
 
 // constraintFlags are the observing-limit flags shared by plan, run and

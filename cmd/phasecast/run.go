@@ -38,6 +38,7 @@ func commands() []command {
 		{"fit", "refine an ephemeris from measured event times (CSV)", runFit},
 		{"plan", "plan one night: exposure blocks on the wanted orbital phases of a target list", runPlan},
 		{"run", "plan a run of nights: goals spread over nights, coverage, best nights, observed log", runRun},
+		{"propose", "size a proposal: fewest nights and best dates for N exposures per goal, weather margin, year of hours", runPropose},
 		{"exposure", "the exposure for a wanted S/N (or the S/N of an exposure) under the moonlit sky of an instant", runExposure},
 		{"windows", "queue phase windows of targets over a date range (text, JSON, CSV, iCalendar)", runWindows},
 		{"backup", "take a consistent copy of the database while the server runs", runBackup},

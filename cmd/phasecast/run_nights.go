@@ -9,6 +9,8 @@ import (
 	"io"
 	"math"
 	"os"
+	"slices"
+	"strconv"
 	"strings"
 	"time"
 
@@ -43,7 +45,14 @@ target and exposure_s are required, and exactly one of start_utc or mid_utc
 (recorded, not counted); note is free text. Every bad row is reported by line
 and nothing is read. The nights up to the last one in the log are over (or give
 --past N): they are not planned again, and the remaining nights are planned for
-what is still missing.`
+what is still missing.
+
+Predicted precision: targets with an RV goal (the optional columns rv_model,
+rv_k_kms, rv_sigma_kms, rv_want_rel_k) get σK/K now (the log) and after the
+plan, and the exposures still needed for rv_want_rel_k; with --timings
+(columns target,time,std,err_s or err_days[,form][,note], as for fit) each timed
+target gets σT0 and σP now and once the planned timings of its reference
+event join them.`
 
 func runRun(ctx context.Context, now func() time.Time, args []string, stdout, stderr io.Writer) error {
 	rf := addRunFlags()
@@ -67,6 +76,7 @@ type runFlags struct {
 	sf                                          siteFlags
 	cf                                          constraintFlags
 	tz, from, nNights, dates, targets, observed *textValue
+	timings                                     *textValue
 	past, acquire, nExp, minNights, bins, step  *textValue
 	rounds, siteName, name, format, stamp       *textValue
 	binGoals, fill, compare, asJSON             *bool
@@ -82,6 +92,7 @@ func addRunFlags() runFlags {
 	rf.dates = fl.text("dates", "LIST", "", "allocated nights: dates YYYY-MM-DD[:first|:second], comma-separated, in order")
 	rf.targets = fl.text("targets", "FILE.csv", "", "targets file (CSV, as for plan); required")
 	rf.observed = fl.text("observed", "LOG.csv", "", "log of exposures already taken (CSV, columns above)")
+	rf.timings = fl.text("timings", "FILE.csv", "", "measured times of the targets' reference events (CSV as for fit, with a target column)")
 	rf.past = fl.text("past", "N", "the nights the log reaches", "nights already over, 0..number of nights")
 	rf.cf = addConstraintFlags(fl)
 	rf.acquire = fl.text("acquire-s", "S", "120", "acquisition overhead per visit (slew, centring), seconds 0..3600")
@@ -111,6 +122,9 @@ type runJob struct {
 	format         string
 	stamp          *time.Time // nil: the first night's start
 	observed       string     // the --observed file, for its errors
+	// timings are the measured timings of the targets' reference events
+	// (--timings), by target name.
+	timings map[string][]ephem.Timing
 }
 
 // read parses and checks the flags (the targets file and the observed log
@@ -202,6 +216,10 @@ func (rf runFlags) read() (runJob, error) {
 		j.req.Rounds = -1
 	}
 	j.req.Observed, j.req.Past, err = runObserved(rf.observed, rf.past, site, loc, c, nights)
+	if err != nil {
+		return j, err
+	}
+	j.timings, err = runTimings(rf.timings, site, list)
 	return j, err
 }
 
@@ -227,7 +245,7 @@ func (j runJob) compute(ctx context.Context, stderr io.Writer) (*planner.RunPlan
 		ids[i] = int64(i + 1)
 	}
 	out, err := export.NewRun(export.RunInput{Name: j.name, Site: export.NewSite(j.siteName, j.req.Site), Loc: j.req.Zone, AcquireS: j.acq,
-		TargetIDs: ids}, rp)
+		TargetIDs: ids, Timings: j.timings}, rp)
 	if err != nil {
 		return nil, export.Run{}, fromInputError(err, "not accepted", nil)
 	}
@@ -249,6 +267,27 @@ func (j runJob) write(w io.Writer, rp *planner.RunPlan, out export.Run) error {
 		return writeBytes(w, func() ([]byte, error) { return export.RunICS(out, j.name, stamp) })
 	}
 	return printRun(w, rp, out, j.req.Zone, j.acq)
+}
+
+// runTimings reads the --timings file (none: nil), converting each row with
+// its target's position at the site.
+func runTimings(file *textValue, site ephem.Site, list []planner.Target) (map[string][]ephem.Timing, error) {
+	if !file.set {
+		return nil, nil
+	}
+	stars := map[string]ephem.Star{}
+	for _, t := range list {
+		stars[t.Name] = t.Star()
+	}
+	rows, err := readTimings(file, &site, nil, stars)
+	if err != nil {
+		return nil, err
+	}
+	out := map[string][]ephem.Timing{}
+	for _, r := range rows {
+		out[r.target] = append(out[r.target], ephem.Timing{Value: r.bjd, Std: ephem.StdBJDTDB, ErrDays: r.errDays})
+	}
+	return out, nil
 }
 
 // wholeNumber parses a whole number flag in lo..hi.
@@ -342,6 +381,15 @@ func checkRunFinite(out export.Run) error {
 			return fmt.Errorf("night %s: %w", n.Date, err)
 		}
 	}
+	for _, p := range out.Precision {
+		if r := p.RV; r != nil {
+			for _, q := range append([]planner.RVPrecisionDoc{r.Now, r.After}, r.PerNight...) {
+				if err := checkFinite([]string{"σK", "σγ", "σφ0", "σK/K"}, q.SigmaK, q.SigmaGamma, q.SigmaPhase0, q.RelK); err != nil {
+					return fmt.Errorf("%s: %w", p.Target, err)
+				}
+			}
+		}
+	}
 	for _, t := range out.Targets {
 		for _, g := range t.Goals {
 			if err := checkFinite([]string{"coverage value"}, g.Value); err != nil {
@@ -368,6 +416,9 @@ func printRun(w io.Writer, rp *planner.RunPlan, out export.Run, loc *time.Locati
 		}
 	}
 	if err := printRunCoverage(&b, rp); err != nil {
+		return err
+	}
+	if err := printPrecision(&b, out.Precision); err != nil {
 		return err
 	}
 	printRunBestNights(&b, rp)
@@ -527,3 +578,66 @@ func printRunBestNights(b *strings.Builder, rp *planner.RunPlan) {
 
 // fmtJ formats an objective value (millionths) in units.
 func fmtJ(v int64) string { return f(float64(v)/1e6, 3) }
+
+// printPrecision writes the predicted precision of the targets with an RV
+// goal: now (the observing log), after the plan, and the exposures still
+// needed for the wanted σK/K.
+func printPrecision(b *strings.Builder, docs []planner.PrecisionDoc) error {
+	if !slices.ContainsFunc(docs, func(p planner.PrecisionDoc) bool { return p.RV != nil }) {
+		return printTimingPrecision(b, docs)
+	}
+	b.WriteString("\nPredicted precision (Fisher matrix at the exposures' mid-phases; now = observing log):\n")
+	tb := newTable(b)
+	tb.row("  Target", "Model", "K km/s", "σv km/s", "Now σK/K", "After plan σK/K", "σK km/s", "Wanted", "Still needed")
+	for _, p := range docs {
+		r := p.RV
+		if r == nil {
+			continue
+		}
+		rel := func(q planner.RVPrecisionDoc) string {
+			return fmt.Sprintf("%s (%d)", planner.FormatRelPercent(q.RelK, q.Determined), q.N)
+		}
+		want, need := "—", "—"
+		if r.WantRelK > 0 {
+			want = "≤ " + planner.FormatRelPercent(r.WantRelK, true)
+			need = "over " + fmt.Sprint(planner.MaxExposuresNeeded)
+			if r.NeedAfter != nil {
+				need = fmt.Sprintf("%d exposure(s)", *r.NeedAfter)
+			}
+		}
+		sk := "—"
+		if r.After.Determined {
+			sk = f(r.After.SigmaK, 3)
+		}
+		tb.row("  "+p.Target, string(r.Model), fmtG(r.KKms), fmtG(r.SigmaVKms), rel(r.Now), rel(r.After), sk, want, need)
+	}
+	if err := tb.flush(); err != nil {
+		return err
+	}
+	b.WriteString("  (exposures in brackets; still needed: beyond the plan, at the velocity extremes, a lower bound)\n")
+	return printTimingPrecision(b, docs)
+}
+
+// printTimingPrecision writes the timing targets' predicted σT0 and σP.
+func printTimingPrecision(b *strings.Builder, docs []planner.PrecisionDoc) error {
+	tb := newTable(b)
+	head := false
+	for _, p := range docs {
+		if p.TimingNote != "" {
+			fmt.Fprintf(b, "  %s: %s\n", p.Target, p.TimingNote)
+		}
+		t := p.Timing
+		if t == nil {
+			continue
+		}
+		if !head {
+			b.WriteString("\nPredicted ephemeris precision (covariance of the fit; planned timings of the reference event):\n")
+			tb.row("  Target", "Timings now", "σT0 s", "σP s", "Planned timings", "σT0 s", "σP s")
+			head = true
+		}
+		sec := func(d float64) string { return strconv.FormatFloat(d*86400, 'g', 3, 64) }
+		tb.row("  "+p.Target, fmt.Sprintf("%d (%s)", t.Now.N, t.Now.Source), sec(t.Now.SigmaT0Days), sec(t.Now.SigmaPDays),
+			fmt.Sprint(t.Planned), sec(t.After.SigmaT0Days), sec(t.After.SigmaPDays))
+	}
+	return tb.flush()
+}

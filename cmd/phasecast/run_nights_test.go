@@ -194,6 +194,130 @@ func TestRunCommandBinGoals(t *testing.T) {
 	}
 }
 
+// runRVCSV is runCSV with an RV goal on two targets.
+const runRVCSV = `name,ra,dec,t0_bjd_tdb,period_days,phases,phase_halfwidth,exposure_s,overhead_s,priority,rv_model,rv_k_kms,rv_sigma_kms,rv_want_rel_k
+Tarn-4,13:02:10,-38:40:00,2461120.41872,0.2311,0.25;0.75,0.05,300,20,1,circular,85,6,0.02
+Mirel-9,14:45:30,-22:05:00,2461118.90233,1.7420,0.25;0.75,0.03,600,20,1,,,,
+Okapi-2,11:20:45,-51:12:00,2461121.10490,0.0958,0.0;0.5,0.06,180,15,2,eccentric,40,3,
+`
+
+// TestRunCommandPrecision checks the predicted precision in `run`: the JSON
+// counts the target's planned exposures and, at the quadratures with the
+// phase nearly known, σK is close to σv/√N (planner's closed form); the
+// text shows the table.
+func TestRunCommandPrecision(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runRVCSV)
+	argv := args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--n-exposures", "4"})
+	stdout, stderr, code := runCmd(t, append(argv, "--json")...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var out struct {
+		Targets []struct {
+			Target string `json:"target"`
+			Goals  []struct {
+				Planned int `json:"planned"`
+			} `json:"goals"`
+		} `json:"targets"`
+		Precision []struct {
+			Target string `json:"target"`
+			RV     struct {
+				After struct {
+					N          int     `json:"n_exposures"`
+					Determined bool    `json:"determined"`
+					SigmaK     float64 `json:"sigma_k_kms"`
+					RelK       float64 `json:"rel_k"`
+				} `json:"after_plan"`
+				PerNight  []json.RawMessage `json:"after_night"`
+				NeedAfter *int              `json:"exposures_needed_after_plan"`
+			} `json:"rv"`
+		} `json:"precision"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &out); err != nil {
+		t.Fatal(err)
+	}
+	if len(out.Precision) != 2 || out.Precision[0].Target != "Tarn-4" || out.Precision[1].Target != "Okapi-2" {
+		t.Fatalf("precision %+v, want Tarn-4 and Okapi-2", out.Precision)
+	}
+	p := out.Precision[0].RV
+	planned := 0
+	for _, g := range out.Targets[0].Goals {
+		planned += g.Planned
+	}
+	if p.After.N < planned || planned == 0 || !p.After.Determined || len(p.PerNight) != 3 {
+		t.Fatalf("Tarn-4: %+v with %d exposures in its quadrature windows", p, planned)
+	}
+	// Every exposure within ±0.05 of a quadrature: sin ≥ cos(2π·0.05), so
+	// σv/√N ≤ σK ≤ σv/(√N·cos(2π·0.05)) when all N are in the windows.
+	lo := 6 / math.Sqrt(float64(p.After.N))
+	if p.After.N == planned && (p.After.SigmaK < lo*(1-1e-9) || p.After.SigmaK > lo/math.Cos(2*math.Pi*0.05)*1.05) {
+		t.Errorf("σK %.4f km/s with %d exposures, want about σv/√N = %.4f", p.After.SigmaK, p.After.N, lo)
+	}
+	if p.NeedAfter == nil {
+		t.Errorf("no exposures-needed figure for a wanted 2 %%")
+	}
+	stdout, _, code = runCmd(t, argv...)
+	if code != 0 || !strings.Contains(stdout, "Predicted precision") || !strings.Contains(stdout, "≤ 2 %") {
+		t.Errorf("text output lacks the precision table:\n%s", stdout)
+	}
+}
+
+// TestRunCommandTimings gives measured timings of one target: it gets σP now
+// and, with the reference events inside its planned blocks, a smaller σP
+// after the plan; a timing of a target not in the list is refused by line.
+func TestRunCommandTimings(t *testing.T) {
+	csvPath := writeFile(t, "targets.csv", runRVCSV)
+	tim := writeFile(t, "timings.csv", "target,time,std,err_s\n"+
+		"Okapi-2,2460833.704900,BJD_TDB,5\nOkapi-2,2460977.404900,BJD_TDB,5\nOkapi-2,2461101.944900,BJD_TDB,5\nOkapi-2,2461119.188900,BJD_TDB,5\n")
+	argv := args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--n-exposures", "0", "--timings", tim})
+	stdout, stderr, code := runCmd(t, append(argv, "--json")...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var out struct {
+		Precision []struct {
+			Target string `json:"target"`
+			Timing *struct {
+				Planned int `json:"planned_timings"`
+				Now     struct {
+					N      int     `json:"n_timings"`
+					SigmaP float64 `json:"sigma_p_days"`
+				} `json:"now"`
+				After struct {
+					N      int     `json:"n_timings"`
+					SigmaP float64 `json:"sigma_p_days"`
+				} `json:"after_plan"`
+			} `json:"timing"`
+		} `json:"precision"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &out); err != nil {
+		t.Fatal(err)
+	}
+	var found bool
+	for _, p := range out.Precision {
+		if p.Target != "Okapi-2" || p.Timing == nil {
+			continue
+		}
+		found = true
+		tm := p.Timing
+		if tm.Now.N != 4 || tm.Planned == 0 || tm.After.N != 4+tm.Planned || !(tm.After.SigmaP < tm.Now.SigmaP) {
+			t.Errorf("Okapi-2 timing forecast %+v: want 4 timings now, planned ones, σP shrinking", *tm)
+		}
+	}
+	if !found {
+		t.Fatalf("no timing forecast for Okapi-2: %s", stdout)
+	}
+	stdout, _, code = runCmd(t, argv...)
+	if code != 0 || !strings.Contains(stdout, "Predicted ephemeris precision") {
+		t.Errorf("text output lacks the timing table:\n%s", stdout)
+	}
+	bad := writeFile(t, "bad.csv", "target,time,std,err_s\nNobody-1,2460833.7049,BJD_TDB,5\n")
+	_, stderr, code = runCmd(t, args([]string{"run"}, siteArgs, runArgs, []string{"--targets", csvPath, "--timings", bad})...)
+	if code != 2 || !strings.Contains(stderr, "line 2") || !strings.Contains(stderr, "Nobody-1") {
+		t.Errorf("unknown target: exit %d, %s", code, stderr)
+	}
+}
+
 // TestRunCommandFormats checks --format csv and ics against the JSON
 // document: one row and one event per block, the same every time.
 func TestRunCommandFormats(t *testing.T) {

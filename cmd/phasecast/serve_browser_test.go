@@ -99,8 +99,8 @@ func TestBrowserEndToEnd(t *testing.T) {
 	if err != nil || rows == 0 {
 		t.Errorf("block rows on the night page: %d (err %v), want some", rows, err)
 	}
+	checkNightLayout(t, ctx, step, shots, app.base+"/night")
 	step("scroll to the night", chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid=night-result] h2').scrollIntoView()`))
-	saveShot(t, ctx, shots, "night.png")
 
 	// Night-vision mode: one click, remembered across pages.
 	step("night vision", chromedp.Click(chromedp.CSS(`[data-testid=theme-toggle]`)),
@@ -111,14 +111,16 @@ func TestBrowserEndToEnd(t *testing.T) {
 	saveShot(t, ctx, shots, "night-vision.png")
 	step("day mode", chromedp.Click(chromedp.CSS(`[data-testid=theme-toggle]`)))
 
-	// The printable night sheet: one landscape page, and one more for each
-	// further 45 block rows (its text stays at 7 pt or more).
+	// The printable night sheet: one landscape page up to 44 block rows
+	// and one more for each further 45
+	// block rows of a denser night (its text stays at 7 pt or more).
 	step("night sheet", chromedp.Click(chromedp.CSS(`[data-testid=night-sheet]`)), chromedp.WaitVisible(chromedp.CSS(`[data-testid=sheet]`)))
 	landscape, background := true, true
 	pdf, err := chromedp.Call(ctx, page.PrintToPDF, page.PrintToPDFParams{Landscape: &landscape, PrintBackground: &background, PreferCSSPageSize: &background})
 	if err != nil {
 		t.Fatalf("print the night sheet: %v", err)
 	}
+	t.Logf("night sheet: %d blocks on %d pages", rows, pdfPages(pdf.Data))
 	if n, most := pdfPages(pdf.Data), 1+rows/45; n < 1 || n > most {
 		t.Errorf("the printed night sheet of %d blocks has %d pages, want 1 to %d", rows, n, most)
 		os.WriteFile(filepath.Join(shots, "sheet.pdf"), pdf.Data, 0o644)
@@ -178,6 +180,55 @@ func TestBrowserEndToEnd(t *testing.T) {
 	}
 	saveShot(t, anon, shots, "share.png")
 	t.Logf("screenshots in %s", shots)
+}
+
+// firstScreen is a script that returns, for each CSS selector, why its
+// element's bounding box is not inside the viewport ("" when it is).
+const firstScreen = `(sels) => sels.map(s => {
+	const e = document.querySelector(s);
+	if (!e) return s + " missing";
+	const r = e.getBoundingClientRect();
+	return (r.top >= 0 && r.left >= 0 && r.bottom <= innerHeight && r.right <= innerWidth) ? "" :
+		s + " at " + [r.left, r.top, r.right, r.bottom].map(Math.round).join(",") + " in " + innerWidth + "×" + innerHeight;
+}).filter(x => x).join("; ")`
+
+// checkNightLayout loads the night page at 1,400 × 900 and at a phone's
+// 390 px: the next block and the chart lie in the first screen, the page
+// with its details folded is at most 2.5 screens tall, and the phone view
+// has no page-level horizontal scroll with the next block on its first
+// screen. It writes night.png and phone.png.
+func checkNightLayout(t *testing.T, ctx context.Context, step func(string, ...chromedp.Action[chromedp.Void]), shots, url string) {
+	t.Helper()
+	step("night 1400x900", chromedp.EmulateViewport(1400, 900), chromedp.Navigate(url),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid=next-block]`)))
+	out, err := chromedp.Run(ctx, chromedp.Evaluate[string]("("+firstScreen+")(['[data-testid=next-block]', '[data-testid=night-summary]', '[data-testid=night-chart] .chartbox'])"))
+	if err != nil || out != "" {
+		t.Errorf("at 1400×900 not on the first screen: %s (err %v)", out, err)
+	}
+	tall, err := chromedp.Run(ctx, chromedp.Evaluate[float64](`document.querySelectorAll('details[open]').forEach(d => d.open = false), document.scrollingElement.scrollHeight / innerHeight`))
+	if err != nil || tall > 2.5 {
+		t.Errorf("the night page is %.2f screens tall with its details folded, want ≤ 2.5 (err %v)", tall, err)
+	}
+	t.Logf("night page: %.2f screens tall at 1400×900", tall)
+	saveShot(t, ctx, shots, "night.png")
+	step("focus a block", chromedp.Evaluate[chromedp.Void](`document.querySelector('svg.lanes g.block').focus()`))
+	if tip, _ := chromedp.Run(ctx, chromedp.Evaluate[string](`document.getElementById('chart-tip').hidden ? "" : document.getElementById('chart-tip').textContent`)); !strings.Contains(tip, "LST") || !strings.Contains(tip, "UT") {
+		t.Errorf("focus on a block shows %q, want its figures", tip)
+	}
+	saveShot(t, ctx, shots, "night-focus.png")
+	step("night 390", chromedp.EmulateViewport(390, 844, chromedp.EmulateMobile), chromedp.Navigate(url),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid=next-block]`)))
+	wide, err := chromedp.Run(ctx, chromedp.Evaluate[bool](`document.scrollingElement.scrollWidth <= window.innerWidth`))
+	if err != nil || !wide {
+		w, _ := chromedp.Run(ctx, chromedp.Evaluate[string](`document.scrollingElement.scrollWidth + " > " + innerWidth`))
+		t.Errorf("at 390 px the page scrolls sideways: %s (err %v)", w, err)
+	}
+	out, err = chromedp.Run(ctx, chromedp.Evaluate[string]("("+firstScreen+")(['[data-testid=next-block]'])"))
+	if err != nil || out != "" {
+		t.Errorf("at 390 px the next block is not on the first screen: %s (err %v)", out, err)
+	}
+	saveShot(t, ctx, shots, "phone.png")
+	step("back to the desktop", chromedp.EmulateViewport(1280, 900))
 }
 
 // needChromium skips the test when Chromium is missing, except under

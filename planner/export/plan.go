@@ -24,7 +24,52 @@ type PlanDoc struct {
 	Visibility  []VisibilityDoc  `json:"visibility"`
 	Constraints ConstraintsDoc   `json:"constraints"`
 	Objective   ObjectiveDoc     `json:"objective"`
-	Caution     string           `json:"caution"`
+	// Replan, present only for a night planned again from an instant
+	// (planner.ReplanNight), says from when and what was already done.
+	Replan  *ReplanDoc `json:"replan,omitempty"`
+	Caution string     `json:"caution"`
+}
+
+// ReplanDoc is the part of a replanned night's document that says what was
+// kept: the instant nothing new starts before, the exposures already taken
+// (mid-time, length, failed or not) and each goal's exposures done, wanted
+// (0 = as many as fit) and still wanted.
+type ReplanDoc struct {
+	Start  DocTime         `json:"start"`
+	Done   []DoneDoc       `json:"done"`
+	Served []GoalServedDoc `json:"served"`
+}
+
+// DoneDoc is one exposure already taken.
+type DoneDoc struct {
+	Target    string  `json:"target"`
+	Mid       DocTime `json:"mid"`
+	ExposureS float64 `json:"exposure_s"`
+	Failed    bool    `json:"failed"`
+}
+
+// GoalServedDoc is one goal's standing before the replan.
+type GoalServedDoc struct {
+	Target    string  `json:"target"`
+	PhaseGoal float64 `json:"phase_goal"`
+	Done      int     `json:"done"`
+	Wanted    int     `json:"wanted"`
+	Remaining int     `json:"remaining"`
+	Served    bool    `json:"served"`
+}
+
+// NewReplanDoc is the Replan part of a replanned night's document
+// (planner.ReplanNight): set it on the PlanDoc of rp.Plan.
+func NewReplanDoc(rp *planner.Replan) *ReplanDoc {
+	r := &ReplanDoc{Start: DocTime(rp.Start), Done: []DoneDoc{}, Served: []GoalServedDoc{}}
+	for _, e := range rp.Done {
+		r.Done = append(r.Done, DoneDoc{Target: e.Target, Mid: DocTime(e.Mid), ExposureS: e.ExposureS, Failed: e.Failed})
+	}
+	for _, gs := range rp.Served {
+		r.Served = append(r.Served, GoalServedDoc{Target: gs.Target, PhaseGoal: gs.Goal.Center, Done: gs.Done, Wanted: gs.Wanted,
+			Remaining: gs.Remaining, Served: gs.Done > 0 && gs.Remaining == 0})
+	}
+	return r
 }
 
 // NightDoc is a night's Sun and Moon events (the `night --json` object):

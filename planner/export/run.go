@@ -27,7 +27,10 @@ type Run struct {
 	Objective   RunObjective   `json:"objective"`
 	Constraints ConstraintsDoc `json:"constraints"`
 	Observed    []RunObserved  `json:"observed"`
-	Caution     string         `json:"caution"`
+	// Precision is the predicted precision of the targets with an RV goal
+	// or measured timings (planner.RunPlan.Precision).
+	Precision []planner.PrecisionDoc `json:"precision"`
+	Caution   string                 `json:"caution"`
 }
 
 // RunNight is one night of a run: its local date and part (full, first,
@@ -178,14 +181,18 @@ type RunObserved struct {
 
 // RunInput is what the run document says besides the plan: the run's name
 // (may be empty), the site, its zone, the acquisition overhead the
-// constraints show (as for NewConstraintsDoc), and the callers' ids of the
-// request's targets, by index (see RunBlock; nil when there are none).
+// constraints show (as for NewConstraintsDoc), the callers' ids of the
+// request's targets, by index (see RunBlock; nil when there are none), and
+// the targets' measured timings for the predicted precision.
 type RunInput struct {
 	Name      string
 	Site      Site
 	Loc       *time.Location
 	AcquireS  float64
 	TargetIDs []int64
+	// Timings are the measured timings of the targets' reference events
+	// (BJD_TDB), by target name, for the timing precision (nil: none).
+	Timings map[string][]planner.EphemTiming
 }
 
 // nightDate is a run night's local date, YYYY-MM-DD.
@@ -193,8 +200,10 @@ func nightDate(n planner.RunNight) string {
 	return fmt.Sprintf("%04d-%02d-%02d", n.Year, int(n.Month), n.Day)
 }
 
-// NewRun is the document of the run plan rp; the error is the request's
-// constraints' (planner.Constraints.Resolved).
+// NewRun is the document of the run plan rp, with the predicted precision
+// of its targets (planner.RunPlan.Precision with in.Timings); the error is
+// the request's constraints' (planner.Constraints.Resolved) or an RV goal's
+// that does not fit its target's ephemeris.
 func NewRun(in RunInput, rp *planner.RunPlan) (Run, error) {
 	id := func(ti int) int64 {
 		if ti < len(in.TargetIDs) {
@@ -296,6 +305,11 @@ func NewRun(in RunInput, rp *planner.RunPlan) (Run, error) {
 		}
 	}
 	d.Objective = o
+	tps, err := rp.Precision(in.Timings)
+	if err != nil {
+		return Run{}, err
+	}
+	d.Precision = planner.NewPrecisionDocs(tps)
 	return d, nil
 }
 

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -167,12 +168,14 @@ func sampleNight(n int, step time.Duration) Night {
 		Now: start.Add(5 * time.Hour),
 	}
 	for t := start; !t.After(end); t = t.Add(10 * time.Minute) {
+		night.Sun = append(night.Sun, AltPoint{t, 20 - 60*math.Sin(float64(t.Sub(start))/float64(12*time.Hour)*math.Pi)})
 		night.Moon = append(night.Moon, AltPoint{t, 50*math.Sin(float64(t.Sub(start))/float64(12*time.Hour)*math.Pi) - 10})
 	}
 	for i := range n {
 		period := time.Duration((1.5 + float64(i)/4) * float64(time.Hour))
 		peak := start.Add(time.Duration(i%12) * time.Hour)
-		tr := Track{Name: fmt.Sprintf("Target %02d", i+1)}
+		tr := Track{Name: fmt.Sprintf("Target %02d", i+1),
+			Events: []PhaseMark{{Phase: 0, Name: "inf. conj."}, {Phase: 0.5, Name: "sup. conj."}}}
 		for t := start; !t.After(end); t = t.Add(step) {
 			dh := t.Sub(peak).Hours()
 			alt := 75*math.Cos(dh/8*math.Pi) - 5
@@ -194,19 +197,37 @@ func TestNightChart(t *testing.T) {
 	night := sampleNight(4, time.Minute)
 	night.Blocks[1].State = "done"
 	night.Blocks[2].State = "lost"
+	night.Blocks[0].Detail = "21:03–21:28 UT\nLST 07:12"
 	els := parseSVG(t, night.SVG())
 	checkCoordinates(t, els)
-	t.Run("Tracks", func(t *testing.T) {
-		if got := count(els, func(e element) bool { return e.name == "path" && hasClass(e, "trk") }); got != 4 {
-			t.Errorf("track paths = %d, want 4", got)
+	t.Run("Lanes", func(t *testing.T) {
+		if got := count(els, func(e element) bool { return e.name == "g" && hasClass(e, "lane") }); got != 4 {
+			t.Errorf("lanes = %d, want 4", got)
 		}
 	})
-	t.Run("GoalHighlights", func(t *testing.T) {
-		if got := count(els, func(e element) bool { return e.name == "path" && hasClass(e, "goal") }); got == 0 {
-			t.Error("no goal-window highlight along the tracks")
+	t.Run("LaneOrder", func(t *testing.T) {
+		// sampleNight puts target i highest at start + i h: the lanes follow.
+		var order []string
+		for _, e := range els {
+			if e.name == "g" && hasClass(e, "lane") {
+				order = append(order, e.attrs["data-target"])
+			}
 		}
+		want := []string{"Target 01", "Target 02", "Target 03", "Target 04"}
+		if !slices.Equal(order, want) {
+			t.Errorf("lane order = %v, want %v", order, want)
+		}
+	})
+	t.Run("GoalWindows", func(t *testing.T) {
 		if got := count(els, func(e element) bool { return e.name == "rect" && hasClass(e, "goalwin") }); got == 0 {
 			t.Error("no goal windows in the lanes")
+		}
+	})
+	t.Run("AirmassShading", func(t *testing.T) {
+		for _, c := range []string{"am0", "am1"} {
+			if count(els, func(e element) bool { return e.name == "rect" && hasClass(e, c) && e.attrs["height"] != "10" }) == 0 {
+				t.Errorf("no observable stretch shaded %s", c)
+			}
 		}
 	})
 	t.Run("Blocks", func(t *testing.T) {
@@ -214,37 +235,68 @@ func TestNightChart(t *testing.T) {
 		for _, e := range els {
 			if e.name == "g" && hasClass(e, "block") {
 				got[e.attrs["data-state"]]++
+				if e.attrs["tabindex"] != "0" {
+					t.Errorf("block of %s takes no keyboard focus", e.attrs["data-target"])
+				}
 			}
 		}
 		if got["planned"] != 2 || got["done"] != 1 || got["lost"] != 1 {
 			t.Errorf("blocks by state = %v, want planned 2, done 1, lost 1", got)
 		}
+		if !strings.Contains(night.SVG(), "LST 07:12") {
+			t.Error("the block's figures are not in its title")
+		}
 	})
-	t.Run("Bands", func(t *testing.T) {
+	t.Run("SkyStrip", func(t *testing.T) {
 		for _, k := range []string{"day", "civil", "nautical", "astronomical", "night"} {
-			if count(els, func(e element) bool { return e.name == "rect" && hasClass(e, "band-"+k) }) == 0 {
-				t.Errorf("no %s band", k)
+			if count(els, func(e element) bool { return e.name == "rect" && hasClass(e, "sky-"+k) }) == 0 {
+				t.Errorf("no %s stretch in the sky strip", k)
+			}
+		}
+		for _, c := range []string{"sun", "moon"} {
+			if count(els, func(e element) bool { return e.name == "path" && hasClass(e, c) }) != 1 {
+				t.Errorf("no %s curve", c)
 			}
 		}
 	})
-	t.Run("Axes", func(t *testing.T) {
+	t.Run("Text", func(t *testing.T) {
 		txt := texts(els)
-		for _, want := range []string{"UTC", "local XST", "altitude", "airmass", "2.0", "Moon 40% lit", "now", "Target 01", "18", "15:00"} {
+		for _, want := range []string{"XST", "UT", "Moon 40% lit", "now", "Target 01", "15:00", "18:00", "dark 17:00", "sunset 15:30", "airmass 2.0", "goal window", "inf. conj."} {
 			if !strings.Contains(txt, want) {
 				t.Errorf("chart text lacks %q", want)
 			}
 		}
-	})
-	t.Run("PhaseMarks", func(t *testing.T) {
-		// Target 01 has a 1.5 h period: over 12 h it passes phase 0 and 0.5
-		// eight times each, of which the ones above the horizon are drawn.
-		if got := count(els, func(e element) bool { return e.name == "circle" && hasClass(e, "ph0") }); got < 8 {
-			t.Errorf("phase-0 marks = %d, want ≥ 8 over 4 targets", got)
-		}
-		if got := count(els, func(e element) bool { return e.name == "circle" && hasClass(e, "ph5") }); got < 8 {
-			t.Errorf("phase-0.5 marks = %d, want ≥ 8 over 4 targets", got)
+		for _, gone := range []string{"altitude", "local XST"} {
+			if strings.Contains(txt, gone) {
+				t.Errorf("chart text still has the altitude chart's %q", gone)
+			}
 		}
 	})
+	t.Run("QuarterTicks", func(t *testing.T) {
+		// Target 01 has a 1.5 h period: 12 h hold 8 orbits, 32 quarter
+		// ticks; the four targets together at least 4·(12/2.25)·4.
+		if got := count(els, func(e element) bool { return e.name == "line" && hasClass(e, "qtick") }); got < 80 {
+			t.Errorf("quarter-orbit ticks = %d, want ≥ 80 over 4 targets", got)
+		}
+	})
+}
+
+// TestLaneHeight: few targets get roomy lanes, many get the minimum and a
+// taller chart (which the page scrolls in its box).
+func TestLaneHeight(t *testing.T) {
+	for _, tt := range []struct {
+		n    int
+		want float64
+	}{{1, nLaneMax}, {10, 34}, {20, 24}, {30, 18}, {60, 18}} {
+		if got := LaneHeight(tt.n); got != tt.want {
+			t.Errorf("LaneHeight(%d) = %g, want %g", tt.n, got, tt.want)
+		}
+	}
+	n := sampleNight(40, 10*time.Minute)
+	_, h := viewBox(t, parseSVG(t, n.SVG())[0])
+	if min := 40 * nLaneMin; h < min {
+		t.Errorf("40 lanes in %g px, want ≥ %g", h, min)
+	}
 }
 
 func TestNightChartEscapesNames(t *testing.T) {
@@ -293,7 +345,7 @@ func TestNightChartDegenerate(t *testing.T) {
 	}
 }
 
-func TestPhaseMarksFromSamples(t *testing.T) {
+func TestPhaseCrossings(t *testing.T) {
 	t0 := time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
 	tests := []struct {
 		name   string
@@ -302,22 +354,22 @@ func TestPhaseMarksFromSamples(t *testing.T) {
 	}{
 		{"Wrap", []float64{0.8, 0.9, 0.05, 0.2}, []float64{0}},
 		{"Half", []float64{0.3, 0.45, 0.6}, []float64{0.5}},
-		{"Both", []float64{0.4, 0.6, 0.8, 0.95, 0.1}, []float64{0.5, 0}},
+		{"Quarters", []float64{0.4, 0.6, 0.8, 0.95, 0.1, 0.3}, []float64{0.5, 0.75, 0, 0.25}},
 		{"TooCoarse", []float64{0.1, 0.7, 0.2}, nil},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			var tr Track
+			var pts []TrackPoint
 			for i, p := range tt.phases {
-				tr.Points = append(tr.Points, TrackPoint{t0.Add(time.Duration(i) * time.Minute), 45, p})
+				pts = append(pts, TrackPoint{t0.Add(time.Duration(i) * time.Minute), 45, p})
 			}
-			got := phaseMarks(tr)
+			got := crossings(pts, quarters)
 			if len(got) != len(tt.want) {
-				t.Fatalf("marks = %v, want phases %v", got, tt.want)
+				t.Fatalf("crossings = %v, want phases %v", got, tt.want)
 			}
 			for i := range got {
 				if got[i].Phase != tt.want[i] {
-					t.Errorf("mark %d phase = %g, want %g", i, got[i].Phase, tt.want[i])
+					t.Errorf("crossing %d phase = %g, want %g", i, got[i].Phase, tt.want[i])
 				}
 			}
 		})
@@ -485,4 +537,64 @@ func BenchmarkNightChartSVG(b *testing.B) {
 		}
 	}
 	b.ReportMetric(float64(buf.Len())/1024, "KiB/chart")
+}
+
+// TestPrecision checks the precision chart: one curve per target, a point
+// per determined value (an undetermined one leaves a gap), the wanted line
+// and its label, and the "now" tick; with nothing determined it says so.
+func TestPrecision(t *testing.T) {
+	c := Precision{Title: "σK/K", Nights: []string{"2026-12-01", "2026-12-02", "2026-12-03"}, Series: []PrecisionSeries{
+		{Label: "A", Values: []float64{0, 9, 5, 3.5}, OK: []bool{false, true, true, true}, Want: 3},
+		{Label: "B", Values: []float64{12, 12, 8, 6}, OK: []bool{true, true, true, true}},
+	}}
+	els := parseSVG(t, c.SVG())
+	checkCoordinates(t, els)
+	if got := count(els, func(e element) bool { return e.name == "path" && hasClass(e, "series") }); got != 2 {
+		t.Errorf("curves = %d, want 2", got)
+	}
+	if got := count(els, func(e element) bool { return e.name == "circle" && hasClass(e, "series") }); got != 7 {
+		t.Errorf("points = %d, want 7 (A's undetermined first value left out)", got)
+	}
+	if got := count(els, func(e element) bool { return e.name == "line" && hasClass(e, "limit") }); got != 1 {
+		t.Errorf("wanted lines = %d, want 1", got)
+	}
+	txt := texts(els)
+	for _, want := range []string{"now", "A wanted 3 %", "predicted error (%)"} {
+		if !strings.Contains(txt, want) {
+			t.Errorf("chart text lacks %q", want)
+		}
+	}
+	empty := Precision{Title: "none", Nights: []string{"x"}, Series: []PrecisionSeries{{Label: "A", Values: []float64{0, 0}, OK: []bool{false, false}}}}
+	if !strings.Contains(texts(parseSVG(t, empty.SVG())), "Nothing measurable yet") {
+		t.Error("an undetermined series draws something")
+	}
+}
+
+func TestAltitudePanels(t *testing.T) {
+	night := sampleNight(3, 5*time.Minute)
+	night.Tracks[2].Points[4].AltDeg = math.NaN()
+	ps := night.Panels()
+	if len(ps) != 3 {
+		t.Fatalf("%d panels for 3 targets", len(ps))
+	}
+	for _, p := range ps {
+		doc := p.SVG()
+		if strings.Contains(doc, "NaN") || strings.Contains(doc, "Inf") {
+			t.Errorf("%s: NaN or Inf in the panel", p.Title)
+		}
+		els := parseSVG(t, doc)
+		checkCoordinates(t, els)
+		txt := texts(els)
+		for _, want := range []string{p.Title, "highest", "limit 30°"} {
+			if !strings.Contains(txt, want) {
+				t.Errorf("%s: panel text lacks %q", p.Title, want)
+			}
+		}
+		if strings.Contains(txt, "airmass") || strings.Contains(txt, "UT") {
+			t.Errorf("%s: the panel has a second scale: %q", p.Title, txt)
+		}
+		if count(els, func(e element) bool { return e.name == "rect" && hasClass(e, "altblock") }) != 1 {
+			t.Errorf("%s: want its one block marked", p.Title)
+		}
+	}
 }

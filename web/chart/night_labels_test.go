@@ -2,14 +2,14 @@ package chart
 
 import (
 	"strconv"
-	"strings"
 	"testing"
 	"time"
 )
 
-// TestPhaseLabelsKeepNamesClear: for orbits of minutes the phase labels
-// along a track come every few pixels; none may cover a target's name.
-func TestPhaseLabelsKeepNamesClear(t *testing.T) {
+// TestEventLabelsClear: for orbits of minutes the named events come every
+// few pixels; a label is drawn only where it covers no block and no other
+// label, and stays inside its lane.
+func TestEventLabelsClear(t *testing.T) {
 	night := sampleNight(3, time.Minute)
 	for k := range night.Tracks {
 		tr := &night.Tracks[k]
@@ -21,31 +21,33 @@ func TestPhaseLabelsKeepNamesClear(t *testing.T) {
 	num := func(e element, k string) float64 {
 		v, err := strconv.ParseFloat(e.attrs[k], 64)
 		if err != nil {
-			t.Fatalf("text %q: %s=%q", e.text, k, e.attrs[k])
+			t.Fatalf("%s %q: %s=%q", e.name, e.text, k, e.attrs[k])
 		}
 		return v
 	}
-	var names, phases []box
+	var blocks, labels []box
 	for _, e := range els {
-		if e.name != "text" {
-			continue
-		}
-		x, y := num(e, "x"), num(e, "y")
-		n := float64(len([]rune(e.text)))
 		switch {
-		case hasClass(e, "lbl"):
-			names = append(names, box{x - n*3.4 - 2, y - 10, x + n*3.4 + 2, y + 2})
-		case strings.HasPrefix(e.text, "φ") && !hasClass(e, "onblock"):
-			phases = append(phases, box{x, y - 9, x + n*5, y + 2})
+		case e.name == "rect" && hasClass(e, "blk"):
+			x, y := num(e, "x"), num(e, "y")
+			blocks = append(blocks, box{x, y, x + num(e, "width"), y + num(e, "height")})
+		case e.name == "text" && hasClass(e, "evlabel"):
+			x, y := num(e, "x"), num(e, "y")
+			labels = append(labels, box{x, y - 8, x + float64(len([]rune(e.text)))*4.6, y})
 		}
 	}
-	if len(names) != 3 || len(phases) == 0 {
-		t.Fatalf("%d names and %d phase labels drawn", len(names), len(phases))
+	if len(blocks) != 3 || len(labels) == 0 {
+		t.Fatalf("%d blocks and %d event labels drawn", len(blocks), len(labels))
 	}
-	for _, p := range phases {
-		for _, nm := range names {
-			if p.overlaps(nm) {
-				t.Errorf("phase label at (%.0f, %.0f) covers a target name at (%.0f, %.0f)", p.x0, p.y1, nm.x0, nm.y1)
+	for i, l := range labels {
+		for _, b := range blocks {
+			if l.overlaps(b) {
+				t.Errorf("event label at (%.0f, %.0f) covers a block at (%.0f, %.0f)", l.x0, l.y1, b.x0, b.y0)
+			}
+		}
+		for _, m := range labels[:i] {
+			if l.overlaps(m) {
+				t.Errorf("event labels at (%.0f, %.0f) and (%.0f, %.0f) overlap", l.x0, l.y1, m.x0, m.y1)
 			}
 		}
 	}

@@ -31,6 +31,7 @@ var MainNav = []NavItem{
 	{"night", "Night", "/night"},
 	{"runs", "Runs", "/runs"},
 	{"windows", "Queue windows", "/windows"},
+	{"propose", "Proposal", "/propose"},
 	{"targets", "Targets", "/targets"},
 	{"sites", "Sites", "/sites"},
 	{"team", "Team", "/team"},

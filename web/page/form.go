@@ -3,8 +3,10 @@ package page
 import (
 	"cmp"
 	"fmt"
+	"net/url"
 	"regexp"
 	"slices"
+	"sort"
 	"strconv"
 	"strings"
 )
@@ -117,4 +119,21 @@ func (f NightForm) ConstraintErr() bool {
 		}
 	}
 	return false
+}
+
+// splitQuery splits an encoded query into its key/value pairs, for hidden
+// form fields; a malformed query gives none.
+func splitQuery(q string) [][2]string {
+	vals, err := url.ParseQuery(q)
+	if err != nil {
+		return nil
+	}
+	var out [][2]string
+	for k, vs := range vals {
+		for _, v := range vs {
+			out = append(out, [2]string{k, v})
+		}
+	}
+	sort.Slice(out, func(a, b int) bool { return out[a][0] < out[b][0] })
+	return out
 }
