@@ -17,27 +17,28 @@ const DefaultMaxSmear = 0.02
 
 // Instrument is a telescope and detector of a site, as the CCD equation
 // needs it (ephem.Detector, one band at a time). Per-band values missing
-// from the maps take the defaults named on each field.
+// from the maps take the defaults named on each field. The JSON keys are
+// those the store and the API use (store/FORMAT.md).
 type Instrument struct {
-	Name      string
-	ApertureM float64 // clear aperture diameter, m, 0 < D ≤ 50
+	Name      string  `json:"name"`
+	ApertureM float64 `json:"aperture_m"` // clear aperture diameter, m, 0 < D ≤ 50
 	// ZeroPoints are detected e⁻/s of a 0-magnitude star above the
 	// atmosphere, per band ("V", "r", …). A band without one uses
 	// Throughput.
-	ZeroPoints map[string]float64
-	Throughput float64 // total efficiency 0 < τ ≤ 1, for bands without a zero point (0: those bands are refused)
-	ReadNoiseE float64 // e⁻ rms per pixel
+	ZeroPoints map[string]float64 `json:"zero_points,omitempty"`
+	Throughput float64            `json:"throughput,omitempty"` // total efficiency 0 < τ ≤ 1, for bands without a zero point (0: those bands are refused)
+	ReadNoiseE float64            `json:"read_noise_e"`         // e⁻ rms per pixel
 	// DarkEPerSPix is the dark current, e⁻/s per pixel.
-	DarkEPerSPix float64
-	PixelArcsec  float64 // arcsec per pixel
-	RadiusArcsec float64 // circular extraction radius, arcsec (0: the seeing FWHM, common practice)
+	DarkEPerSPix float64 `json:"dark_e_per_s_pix"`
+	PixelArcsec  float64 `json:"pixel_arcsec"`            // arcsec per pixel
+	RadiusArcsec float64 `json:"radius_arcsec,omitempty"` // circular extraction radius, arcsec (0: the seeing FWHM, common practice)
 	// SlitWidthArcsec > 0 extracts a slit of that width and
 	// SlitLengthArcsec (0: twice the seeing FWHM) along it instead.
-	SlitWidthArcsec  float64
-	SlitLengthArcsec float64
-	SeeingArcsec     float64            // typical seeing FWHM, arcsec
-	Extinction       map[string]float64 // mag/airmass per band (missing: ephem's common-practice default)
-	DarkSky          map[string]float64 // dark-sky zenith brightness per band, mag/arcsec² (missing: ephem's default)
+	SlitWidthArcsec  float64            `json:"slit_width_arcsec,omitempty"`
+	SlitLengthArcsec float64            `json:"slit_length_arcsec,omitempty"`
+	SeeingArcsec     float64            `json:"seeing_arcsec"`        // typical seeing FWHM, arcsec
+	Extinction       map[string]float64 `json:"extinction,omitempty"` // mag/airmass per band (missing: ephem's common-practice default)
+	DarkSky          map[string]float64 `json:"dark_sky,omitempty"`   // dark-sky zenith brightness per band, mag/arcsec² (missing: ephem's default)
 }
 
 // Detector returns the instrument in band b with that band's extinction
@@ -218,11 +219,25 @@ func exposureAt(site ephem.Site, t Target, in Instrument, at time.Time, phi floa
 	return ephem.ExposureAt(site, t.Star(), at, d, k, dark, t.MagAtPhase(phi))
 }
 
-// validateBrightness checks a target's band and magnitude and its goals'
-// S/N fields; field names are prefixed with pre.
+// validateBrightness is ValidateBrightness with field names prefixed with
+// pre.
 func validateBrightness(pre string, t Target) error {
+	err := ValidateBrightness(t)
+	if ie, ok := err.(*ephem.InputError); ok {
+		return &ephem.InputError{Field: pre + "." + ie.Field, Value: ie.Value, Accepted: ie.Accepted}
+	}
+	return err
+}
+
+// ValidateBrightness checks a target's band (ephem.ParseBand), magnitude
+// (−2..30 in the band when a band is given), faint and bright magnitudes
+// and phases, and its goals' S/N (0..100000) and max smear (0 ≤ s < 0.5),
+// reporting the first bad field as an *ephem.InputError ("band", "mag",
+// "faint_mag", …, "goals[k].snr", "goals[k].max_smear"). The one validator
+// of these fields: the planner, the store and the forms call it.
+func ValidateBrightness(t Target) error {
 	bad := func(field, value, accepted string) error {
-		return &ephem.InputError{Field: pre + "." + field, Value: value, Accepted: accepted}
+		return &ephem.InputError{Field: field, Value: value, Accepted: accepted}
 	}
 	if t.Band != "" {
 		if _, err := ephem.ParseBand(t.Band); err != nil {

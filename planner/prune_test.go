@@ -13,25 +13,9 @@ import (
 // on the whole problem, and both proven optimal.
 func TestPruneByBoundExact(t *testing.T) {
 	r := rand.New(rand.NewPCG(21, 200))
-	nights, total, kept := 0, 0, 0
-	for nights < 200 {
-		req := randomNight(r, 12)
-		m, err := newNightModel(req)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if len(m.pr.cands) == 0 {
-			continue
-		}
-		nights++
-		random := make([][]int64, len(m.targets))
-		for ti, ts := range m.targets {
-			random[ti] = make([]int64, len(ts.goals))
-			for gi := range random[ti] {
-				random[ti][gi] = 1 + r.Int64N(5000)
-			}
-		}
-		for name, w := range map[string][][]int64{"priority": m.priorityWeights(), "random": random} {
+	total, kept := 0, 0
+	nights := eachRandomNight(t, r, 200, func(nights int, m *nightModel, weightings map[string][][]int64) {
+		for name, w := range weightings {
 			full := m.pr.solve(m.weigh(w), m.en.opt.MaxStates)
 			got := m.solve(w) // leaves the values of w in the candidates
 			fwd, bwd := m.pr.chainBounds()
@@ -47,6 +31,34 @@ func TestPruneByBoundExact(t *testing.T) {
 				t.Fatalf("night %d (%s weights): pruned schedule %v infeasible or worth %+v", nights, name, got.sol.chosen, m.pr.value(got.sol.chosen))
 			}
 		}
-	}
+	})
 	t.Logf("%d nights × 2 weightings: %d of %d candidates would be kept with LB the optimum (%.1f %%)", nights, kept, total, 100*float64(kept)/float64(total))
+}
+
+// eachRandomNight calls fn for n random nights (randomNight, up to 12
+// targets; nights without a candidate are drawn again), numbered from 1,
+// with two weightings: PlanNight's priority weights and random run weights
+// (1..5000 per goal). It returns n.
+func eachRandomNight(t *testing.T, r *rand.Rand, n int, fn func(night int, m *nightModel, weightings map[string][][]int64)) int {
+	t.Helper()
+	nights := 0
+	for nights < n {
+		m, err := newNightModel(randomNight(r, 12))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(m.pr.cands) == 0 {
+			continue
+		}
+		nights++
+		random := make([][]int64, len(m.targets))
+		for ti, ts := range m.targets {
+			random[ti] = make([]int64, len(ts.goals))
+			for gi := range random[ti] {
+				random[ti][gi] = 1 + r.Int64N(5000)
+			}
+		}
+		fn(nights, m, map[string][][]int64{"priority": m.priorityWeights(), "random": random})
+	}
+	return nights
 }

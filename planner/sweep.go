@@ -87,12 +87,20 @@ const (
 // occurrences. Entries hold label ids. A bucket whose state loses an
 // occurrence (closed) is merged into the bucket of the smaller state and
 // points to it.
+//
+// per is sparse: a target's entry is a slot of the sweep's slab
+// (sweepScratch.per), created when the bucket first holds a schedule ending
+// with that target, so a bucket costs memory for the targets it has seen,
+// not for all of them. stamp and stampAt index the pending list of the
+// group being queried (see sweep's addPending).
 type bucket struct {
-	state  []int32 // sorted critical occurrences
-	all    prefixBest
-	per    []prefixBest
-	merged *bucket           // non-nil once merged away
-	next   map[int32]*bucket // cache: the bucket of state ∪ {k}
+	state   []int32 // sorted critical occurrences
+	all     prefixBest
+	per     map[int32]int32   // target → slot in the slab
+	merged  *bucket           // non-nil once merged away
+	next    map[int32]*bucket // cache: the bucket of state ∪ {k}
+	stamp   int32             // query event that last indexed this bucket
+	stampAt int32             // its pending in that event's group
 	// q is scratch of one recentPredecessors query (stamp: which one).
 	q struct {
 		stamp int32
@@ -110,7 +118,9 @@ func (b *bucket) live() *bucket {
 	return b
 }
 
-// label is one schedule: its last candidate, value and the label before it.
+// label is one schedule: its last candidate, the label before it, its value
+// and, on a night with a telescope, its bucket (recentPredecessors reads
+// labels one by one, so it needs both from the label itself).
 type label struct {
 	cand int32
 	pred int32
@@ -237,7 +247,8 @@ type sweepResult struct {
 // limited to one block (plus, for all, no two consecutive blocks of one
 // occurrence). maxBuckets bounds the number of states alive at once.
 func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *sweepScratch) sweepResult {
-	labels := sc.labels[:0]
+	sc.size(len(pr.cands), st.nGroups, pr.nTargets)
+	labels, pool, slab := sc.labels[:0], sc.pool[:0], sc.per[:0]
 	var buckets []*bucket // alive, in creation order (deterministic)
 	byKey := map[string]*bucket{}
 	closed := make([]bool, pr.nOcc)
@@ -246,39 +257,85 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 		head = append(head, -1)
 	}
 	checked := make([]bool, st.nGroups)
-	pool := sc.pool[:0]
-	defer func() { sc.labels, sc.pool, sc.head = labels[:0], pool[:0], head[:0] }()
+	defer func() { sc.labels, sc.pool, sc.head, sc.per = labels[:0], pool[:0], head[:0], slab[:0] }()
 	maxLive := 0
 	getBucket := func(state []int32) *bucket {
 		key := stateKey(state)
 		if b, ok := byKey[key]; ok {
 			return b
 		}
-		b := &bucket{state: state, per: make([]prefixBest, pr.nTargets)}
+		b := &bucket{state: state, stamp: -1}
 		byKey[key] = b
 		buckets = append(buckets, b)
 		maxLive = max(maxLive, len(buckets))
 		return b
 	}
+	// perOf returns b's best pair for target t (nil: none yet); perAdd
+	// creates the slot on first use.
+	perOf := func(b *bucket, t int32) *prefixBest {
+		if i, ok := b.per[t]; ok {
+			return &slab[i]
+		}
+		return nil
+	}
+	perAdd := func(b *bucket, t int32) *prefixBest {
+		if i, ok := b.per[t]; ok {
+			return &slab[i]
+		}
+		if b.per == nil {
+			b.per = map[int32]int32{}
+		}
+		b.per[t] = int32(len(slab))
+		slab = append(slab, prefixBest{})
+		return &slab[len(slab)-1]
+	}
 	root := getBucket(nil)
-	addPending := func(g int32, from *bucket, val score, pred int32) {
+	// addPending keeps, per group and per source bucket, the best pending.
+	// The group's list is indexed once per query event (stamp): each bucket
+	// in it records its pending's position, the first-block pending (nil
+	// source) is held in nilAt, so an insert finds its entry at once where a
+	// search of the list would.
+	stamp, nilAt := int32(-1), int32(-1)
+	indexGroup := func(g int32) {
+		stamp++
+		nilAt = -1
 		for j := head[g]; j >= 0; j = pool[j].next {
-			if pool[j].from == from {
-				if pool[j].val.less(val) {
-					pool[j].val, pool[j].pred = val, pred
-				}
-				return
+			if f := pool[j].from; f == nil {
+				nilAt = j
+			} else {
+				f.stamp, f.stampAt = stamp, j
 			}
 		}
+	}
+	addPending := func(g int32, from *bucket, val score, pred int32) {
+		j := int32(-1)
+		switch {
+		case from == nil:
+			j = nilAt
+		case from.stamp == stamp:
+			j = from.stampAt
+		}
+		if j >= 0 {
+			if pool[j].val.less(val) {
+				pool[j].val, pool[j].pred = val, pred
+			}
+			return
+		}
 		pool = append(pool, pending{from: from, val: val, pred: pred, next: head[g]})
-		head[g] = int32(len(pool) - 1)
+		j = int32(len(pool) - 1)
+		head[g] = j
+		if from == nil {
+			nilAt = j
+		} else {
+			from.stamp, from.stampAt = stamp, j
+		}
 	}
 	var serial int32
+	// current is from's pending in group g, indexed by this event's
+	// indexGroup(g) or added since (as addPending finds it).
 	current := func(g int32, from *bucket) (score, bool) {
-		for j := head[g]; j >= 0; j = pool[j].next {
-			if pool[j].from == from {
-				return pool[j].val, true
-			}
+		if from.stamp == stamp {
+			return pool[from.stampAt].val, true
 		}
 		return score{}, false
 	}
@@ -288,6 +345,7 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 			c := &pr.cands[e.idx]
 			g := st.group[e.idx]
 			k := int32(c.occ)
+			indexGroup(g)
 			if e.kind == evQueryOther {
 				addPending(g, nil, score{}, -1)
 			}
@@ -302,8 +360,8 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 				var t topEntry
 				if e.kind == evQueryOther {
 					t = b.all.excluding(int32(c.target))
-				} else {
-					t = b.per[c.target].excluding(int32(c.occ))
+				} else if pb := perOf(b, int32(c.target)); pb != nil {
+					t = pb.excluding(int32(c.occ))
 				}
 				if t.ok {
 					addPending(g, b, t.val, t.cand)
@@ -315,7 +373,7 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 			k := int32(c.occ)
 			if !checked[g] {
 				checked[g] = true
-				prunePending(pool, head[g], root)
+				sc.order = prunePending(pool, head[g], sc.order[:0])
 			}
 			for j := head[g]; j >= 0; j = pool[j].next {
 				p := &pool[j]
@@ -344,7 +402,7 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 					labels[id].bk = b
 				}
 				b.all.add(topEntry{val: v, key: int32(c.target), cand: id, ok: true})
-				b.per[c.target].add(topEntry{val: v, key: int32(c.occ), cand: id, ok: true})
+				perAdd(b, int32(c.target)).add(topEntry{val: v, key: int32(c.occ), cand: id, ok: true})
 			}
 			if len(buckets) > maxBuckets {
 				return sweepResult{buckets: maxLive}
@@ -363,8 +421,11 @@ func (pr *problem) sweep(st *sweepStatic, critical []bool, maxBuckets int, sc *s
 				}
 				to := getBucket(stateWithout(b.state, k))
 				mergeBest(&to.all, &b.all)
-				for t := range to.per {
-					mergeBest(&to.per[t], &b.per[t])
+				// Each target's pair merges on its own, so the map's
+				// order does not matter.
+				for t, i := range b.per {
+					dst := perAdd(to, t) // may move the slab
+					mergeBest(dst, &slab[i])
 				}
 				b.merged = to
 				delete(byKey, stateKey(b.state))
@@ -447,40 +508,105 @@ func (pr *problem) recentPredecessors(c *candidate, g int32, labels []label, cri
 	}
 }
 
-// sweepScratch holds buffers reused across rounds.
+// sweepScratch holds buffers reused across rounds: labels, pendings, group
+// heads, the slab of per-target pairs and prunePending's ordering.
 type sweepScratch struct {
 	labels []label
 	pool   []pending
 	head   []int32
+	per    []prefixBest
+	order  []pendingKey
+}
+
+// size gives the buffers a first capacity from the night's size, so the
+// first round does not grow them step by step: labels 8 per candidate (96
+// bytes each: two indices, the score and the bucket), pendings 2 per group (the query of another target's and of
+// the same target's schedules), per-target pairs 4 per target. These are
+// starting guesses (common practice: size from the input, let append grow
+// the rest); later rounds reuse what the largest round needed.
+func (sc *sweepScratch) size(nCands, nGroups, nTargets int) {
+	if cap(sc.labels) < 8*nCands {
+		sc.labels = make([]label, 0, 8*nCands)
+	}
+	if cap(sc.pool) < 2*nGroups {
+		sc.pool = make([]pending, 0, 2*nGroups)
+	}
+	if cap(sc.head) < nGroups {
+		sc.head = make([]int32, 0, nGroups)
+	}
+	if cap(sc.per) < 4*nTargets {
+		sc.per = make([]prefixBest, 0, 4*nTargets)
+	}
+}
+
+// pendingKey is a pending in prunePending's order, with its state and the
+// state's signature (bit k mod 64 set for each occurrence k).
+type pendingKey struct {
+	i     int32
+	state []int32
+	sig   uint64
 }
 
 // prunePending marks the pendings of a group that another pending
-// dominates: a subset state (after following merges) with at least the
-// value. The first of equals is kept.
-func prunePending(pool []pending, head int32, root *bucket) {
-	stateOf := func(p *pending) []int32 {
-		if p.from == nil {
-			return nil
-		}
-		return p.from.live().state
-	}
+// dominates, and returns order (the scratch it used). j dominates i when
+// j's state (after following merges) is a subset of i's and j's value is at
+// least i's, and j is strictly better in one of them, or equal in both and
+// added later (the first of equals in the list is kept). That relation is a
+// strict partial order, so the pendings kept are exactly its maximal
+// elements, whatever order they are examined in: a dominated pending has a
+// maximal dominator, which is never marked.
+//
+// They are examined in the order value descending, then state size
+// ascending, then pool index descending: every dominator of a pending comes
+// before it (a larger value; or an equal value and a state no larger, equal
+// in size only when equal as sets, and then a later addition). So a pending
+// is dominated iff one of the maximal pendings kept so far (the frontier)
+// has a state that is a subset of its own (such a pending's value is at
+// least its own, and if equal its state is smaller or the same and it came
+// later): one pass against the frontier, with the states' signatures ruling
+// out most non-subsets at once (a ⊆ b implies sig(a) &^ sig(b) = 0), and
+// every later pending is dominated once an empty state is in the frontier.
+func prunePending(pool []pending, head int32, order []pendingKey) []pendingKey {
 	for i := head; i >= 0; i = pool[i].next {
-		pi := &pool[i]
-		si := stateOf(pi)
-		for j := head; j >= 0; j = pool[j].next {
-			if i == j || pool[j].pruned {
-				continue
-			}
-			pj := &pool[j]
-			if pj.val.less(pi.val) || !subset(stateOf(pj), si) {
-				continue
-			}
-			if pi.val.less(pj.val) || len(stateOf(pj)) < len(si) || j > i {
-				pi.pruned = true
+		var s []int32
+		if pool[i].from != nil {
+			s = pool[i].from.live().state
+		}
+		var sig uint64
+		for _, k := range s {
+			sig |= 1 << (uint32(k) & 63)
+		}
+		order = append(order, pendingKey{i: i, state: s, sig: sig})
+	}
+	slices.SortFunc(order, func(a, b pendingKey) int {
+		va, vb := pool[a.i].val, pool[b.i].val
+		switch {
+		case vb.less(va):
+			return -1
+		case va.less(vb):
+			return 1
+		case len(a.state) != len(b.state):
+			return cmp.Compare(len(a.state), len(b.state))
+		}
+		return cmp.Compare(b.i, a.i)
+	})
+	front := 0 // order[:front] is the frontier
+	for _, p := range order {
+		dominated := false
+		for _, f := range order[:front] {
+			if f.sig&^p.sig == 0 && subset(f.state, p.state) {
+				dominated = true
 				break
 			}
 		}
+		if dominated {
+			pool[p.i].pruned = true
+			continue
+		}
+		order[front] = p
+		front++
 	}
+	return order
 }
 
 // subset reports whether sorted a ⊆ sorted b.

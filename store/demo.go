@@ -34,6 +34,10 @@ const DemoSignInTTL = 24 * time.Hour
 type demoTarget struct {
 	name, ra, dec string
 	mag           float64
+	band          string // "" = no S/N goals; else the band of mag (and of faint/bright)
+	// faint, bright: a variable's magnitudes at phases 0 and 0.5 (both 0:
+	// not a variable).
+	faint, bright float64
 	t0            string
 	form          ephem.EpochForm
 	std           ephem.TimeStandard
@@ -47,6 +51,25 @@ type demoTarget struct {
 
 func demoGoal(event string, center, hw, expS, ovhS float64) planner.Goal {
 	return planner.Goal{Event: event, Center: center, HalfWidth: hw, ExposureS: expS, OverheadS: ovhS}
+}
+
+// withSNR makes g a goal sized by signal-to-noise: with the site's
+// instrument each exposure reaches snr under its own sky, expS being used
+// without one.
+func withSNR(g planner.Goal, snr float64) planner.Goal {
+	g.SNR = snr
+	return g
+}
+
+// demoInstruments are the demo site's invented instruments: an imager
+// (zero point from a throughput) and a slit spectrograph.
+func demoInstruments() []planner.Instrument {
+	return []planner.Instrument{
+		{Name: "Imager (invented)", ApertureM: 1.3, Throughput: 0.3, ReadNoiseE: 6, DarkEPerSPix: 0.002, PixelArcsec: 0.45,
+			SeeingArcsec: 1.4, Extinction: map[string]float64{"V": 0.17, "R": 0.11}, DarkSky: map[string]float64{"V": 21.5, "R": 20.8}},
+		{Name: "Slit spectrograph (invented)", ApertureM: 1.3, Throughput: 0.06, ReadNoiseE: 3, DarkEPerSPix: 0.001, PixelArcsec: 0.6,
+			SlitWidthArcsec: 1.5, SeeingArcsec: 1.4, Extinction: map[string]float64{"V": 0.17}},
+	}
 }
 
 // demoTargets are spread over right ascension so that several are up on
@@ -65,9 +88,10 @@ func demoTargets() []demoTarget {
 			goals: []planner.Goal{eclipse, ingress, egress, demoGoal("quadratures", 0, 0.04, 300, 10)}, priority: 1,
 			tags:  []string{"eclipsing", "white-dwarf", "post-common-envelope"},
 			notes: "Eclipsing white dwarf + M dwarf; eclipse 0.00614 d (8.8 min) first to last contact. Timings 2019–2025 refine the discovery ephemeris."},
-		{name: "PCX J0218-0917", ra: "02:18:05.91", dec: "-09:17:44.0", mag: 19.4, t0: "58962.447213", form: ephem.FormMJD, std: ephem.StdBJDTDB,
-			ephem:    ephem.Ephemeris{T0ErrDays: 2e-6, PeriodDays: 0.21411782, PeriodErr: 3e-10, Convention: asc},
-			goals:    []planner.Goal{demoGoal("superior_conjunction", 0, 0.05, 600, 10), demoGoal("inferior_conjunction", 0, 0.05, 600, 10)},
+		{name: "PCX J0218-0917", ra: "02:18:05.91", dec: "-09:17:44.0", mag: 19.4, band: "V", t0: "58962.447213", form: ephem.FormMJD, std: ephem.StdBJDTDB,
+			ephem: ephem.Ephemeris{T0ErrDays: 2e-6, PeriodDays: 0.21411782, PeriodErr: 3e-10, Convention: asc},
+			goals: []planner.Goal{withSNR(demoGoal("superior_conjunction", 0, 0.05, 600, 10), 50),
+				withSNR(demoGoal("inferior_conjunction", 0, 0.05, 600, 10), 50)},
 			priority: 2, tags: []string{"pulsar", "irradiated"},
 			notes: "Binary millisecond pulsar; T0 is the pulsar's ascending node (TASC) from radio timing, given as MJD on BJD_TDB. The companion's heated face is seen at its superior conjunction."},
 		{name: "PCX J0405+2206", ra: "04:05:51.03", dec: "+22:06:10.9", mag: 16.1, t0: "2455940.61233", std: ephem.StdHJDUTC,
@@ -78,18 +102,18 @@ func demoTargets() []demoTarget {
 			ephem: ephem.Ephemeris{T0ErrDays: 0.0002, PeriodDays: 0.3487104, PeriodErr: 4e-7, Convention: inf},
 			goals: []planner.Goal{demoGoal("", 0.25, 0.05, 60, 5), demoGoal("", 0.75, 0.05, 60, 5)}, priority: 4,
 			tags: []string{"contact", "w-uma"}, notes: "Contact binary; both maxima wanted for the O'Connell effect."},
-		{name: "PCX J0814-1133", ra: "08:14:40.18", dec: "-11:33:05.2", mag: 15.6, t0: "2459215.5523", std: ephem.StdBJDTDB,
+		{name: "PCX J0814-1133", ra: "08:14:40.18", dec: "-11:33:05.2", mag: 15.6, band: "V", t0: "2459215.5523", std: ephem.StdBJDTDB,
 			ephem:    ephem.Ephemeris{T0ErrDays: 0.0008, PeriodDays: 0.438221, PeriodErr: 2e-6, Convention: inf},
-			goals:    []planner.Goal{demoGoal("quadratures", 0, 0.04, 180, 8), demoGoal("inferior_conjunction", 0, 0.04, 180, 8)},
+			goals:    []planner.Goal{withSNR(demoGoal("quadratures", 0, 0.04, 180, 8), 300), demoGoal("inferior_conjunction", 0, 0.04, 180, 8)},
 			priority: 3, tags: []string{"ellipsoidal"}, notes: "Ellipsoidal variable: light maxima at the quadratures.",
 			rv: &planner.RVGoal{Model: planner.RVCircular, KKms: 120, SigmaVKms: 6, WantRelK: 0.02}},
-		{name: "PCX J1027+4418", ra: "10:27:33.60", dec: "+44:18:47.1", mag: 17.8, t0: "2455612.70231", std: ephem.StdBJDTDB,
+		{name: "PCX J1027+4418", ra: "10:27:33.60", dec: "+44:18:47.1", mag: 17.8, band: "R", t0: "2455612.70231", std: ephem.StdBJDTDB,
 			ephem: ephem.Ephemeris{T0ErrDays: 0.0004, PeriodDays: 0.0884127, PeriodErr: 4e-7, Convention: inf},
-			goals: []planner.Goal{demoGoal("", 0, 0.05, 120, 8)}, priority: 3, tags: []string{"drifted", "needs-timing"},
+			goals: []planner.Goal{withSNR(demoGoal("", 0, 0.05, 120, 8), 60)}, priority: 3, tags: []string{"drifted", "needs-timing"},
 			notes: "Ephemeris from 2011 with a loose period: the phase uncertainty is now a large part of the orbit. Time an eclipse first."},
-		{name: "PCX J1305+7612", ra: "13:05:09.85", dec: "+76:12:03.4", mag: 14.9, t0: "2460102.88214", std: ephem.StdBJDTDB,
+		{name: "PCX J1305+7612", ra: "13:05:09.85", dec: "+76:12:03.4", mag: 14.9, band: "V", faint: 15.2, bright: 14.6, t0: "2460102.88214", std: ephem.StdBJDTDB,
 			ephem: ephem.Ephemeris{T0ErrDays: 0.0001, PeriodDays: 0.2496117, PeriodErr: 3e-7, Convention: inf},
-			goals: []planner.Goal{demoGoal("", 0.5, 0.06, 150, 8)}, priority: 3, tags: []string{"circumpolar", "reflection"},
+			goals: []planner.Goal{withSNR(demoGoal("", 0.5, 0.06, 150, 8), 400)}, priority: 3, tags: []string{"circumpolar", "reflection"},
 			notes: "Never sets from the demo site; reflection effect peaks at phase 0.5."},
 		{name: "PCX J1448+1830", ra: "14:48:47.12", dec: "+18:30:16.8", mag: 12.7, t0: "2459730.2241", std: ephem.StdBJDTDB,
 			ephem: ephem.Ephemeris{T0ErrDays: 0.002, PeriodDays: 0.873114, PeriodErr: 5e-6, Convention: inf, Ecc: 0.28, OmegaDeg: 142},
@@ -102,14 +126,14 @@ func demoTargets() []demoTarget {
 			goals: []planner.Goal{demoGoal("", 0, 0.05, 15, 3), demoGoal("", 0.25, 0.05, 15, 3), demoGoal("", 0.5, 0.05, 15, 3),
 				demoGoal("", 0.75, 0.05, 15, 3)},
 			priority: 1, tags: []string{"ultracompact", "am-cvn"}, notes: "10.5-minute orbit: short exposures only, or the phase smears."},
-		{name: "PCX J2117+1805", ra: "21:17:30.50", dec: "+18:05:12.0", mag: 15.3, t0: "2459455.41877", std: ephem.StdBJDTDB,
+		{name: "PCX J2117+1805", ra: "21:17:30.50", dec: "+18:05:12.0", mag: 15.3, band: "V", t0: "2459455.41877", std: ephem.StdBJDTDB,
 			ephem:    ephem.Ephemeris{T0ErrDays: 3e-5, PeriodDays: 0.1015347, PeriodErr: 8e-9, Convention: sup},
-			goals:    []planner.Goal{demoGoal("eclipse", 0, 0.02, 20, 4), demoGoal("superior_conjunction", 0, 0.05, 90, 6)},
+			goals:    []planner.Goal{demoGoal("eclipse", 0, 0.02, 20, 4), withSNR(demoGoal("superior_conjunction", 0, 0.05, 90, 6), 150)},
 			priority: 2, tags: []string{"eclipsing", "subdwarf", "reflection"},
 			notes: "Hot subdwarf + M dwarf; T0 marks the superior conjunction (reflection maximum), so mid-eclipse is at phase 0.5."},
-		{name: "PCX J2339-0541", ra: "23:39:02.66", dec: "-05:41:37.3", mag: 18.9, t0: "2459904.55520", std: ephem.StdBJDTDB,
+		{name: "PCX J2339-0541", ra: "23:39:02.66", dec: "-05:41:37.3", mag: 18.9, band: "V", t0: "2459904.55520", std: ephem.StdBJDTDB,
 			ephem: ephem.Ephemeris{T0ErrDays: 2e-5, PeriodDays: 0.0290344, PeriodErr: 1e-10, Pdot: -2.1e-12, PdotErr: 3e-13, Convention: inf},
-			goals: []planner.Goal{demoGoal("quadratures", 0, 0.04, 30, 4)}, priority: 1, tags: []string{"double-white-dwarf", "decaying"},
+			goals: []planner.Goal{withSNR(demoGoal("quadratures", 0, 0.04, 30, 4), 35)}, priority: 1, tags: []string{"double-white-dwarf", "decaying"},
 			notes: "Detached double white dwarf, 41.8-minute orbit shrinking (Ṗ < 0).",
 			rv:    &planner.RVGoal{Model: planner.RVCircular, KKms: 310, SigmaVKms: 25, WantRelK: 0.03}},
 	}
@@ -195,6 +219,7 @@ func seedDemo(t *txn, now time.Time) (DemoInfo, error) {
 		Horizon: []planner.HorizonPoint{{AzDeg: 0, AltDeg: 4}, {AzDeg: 60, AltDeg: 6}, {AzDeg: 85, AltDeg: 15},
 			{AzDeg: 110, AltDeg: 14}, {AzDeg: 140, AltDeg: 5}, {AzDeg: 250, AltDeg: 8}, {AzDeg: 300, AltDeg: 3}},
 		Constraints: c,
+		Instruments: demoInstruments(),
 		Notes:       "An invented 1.3 m telescope on an invented ridge, for the demonstration. A ridge to the east hides the first hour after rising.",
 	})
 	if err != nil {
@@ -216,8 +241,13 @@ func seedDemo(t *txn, now time.Time) (DemoInfo, error) {
 		if form == "" {
 			form = ephem.FormJD
 		}
+		brightPhase := 0.0
+		if d.bright != 0 {
+			brightPhase = 0.5
+		}
 		in := TargetInput{
-			Target: planner.Target{Name: d.name, RADeg: ra, DecDeg: dec, Mag: d.mag, Ephem: d.ephem, Goals: d.goals,
+			Target: planner.Target{Name: d.name, RADeg: ra, DecDeg: dec, Mag: d.mag, Band: d.band, FaintMag: d.faint,
+				FaintPhase: 0, BrightMag: d.bright, BrightPhase: brightPhase, Ephem: d.ephem, Goals: d.goals,
 				Priority: d.priority, AcquireS: 180, Tags: d.tags, Notes: d.notes, RV: d.rv},
 			T0:        Epoch{Text: d.t0, Form: form, Standard: d.std},
 			EphemNote: "invented for the demo",

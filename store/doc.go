@@ -5,6 +5,16 @@
 // Go, driver "sqlite") and imports the ephem and planner domain types;
 // nothing from web.
 //
+// The same store runs on PostgreSQL when Open is given a postgres:// URL
+// (driver github.com/jackc/pgx/v5/stdlib), so that several phasecast
+// servers can share one database. Call sites write one SQL text with '?'
+// placeholders; the few statements whose text really differs between the
+// engines say so through the dialect (dialect.go), and PostgreSQL has its
+// own migrations, store/migrations/postgres/NNNN_name.sql, one twin of each
+// SQLite migration with the same number and name. On PostgreSQL, writers
+// take turns on a transaction-level advisory lock, as SQLite's single
+// writer does, and readers get REPEATABLE READ snapshots.
+//
 // # Schema
 //
 // The schema is built by numbered migrations, store/migrations/NNNN_name.sql,

@@ -3,6 +3,7 @@ package store
 import (
 	"errors"
 	"fmt"
+	"github.com/jackc/pgx/v5/pgconn"
 	"strings"
 
 	"phasecast/planner"
@@ -151,7 +152,7 @@ func errStale(what string, id, given, current int64, row any) error {
 }
 
 // wrap gives err the operation name op. A *Error keeps its code (and gets
-// op if it has none); SQLite constraint failures become ECONFLICT or
+// op if it has none); SQLite and PostgreSQL constraint failures become ECONFLICT or
 // EINVALID; anything else becomes EINTERNAL.
 func wrap(op string, err error) error {
 	if err == nil {
@@ -175,6 +176,21 @@ func wrap(op string, err error) error {
 			return &Error{Code: ECONFLICT, Message: "it is referred to by other entries, or refers to a missing one", Op: op, Err: err}
 		case sqlite3.SQLITE_CONSTRAINT_CHECK, sqlite3.SQLITE_CONSTRAINT_NOTNULL:
 			return &Error{Code: EINVALID, Message: "a value is out of its accepted range", Op: op, Err: err}
+		}
+	}
+	var pe *pgconn.PgError
+	if errors.As(err, &pe) {
+		// SQLSTATE class 23, integrity constraint violation (PostgreSQL
+		// manual, appendix A "PostgreSQL Error Codes").
+		switch pe.Code {
+		case "23505": // unique_violation
+			return &Error{Code: ECONFLICT, Message: "an entry with the same name or key already exists", Op: op, Err: err}
+		case "23503": // foreign_key_violation
+			return &Error{Code: ECONFLICT, Message: "it is referred to by other entries, or refers to a missing one", Op: op, Err: err}
+		case "23514", "23502": // check_violation, not_null_violation
+			return &Error{Code: EINVALID, Message: "a value is out of its accepted range", Op: op, Err: err}
+		case "22P02": // invalid_text_representation: json_valid on text that is not JSON
+			return &Error{Code: EINVALID, Message: "a value is not in its accepted form", Op: op, Err: err}
 		}
 	}
 	return &Error{Code: EINTERNAL, Message: "internal error", Op: op, Err: err}

@@ -19,7 +19,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"path/filepath"
 	"reflect"
 	"strconv"
 	"strings"
@@ -29,6 +28,7 @@ import (
 
 	"phasecast/planner"
 	"phasecast/store"
+	"phasecast/store/testdb"
 )
 
 // hostileDB is a store with one team, its owner and a counter for fresh lists.
@@ -44,7 +44,7 @@ type hostileDB struct {
 func newHostileDB(tb testing.TB) *hostileDB {
 	tb.Helper()
 	ctx := context.Background()
-	s, err := store.Open(ctx, filepath.Join(tb.TempDir(), "hostile.db"),
+	s, err := store.Open(ctx, testdb.Target(tb, "hostile.db"),
 		func() time.Time { return t0 },
 		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 1024, Threads: 1, SaltLen: 16, KeyLen: 32}))
 	if err != nil {

@@ -3,7 +3,6 @@ package store_test
 import (
 	"context"
 	"errors"
-	"path/filepath"
 	"sync"
 	"testing"
 	"time"
@@ -12,6 +11,7 @@ import (
 	"phasecast/planner"
 	"phasecast/store"
 	"phasecast/store/testclock"
+	"phasecast/store/testdb"
 )
 
 // fastPasswords keeps tests quick; production uses DefaultPasswordParams.
@@ -34,11 +34,12 @@ func (c *clock) add(d time.Duration) {
 // when set, else a day in March 2026.
 var t0 = testclock.Or(time.Date(2026, 3, 14, 12, 0, 0, 0, time.UTC))
 
-// newStore opens a fresh database file under t.TempDir().
+// newStore opens a fresh database: a file under t.TempDir(), or a new
+// PostgreSQL database when PHASECAST_TEST_PG is set (testdb.Target).
 func newStore(tb testing.TB) (*store.Store, *clock) {
 	tb.Helper()
 	c := &clock{t: t0}
-	s, err := store.Open(context.Background(), filepath.Join(tb.TempDir(), "phasecast.db"),
+	s, err := store.Open(context.Background(), testdb.Target(tb, "phasecast.db"),
 		c.now, store.WithPasswordParams(fastPasswords))
 	if err != nil {
 		tb.Fatalf("Open: %v", err)

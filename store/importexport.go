@@ -184,6 +184,10 @@ func changedFields(st StoredTarget, in TargetInput) []string {
 	if a.Mag != b.Mag {
 		out = append(out, "mag")
 	}
+	if a.Band != b.Band || a.FaintMag != b.FaintMag || a.FaintPhase != b.FaintPhase || a.BrightMag != b.BrightMag ||
+		a.BrightPhase != b.BrightPhase {
+		out = append(out, "brightness")
+	}
 	if !sameEphemeris(st.Ephemeris, b.Ephem, in.T0) {
 		out = append(out, "ephemeris")
 	}

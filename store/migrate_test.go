@@ -3,19 +3,24 @@ package store_test
 import (
 	"context"
 	"database/sql"
-	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
 	"time"
 
 	"phasecast/store"
+	"phasecast/store/testdb"
 )
 
-// rawDB opens the store's file directly, for inspecting the schema.
+// rawDB opens the store's database directly (the SQLite file, or the
+// PostgreSQL database of a URL), for inspecting the schema.
 func rawDB(tb testing.TB, path string) *sql.DB {
 	tb.Helper()
-	db, err := sql.Open("sqlite", "file:"+path+"?_pragma=busy_timeout(5000)")
+	driver, dsn := "sqlite", "file:"+path+"?_pragma=busy_timeout(5000)"
+	if store.IsPostgresURL(path) {
+		driver, dsn = "pgx", path
+	}
+	db, err := sql.Open(driver, dsn)
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -25,7 +30,11 @@ func rawDB(tb testing.TB, path string) *sql.DB {
 
 func columns(tb testing.TB, db *sql.DB, table string) []string {
 	tb.Helper()
-	rows, err := db.Query("SELECT name FROM pragma_table_info(?)", table)
+	q := "SELECT name FROM pragma_table_info(?)"
+	if testdb.Postgres() {
+		q = "SELECT column_name FROM information_schema.columns WHERE table_schema = 'public' AND table_name = $1"
+	}
+	rows, err := db.Query(q, table)
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -51,8 +60,8 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if v != 6 {
-		t.Errorf("schema version = %d, want 6", v)
+	if v != 7 {
+		t.Errorf("schema version = %d, want 7", v)
 	}
 	db := rawDB(t, s.Path())
 	rows, err := db.Query("SELECT version, name FROM schema_migrations ORDER BY version")
@@ -69,7 +78,7 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 		got = append(got, n)
 	}
 	rows.Close()
-	want := []string{"accounts", "sites_targets", "runs_sharing", "audit", "rv_goals", "site_telescope"}
+	want := []string{"accounts", "sites_targets", "runs_sharing", "audit", "rv_goals", "brightness_instruments", "site_telescope"}
 	if !slices.Equal(got, want) {
 		t.Errorf("migrations = %v, want %v", got, want)
 	}
@@ -82,10 +91,10 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 		"teams":        {"id", "name", "version"},
 		"memberships":  {"team_id", "user_id", "role", "version"},
 		"invitations":  {"team_id", "token_hash", "role", "accepted_by", "revoked_at"},
-		"sites":        {"team_id", "lat_deg", "lon_east_deg", "elev_m", "zone", "horizon_json", "constraints_json", "version", "telescope_json"},
+		"sites":        {"team_id", "lat_deg", "lon_east_deg", "elev_m", "zone", "horizon_json", "constraints_json", "instruments_json", "version", "telescope_json"},
 		"target_lists": {"team_id", "name", "version"},
 		"targets": {"list_id", "ra_deg", "dec_deg", "pm_ra_masyr", "mag", "priority", "goals_json", "tags_json", "notes", "version",
-			"rv_model", "rv_k_kms", "rv_sigma_kms", "rv_want_rel_k"},
+			"rv_model", "rv_k_kms", "rv_sigma_kms", "rv_want_rel_k", "band", "faint_mag", "faint_phase", "bright_mag", "bright_phase"},
 		"ephemerides": {"target_id", "t0_day", "t0_frac", "t0_in_text", "t0_in_standard", "convention", "period_err_days",
 			"pdot", "ecc", "omega_deg", "source", "fit_json", "created_by", "created_at"},
 		"timings":      {"target_id", "event", "t_day", "t_in_standard", "err_days", "version"},
@@ -105,6 +114,9 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 			}
 		})
 	}
+	if testdb.Postgres() {
+		return
+	}
 	var mode string
 	if err := db.QueryRow("PRAGMA journal_mode").Scan(&mode); err != nil || mode != "wal" {
 		t.Errorf("journal_mode = %q (%v), want wal", mode, err)
@@ -113,7 +125,7 @@ func TestMigrateEmptyDatabase(t *testing.T) {
 
 func TestMigrateIsIdempotentAndRefusesNewer(t *testing.T) {
 	ctx := context.Background()
-	path := filepath.Join(t.TempDir(), "db.sqlite")
+	path := testdb.Target(t, "db.sqlite")
 	s, err := store.Open(ctx, path, func() time.Time { return t0 })
 	if err != nil {
 		t.Fatal(err)
@@ -126,8 +138,8 @@ func TestMigrateIsIdempotentAndRefusesNewer(t *testing.T) {
 		t.Fatalf("reopen: %v", err)
 	}
 	var n int
-	if err := rawDB(t, path).QueryRow("SELECT count(*) FROM schema_migrations").Scan(&n); err != nil || n != 6 {
-		t.Errorf("schema_migrations rows = %d (%v), want 6", n, err)
+	if err := rawDB(t, path).QueryRow("SELECT count(*) FROM schema_migrations").Scan(&n); err != nil || n != 7 {
+		t.Errorf("schema_migrations rows = %d (%v), want 7", n, err)
 	}
 	if err := s.Close(); err != nil {
 		t.Fatal(err)
@@ -143,4 +155,41 @@ func TestMigrateIsIdempotentAndRefusesNewer(t *testing.T) {
 func TestOpenRejectsMemory(t *testing.T) {
 	_, err := store.Open(context.Background(), ":memory:", func() time.Time { return t0 })
 	wantCode(t, err, store.EINVALID)
+}
+
+// TestMigrateConcurrentOpens: servers starting together on one empty
+// database apply each migration once (on PostgreSQL under the advisory
+// lock; on SQLite under its write lock).
+func TestMigrateConcurrentOpens(t *testing.T) {
+	ctx := context.Background()
+	path := testdb.Target(t, "db.sqlite")
+	const n = 4
+	errs := make(chan error, n)
+	stores := make(chan *store.Store, n)
+	for range n {
+		go func() {
+			s, err := store.Open(ctx, path, func() time.Time { return t0 })
+			errs <- err
+			stores <- s
+		}()
+	}
+	for range n {
+		if err := <-errs; err != nil {
+			t.Errorf("concurrent Open: %v", err)
+		}
+		if s := <-stores; s != nil {
+			defer s.Close()
+		}
+	}
+	var rows, distinct int
+	if err := rawDB(t, path).QueryRow("SELECT count(*), count(DISTINCT version) FROM schema_migrations").Scan(&rows, &distinct); err != nil {
+		t.Fatal(err)
+	}
+	want, err := store.MigrationCount()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rows != want || distinct != want {
+		t.Errorf("schema_migrations has %d rows, %d versions; want %d and %d (every migration once)", rows, distinct, want, want)
+	}
 }

@@ -226,15 +226,11 @@ func createRun(t *txn, teamID int64, in RunInput) (Run, error) {
 		return Run{}, err
 	}
 	now := fmtTime(t.now)
-	res, err := t.exec(`INSERT INTO runs (team_id, name, site_id, list_id, nights_json, constraints_json, notes, created_at,
+	id, err := t.insertID(`INSERT INTO runs (team_id, name, site_id, list_id, nights_json, constraints_json, notes, created_at,
 		updated_at, version) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
 		teamID, in.Name, in.SiteID, in.ListID, nj, cj, in.Notes, now, now)
 	if err != nil {
 		return Run{}, fmt.Errorf("insert run: %w", err)
-	}
-	id, err := res.LastInsertId()
-	if err != nil {
-		return Run{}, err
 	}
 	r, err := getRun(t, id)
 	if err != nil {
@@ -457,12 +453,8 @@ func (s *Store) SavePlan(ctx context.Context, a Actor, runID int64, in SavedPlan
 	if err != nil {
 		return SavedPlan{}, wrap(op, err)
 	}
-	res, err := t.exec(`INSERT INTO saved_plans (run_id, name, engine_version, inputs_json, output_json, created_by, created_at)
+	id, err := t.insertID(`INSERT INTO saved_plans (run_id, name, engine_version, inputs_json, output_json, created_by, created_at)
 		VALUES (?, ?, ?, ?, ?, ?, ?)`, runID, in.Name, in.EngineVersion, string(in.Inputs), string(in.Output), a.userID(), fmtTime(t.now))
-	if err != nil {
-		return SavedPlan{}, wrap(op, err)
-	}
-	id, err := res.LastInsertId()
 	if err != nil {
 		return SavedPlan{}, wrap(op, err)
 	}
@@ -482,7 +474,7 @@ func (s *Store) SavePlan(ctx context.Context, a Actor, runID int64, in SavedPlan
 
 // prunePlans deletes the plans of run r beyond its newest MaxPlansPerRun.
 func prunePlans(t *txn, r Run) error {
-	rows, err := t.query("SELECT "+planCols+" FROM saved_plans WHERE run_id = ? ORDER BY id DESC LIMIT -1 OFFSET ?", r.ID, MaxPlansPerRun)
+	rows, err := t.query("SELECT "+planCols+" FROM saved_plans WHERE run_id = ? ORDER BY id DESC "+t.d.offsetOnly(), r.ID, MaxPlansPerRun)
 	if err != nil {
 		return err
 	}
@@ -817,16 +809,12 @@ func addObservations(t *txn, in []ObservationInput) ([]Observation, error) {
 		if x.RunID != 0 {
 			run = x.RunID
 		}
-		res, err := t.exec(`INSERT INTO observations (target_id, run_id, mid_utc, exposure_s, status, source, goal_center, note,
+		id, err := t.insertID(`INSERT INTO observations (target_id, run_id, mid_utc, exposure_s, status, source, goal_center, note,
 			created_by, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
 			x.TargetID, run, fmtTime(mids[i]), x.ExposureS, string(x.Status), string(x.Source), x.GoalCenter, x.Note,
 			t.actor.userID(), now, now)
 		if err != nil {
 			return nil, fmt.Errorf("insert observation: %w", err)
-		}
-		id, err := res.LastInsertId()
-		if err != nil {
-			return nil, err
 		}
 		o, err := getObservation(t, id)
 		if err != nil {

@@ -112,12 +112,8 @@ func (s *Store) CreateShareLink(ctx context.Context, a Actor, in ShareInput) (Sh
 	if err != nil {
 		return ShareLink{}, "", wrap(op, err)
 	}
-	res, err := t.exec(`INSERT INTO share_links (team_id, token_hash, list_id, run_id, label, created_by, created_at, expires_at)
+	id, err := t.insertID(`INSERT INTO share_links (team_id, token_hash, list_id, run_id, label, created_by, created_at, expires_at)
 		VALUES (?, ?, ?, ?, ?, ?, ?, ?)`, teamID, hash, list, run, in.Label, a.userID(), fmtTime(t.now), fmtTime(t.now.Add(in.TTL)))
-	if err != nil {
-		return ShareLink{}, "", wrap(op, err)
-	}
-	id, err := res.LastInsertId()
 	if err != nil {
 		return ShareLink{}, "", wrap(op, err)
 	}

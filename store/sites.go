@@ -29,6 +29,10 @@ type SiteRecord struct {
 	// Horizon field is not stored: the site's mask (Horizon above) is
 	// the one that applies; PlanConstraints joins the two.
 	Constraints planner.Constraints
+	// Instruments are the site's telescopes and detectors, for exposures
+	// sized by S/N; the first is the default of a night, run or windows
+	// request. Empty: no instrument, exposures as typed.
+	Instruments []planner.Instrument
 	// Telescope is the site's telescope motion (nil: none; each visit is
 	// then charged the fixed acquisition time).
 	Telescope *planner.Telescope
@@ -53,8 +57,65 @@ type SiteInput struct {
 	Zone        string
 	Horizon     []planner.HorizonPoint
 	Constraints planner.Constraints
-	Telescope   *planner.Telescope // nil: none
+	Instruments []planner.Instrument // see SiteRecord.Instruments; at most MaxInstruments, names unique
+	Telescope   *planner.Telescope   // nil: none
 	Notes       string
+}
+
+// MaxInstruments bounds a site's instruments.
+const MaxInstruments = 20
+
+// Instrument returns the site's instrument named name, the first when name
+// is "", or an EINVALID error naming the field "instrument", the value and
+// the names accepted. A site without instruments returns nil for "".
+func (r SiteRecord) Instrument(name string) (*planner.Instrument, error) {
+	if name == "" {
+		if len(r.Instruments) == 0 {
+			return nil, nil
+		}
+		return &r.Instruments[0], nil
+	}
+	names := make([]string, len(r.Instruments))
+	for i := range r.Instruments {
+		if r.Instruments[i].Name == name {
+			return &r.Instruments[i], nil
+		}
+		names[i] = strconv.Quote(r.Instruments[i].Name)
+	}
+	accepted := "the site has no instruments"
+	if len(names) > 0 {
+		accepted = "one of the site's instruments: " + strings.Join(names, ", ")
+	}
+	v := &ValidationError{}
+	v.add("instrument", name, accepted)
+	return nil, v.err()
+}
+
+// validateInstruments checks a site's instruments with the planner's own
+// validator (planner.Instrument.Validate): a name of 1..200 characters,
+// each name once.
+func validateInstruments(v *ValidationError, ins []planner.Instrument) {
+	if len(ins) > MaxInstruments {
+		v.add("instruments", strconv.Itoa(len(ins))+" instruments", fmt.Sprintf("at most %d instruments", MaxInstruments))
+		return
+	}
+	seen := map[string]bool{}
+	for i, in := range ins {
+		pre := fmt.Sprintf("instruments[%d]", i)
+		if seen[in.Name] {
+			v.add(pre+".name", in.Name, "a name used once among the site's instruments")
+		}
+		seen[in.Name] = true
+		validName(v, pre+".name", in.Name)
+		if err := in.Validate(); err != nil {
+			var ie *ephem.InputError
+			if errors.As(err, &ie) {
+				v.add(pre+strings.TrimPrefix(ie.Field, "instrument"), strings.Trim(ie.Value, `"`), ie.Accepted)
+			} else {
+				v.add(pre, "", err.Error())
+			}
+		}
+	}
 }
 
 // MaxHorizonPoints bounds a horizon mask (one point per degree of azimuth).
@@ -86,6 +147,7 @@ func validateSite(v *ValidationError, in SiteInput) {
 	c := in.Constraints
 	c.Horizon = nil // the site's own mask applies
 	validateConstraints(v, "", c)
+	validateInstruments(v, in.Instruments)
 	if in.Telescope != nil {
 		if err := in.Telescope.Validate(); err != nil {
 			addInputError(v, "", err)
@@ -114,13 +176,13 @@ func addInputError(v *ValidationError, prefix string, err error) {
 }
 
 const siteCols = `id, team_id, name, lat_deg, lon_east_deg, elev_m, pressure_hpa, temp_c, zone, horizon_json,
-	constraints_json, notes, created_at, updated_at, version, telescope_json`
+	constraints_json, instruments_json, notes, created_at, updated_at, version, telescope_json`
 
 func scanSite(sc interface{ Scan(...any) error }) (SiteRecord, error) {
 	var r SiteRecord
-	var hj, cj, c, u, tj string
+	var hj, cj, ij, c, u, tj string
 	if err := sc.Scan(&r.ID, &r.TeamID, &r.Name, &r.Site.LatDeg, &r.Site.LonEastDeg, &r.Site.ElevM, &r.Site.PressureHPa,
-		&r.Site.TempC, &r.Zone, &hj, &cj, &r.Notes, &c, &u, &r.Version, &tj); err != nil {
+		&r.Site.TempC, &r.Zone, &hj, &cj, &ij, &r.Notes, &c, &u, &r.Version, &tj); err != nil {
 		return SiteRecord{}, err
 	}
 	if tj != "" {
@@ -136,6 +198,9 @@ func scanSite(sc interface{ Scan(...any) error }) (SiteRecord, error) {
 	}
 	if err := json.Unmarshal([]byte(cj), &r.Constraints); err != nil {
 		return SiteRecord{}, fmt.Errorf("site %d constraints: %w", r.ID, err)
+	}
+	if err := json.Unmarshal([]byte(ij), &r.Instruments); err != nil {
+		return SiteRecord{}, fmt.Errorf("site %d instruments: %w", r.ID, err)
 	}
 	var err error
 	if r.CreatedAt, err = parseTime(c); err != nil {
@@ -180,22 +245,30 @@ func telescopeJSON(tel *planner.Telescope) (string, error) {
 	return string(b), err
 }
 
-func siteJSON(in SiteInput) (string, string, error) {
+func siteJSON(in SiteInput) (hj, cj, ij string, err error) {
 	h := in.Horizon
 	if h == nil {
 		h = []planner.HorizonPoint{}
 	}
-	hj, err := json.Marshal(h)
+	hb, err := json.Marshal(h)
 	if err != nil {
-		return "", "", err
+		return "", "", "", err
 	}
 	c := in.Constraints
 	c.Horizon = nil
-	cj, err := json.Marshal(c)
+	cb, err := json.Marshal(c)
 	if err != nil {
-		return "", "", err
+		return "", "", "", err
 	}
-	return string(hj), string(cj), nil
+	ins := in.Instruments
+	if ins == nil {
+		ins = []planner.Instrument{}
+	}
+	ib, err := json.Marshal(ins)
+	if err != nil {
+		return "", "", "", err
+	}
+	return string(hb), string(cb), string(ib), nil
 }
 
 // siteNameTaken reports whether another site of the team has name.
@@ -237,7 +310,7 @@ func createSite(t *txn, teamID int64, in SiteInput) (SiteRecord, error) {
 	if err := siteNameTaken(t, teamID, in.Name, 0); err != nil {
 		return SiteRecord{}, err
 	}
-	hj, cj, err := siteJSON(in)
+	hj, cj, ij, err := siteJSON(in)
 	if err != nil {
 		return SiteRecord{}, err
 	}
@@ -246,16 +319,13 @@ func createSite(t *txn, teamID int64, in SiteInput) (SiteRecord, error) {
 		return SiteRecord{}, err
 	}
 	now := fmtTime(t.now)
-	res, err := t.exec(`INSERT INTO sites (team_id, name, lat_deg, lon_east_deg, elev_m, pressure_hpa, temp_c, zone,
-		horizon_json, constraints_json, notes, created_at, updated_at, version, telescope_json) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?)`,
+	id, err := t.insertID(`INSERT INTO sites (team_id, name, lat_deg, lon_east_deg, elev_m, pressure_hpa, temp_c, zone,
+		horizon_json, constraints_json, instruments_json, notes, created_at, updated_at, version, telescope_json)
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?)`,
 		teamID, in.Name, in.Site.LatDeg, in.Site.LonEastDeg, in.Site.ElevM, in.Site.PressureHPa, in.Site.TempC, in.Zone,
-		hj, cj, in.Notes, now, now, tj)
+		hj, cj, ij, in.Notes, now, now, tj)
 	if err != nil {
 		return SiteRecord{}, fmt.Errorf("insert site: %w", err)
-	}
-	id, err := res.LastInsertId()
-	if err != nil {
-		return SiteRecord{}, err
 	}
 	r, err := getSite(t, id)
 	if err != nil {
@@ -357,7 +427,7 @@ func (s *Store) UpdateSite(ctx context.Context, a Actor, id, version int64, in S
 	if err := siteNameTaken(t, before.TeamID, in.Name, id); err != nil {
 		return SiteRecord{}, wrap(op, err)
 	}
-	hj, cj, err := siteJSON(in)
+	hj, cj, ij, err := siteJSON(in)
 	if err != nil {
 		return SiteRecord{}, wrap(op, err)
 	}
@@ -366,10 +436,11 @@ func (s *Store) UpdateSite(ctx context.Context, a Actor, id, version int64, in S
 		return SiteRecord{}, wrap(op, err)
 	}
 	if _, err := t.exec(`UPDATE sites SET name = ?, lat_deg = ?, lon_east_deg = ?, elev_m = ?, pressure_hpa = ?, temp_c = ?,
-		zone = ?, horizon_json = ?, constraints_json = ?, notes = ?, telescope_json = ?, updated_at = ?, version = version + 1
+		zone = ?, horizon_json = ?, constraints_json = ?, instruments_json = ?, notes = ?, telescope_json = ?, updated_at = ?,
+		version = version + 1
 		WHERE id = ? AND version = ?`,
 		in.Name, in.Site.LatDeg, in.Site.LonEastDeg, in.Site.ElevM, in.Site.PressureHPa, in.Site.TempC, in.Zone,
-		hj, cj, in.Notes, tj, fmtTime(t.now), id, version); err != nil {
+		hj, cj, ij, in.Notes, tj, fmtTime(t.now), id, version); err != nil {
 		return SiteRecord{}, wrap(op, err)
 	}
 	after, err := getSite(t, id)

@@ -35,18 +35,18 @@ const JSONFormatTag = "phasecast-targets/1"
 // csvColumns are the team CSV's columns in export order; required ones are
 // marked in csvRequired.
 var csvColumns = []string{
-	"name", "ra", "dec", "pm_ra_masyr", "pm_dec_masyr", "mag",
+	"name", "ra", "dec", "pm_ra_masyr", "pm_dec_masyr", "mag", "band", "faint_mag", "faint_phase", "bright_mag", "bright_phase",
 	"t0", "t0_form", "t0_standard", "t0_convention", "t0_err_days", "period_days", "period_err_days",
 	"cov_t0_period", "pdot", "pdot_err", "cov_t0_pdot", "cov_period_pdot", "phase_offset", "ecc", "omega_deg",
 	"goals", "phase_halfwidth", "exposure_s", "overhead_s", "n_exposures", "min_nights", "eclipse_duration_days",
-	"priority", "acquire_s", "tags", "notes", "rv_model", "rv_k_kms", "rv_sigma_kms", "rv_want_rel_k",
+	"snr", "max_smear", "priority", "acquire_s", "tags", "notes", "rv_model", "rv_k_kms", "rv_sigma_kms", "rv_want_rel_k",
 }
 
 var csvRequired = []string{"name", "ra", "dec", "t0", "t0_standard", "t0_convention", "period_days"}
 
 // goalKeys are the per-goal settings a goals item may override in
 // brackets, e.g. "0.25±0.04[exposure_s=300 n_exposures=4]".
-var goalKeys = []string{"exposure_s", "overhead_s", "n_exposures", "min_nights", "eclipse_duration_days"}
+var goalKeys = []string{"exposure_s", "overhead_s", "n_exposures", "min_nights", "eclipse_duration_days", "snr", "max_smear"}
 
 // MaxImportBytes bounds an imported file (64 MiB).
 const MaxImportBytes = 64 << 20
@@ -376,6 +376,11 @@ func parseTeamRow(rec []string, col map[string]int, line int) (TargetInput, []pl
 	t.PMRAmasyr = c.float("pm_ra_masyr", 0)
 	t.PMDecmasyr = c.float("pm_dec_masyr", 0)
 	t.Mag = c.float("mag", 0)
+	t.Band = c.get("band")
+	t.FaintMag = c.float("faint_mag", 0)
+	t.FaintPhase = c.float("faint_phase", 0)
+	t.BrightMag = c.float("bright_mag", 0)
+	t.BrightPhase = c.float("bright_phase", 0)
 	in.T0 = Epoch{Text: c.get("t0"), Form: ephem.EpochForm(c.get("t0_form")), Standard: ephem.TimeStandard(c.get("t0_standard"))}
 	if in.T0.Form == "" {
 		in.T0.Form = ephem.FormJD
@@ -412,6 +417,8 @@ func parseTeamRow(rec []string, col map[string]int, line int) (TargetInput, []pl
 		NExposures:     c.int("n_exposures", 0),
 		MinNights:      c.int("min_nights", 0),
 		EclipseDurDays: c.float("eclipse_duration_days", 0),
+		SNR:            c.float("snr", 0),
+		MaxSmear:       c.float("max_smear", 0),
 	}
 	if v := c.get("goals"); v != "" {
 		goals, reason := parseGoals(v, base)
@@ -457,7 +464,7 @@ func acceptedOf(err error) string {
 }
 
 const goalsAccepted = "goals separated by ';', each a phase 0 ≤ φ < 1 or an event name, optionally ±half-width " +
-	"(or +-half-width) and [key=value …] with keys exposure_s, overhead_s, n_exposures, min_nights, eclipse_duration_days; " +
+	"(or +-half-width) and [key=value …] with keys exposure_s, overhead_s, n_exposures, min_nights, eclipse_duration_days, snr, max_smear; " +
 	"e.g. 0.25±0.04;max_approach;eclipse_ingress±0.01[exposure_s=30 eclipse_duration_days=0.0061]"
 
 // parseGoals reads a goals cell; base supplies the row's defaults.
@@ -493,6 +500,10 @@ func parseGoals(s string, base planner.Goal) ([]planner.Goal, string) {
 					}
 				case "eclipse_duration_days":
 					g.EclipseDurDays = x
+				case "snr":
+					g.SNR = x
+				case "max_smear":
+					g.MaxSmear = x
 				}
 			}
 			item = strings.TrimSpace(item[:open])
@@ -552,6 +563,12 @@ func formatGoals(goals []planner.Goal, base planner.Goal) string {
 		if g.EclipseDurDays != base.EclipseDurDays {
 			kv = append(kv, "eclipse_duration_days="+num(g.EclipseDurDays))
 		}
+		if g.SNR != base.SNR {
+			kv = append(kv, "snr="+num(g.SNR))
+		}
+		if g.MaxSmear != base.MaxSmear {
+			kv = append(kv, "max_smear="+num(g.MaxSmear))
+		}
 		if len(kv) > 0 {
 			b.WriteString("[" + strings.Join(kv, " ") + "]")
 		}
@@ -589,11 +606,13 @@ func writeTeamCSV(w io.Writer, targets []StoredTarget) error {
 		}
 		rec := []string{
 			t.Name, num(t.RADeg), num(t.DecDeg), numOrEmpty(t.PMRAmasyr), numOrEmpty(t.PMDecmasyr), numOrEmpty(t.Mag),
+			t.Band, numOrEmpty(t.FaintMag), numOrEmpty(t.FaintPhase), numOrEmpty(t.BrightMag), numOrEmpty(t.BrightPhase),
 			t0.Text, string(t0.Form), string(t0.Standard), string(e.Convention), numOrEmpty(e.T0ErrDays), num(e.PeriodDays),
 			numOrEmpty(e.PeriodErr), numOrEmpty(e.CovT0P), numOrEmpty(e.Pdot), numOrEmpty(e.PdotErr), numOrEmpty(e.CovT0Pdot),
 			numOrEmpty(e.CovPPdot), numOrEmpty(e.PhaseOffset), numOrEmpty(e.Ecc), numOrEmpty(e.OmegaDeg),
 			formatGoals(t.Goals, base), numOrEmpty(base.HalfWidth), numOrEmpty(base.ExposureS), numOrEmpty(base.OverheadS),
 			intOrEmpty(base.NExposures), intOrEmpty(base.MinNights), numOrEmpty(base.EclipseDurDays),
+			numOrEmpty(base.SNR), numOrEmpty(base.MaxSmear),
 			strconv.Itoa(t.Priority), numOrEmpty(t.AcquireS), strings.Join(t.Tags, ";"), t.Notes, "", "", "", "",
 		}
 		if g := t.RV; g != nil {
@@ -666,22 +685,29 @@ type jsonGoal struct {
 	NExposures     int     `json:"n_exposures,omitempty"`
 	MinNights      int     `json:"min_nights,omitempty"`
 	EclipseDurDays float64 `json:"eclipse_duration_days,omitempty"`
+	SNR            float64 `json:"snr,omitempty"`
+	MaxSmear       float64 `json:"max_smear,omitempty"`
 }
 
 type jsonTarget struct {
-	Name       string     `json:"name"`
-	RA         *jsonText  `json:"ra"`
-	Dec        *jsonText  `json:"dec"`
-	PMRAmasyr  float64    `json:"pm_ra_masyr,omitempty"`
-	PMDecmasyr float64    `json:"pm_dec_masyr,omitempty"`
-	Mag        float64    `json:"mag,omitempty"`
-	Ephemeris  *jsonEphem `json:"ephemeris"`
-	Goals      []jsonGoal `json:"goals"`
-	Priority   *int       `json:"priority,omitempty"`
-	AcquireS   float64    `json:"acquire_s,omitempty"`
-	Tags       []string   `json:"tags"`
-	Notes      string     `json:"notes,omitempty"`
-	RV         *jsonRV    `json:"rv,omitempty"`
+	Name        string     `json:"name"`
+	RA          *jsonText  `json:"ra"`
+	Dec         *jsonText  `json:"dec"`
+	PMRAmasyr   float64    `json:"pm_ra_masyr,omitempty"`
+	PMDecmasyr  float64    `json:"pm_dec_masyr,omitempty"`
+	Mag         float64    `json:"mag,omitempty"`
+	Band        string     `json:"band,omitempty"`
+	FaintMag    float64    `json:"faint_mag,omitempty"`
+	FaintPhase  float64    `json:"faint_phase,omitempty"`
+	BrightMag   float64    `json:"bright_mag,omitempty"`
+	BrightPhase float64    `json:"bright_phase,omitempty"`
+	Ephemeris   *jsonEphem `json:"ephemeris"`
+	Goals       []jsonGoal `json:"goals"`
+	Priority    *int       `json:"priority,omitempty"`
+	AcquireS    float64    `json:"acquire_s,omitempty"`
+	Tags        []string   `json:"tags"`
+	Notes       string     `json:"notes,omitempty"`
+	RV          *jsonRV    `json:"rv,omitempty"`
 }
 
 // jsonRV is a target's RV goal (planner.RVGoal): km/s and a fraction.
@@ -847,6 +873,7 @@ func jsonToInput(jt jsonTarget, line, i int) (TargetInput, []planner.CellError) 
 		t.DecDeg = d
 	}
 	t.PMRAmasyr, t.PMDecmasyr, t.Mag = jt.PMRAmasyr, jt.PMDecmasyr, jt.Mag
+	t.Band, t.FaintMag, t.FaintPhase, t.BrightMag, t.BrightPhase = jt.Band, jt.FaintMag, jt.FaintPhase, jt.BrightMag, jt.BrightPhase
 	if je := jt.Ephemeris; je == nil {
 		bad("ephemeris", "", "required: t0, t0_standard, t0_convention, period_days at least")
 	} else {
@@ -880,7 +907,7 @@ func jsonToInput(jt jsonTarget, line, i int) (TargetInput, []planner.CellError) 
 	for _, g := range jt.Goals {
 		t.Goals = append(t.Goals, planner.Goal{Event: g.Event, Center: g.Center, HalfWidth: g.PhaseHalfwidth,
 			ExposureS: g.ExposureS, OverheadS: g.OverheadS, NExposures: g.NExposures, MinNights: g.MinNights,
-			EclipseDurDays: g.EclipseDurDays})
+			EclipseDurDays: g.EclipseDurDays, SNR: g.SNR, MaxSmear: g.MaxSmear})
 	}
 	t.Priority = defaultPriority
 	if jt.Priority != nil {
@@ -904,6 +931,7 @@ func writeJSONFile(w io.Writer, listName string, targets []StoredTarget) error {
 		prio := t.Priority
 		jt := jsonTarget{
 			Name: t.Name, RA: &ra, Dec: &dec, PMRAmasyr: t.PMRAmasyr, PMDecmasyr: t.PMDecmasyr, Mag: t.Mag,
+			Band: t.Band, FaintMag: t.FaintMag, FaintPhase: t.FaintPhase, BrightMag: t.BrightMag, BrightPhase: t.BrightPhase,
 			Ephemeris: &jsonEphem{
 				T0: &t0Text, T0Form: string(t0.Form), T0Standard: string(t0.Standard), T0Convention: string(e.Convention),
 				T0ErrDays: e.T0ErrDays, PeriodDays: &p, PeriodErrDays: e.PeriodErr, CovT0Period: e.CovT0P, Pdot: e.Pdot,
@@ -919,7 +947,7 @@ func writeJSONFile(w io.Writer, listName string, targets []StoredTarget) error {
 		for _, g := range t.Goals {
 			jt.Goals = append(jt.Goals, jsonGoal{Event: g.Event, Center: g.Center, PhaseHalfwidth: g.HalfWidth,
 				ExposureS: g.ExposureS, OverheadS: g.OverheadS, NExposures: g.NExposures, MinNights: g.MinNights,
-				EclipseDurDays: g.EclipseDurDays})
+				EclipseDurDays: g.EclipseDurDays, SNR: g.SNR, MaxSmear: g.MaxSmear})
 		}
 		f.Targets = append(f.Targets, jt)
 	}

@@ -196,6 +196,13 @@ func validateTargetInput(in TargetInput) (TargetInput, *ValidationError) {
 		checked.Ephem.T0 = ephem.JD2{}
 	}
 	addProblems(v, planner.TargetProblems(checked), true)
+	// The brightness after the rulebook, as the planner checks it.
+	if b, err := ephem.ParseBand(t.Band); err == nil {
+		t.Band = string(b) // stored as the trade writes it, without blanks
+	}
+	if err := planner.ValidateBrightness(*t); err != nil {
+		addInputError(v, "", err)
+	}
 	validNotes(v, "ephem_note", in.EphemNote, MaxNotes)
 	return in, v
 }
@@ -340,14 +347,10 @@ func createList(t *txn, teamID int64, in ListInput) (TargetList, error) {
 		return TargetList{}, err
 	}
 	now := fmtTime(t.now)
-	res, err := t.exec("INSERT INTO target_lists (team_id, name, description, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, 1)",
+	id, err := t.insertID("INSERT INTO target_lists (team_id, name, description, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, 1)",
 		teamID, in.Name, in.Description, now, now)
 	if err != nil {
 		return TargetList{}, fmt.Errorf("insert list: %w", err)
-	}
-	id, err := res.LastInsertId()
-	if err != nil {
-		return TargetList{}, err
 	}
 	l, err := getList(t, id)
 	if err != nil {
@@ -483,6 +486,7 @@ const ephemCols = `e.id, e.target_id, e.t0_day, e.t0_frac, e.t0_in_day, e.t0_in_
 	coalesce(e.created_by, 0), coalesce(u.name, ''), e.created_at`
 
 const targetSelect = `SELECT t.id, t.list_id, l.team_id, t.name, t.ra_deg, t.dec_deg, t.pm_ra_masyr, t.pm_dec_masyr, t.mag,
+	t.band, t.faint_mag, t.faint_phase, t.bright_mag, t.bright_phase,
 	t.priority, t.acquire_s, t.goals_json, t.tags_json, t.notes, t.rv_model, t.rv_k_kms, t.rv_sigma_kms, t.rv_want_rel_k,
 	t.created_at, t.updated_at, t.version, ` + ephemCols + `
 	FROM targets t
@@ -524,6 +528,7 @@ func scanTarget(sc interface{ Scan(...any) error }) (StoredTarget, error) {
 	var es ephemScan
 	tg := &st.Target
 	dest := []any{&st.ID, &st.ListID, &st.TeamID, &tg.Name, &tg.RADeg, &tg.DecDeg, &tg.PMRAmasyr, &tg.PMDecmasyr, &tg.Mag,
+		&tg.Band, &tg.FaintMag, &tg.FaintPhase, &tg.BrightMag, &tg.BrightPhase,
 		&tg.Priority, &tg.AcquireS, &goals, &tags, &tg.Notes, &rvModel, &rv.KKms, &rv.SigmaVKms, &rv.WantRelK, &c, &u, &st.Version}
 	dest = append(dest, ephemDest(&st.Ephemeris, &es)...)
 	if err := sc.Scan(dest...); err != nil {
@@ -644,17 +649,14 @@ func insertTarget(t *txn, listID int64, in TargetInput, src EphemerisSource) (in
 	now := fmtTime(t.now)
 	tg := in.Target
 	rv := rvColumns(tg.RV)
-	res, err := t.exec(`INSERT INTO targets (list_id, name, ra_deg, dec_deg, pm_ra_masyr, pm_dec_masyr, mag, priority, acquire_s,
-		goals_json, tags_json, notes, rv_model, rv_k_kms, rv_sigma_kms, rv_want_rel_k, created_at, updated_at, version)
-		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
-		listID, tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Priority, tg.AcquireS, goals, tags, tg.Notes,
-		rv[0], rv[1], rv[2], rv[3], now, now)
+	id, err := t.insertID(`INSERT INTO targets (list_id, name, ra_deg, dec_deg, pm_ra_masyr, pm_dec_masyr, mag, band, faint_mag,
+		faint_phase, bright_mag, bright_phase, priority, acquire_s, goals_json, tags_json, notes, rv_model, rv_k_kms, rv_sigma_kms,
+		rv_want_rel_k, created_at, updated_at, version)
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
+		listID, tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Band, tg.FaintMag, tg.FaintPhase,
+		tg.BrightMag, tg.BrightPhase, tg.Priority, tg.AcquireS, goals, tags, tg.Notes, rv[0], rv[1], rv[2], rv[3], now, now)
 	if err != nil {
 		return 0, fmt.Errorf("insert target: %w", err)
-	}
-	id, err := res.LastInsertId()
-	if err != nil {
-		return 0, err
 	}
 	if _, err := insertEphemeris(t, id, EphemerisInput{Ephem: tg.Ephem, T0: in.T0, Source: src, Note: in.EphemNote}); err != nil {
 		return 0, err
@@ -673,7 +675,7 @@ func insertEphemeris(t *txn, targetID int64, in EphemerisInput) (int64, error) {
 		fit = string(b)
 	}
 	e := in.Ephem
-	res, err := t.exec(`INSERT INTO ephemerides (target_id, t0_day, t0_frac, t0_in_day, t0_in_frac, t0_in_form, t0_in_standard,
+	id, err := t.insertID(`INSERT INTO ephemerides (target_id, t0_day, t0_frac, t0_in_day, t0_in_frac, t0_in_form, t0_in_standard,
 		t0_in_text, t0_err_days, period_days, period_err_days, cov_t0_period, pdot, pdot_err, cov_t0_pdot, cov_p_pdot,
 		convention, phase_offset, ecc, omega_deg, source, fit_json, note, created_by, created_at)
 		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
@@ -683,7 +685,7 @@ func insertEphemeris(t *txn, targetID int64, in EphemerisInput) (int64, error) {
 	if err != nil {
 		return 0, fmt.Errorf("insert ephemeris: %w", err)
 	}
-	return res.LastInsertId()
+	return id, nil
 }
 
 // CreateTarget adds a target to a list (editors and owners). Its
@@ -818,10 +820,12 @@ func applyTargetUpdate(t *txn, before StoredTarget, in TargetInput, src Ephemeri
 	tg := in.Target
 	rv := rvColumns(tg.RV)
 	if _, err := t.exec(`UPDATE targets SET name = ?, ra_deg = ?, dec_deg = ?, pm_ra_masyr = ?, pm_dec_masyr = ?, mag = ?,
+		band = ?, faint_mag = ?, faint_phase = ?, bright_mag = ?, bright_phase = ?,
 		priority = ?, acquire_s = ?, goals_json = ?, tags_json = ?, notes = ?, rv_model = ?, rv_k_kms = ?, rv_sigma_kms = ?,
 		rv_want_rel_k = ?, updated_at = ?, version = version + 1
 		WHERE id = ? AND version = ?`,
-		tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Priority, tg.AcquireS, goals, tags, tg.Notes,
+		tg.Name, tg.RADeg, tg.DecDeg, tg.PMRAmasyr, tg.PMDecmasyr, tg.Mag, tg.Band, tg.FaintMag, tg.FaintPhase, tg.BrightMag,
+		tg.BrightPhase, tg.Priority, tg.AcquireS, goals, tags, tg.Notes,
 		rv[0], rv[1], rv[2], rv[3], fmtTime(t.now), before.ID, before.Version); err != nil {
 		return StoredTarget{}, fmt.Errorf("update target: %w", err)
 	}

@@ -130,13 +130,9 @@ func createTeam(t *txn, name string) (Team, error) {
 		return Team{}, err
 	}
 	now := fmtTime(t.now)
-	res, err := t.exec("INSERT INTO teams (name, created_at, updated_at, version) VALUES (?, ?, ?, 1)", name, now, now)
+	id, err := t.insertID("INSERT INTO teams (name, created_at, updated_at, version) VALUES (?, ?, ?, 1)", name, now, now)
 	if err != nil {
 		return Team{}, fmt.Errorf("insert team: %w", err)
-	}
-	id, err := res.LastInsertId()
-	if err != nil {
-		return Team{}, err
 	}
 	tm, err := getTeam(t, id)
 	if err != nil {
@@ -485,12 +481,8 @@ func (s *Store) CreateInvitation(ctx context.Context, a Actor, teamID int64, rol
 	if err != nil {
 		return Invitation{}, "", wrap(op, err)
 	}
-	res, err := t.exec(`INSERT INTO invitations (team_id, token_hash, role, note, created_by, created_at, expires_at)
+	id, err := t.insertID(`INSERT INTO invitations (team_id, token_hash, role, note, created_by, created_at, expires_at)
 		VALUES (?, ?, ?, ?, ?, ?, ?)`, teamID, hash, string(role), note, a.userID(), fmtTime(t.now), fmtTime(t.now.Add(ttl)))
-	if err != nil {
-		return Invitation{}, "", wrap(op, err)
-	}
-	id, err := res.LastInsertId()
 	if err != nil {
 		return Invitation{}, "", wrap(op, err)
 	}

@@ -134,17 +134,13 @@ func addTimings(t *txn, targetID int64, in []TimingInput) ([]Timing, error) {
 	now := fmtTime(t.now)
 	out := make([]Timing, 0, len(in))
 	for i, x := range in {
-		res, err := t.exec(`INSERT INTO timings (target_id, event, t_day, t_frac, t_in_day, t_in_frac, t_in_form, t_in_standard,
+		id, err := t.insertID(`INSERT INTO timings (target_id, event, t_day, t_frac, t_in_day, t_in_frac, t_in_form, t_in_standard,
 			t_in_text, err_days, observer, note, created_by, created_at, updated_at, version)
 			VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1)`,
 			targetID, x.Event, bjds[i].Day, bjds[i].Frac, x.T.JD.Day, x.T.JD.Frac, string(x.T.Form), string(x.T.Standard),
 			x.T.Text, x.ErrDays, x.Observer, x.Note, t.actor.userID(), now, now)
 		if err != nil {
 			return nil, fmt.Errorf("insert timing: %w", err)
-		}
-		id, err := res.LastInsertId()
-		if err != nil {
-			return nil, err
 		}
 		tm, err := getTiming(t, id)
 		if err != nil {

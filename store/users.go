@@ -152,14 +152,10 @@ func createUser(t *txn, nu NewUser, hash string) (User, error) {
 		return User{}, errConflict("an account with email %s already exists", nu.Email)
 	}
 	now := fmtTime(t.now)
-	res, err := t.exec(`INSERT INTO users (email, name, password_hash, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, 1)`,
+	id, err := t.insertID(`INSERT INTO users (email, name, password_hash, created_at, updated_at, version) VALUES (?, ?, ?, ?, ?, 1)`,
 		nu.Email, nu.Name, hash, now, now)
 	if err != nil {
 		return User{}, fmt.Errorf("insert user: %w", err)
-	}
-	id, err := res.LastInsertId()
-	if err != nil {
-		return User{}, err
 	}
 	u, err := getUser(t, id)
 	if err != nil {
@@ -279,7 +275,7 @@ func (s *Store) ChangePassword(ctx context.Context, a Actor, current, next strin
 		return wrap(op, err)
 	}
 	var stored string
-	if err := s.rdb.QueryRowContext(ctx, "SELECT password_hash FROM users WHERE id = ?", a.UserID).Scan(&stored); err != nil {
+	if err := s.rdb.QueryRowContext(ctx, s.d.rebind("SELECT password_hash FROM users WHERE id = ?"), a.UserID).Scan(&stored); err != nil {
 		return wrap(op, err)
 	}
 	if stored != "" {
@@ -334,7 +330,7 @@ func (s *Store) SignIn(ctx context.Context, email, password string) (User, strin
 	const op = "store.SignIn"
 	var id int64
 	var stored string
-	err := s.rdb.QueryRowContext(ctx, "SELECT id, password_hash FROM users WHERE email = ?", strings.TrimSpace(email)).Scan(&id, &stored)
+	err := s.rdb.QueryRowContext(ctx, s.d.rebind("SELECT id, password_hash FROM users WHERE email = ?"), strings.TrimSpace(email)).Scan(&id, &stored)
 	if err != nil && !errors.Is(err, sql.ErrNoRows) {
 		return User{}, "", wrap(op, err)
 	}
@@ -379,14 +375,10 @@ func createSession(t *txn, userID int64, ttl time.Duration) (string, Session, er
 		return "", Session{}, err
 	}
 	exp := t.now.Add(ttl)
-	res, err := t.exec("INSERT INTO sessions (token_hash, user_id, created_at, expires_at) VALUES (?, ?, ?, ?)",
+	id, err := t.insertID("INSERT INTO sessions (token_hash, user_id, created_at, expires_at) VALUES (?, ?, ?, ?)",
 		hash, userID, fmtTime(t.now), fmtTime(exp))
 	if err != nil {
 		return "", Session{}, fmt.Errorf("insert session: %w", err)
-	}
-	id, err := res.LastInsertId()
-	if err != nil {
-		return "", Session{}, err
 	}
 	// Sweep this user's expired sessions while we hold the writer.
 	if _, err := t.exec("DELETE FROM sessions WHERE user_id = ? AND expires_at <= ?", userID, fmtTime(t.now)); err != nil {
@@ -590,12 +582,8 @@ func (s *Store) CreateAPIToken(ctx context.Context, a Actor, name string, ttl ti
 	if ttl > 0 {
 		exp = fmtTime(t.now.Add(ttl))
 	}
-	res, err := t.exec("INSERT INTO api_tokens (user_id, name, token_hash, created_at, expires_at) VALUES (?, ?, ?, ?, ?)",
+	id, err := t.insertID("INSERT INTO api_tokens (user_id, name, token_hash, created_at, expires_at) VALUES (?, ?, ?, ?, ?)",
 		a.UserID, name, hash, fmtTime(t.now), exp)
-	if err != nil {
-		return APIToken{}, "", wrap(op, err)
-	}
-	id, err := res.LastInsertId()
 	if err != nil {
 		return APIToken{}, "", wrap(op, err)
 	}
@@ -699,7 +687,7 @@ func (s *Store) APITokenActor(ctx context.Context, token string) (Actor, error) 
 		return Actor{}, err
 	}
 	if k.LastUsedAt.IsZero() || t.now.Sub(k.LastUsedAt) > time.Minute {
-		if _, err := s.wdb.ExecContext(ctx, "UPDATE api_tokens SET last_used_at = ? WHERE id = ?", fmtTime(t.now), k.ID); err != nil {
+		if _, err := s.wdb.ExecContext(ctx, s.d.rebind("UPDATE api_tokens SET last_used_at = ? WHERE id = ?"), fmtTime(t.now), k.ID); err != nil {
 			return Actor{}, wrap(op, err)
 		}
 	}

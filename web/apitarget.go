@@ -12,24 +12,31 @@ import (
 // targetJSON is a target in the JSON API. Field names follow the team CSV
 // columns (store/FORMAT.md).
 type targetJSON struct {
-	ID         int64      `json:"id,omitempty"`
-	ListID     int64      `json:"list_id,omitempty"`
-	Version    int64      `json:"version,omitempty"`
-	Name       string     `json:"name"`
-	RADeg      float64    `json:"ra_deg"`
-	DecDeg     float64    `json:"dec_deg"`
-	PMRAmasyr  float64    `json:"pm_ra_masyr,omitempty"`
-	PMDecmasyr float64    `json:"pm_dec_masyr,omitempty"`
-	Mag        float64    `json:"mag,omitempty"`
-	Ephemeris  ephemJSON  `json:"ephemeris"`
-	Goals      []goalJSON `json:"goals"`
-	Priority   int        `json:"priority"`
-	AcquireS   float64    `json:"acquire_s,omitempty"`
-	Tags       []string   `json:"tags,omitempty"`
-	Notes      string     `json:"notes,omitempty"`
-	EphemNote  string     `json:"ephem_note,omitempty"`
-	RV         *rvJSON    `json:"rv,omitempty"`
-	UpdatedAt  string     `json:"updated_at,omitempty"`
+	ID         int64   `json:"id,omitempty"`
+	ListID     int64   `json:"list_id,omitempty"`
+	Version    int64   `json:"version,omitempty"`
+	Name       string  `json:"name"`
+	RADeg      float64 `json:"ra_deg"`
+	DecDeg     float64 `json:"dec_deg"`
+	PMRAmasyr  float64 `json:"pm_ra_masyr,omitempty"`
+	PMDecmasyr float64 `json:"pm_dec_masyr,omitempty"`
+	Mag        float64 `json:"mag,omitempty"`
+	// Band, FaintMag, FaintPhase, BrightMag and BrightPhase are the
+	// target's brightness for S/N goals (planner.Target).
+	Band        string     `json:"band,omitempty"`
+	FaintMag    float64    `json:"faint_mag,omitempty"`
+	FaintPhase  float64    `json:"faint_phase,omitempty"`
+	BrightMag   float64    `json:"bright_mag,omitempty"`
+	BrightPhase float64    `json:"bright_phase,omitempty"`
+	Ephemeris   ephemJSON  `json:"ephemeris"`
+	Goals       []goalJSON `json:"goals"`
+	Priority    int        `json:"priority"`
+	AcquireS    float64    `json:"acquire_s,omitempty"`
+	Tags        []string   `json:"tags,omitempty"`
+	Notes       string     `json:"notes,omitempty"`
+	EphemNote   string     `json:"ephem_note,omitempty"`
+	RV          *rvJSON    `json:"rv,omitempty"`
+	UpdatedAt   string     `json:"updated_at,omitempty"`
 }
 
 // rvJSON is a target's radial-velocity goal (planner.RVGoal), with the
@@ -71,6 +78,8 @@ type goalJSON struct {
 	NExposures     int      `json:"n_exposures,omitempty"`
 	MinNights      int      `json:"min_nights,omitempty"`
 	EclipseDurDays float64  `json:"eclipse_duration_days,omitempty"`
+	SNR            float64  `json:"snr,omitempty"`       // wanted S/N per exposure (0: exposure_s as given)
+	MaxSmear       float64  `json:"max_smear,omitempty"` // phase one S/N-sized exposure may span (0: 0.02)
 }
 
 // targetToJSON converts a stored target.
@@ -78,7 +87,8 @@ func targetToJSON(t store.StoredTarget) targetJSON {
 	tg, r := t.Target, t.Ephemeris
 	e := r.Ephem
 	out := targetJSON{ID: t.ID, ListID: t.ListID, Version: t.Version, Name: tg.Name, RADeg: tg.RADeg, DecDeg: tg.DecDeg,
-		PMRAmasyr: tg.PMRAmasyr, PMDecmasyr: tg.PMDecmasyr, Mag: tg.Mag, Priority: tg.Priority, AcquireS: tg.AcquireS,
+		PMRAmasyr: tg.PMRAmasyr, PMDecmasyr: tg.PMDecmasyr, Mag: tg.Mag, Band: tg.Band, FaintMag: tg.FaintMag,
+		FaintPhase: tg.FaintPhase, BrightMag: tg.BrightMag, BrightPhase: tg.BrightPhase, Priority: tg.Priority, AcquireS: tg.AcquireS,
 		Tags: tg.Tags, Notes: tg.Notes, Goals: []goalJSON{}, UpdatedAt: utcString(t.UpdatedAt),
 		Ephemeris: ephemJSON{T0: r.T0.Text, T0Form: string(r.T0.Form), T0Standard: string(r.T0.Standard),
 			T0Convention: string(e.Convention), T0BJDTDB: planner.FormatEpoch(e.T0, planner.FormJD, 10), T0ErrDays: e.T0ErrDays,
@@ -89,7 +99,7 @@ func targetToJSON(t store.StoredTarget) targetJSON {
 	}
 	for _, g := range tg.Goals {
 		gj := goalJSON{Event: g.Event, PhaseHalfWidth: g.HalfWidth, ExposureS: g.ExposureS, OverheadS: g.OverheadS,
-			NExposures: g.NExposures, MinNights: g.MinNights, EclipseDurDays: g.EclipseDurDays}
+			NExposures: g.NExposures, MinNights: g.MinNights, EclipseDurDays: g.EclipseDurDays, SNR: g.SNR, MaxSmear: g.MaxSmear}
 		if g.Event == "" {
 			c := g.Center
 			gj.Phase = &c
@@ -127,6 +137,7 @@ func (j targetJSON) input() (store.TargetInput, error) {
 		return store.TargetInput{}, invalidField("ephemeris.t0", e.T0, err)
 	}
 	tg := planner.Target{Name: j.Name, RADeg: j.RADeg, DecDeg: j.DecDeg, PMRAmasyr: j.PMRAmasyr, PMDecmasyr: j.PMDecmasyr, Mag: j.Mag,
+		Band: j.Band, FaintMag: j.FaintMag, FaintPhase: j.FaintPhase, BrightMag: j.BrightMag, BrightPhase: j.BrightPhase,
 		Priority: j.Priority, AcquireS: j.AcquireS, Tags: j.Tags, Notes: j.Notes,
 		Ephem: planner.Ephemeris{T0ErrDays: e.T0ErrDays, PeriodDays: e.PeriodDays, PeriodErr: e.PeriodErrDays, CovT0P: e.CovT0Period,
 			Pdot: e.Pdot, PdotErr: e.PdotErr, Convention: planner.Convention(e.T0Convention), PhaseOffset: e.PhaseOffset, Ecc: e.Ecc, OmegaDeg: e.OmegaDeg}}
@@ -135,7 +146,7 @@ func (j targetJSON) input() (store.TargetInput, error) {
 			return store.TargetInput{}, &codedError{code: codeInvalid, msg: fmt.Sprintf("goals[%d]: give exactly one of phase and event", i)}
 		}
 		pg := planner.Goal{Event: g.Event, HalfWidth: g.PhaseHalfWidth, ExposureS: g.ExposureS, OverheadS: g.OverheadS,
-			NExposures: g.NExposures, MinNights: g.MinNights, EclipseDurDays: g.EclipseDurDays}
+			NExposures: g.NExposures, MinNights: g.MinNights, EclipseDurDays: g.EclipseDurDays, SNR: g.SNR, MaxSmear: g.MaxSmear}
 		if g.Phase != nil {
 			pg.Center = *g.Phase
 		}

@@ -7,7 +7,6 @@ import (
 	"net/http"
 	"net/http/cookiejar"
 	"net/http/httptest"
-	"path/filepath"
 	"regexp"
 	"strings"
 	"testing"
@@ -15,6 +14,7 @@ import (
 
 	"phasecast/store"
 	"phasecast/store/testclock"
+	"phasecast/store/testdb"
 )
 
 // demo is a server over the seeded demo scenario with a browser-like
@@ -30,7 +30,7 @@ func newDemo(t *testing.T) *demo {
 	t.Helper()
 	ctx := context.Background()
 	clk := testclock.Start(t, time.Date(2026, 12, 1, 18, 0, 0, 0, time.UTC))
-	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "demo.db"), clk.Now,
+	st, err := store.Open(ctx, testdb.Target(t, "demo.db"), clk.Now,
 		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 64, Threads: 1, SaltLen: 16, KeyLen: 32}))
 	if err != nil {
 		t.Fatal(err)

@@ -8,13 +8,13 @@ import (
 	"net/http/cookiejar"
 	"net/http/httptest"
 	"net/url"
-	"path/filepath"
 	"strings"
 	"testing"
 	"time"
 
 	"phasecast/store"
 	"phasecast/store/testclock"
+	"phasecast/store/testdb"
 )
 
 // testNow is the fixed clock of the handler tests: an evening in March.
@@ -37,7 +37,7 @@ const testPassword = "correct horse battery"
 func newHarness(t testing.TB) *harness {
 	t.Helper()
 	ctx := context.Background()
-	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "test.db"), func() time.Time { return testNow },
+	st, err := store.Open(ctx, testdb.Target(t, "test.db"), func() time.Time { return testNow },
 		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 64, Threads: 1, SaltLen: 16, KeyLen: 32}))
 	if err != nil {
 		t.Fatal(err)

@@ -33,6 +33,7 @@ type nightQuery struct {
 	maxMoonIllum   string
 	sunAvoid       string
 	fill           bool
+	instrument     string // the site's instrument by name; "" = its first
 }
 
 // parseNightQuery reads a night request; ids that do not parse are
@@ -40,7 +41,8 @@ type nightQuery struct {
 func parseNightQuery(q url.Values) (nightQuery, error) {
 	n := nightQuery{date: strings.TrimSpace(q.Get("date")), twilight: q.Get("twilight"), maxAirmass: strings.TrimSpace(q.Get("max_airmass")),
 		minAlt: strings.TrimSpace(q.Get("min_alt")), minMoonSep: strings.TrimSpace(q.Get("min_moon_sep")),
-		maxMoonIllum: strings.TrimSpace(q.Get("max_moon_illum")), sunAvoid: strings.TrimSpace(q.Get("sun_avoid")), fill: q.Get("fill") == "1"}
+		maxMoonIllum: strings.TrimSpace(q.Get("max_moon_illum")), sunAvoid: strings.TrimSpace(q.Get("sun_avoid")), fill: q.Get("fill") == "1",
+		instrument: strings.TrimSpace(q.Get("instrument"))}
 	var err error
 	if n.siteID, err = optID(q.Get("site")); err != nil {
 		return n, err
@@ -122,7 +124,7 @@ func (n nightQuery) values() url.Values {
 		q.Add("t", i64s(id))
 	}
 	for k, v := range map[string]string{"twilight": n.twilight, "max_airmass": n.maxAirmass, "min_alt": n.minAlt,
-		"min_moon_sep": n.minMoonSep, "max_moon_illum": n.maxMoonIllum, "sun_avoid": n.sunAvoid} {
+		"min_moon_sep": n.minMoonSep, "max_moon_illum": n.maxMoonIllum, "sun_avoid": n.sunAvoid, "instrument": n.instrument} {
 		if v != "" {
 			q.Set(k, v)
 		}
@@ -327,6 +329,23 @@ func (n *night) checkEach(c planner.Constraints, errs page.Errs) {
 	}
 }
 
+// instrument is the site's instrument the request names (the first when
+// it names none; nil for a site without instruments). An unknown name is a
+// message on the instrument field.
+func (n *night) instrument(errs page.Errs) (*planner.Instrument, error) {
+	inst, err := n.site.Instrument(n.q.instrument)
+	if err != nil {
+		fe, _, ok := formErrs(err)
+		if !ok {
+			return nil, err
+		}
+		for k, v := range fe {
+			errs[k] = v
+		}
+	}
+	return inst, nil
+}
+
 // planIt plans the night. Constraint values the planner refuses become
 // messages on their fields.
 func (n *night) planIt(errs page.Errs) error {
@@ -350,6 +369,11 @@ func (n *night) planIt(errs page.Errs) error {
 		from, to = ws[0].Start, ws[0].End
 	}
 	n.req = planner.NightRequest{Site: n.site.Site, From: from, To: to, Constraints: c, Options: planner.Options{Fill: n.q.fill, Telescope: n.site.Telescope}}
+	inst, err := n.instrument(errs)
+	if err != nil || len(errs) > 0 {
+		return err
+	}
+	n.req.Instrument = inst
 	for _, t := range n.targets {
 		n.req.Targets = append(n.req.Targets, t.Target)
 	}

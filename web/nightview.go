@@ -29,6 +29,10 @@ func (n *night) form(errs page.Errs) page.NightForm {
 	for _, st := range n.sites {
 		f.Sites = append(f.Sites, page.Option{Value: i64s(st.ID), Label: st.Name, Selected: st.ID == n.site.ID})
 	}
+	for i, in := range n.site.Instruments {
+		sel := in.Name == n.q.instrument || (n.q.instrument == "" && i == 0)
+		f.Instruments = append(f.Instruments, page.Option{Value: in.Name, Label: in.Name, Selected: sel})
+	}
 	for _, l := range n.lists {
 		f.Lists = append(f.Lists, page.Option{Value: i64s(l.ID), Label: l.Name, Selected: l.ID == n.list.ID})
 	}
@@ -122,6 +126,12 @@ func (n *night) blockRow(b planner.Block) page.BlockRow {
 	}
 	r.GoalShort = fmt.Sprintf("φ %s ± %s", export.PhaseText(b.Goal.Center), export.PhaseText(b.Goal.HalfWidth))
 	r.ExpShort = fmt.Sprintf("%d×%s s", b.N, num(b.ExposureS))
+	if b.SNROK {
+		r.SNR = fmt.Sprintf("S/N %.0f per exposure, sky %.2f mag/arcsec²", b.SNR, b.SkyMag)
+		if b.SizedBySNR {
+			r.SNR += " (exposure sized for this S/N)"
+		}
+	}
 	if b.Filler {
 		r.Goal, r.GoalShort = "filler", "filler"
 	}

@@ -39,6 +39,9 @@ func (n *night) key() string {
 	if t := n.req.Options.Telescope; t != nil {
 		fmt.Fprintf(&b, "telescope %+v|", *t)
 	}
+	if n.req.Instrument != nil {
+		fmt.Fprintf(&b, "instrument %q|", n.req.Instrument.Name)
+	}
 	for _, t := range n.targets {
 		fmt.Fprintf(&b, "%d v%d,", t.ID, t.Version)
 	}

@@ -91,6 +91,10 @@ func TestRunPlanMarkReplan(t *testing.T) {
 	if resp.StatusCode != http.StatusOK {
 		t.Fatalf("run page = %d", resp.StatusCode)
 	}
+	// The demo site's first instrument sizes the S/N goals' blocks.
+	if !regexp.MustCompile(`\(S/N \d+, sky \d+\.\d\d mag/arcsec²\)`).MatchString(body) {
+		t.Error("no block of the planned run shows its S/N and sky")
+	}
 	planID := regexp.MustCompile(`name="plan" value="(\d+)"`).FindStringSubmatch(body)
 	if planID == nil {
 		t.Fatal("no block to mark in the planned run")

@@ -121,6 +121,9 @@ func (in *runInputs) nightsOver(now time.Time) int {
 func (in *runInputs) request(past int) planner.RunRequest {
 	req := planner.RunRequest{Site: in.site.Site, Zone: in.loc, Nights: in.nights, Constraints: in.constraints(), Past: past, Bins: 10,
 		Options: planner.Options{Telescope: in.site.Telescope}}
+	// A run sizes S/N goals' exposures with its site's default (first)
+	// instrument.
+	req.Instrument, _ = in.site.Instrument("") // dropped: "" names no instrument, so it never fails
 	names := map[int64]string{}
 	for _, t := range in.targets {
 		req.Targets = append(req.Targets, t.Target)

@@ -156,6 +156,9 @@ func runBlockRow(in *runInputs, i int, b export.RunBlock) page.RunBlockRow {
 		Local: start.In(in.loc).Format("15:04") + "–" + end.In(in.loc).Format("15:04"), UTC: start.UTC().Format("15:04") + "–" + end.UTC().Format("15:04"),
 		Exposures: fmt.Sprintf("%d × %s s", b.NExposures, num(b.ExposureS)), Phases: fmt.Sprintf("%.3f → %.3f", b.PhaseStart, b.PhaseEnd),
 		Airmass: fmt.Sprintf("%.2f–%.2f", b.AirmassMin, b.AirmassMax)}
+	if b.SNR != nil && b.SkyMag != nil {
+		row.Exposures += fmt.Sprintf(" (S/N %.0f, sky %.2f mag/arcsec²)", *b.SNR, *b.SkyMag)
+	}
 	for _, o := range in.obs {
 		if o.TargetID == b.TargetID && o.Source == store.ObsFromBlock && !o.MidUTC.Before(start) && o.MidUTC.Before(end) {
 			row.State = string(o.Status)

@@ -7,13 +7,13 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"net/url"
-	"path/filepath"
 	"strings"
 	"sync"
 	"testing"
 	"time"
 
 	"phasecast/store"
+	"phasecast/store/testdb"
 )
 
 // testClock is a clock the test moves; the store and the server share it.
@@ -32,7 +32,7 @@ func newClockHarness(t *testing.T) (*harness, *testClock) {
 	t.Helper()
 	ctx := context.Background()
 	clk := &testClock{t: testNow}
-	st, err := store.Open(ctx, filepath.Join(t.TempDir(), "clock.db"), clk.now,
+	st, err := store.Open(ctx, testdb.Target(t, "clock.db"), clk.now,
 		store.WithPasswordParams(store.PasswordParams{Time: 1, MemoryKiB: 64, Threads: 1, SaltLen: 16, KeyLen: 32}))
 	if err != nil {
 		t.Fatal(err)

@@ -27,7 +27,8 @@ func parseSiteForm(r *http.Request) siteFormIn {
 	p.form = page.SiteForm{Name: f("name"), Lat: f("lat"), Lon: f("lon"), Elev: f("elev"), Zone: f("zone"), Pressure: f("pressure"),
 		Temp: f("temperature"), Notes: r.PostFormValue("notes"), SunAltMax: f("sun_alt_max"), MaxAirmass: f("max_airmass"),
 		MinAlt: f("min_alt"), MinMoonSep: f("min_moon_sep"), MaxMoonIllum: f("max_moon_illum"), HAMin: f("ha_min"), HAMax: f("ha_max"),
-		ZenithExcl: f("zenith_excl"), SunAvoid: f("sun_avoid"), Horizon: r.PostFormValue("horizon"), Telescope: f("telescope")}
+		ZenithExcl: f("zenith_excl"), SunAvoid: f("sun_avoid"), Horizon: r.PostFormValue("horizon"), Instruments: r.PostFormValue("instruments"),
+		Telescope: f("telescope")}
 	in := store.SiteInput{Name: p.form.Name, Zone: p.form.Zone, Notes: p.form.Notes}
 	p.req("lat", p.form.Lat, &in.Site.LatDeg)
 	p.req("lon", p.form.Lon, &in.Site.LonEastDeg)
@@ -49,6 +50,13 @@ func parseSiteForm(r *http.Request) siteFormIn {
 		p.errs["horizon"] = strings.ReplaceAll(err.Error(), "\n", "; ")
 	}
 	in.Horizon = h
+	if text := strings.TrimSpace(p.form.Instruments); text != "" {
+		dec := json.NewDecoder(strings.NewReader(text))
+		dec.DisallowUnknownFields()
+		if err := dec.Decode(&in.Instruments); err != nil {
+			p.errs["instruments"] = "not a JSON list of instruments (" + err.Error() + "); accepted: the keys listed above"
+		}
+	}
 	if p.form.Telescope != "" {
 		tel, err := planner.ParseTelescope([]byte(p.form.Telescope))
 		if err != nil {
@@ -92,10 +100,13 @@ func (p *siteFormIn) storeErrs(err error) (page.Errs, int, bool) {
 	}
 	out := page.Errs{}
 	for k, v := range errs {
-		if strings.HasPrefix(k, "horizon") {
+		switch {
+		case strings.HasPrefix(k, "horizon"):
 			k = "horizon"
-		}
-		if strings.HasPrefix(k, "telescope") {
+		case strings.HasPrefix(k, "instruments"):
+			v = k + ": " + v
+			k = "instruments"
+		case strings.HasPrefix(k, "telescope"):
 			k = "telescope"
 		}
 		out[k] = v
@@ -137,7 +148,21 @@ func formFromSite(s store.SiteRecord) page.SiteForm {
 		Twilight: twilightOptions(string(c.Twilight)), SunAltMax: optNum(c.SunAltMaxDeg), MaxAirmass: optNum(c.MaxAirmass),
 		MinAlt: optNum(c.MinAltDeg), MinMoonSep: optNum(c.MinMoonSepDeg), MaxMoonIllum: optNum(c.MaxMoonIllum), HAMin: optNum(c.HAMinHours),
 		HAMax: optNum(c.HAMaxHours), ZenithExcl: optNum(c.ZenithExclDeg), SunAvoid: optNum(c.SunAvoidDeg), Horizon: hb.String(),
-		Preview: horizonChart(s.Horizon, c.MinAltDeg), Telescope: telescopeText(s.Telescope), Errs: page.Errs{}}
+		Instruments: instrumentsText(s.Instruments), Preview: horizonChart(s.Horizon, c.MinAltDeg), Telescope: telescopeText(s.Telescope),
+		Errs: page.Errs{}}
+}
+
+// instrumentsText writes a site's instruments for the form: an indented
+// JSON list, "" for none.
+func instrumentsText(ins []planner.Instrument) string {
+	if len(ins) == 0 {
+		return ""
+	}
+	b, err := json.MarshalIndent(ins, "", "  ")
+	if err != nil { // plain numbers and strings always marshal
+		return ""
+	}
+	return string(b)
 }
 
 // telescopeText is a site's telescope as the form's JSON ("" for none).

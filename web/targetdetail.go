@@ -82,7 +82,15 @@ func targetFacts(t store.StoredTarget) []page.KV {
 		kv = append(kv, page.KV{Key: "Proper motion", Value: fmt.Sprintf("%s, %s mas/yr", num(tg.PMRAmasyr), num(tg.PMDecmasyr))})
 	}
 	if tg.Mag != 0 {
-		kv = append(kv, page.KV{Key: "Magnitude", Value: num(tg.Mag)})
+		mag := num(tg.Mag)
+		if tg.Band != "" {
+			mag += " (" + tg.Band + ")"
+		}
+		kv = append(kv, page.KV{Key: "Magnitude", Value: mag})
+	}
+	if tg.Variable() {
+		kv = append(kv, page.KV{Key: "Variable", Value: fmt.Sprintf("%s at phase %s, %s at phase %s (%s)",
+			num(tg.FaintMag), num(tg.FaintPhase), num(tg.BrightMag), num(tg.BrightPhase), tg.Band)})
 	}
 	kv = append(kv, page.KV{Key: "Priority", Value: strconv.Itoa(tg.Priority) + " (1 highest)"},
 		page.KV{Key: "Acquisition", Value: num(tg.AcquireS) + " s per visit"})

@@ -14,7 +14,7 @@ import (
 )
 
 // goalFields are the per-goal inputs of the target form, in table order.
-var goalFields = []string{"center", "phase_halfwidth", "exposure_s", "overhead_s", "n_exposures", "min_nights", "eclipse_duration_days"}
+var goalFields = []string{"center", "phase_halfwidth", "exposure_s", "overhead_s", "n_exposures", "min_nights", "eclipse_duration_days", "snr", "max_smear"}
 
 // targetFormIn is a parsed target form: the store input, the form as typed
 // (to show again), messages for values that do not even parse, and which
@@ -34,8 +34,9 @@ func parseTargetForm(r *http.Request) targetFormIn {
 		T0: f("t0"), T0Std: f("t0_standard"), T0Form: f("t0_form"), T0Err: f("t0_err_days"), Period: f("period_days"),
 		PerErr: f("period_err_days"), Pdot: f("pdot"), Conv: f("t0_convention"), PhOffset: f("phase_offset"), Ecc: f("ecc"),
 		Omega: f("omega_deg"), Priority: f("priority"), AcquireS: f("acquire_s"), Tags: f("tags"), Notes: r.PostFormValue("notes"),
-		EphNote: f("ephem_note"), RVModel: f("rv_model"), RVK: f("rv_k_kms"), RVSigma: f("rv_sigma_kms"), RVWant: f("rv_want_rel_k")}
-	t := planner.Target{Name: p.form.Name, Notes: p.form.Notes}
+		EphNote: f("ephem_note"), Band: f("band"), FaintMag: f("faint_mag"), FaintPh: f("faint_phase"), BriMag: f("bright_mag"),
+		BriPh: f("bright_phase"), RVModel: f("rv_model"), RVK: f("rv_k_kms"), RVSigma: f("rv_sigma_kms"), RVWant: f("rv_want_rel_k")}
+	t := planner.Target{Name: p.form.Name, Notes: p.form.Notes, Band: p.form.Band}
 	if v, err := planner.ParseRA(p.form.RA); err != nil {
 		p.errs["ra"] = fmt.Sprintf("“%s” is not a right ascension; accepted: hours as 12:34:56.7 or degrees 0 ≤ RA < 360", p.form.RA)
 	} else {
@@ -49,6 +50,10 @@ func parseTargetForm(r *http.Request) targetFormIn {
 	p.num("pm_ra_masyr", p.form.PMRA, &t.PMRAmasyr)
 	p.num("pm_dec_masyr", p.form.PMDec, &t.PMDecmasyr)
 	p.num("mag", p.form.Mag, &t.Mag)
+	p.num("faint_mag", p.form.FaintMag, &t.FaintMag)
+	p.num("faint_phase", p.form.FaintPh, &t.FaintPhase)
+	p.num("bright_mag", p.form.BriMag, &t.BrightMag)
+	p.num("bright_phase", p.form.BriPh, &t.BrightPhase)
 	p.num("acquire_s", p.form.AcquireS, &t.AcquireS)
 	p.num("t0_err_days", p.form.T0Err, &t.Ephem.T0ErrDays)
 	p.num("period_days", p.form.Period, &t.Ephem.PeriodDays)
@@ -149,7 +154,7 @@ func (p *targetFormIn) goals(r *http.Request) []planner.Goal {
 		if !present {
 			break
 		}
-		row = page.GoalRow{Center: vals[0], HalfWidth: vals[1], ExposureS: vals[2], OverheadS: vals[3], N: vals[4], MinNights: vals[5], EclDur: vals[6]}
+		row = page.GoalRow{Center: vals[0], HalfWidth: vals[1], ExposureS: vals[2], OverheadS: vals[3], N: vals[4], MinNights: vals[5], EclDur: vals[6], SNR: vals[7], MaxSmear: vals[8]}
 		p.form.Goals = append(p.form.Goals, row)
 		if !any {
 			continue
@@ -165,6 +170,8 @@ func (p *targetFormIn) goals(r *http.Request) []planner.Goal {
 		p.num(fld(2), vals[2], &g.ExposureS)
 		p.num(fld(3), vals[3], &g.OverheadS)
 		p.num(fld(6), vals[6], &g.EclipseDurDays)
+		p.num(fld(7), vals[7], &g.SNR)
+		p.num(fld(8), vals[8], &g.MaxSmear)
 		var n, nights float64
 		p.num(fld(4), vals[4], &n)
 		p.num(fld(5), vals[5], &nights)
@@ -215,6 +222,7 @@ func (p *targetFormIn) storeErrs(err error) (page.Errs, int, bool) {
 // knownTargetField lists the target form's top-level inputs.
 var knownTargetField = map[string]bool{
 	"name": true, "ra": true, "dec": true, "pm_ra_masyr": true, "pm_dec_masyr": true, "mag": true, "priority": true,
+	"band": true, "faint_mag": true, "faint_phase": true, "bright_mag": true, "bright_phase": true,
 	"acquire_s": true, "tags": true, "notes": true, "ephem_note": true, "t0": true, "t0_err_days": true, "period_days": true,
 	"period_err_days": true, "pdot": true, "phase_offset": true, "ecc": true, "omega_deg": true, "": true,
 	"rv_model": true, "rv_k_kms": true, "rv_sigma_kms": true, "rv_want_rel_k": true,
@@ -225,7 +233,8 @@ func formFromTarget(t store.StoredTarget) page.TargetForm {
 	tg, e := t.Target, t.Ephemeris.Ephem
 	f := page.TargetForm{ID: t.ID, ListID: t.ListID, Version: t.Version, Name: tg.Name,
 		RA: planner.FormatRAHours(tg.RADeg, 3), Dec: planner.FormatDecDeg(tg.DecDeg, 2),
-		PMRA: optNum(tg.PMRAmasyr), PMDec: optNum(tg.PMDecmasyr), Mag: optNum(tg.Mag),
+		PMRA: optNum(tg.PMRAmasyr), PMDec: optNum(tg.PMDecmasyr), Mag: optNum(tg.Mag), Band: tg.Band,
+		FaintMag: optNum(tg.FaintMag), BriMag: optNum(tg.BrightMag),
 		T0: t.Ephemeris.T0.Text, T0Std: string(t.Ephemeris.T0.Standard), T0Form: string(t.Ephemeris.T0.Form),
 		T0Err: optNum(e.T0ErrDays), Period: optNum(e.PeriodDays), PerErr: optNum(e.PeriodErr), Pdot: optNum(e.Pdot),
 		Conv: string(e.Convention), PhOffset: optNum(e.PhaseOffset), Ecc: optNum(e.Ecc), Omega: optNum(e.OmegaDeg),
@@ -233,13 +242,17 @@ func formFromTarget(t store.StoredTarget) page.TargetForm {
 	if g := tg.RV; g != nil {
 		f.RVModel, f.RVK, f.RVSigma, f.RVWant = string(g.Model), optNum(g.KKms), optNum(g.SigmaVKms), optNum(g.WantRelK)
 	}
+	if tg.Variable() {
+		f.FaintPh, f.BriPh = num(tg.FaintPhase), num(tg.BrightPhase)
+	}
 	for _, g := range tg.Goals {
 		c := strconv.FormatFloat(g.Center, 'f', -1, 64)
 		if g.Event != "" {
 			c = g.Event
 		}
 		f.Goals = append(f.Goals, page.GoalRow{Center: c, HalfWidth: optNum(g.HalfWidth), ExposureS: optNum(g.ExposureS),
-			OverheadS: optNum(g.OverheadS), N: strconv.Itoa(g.NExposures), MinNights: strconv.Itoa(g.MinNights), EclDur: optNum(g.EclipseDurDays)})
+			OverheadS: optNum(g.OverheadS), N: strconv.Itoa(g.NExposures), MinNights: strconv.Itoa(g.MinNights), EclDur: optNum(g.EclipseDurDays),
+			SNR: optNum(g.SNR), MaxSmear: optNum(g.MaxSmear)})
 	}
 	return f
 }

@@ -76,6 +76,9 @@ func (s *Server) loadWindows(ctx context.Context, a store.Actor, teamID int64, q
 	w.from, _ = planner.NightWindow(y1, m1, d1, n.loc)
 	_, w.to = planner.NightWindow(y2, m2, d2, n.loc)
 	req := planner.WindowRequest{Site: n.site.Site, From: w.from, To: w.to, Constraints: n.constraints(errs)}
+	if req.Instrument, err = n.instrument(errs); err != nil {
+		return nil, nil, err
+	}
 	for _, t := range n.targets {
 		if w.req.goalN > 0 {
 			t.Target.Goals = []planner.Goal{t.Target.Goals[w.req.goalN-1]}
@@ -168,12 +171,24 @@ func (w *windows) view(errs page.Errs) page.WindowsView {
 				Local:  qw.Start.In(n.loc).Format("Jan 02 15:04") + "–" + qw.End.In(n.loc).Format("15:04"),
 				Length: fmtDuration(qw.End.Sub(qw.Start)), Cycle: strconv.FormatInt(qw.Cycle, 10),
 				Airmass: fmt.Sprintf("%.2f–%.2f", qw.AirmassMin, qw.AirmassMax), PhaseErr: fmtPhaseErr(qw.PhaseErr), Uncertain: qw.Uncertain,
-				Exposures: strconv.Itoa(qw.Exposures), Night: nightOf(qw.Start, n.loc)})
+				Exposures: strconv.Itoa(qw.Exposures) + sizingText(qw.Sizing), Night: nightOf(qw.Start, n.loc)})
 			v.Total++
 		}
 		v.Groups = append(v.Groups, grp)
 	}
 	return v
+}
+
+// sizingText describes a window's S/N sizing for the table: "" without
+// one.
+func sizingText(sz *planner.ExposureSizing) string {
+	switch {
+	case sz == nil:
+		return ""
+	case !sz.Reached:
+		return fmt.Sprintf(" (S/N not reached within the smear limit: best %.1f in %.1f s, sky %.2f mag/arcsec²)", sz.SNR, sz.ExposureS, sz.SkyMag)
+	}
+	return fmt.Sprintf(" × %.1f s (S/N %.0f, sky %.2f mag/arcsec²)", sz.ExposureS, sz.SNR, sz.SkyMag)
 }
 
 // doc is the windows' document (export.Windows).
@@ -183,7 +198,10 @@ func (w *windows) doc() export.Windows {
 
 func (w *windows) exportJSON() ([]byte, error) { return export.JSON(w.doc()) }
 
-func (w *windows) exportCSV() ([]byte, error) { return export.WindowsCSV(w.doc(), false) }
+// exportCSV adds the sizing columns when the site has an instrument.
+func (w *windows) exportCSV() ([]byte, error) {
+	return export.WindowsCSV(w.doc(), len(w.site.Instruments) > 0)
+}
 
 // exportICS writes the windows as events; DTSTAMP is the inputs' last
 // change.

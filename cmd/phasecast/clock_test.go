@@ -162,12 +162,14 @@ func TestClockSelfCheck(t *testing.T) {
 	}
 }
 
-// TestTestClockOnlyInTests: the package that reads PHASECAST_TEST_NOW is for
-// tests; no package of the program imports it.
+// TestTestClockOnlyInTests: the packages that read PHASECAST_TEST_NOW and
+// PHASECAST_TEST_PG are for tests; no package of the program imports them.
 func TestTestClockOnlyInTests(t *testing.T) {
 	for _, p := range listPackages(t) {
-		if slices.Contains(p.Imports, module+"/store/testclock") {
-			t.Errorf("%s imports %s/store/testclock, which only tests may use", p.ImportPath, module)
+		for _, only := range []string{"/store/testclock", "/store/testdb"} {
+			if slices.Contains(p.Imports, module+only) {
+				t.Errorf("%s imports %s%s, which only tests may use", p.ImportPath, module, only)
+			}
 		}
 	}
 }

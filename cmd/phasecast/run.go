@@ -43,6 +43,8 @@ func commands() []command {
 		{"windows", "queue phase windows of targets over a date range (text, JSON, CSV, iCalendar)", runWindows},
 		{"backup", "take a consistent copy of the database while the server runs", runBackup},
 		{"restore", "put a backup in place of the database (server stopped)", runRestore},
+		{"export-team", "write one whole team as JSON, to move it to another database (SQLite or PostgreSQL)", runExportTeam},
+		{"import-team", "make a team anew from an export-team document, all or nothing", runImportTeam},
 	}
 }
 

@@ -47,7 +47,7 @@ func runServe(ctx context.Context, now func() time.Time, args []string, stdout, 
 	logger := newLogger(stderr, cfg.jsonLogs)
 	st, err := store.Open(ctx, cfg.db, now)
 	if err != nil {
-		return fmt.Errorf("open database %s: %w", cfg.db, err)
+		return fmt.Errorf("open database %s: %w", store.RedactURL(cfg.db), err)
 	}
 	defer st.Close()
 	ln, err := net.Listen("tcp", cfg.addr)
@@ -62,7 +62,7 @@ func runServe(ctx context.Context, now func() time.Time, args []string, stdout, 
 	if err := firstStart(ctx, st, cfg, base, now, stdout); err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "phasecast: serving %s (database %s)\n", base, st.Path())
+	fmt.Fprintf(stdout, "phasecast: serving %s (database %s, %s)\n", base, store.RedactURL(st.Path()), st.Engine())
 	srv, err := web.New(web.Config{Store: st, Logger: logger, BaseURL: cfg.baseURL, Now: now})
 	if err != nil {
 		return err
@@ -74,7 +74,7 @@ func runServe(ctx context.Context, now func() time.Time, args []string, stdout, 
 func parseServe(args []string, stdout io.Writer) (serveConfig, bool, error) {
 	fl := newFlags("serve", serveSynopsis)
 	addr := fl.text("addr", "HOST:PORT", DefaultAddr, "address to listen on; 0.0.0.0:8080 for every interface")
-	db := fl.text("db", "FILE", DefaultDBPath, "SQLite database file, made on first start")
+	db := fl.text("db", dbMeta, DefaultDBPath, dbUsage+"; a file is made on first start, a PostgreSQL database must exist")
 	base := fl.text("base-url", "URL", "http://ADDR", "the address users reach the server at (behind a proxy), used in printed links")
 	linkFor := fl.text("signin-link", "EMAIL", "", "print a one-time sign-in link for this existing account and start (for a locked-out member)")
 	demo := fl.text("demo", "yes|no", "yes", "seed the demo scenario into an empty database")
@@ -90,12 +90,11 @@ func parseServe(args []string, stdout io.Writer) (serveConfig, bool, error) {
 		}
 		cfg.addr = addr.value
 	}
-	if db.set {
-		if strings.TrimSpace(db.value) == "" {
-			return cfg, false, fieldError(db, "empty", "a file path")
-		}
-		cfg.db = db.value
+	dbName, err := dbFlag(db)
+	if err != nil {
+		return cfg, false, err
 	}
+	cfg.db = dbName
 	if base.set {
 		if u, err := url.Parse(base.value); err != nil || (u.Scheme != "http" && u.Scheme != "https") || u.Host == "" {
 			return cfg, false, fieldError(base, "not an absolute http(s) URL", "e.g. https://plans.example.org")

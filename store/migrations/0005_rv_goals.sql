@@ -1,4 +1,4 @@
--- 0010_rv_goals: a target's radial-velocity goal (planner.RVGoal): the
+-- 0005_rv_goals: a target's radial-velocity goal (planner.RVGoal): the
 -- model, a rough semi-amplitude K and the velocity error of one exposure
 -- (km/s), and the wanted σK/K (a fraction, 0 = none). rv_model '' means the
 -- target has no RV goal; older targets get none.

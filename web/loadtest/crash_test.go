@@ -21,6 +21,7 @@ import (
 	"time"
 
 	"phasecast/store"
+	"phasecast/store/testdb"
 )
 
 // crashWriters is how many clients write at once between kills.
@@ -308,7 +309,7 @@ func TestCrashSafety(t *testing.T) {
 	cfg := crashSettings(t)
 	bin := buildServer(t)
 	dir := t.TempDir()
-	db, logPath := filepath.Join(dir, "crash.db"), filepath.Join(dir, "server.log")
+	db, logPath := testdb.Target(t, "crash.db"), filepath.Join(dir, "server.log")
 	rng := rand.New(rand.NewPCG(uint64(cfg.seed), 0xc4a5))
 	start := time.Now()
 

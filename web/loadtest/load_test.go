@@ -20,6 +20,7 @@ import (
 	"time"
 
 	"phasecast/store"
+	"phasecast/store/testdb"
 )
 
 // demo is what the load test learned about the seeded demo scenario.
@@ -489,7 +490,7 @@ func TestLoad(t *testing.T) {
 	cfg := loadSettings(t)
 	bin := buildServer(t)
 	dir := t.TempDir()
-	db, logPath := filepath.Join(dir, "load.db"), filepath.Join(dir, "server.log")
+	db, logPath := testdb.Target(t, "load.db"), filepath.Join(dir, "server.log")
 	srv := startServer(t, bin, db, logPath)
 	env := &loadEnv{demo: signInDemo(t, srv, db)}
 	now := time.Now().UTC()

@@ -1,4 +1,4 @@
--- 0006_site_telescope: a site may describe its telescope's motion
+-- 0007_site_telescope: a site may describe its telescope's motion (PostgreSQL twin)
 -- (planner.TelescopeJSON); '' is none, and the planner then charges each
 -- visit the fixed acquisition time.
 
