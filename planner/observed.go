@@ -60,18 +60,10 @@ const (
 // and column, and no exposure is returned. Whether each target exists and
 // each time falls in a past night of the run is checked by PlanRun.
 func ParseObservedCSV(r io.Reader) ([]Exposure, error) {
-	cr := csv.NewReader(r)
-	cr.Comment = '#'
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
-	header, err := cr.Read()
-	if errors.Is(err, io.EOF) {
-		return nil, &TableError{Cells: []CellError{{Line: 1, Reason: "the file is empty; expected a header such as target,start_utc,exposure_s,n_exposures,overhead_s"}}}
-	}
+	cr, header, headerLine, err := openTable(r, "the file is empty; expected a header such as target,start_utc,exposure_s,n_exposures,overhead_s")
 	if err != nil {
-		return nil, csvReadError(err)
+		return nil, err
 	}
-	headerLine, _ := cr.FieldPos(0)
 	te := &TableError{}
 	col := observedColumns(header, headerLine, te)
 	if len(te.Cells) > 0 {

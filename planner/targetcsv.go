@@ -195,18 +195,10 @@ type TargetRow struct {
 // the t0_bjd_tdb text as written (for callers that record what was typed or
 // report later checks by line).
 func ReadTargetsCSV(r io.Reader) ([]TargetRow, error) {
-	cr := csv.NewReader(r)
-	cr.Comment = '#'
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
-	header, err := cr.Read()
-	if errors.Is(err, io.EOF) {
-		return nil, &TableError{Cells: []CellError{{Line: 1, Reason: "the file is empty; expected the header " + strings.Join(PlanCSVHeader, ",")}}}
-	}
+	cr, header, headerLine, err := openTable(r, "the file is empty; expected the header "+strings.Join(PlanCSVHeader, ","))
 	if err != nil {
-		return nil, csvReadError(err)
+		return nil, err
 	}
-	headerLine, _ := cr.FieldPos(0)
 	te := &TableError{}
 	col := columnIndex(header, PlanCSVHeader, headerLine, te, slices.Concat(PlanCSVOptional, PlanCSVRV)...)
 	if hasKey(col, "rv_model") {
@@ -633,4 +625,24 @@ func inputReason(err error) string {
 		return "accepted: " + ie.Accepted
 	}
 	return err.Error()
+}
+
+// openTable starts reading a CSV table of the planner's files: comment lines
+// ('#') skipped, rows of any length, leading spaces trimmed; it reads the
+// header and returns it with its line. An empty file is a *TableError whose
+// reason is empty (what the header should be).
+func openTable(r io.Reader, empty string) (*csv.Reader, []string, int, error) {
+	cr := csv.NewReader(r)
+	cr.Comment = '#'
+	cr.FieldsPerRecord = -1
+	cr.TrimLeadingSpace = true
+	header, err := cr.Read()
+	if errors.Is(err, io.EOF) {
+		return nil, nil, 0, &TableError{Cells: []CellError{{Line: 1, Reason: empty}}}
+	}
+	if err != nil {
+		return nil, nil, 0, csvReadError(err)
+	}
+	headerLine, _ := cr.FieldPos(0) // the header was just read: its position is known
+	return cr, header, headerLine, nil
 }

@@ -56,18 +56,10 @@ type TimingRow struct {
 // listing EVERY bad cell by line and column, with the value and what is
 // accepted, and no row is returned.
 func ParseTimingsCSV(r io.Reader) ([]TimingRow, error) {
-	cr := csv.NewReader(r)
-	cr.Comment = '#'
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
-	header, err := cr.Read()
-	if errors.Is(err, io.EOF) {
-		return nil, &TableError{Cells: []CellError{{Line: 1, Reason: "the file is empty; expected a header such as time,std,err_s"}}}
-	}
+	cr, header, headerLine, err := openTable(r, "the file is empty; expected a header such as time,std,err_s")
 	if err != nil {
-		return nil, csvReadError(err)
+		return nil, err
 	}
-	headerLine, _ := cr.FieldPos(0)
 	te := &TableError{}
 	col := timingColumns(header, headerLine, te)
 	if len(te.Cells) > 0 {
